@@ -1,0 +1,164 @@
+//! Model terms and the design matrix they make.
+
+use crate::{CoreError, Result};
+
+/// Highest polynomial degree accepted for a single predictor.
+pub const MAX_DEGREE: u32 = 10;
+
+/// What a column of the design matrix stands for.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum TermKind {
+    /// The constant column of ones.
+    Intercept,
+    /// A predictor as given.
+    Linear,
+    /// A predictor raised to a power `k ≥ 2`.
+    Power(u32),
+}
+
+/// One named column of the design matrix.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Term {
+    /// Display name: `intercept`, the predictor's name, or `name^k`.
+    pub name: String,
+    /// What the column stands for.
+    pub kind: TermKind,
+}
+
+/// The design matrix `X`, stored by column, with one [`Term`] per column.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Design {
+    n_rows: usize,
+    terms: Vec<Term>,
+    columns: Vec<Vec<f64>>,
+}
+
+impl Design {
+    /// An empty design for `n_rows` observations, with the intercept column if asked.
+    pub fn new(n_rows: usize, intercept: bool) -> Self {
+        let mut design = Self {
+            n_rows,
+            terms: Vec::new(),
+            columns: Vec::new(),
+        };
+        if intercept {
+            design.push(
+                Term {
+                    name: "intercept".into(),
+                    kind: TermKind::Intercept,
+                },
+                vec![1.0; n_rows],
+            );
+        }
+        design
+    }
+
+    /// `[1] x₁ … x_k`: an intercept (if asked) and each predictor as given.
+    ///
+    /// # Panics
+    /// If a predictor's length differs from the others (a caller bug).
+    pub fn linear(predictors: &[(&str, &[f64])], intercept: bool) -> Self {
+        let n_rows = predictors.first().map_or(0, |(_, x)| x.len());
+        let mut design = Self::new(n_rows, intercept);
+        for (name, x) in predictors {
+            design.push(
+                Term {
+                    name: (*name).to_string(),
+                    kind: TermKind::Linear,
+                },
+                x.to_vec(),
+            );
+        }
+        design
+    }
+
+    /// `[1] x x² … x^degree` for one predictor, `1 ≤ degree ≤` [`MAX_DEGREE`].
+    ///
+    /// # Errors
+    /// [`CoreError::InvalidOption`] for a degree outside that range.
+    pub fn polynomial(name: &str, x: &[f64], degree: u32, intercept: bool) -> Result<Self> {
+        if !(1..=MAX_DEGREE).contains(&degree) {
+            return Err(CoreError::InvalidOption(format!(
+                "polynomial degree {degree} is outside 1..={MAX_DEGREE}"
+            )));
+        }
+        let mut design = Self::new(x.len(), intercept);
+        for k in 1..=degree {
+            let (term_name, kind) = if k == 1 {
+                (name.to_string(), TermKind::Linear)
+            } else {
+                (format!("{name}^{k}"), TermKind::Power(k))
+            };
+            let column = x.iter().map(|&v| v.powi(k as i32)).collect();
+            design.push(
+                Term {
+                    name: term_name,
+                    kind,
+                },
+                column,
+            );
+        }
+        Ok(design)
+    }
+
+    /// Appends a column.
+    ///
+    /// # Panics
+    /// If the column's length is not the design's row count (a caller bug).
+    pub fn push(&mut self, term: Term, column: Vec<f64>) {
+        assert_eq!(column.len(), self.n_rows, "column length differs from design");
+        self.terms.push(term);
+        self.columns.push(column);
+    }
+
+    /// Number of observations.
+    pub fn n_rows(&self) -> usize {
+        self.n_rows
+    }
+
+    /// Number of terms (columns), `p`.
+    pub fn n_terms(&self) -> usize {
+        self.terms.len()
+    }
+
+    /// The terms, in column order.
+    pub fn terms(&self) -> &[Term] {
+        &self.terms
+    }
+
+    /// The columns, in term order.
+    pub fn columns(&self) -> &[Vec<f64>] {
+        &self.columns
+    }
+
+    /// Whether the first term is the intercept.
+    pub fn has_intercept(&self) -> bool {
+        self.terms
+            .first()
+            .is_some_and(|t| t.kind == TermKind::Intercept)
+    }
+
+    /// Row `i` of `X`.
+    pub fn row(&self, i: usize) -> impl Iterator<Item = f64> + '_ {
+        self.columns.iter().map(move |c| c[i])
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn polynomial_terms_are_named_by_power() {
+        let d = Design::polynomial("dose", &[1.0, 2.0, 3.0], 3, true).expect("valid degree");
+        let names: Vec<_> = d.terms().iter().map(|t| t.name.as_str()).collect();
+        assert_eq!(names, ["intercept", "dose", "dose^2", "dose^3"]);
+        assert_eq!(d.columns()[3], vec![1.0, 8.0, 27.0]);
+    }
+
+    #[test]
+    fn degree_outside_the_range_is_refused() {
+        assert!(Design::polynomial("x", &[1.0], 11, true).is_err());
+        assert!(Design::polynomial("x", &[1.0], 0, true).is_err());
+    }
+}
