@@ -1,1 +1,1 @@
-
+//! Command-line contract tests (filled in below).

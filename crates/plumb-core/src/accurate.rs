@@ -40,15 +40,22 @@ pub fn sum(xs: impl IntoIterator<Item = f64>) -> f64 {
 /// If the slices differ in length (a caller bug).
 pub fn dot(a: &[f64], b: &[f64]) -> f64 {
     assert_eq!(a.len(), b.len(), "dot: slices of different length");
+    let (hi, lo) = dot_split(a.iter().copied().zip(b.iter().copied()));
+    hi + lo
+}
+
+/// Compensated `Σ aᵢ·bᵢ` over pairs, returned unrounded as `(hi, lo)` with `|lo| ≤ ulp(hi)/2`:
+/// `hi + lo` carries about twice the working precision, for callers that must not round yet.
+pub fn dot_split(pairs: impl IntoIterator<Item = (f64, f64)>) -> (f64, f64) {
     let mut s = 0.0;
     let mut c = 0.0;
-    for (&x, &y) in a.iter().zip(b) {
+    for (x, y) in pairs {
         let (p, ep) = two_prod(x, y);
         let (t, es) = two_sum(s, p);
         s = t;
         c += ep + es;
     }
-    s + c
+    two_sum(s, c)
 }
 
 #[cfg(test)]
@@ -69,6 +76,13 @@ mod tests {
         let a = [1e8 + 1.0, 1e8, 1e8];
         let b = [1e8 + 1.0, -1e8, -2.0];
         assert_eq!(dot(&a, &b), 1.0);
+    }
+
+    #[test]
+    fn dot_split_keeps_what_rounding_to_one_double_drops() {
+        // 2^53 + 1 is not representable: the sum rounds to 2^53 and the 1 stays in `lo`.
+        let (hi, lo) = dot_split([(2f64.powi(53), 1.0), (1.0, 1.0)]);
+        assert_eq!((hi, lo), (2f64.powi(53), 1.0));
     }
 
     #[test]

@@ -87,7 +87,11 @@ mod tests {
     #[test]
     fn two_sided_p_of_t_matches_scipy() {
         // scipy: 2*t.sf(2.0, 10) = 0.07338803477074039
-        assert_relative_eq!(t_two_sided_p(2.0, 10.0), 0.073_388_034_770_740_39, max_relative = 1e-10);
+        assert_relative_eq!(
+            t_two_sided_p(2.0, 10.0),
+            0.073_388_034_770_740_39,
+            max_relative = 1e-10
+        );
         assert_eq!(t_two_sided_p(0.0, 5.0), 1.0);
         assert_eq!(t_two_sided_p(f64::INFINITY, 5.0), 0.0);
     }
@@ -95,22 +99,42 @@ mod tests {
     #[test]
     fn tiny_p_values_keep_relative_accuracy() {
         // scipy: 2*t.sf(30, 20) = 4.19522532399964e-18
-        assert_relative_eq!(t_two_sided_p(30.0, 20.0), 4.195_225_323_999_64e-18, max_relative = 1e-10);
+        assert_relative_eq!(
+            t_two_sided_p(30.0, 20.0),
+            4.195_225_323_999_64e-18,
+            max_relative = 1e-10
+        );
     }
 
     #[test]
     fn t_quantile_matches_scipy() {
         // scipy: t.isf(0.025, 10) = 2.2281388519649385; t.isf(0.005, 3) = 5.8409093097333535
-        assert_relative_eq!(t_upper_quantile(0.025, 10.0), 2.228_138_851_964_938_5, max_relative = 1e-10);
-        assert_relative_eq!(t_upper_quantile(0.005, 3.0), 5.840_909_309_733_353_5, max_relative = 1e-10);
+        assert_relative_eq!(
+            t_upper_quantile(0.025, 10.0),
+            2.228_138_851_964_938_5,
+            max_relative = 1e-10
+        );
+        assert_relative_eq!(
+            t_upper_quantile(0.005, 3.0),
+            5.840_909_309_733_353_5,
+            max_relative = 1e-10
+        );
     }
 
     #[test]
     fn f_tail_matches_scipy_and_the_closed_form() {
         // scipy: f.sf(3.5, 2, 20) = 0.04973502207609711; for d1 = 2 the tail is
         // (1 + d1·f/d2)^(−d2/2) = 1.35^−10 exactly (closed form of the F distribution).
-        assert_relative_eq!(f_upper_tail(3.5, 2.0, 20.0), 0.049_735_022_076_097_11, max_relative = 1e-10);
-        assert_relative_eq!(f_upper_tail(3.5, 2.0, 20.0), 1.35_f64.powi(-10), max_relative = 1e-10);
+        assert_relative_eq!(
+            f_upper_tail(3.5, 2.0, 20.0),
+            0.049_735_022_076_097_11,
+            max_relative = 1e-10
+        );
+        assert_relative_eq!(
+            f_upper_tail(3.5, 2.0, 20.0),
+            1.35_f64.powi(-10),
+            max_relative = 1e-10
+        );
     }
 
     #[test]

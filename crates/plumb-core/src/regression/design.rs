@@ -16,6 +16,17 @@ pub enum TermKind {
     Power(u32),
 }
 
+impl TermKind {
+    /// The power of the predictor this term carries: 0 for the intercept, 1 for a predictor as given.
+    pub fn power(self) -> u32 {
+        match self {
+            Self::Intercept => 0,
+            Self::Linear => 1,
+            Self::Power(k) => k,
+        }
+    }
+}
+
 /// One named column of the design matrix.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Term {
@@ -31,6 +42,9 @@ pub struct Design {
     n_rows: usize,
     terms: Vec<Term>,
     columns: Vec<Vec<f64>>,
+    /// For a polynomial in one predictor, that predictor's values (the solver then works in
+    /// a shifted and scaled variable; see `solve`).
+    polynomial_source: Option<Vec<f64>>,
 }
 
 impl Design {
@@ -40,6 +54,7 @@ impl Design {
             n_rows,
             terms: Vec::new(),
             columns: Vec::new(),
+            polynomial_source: None,
         };
         if intercept {
             design.push(
@@ -83,6 +98,7 @@ impl Design {
             )));
         }
         let mut design = Self::new(x.len(), intercept);
+        design.polynomial_source = Some(x.to_vec());
         for k in 1..=degree {
             let (term_name, kind) = if k == 1 {
                 (name.to_string(), TermKind::Linear)
@@ -106,7 +122,11 @@ impl Design {
     /// # Panics
     /// If the column's length is not the design's row count (a caller bug).
     pub fn push(&mut self, term: Term, column: Vec<f64>) {
-        assert_eq!(column.len(), self.n_rows, "column length differs from design");
+        assert_eq!(
+            column.len(),
+            self.n_rows,
+            "column length differs from design"
+        );
         self.terms.push(term);
         self.columns.push(column);
     }
@@ -136,6 +156,11 @@ impl Design {
         self.terms
             .first()
             .is_some_and(|t| t.kind == TermKind::Intercept)
+    }
+
+    /// The predictor's values when this is a polynomial in one predictor.
+    pub fn polynomial_source(&self) -> Option<&[f64]> {
+        self.polynomial_source.as_deref()
     }
 
     /// Row `i` of `X`.

@@ -136,8 +136,20 @@ pub(crate) fn summarize(
     let log_likelihood =
         -0.5 * nf * ((2.0 * std::f64::consts::PI).ln() + (rss / nf).ln() + 1.0) + 0.5 * sum_ln_w;
     let covariance = solution.unscaled_covariance * sigma2;
-    let coefficients = coefficient_table(design, y, weights, &solution.beta, &covariance, df_residual, level);
-    let fitted = y.iter().zip(&solution.residuals).map(|(v, e)| v - e).collect();
+    let coefficients = coefficient_table(
+        design,
+        y,
+        weights,
+        &solution.beta,
+        &covariance,
+        df_residual,
+        level,
+    );
+    let fitted = y
+        .iter()
+        .zip(&solution.residuals)
+        .map(|(v, e)| v - e)
+        .collect();
 
     LinearFit {
         n,
@@ -230,8 +242,13 @@ mod tests {
         // R² 0.6 (worked by hand from the normal equations).
         let x = [1.0, 2.0, 3.0, 4.0, 5.0];
         let y = [2.0, 4.0, 5.0, 4.0, 5.0];
-        let fit = fit(&Design::linear(&[("x", &x)], true), &y, None, &FitOptions::default())
-            .expect("well-posed");
+        let fit = fit(
+            &Design::linear(&[("x", &x)], true),
+            &y,
+            None,
+            &FitOptions::default(),
+        )
+        .expect("well-posed");
         assert_relative_eq!(fit.coefficients[0].estimate, 2.2, max_relative = 1e-14);
         assert_relative_eq!(fit.coefficients[1].estimate, 0.6, max_relative = 1e-14);
         assert_relative_eq!(fit.anova.ss_residual, 2.4, max_relative = 1e-14);
@@ -248,11 +265,20 @@ mod tests {
         // y = 2x exactly plus one perturbation; through the origin TSS is Σy².
         let x = [1.0, 2.0, 3.0, 4.0];
         let y = [2.0, 4.0, 6.0, 9.0];
-        let fit = fit(&Design::linear(&[("x", &x)], false), &y, None, &FitOptions::default())
-            .expect("well-posed");
+        let fit = fit(
+            &Design::linear(&[("x", &x)], false),
+            &y,
+            None,
+            &FitOptions::default(),
+        )
+        .expect("well-posed");
         assert_eq!(fit.r_squared_kind, RSquaredKind::Uncentered);
         let tss: f64 = y.iter().map(|v| v * v).sum();
-        assert_relative_eq!(fit.r_squared, 1.0 - fit.anova.ss_residual / tss, max_relative = 1e-14);
+        assert_relative_eq!(
+            fit.r_squared,
+            1.0 - fit.anova.ss_residual / tss,
+            max_relative = 1e-14
+        );
         assert_eq!(fit.anova.df_model, 1);
     }
 
@@ -262,12 +288,22 @@ mod tests {
         let x = [1.0, 2.0, 3.0, 4.0, 5.0];
         let y = [1.0, 3.0, 2.0, 5.0, 4.0];
         let w = [1.0, 2.0, 1.0, 1.0, 1.0];
-        let weighted = fit(&Design::linear(&[("x", &x)], true), &y, Some(&w), &FitOptions::default())
-            .expect("well-posed");
+        let weighted = fit(
+            &Design::linear(&[("x", &x)], true),
+            &y,
+            Some(&w),
+            &FitOptions::default(),
+        )
+        .expect("well-posed");
         let x2 = [1.0, 2.0, 2.0, 3.0, 4.0, 5.0];
         let y2 = [1.0, 3.0, 3.0, 2.0, 5.0, 4.0];
-        let repeated = fit(&Design::linear(&[("x", &x2)], true), &y2, None, &FitOptions::default())
-            .expect("well-posed");
+        let repeated = fit(
+            &Design::linear(&[("x", &x2)], true),
+            &y2,
+            None,
+            &FitOptions::default(),
+        )
+        .expect("well-posed");
         for (a, b) in weighted.coefficients.iter().zip(&repeated.coefficients) {
             assert_relative_eq!(a.estimate, b.estimate, max_relative = 1e-13);
         }

@@ -4,6 +4,7 @@
 //! positive weights (all ones for ordinary least squares). The estimate minimizes
 //! `Σ wᵢ (yᵢ − xᵢᵀβ)²`. See [`fit`] for the method and [`LinearFit`] for what is reported.
 
+mod basis;
 mod design;
 mod inference;
 mod solve;

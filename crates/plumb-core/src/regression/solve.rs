@@ -1,12 +1,16 @@
-//! The least-squares solver: equilibrated, column-pivoted Householder QR with refinement.
+//! The least-squares solver: column-pivoted Householder QR of a well-scaled working basis,
+//! with iterative refinement on accurately computed residuals.
 
-use nalgebra::{DMatrix, DVector};
+use nalgebra::{DMatrix, DVector, Dyn};
 
+use super::basis::Basis;
 use super::design::Design;
 use crate::{accurate, CoreError, Result};
 
 /// Most refinement steps taken after the first solve.
 const REFINEMENT_STEPS: usize = 3;
+
+type PivotedQr = nalgebra::linalg::ColPivQR<f64, Dyn, Dyn>;
 
 /// What the solver hands to the inference step.
 #[derive(Debug, Clone)]
@@ -17,11 +21,11 @@ pub(crate) struct Solution {
     pub residuals: Vec<f64>,
     /// `(XᵀWX)⁻¹`, in term order and the user's units.
     pub unscaled_covariance: DMatrix<f64>,
-    /// 2-norm condition number of the equilibrated weighted design.
+    /// 2-norm condition number of the working basis (after equilibration).
     pub condition_number: f64,
 }
 
-/// Solves `min Σ wᵢ (yᵢ − xᵢᵀβ)²`; see [`super::fit`] for the method.
+/// Solves `min Σ wᵢ (yᵢ − xᵢᵀβ)²`; see [`super::fit`] and [`super::basis`] for the method.
 pub(crate) fn least_squares(
     design: &Design,
     y: &[f64],
@@ -34,37 +38,65 @@ pub(crate) fn least_squares(
         Some(w) => w.iter().map(|v| v.sqrt()).collect(),
         None => vec![1.0; n],
     };
-    let scales: Vec<f64> = design
-        .columns()
-        .iter()
-        .map(|c| power_of_two_near(weighted_norm(c, &root_w)))
-        .collect();
-    let scaled = DMatrix::from_fn(n, p, |i, j| root_w[i] * design.columns()[j][i] / scales[j]);
-    let qr = scaled.col_piv_qr();
+    let basis = Basis::new(design, &root_w);
+    let z = DMatrix::from_fn(n, p, |i, j| root_w[i] * basis.columns[j][i]);
+    let qr = z.col_piv_qr();
     let r = qr.r();
     let order = pivot_order(&qr, p);
-    check_rank(design, &r, &order, &scales, rank_tolerance)?;
-
-    let solve_scaled = |rhs: &[f64]| -> Vec<f64> {
-        let mut b = DVector::from_column_slice(rhs);
+    check_rank(design, &r, &order, rank_tolerance)?;
+    let r_inv = r
+        .solve_upper_triangular(&DMatrix::identity(p, p))
+        .expect("rank was checked, R has a non-zero diagonal");
+    // M = T·P·R⁻¹, so that β = M·(Qᵀ√W y) and (XᵀWX)⁻¹ = M·Mᵀ.
+    let m = DMatrix::from_fn(p, p, |j, l| {
+        let t_row: Vec<f64> = order.iter().map(|&col| basis.to_terms[(j, col)]).collect();
+        accurate::dot(&t_row, r_inv.column(l).as_slice())
+    });
+    let solve = |rhs: &[f64]| -> Vec<f64> {
+        let mut b = DVector::from_iterator(n, rhs.iter().zip(&root_w).map(|(v, w)| v * w));
         qr.q_tr_mul(&mut b);
-        let top = DVector::from_iterator(p, b.iter().take(p).copied());
-        let c = r
-            .solve_upper_triangular(&top)
-            .expect("rank was checked, R has a non-zero diagonal");
-        let mut beta = vec![0.0; p];
-        for (k, &j) in order.iter().enumerate() {
-            beta[j] = c[k] / scales[j];
-        }
-        beta
+        let top = &b.as_slice()[..p];
+        (0..p)
+            .map(|j| accurate::dot(m.row(j).transpose().as_slice(), top))
+            .collect()
     };
 
-    let weighted_y: Vec<f64> = y.iter().zip(&root_w).map(|(v, w)| v * w).collect();
-    let mut beta = solve_scaled(&weighted_y);
-    let mut residuals = residuals_of(design, y, &beta);
+    // Refinement by corrected semi-normal equations: with g = ZᵀW r computed by compensated
+    // dot products, Δβ = M·R⁻ᵀ·Pᵀg. Because Z is exact (or nearly so) the gradient g is
+    // accurate even when the residual is large, which is where a second pass through Qᵀ
+    // would stall at eps·‖r‖.
+    let weighted_z: Vec<Vec<f64>> = match weights {
+        Some(w) => basis
+            .columns
+            .iter()
+            .map(|c| c.iter().zip(w).map(|(a, b)| a * b).collect())
+            .collect(),
+        None => basis.columns.clone(),
+    };
+    let correction = |residual: &[(f64, f64)]| -> Vec<f64> {
+        let g: Vec<f64> = order
+            .iter()
+            .map(|&col| {
+                let z = &weighted_z[col];
+                let pairs = z
+                    .iter()
+                    .zip(residual)
+                    .flat_map(|(&zi, &(hi, lo))| [(zi, hi), (zi, lo)]);
+                let (hi, lo) = accurate::dot_split(pairs);
+                hi + lo
+            })
+            .collect();
+        let h: Vec<f64> = (0..p)
+            .map(|k| accurate::dot(r_inv.column(k).as_slice(), &g))
+            .collect();
+        (0..p)
+            .map(|j| accurate::dot(m.row(j).transpose().as_slice(), &h))
+            .collect()
+    };
+    let mut beta = solve(y);
+    let mut residuals = split_residuals(design, y, &beta);
     for _ in 0..REFINEMENT_STEPS {
-        let weighted_r: Vec<f64> = residuals.iter().zip(&root_w).map(|(v, w)| v * w).collect();
-        let delta = solve_scaled(&weighted_r);
+        let delta = correction(&residuals);
         let mut changed = false;
         for (b, d) in beta.iter_mut().zip(&delta) {
             let next = *b + d;
@@ -74,88 +106,47 @@ pub(crate) fn least_squares(
         if !changed {
             break;
         }
-        residuals = residuals_of(design, y, &beta);
+        residuals = split_residuals(design, y, &beta);
     }
 
-    let r_inv = r
-        .solve_upper_triangular(&DMatrix::identity(p, p))
-        .expect("rank was checked, R has a non-zero diagonal");
-    let cov_scaled = &r_inv * r_inv.transpose();
-    let mut unscaled_covariance = DMatrix::zeros(p, p);
-    for (a, &ja) in order.iter().enumerate() {
-        for (b, &jb) in order.iter().enumerate() {
-            unscaled_covariance[(ja, jb)] = cov_scaled[(a, b)] / (scales[ja] * scales[jb]);
-        }
-    }
-    let singular = r.clone().singular_values();
-    let condition_number = singular.max() / singular.min();
+    let unscaled_covariance = DMatrix::from_fn(p, p, |a, b| {
+        accurate::dot(
+            m.row(a).transpose().as_slice(),
+            m.row(b).transpose().as_slice(),
+        )
+    });
+    let singular = r.singular_values();
     Ok(Solution {
         beta,
-        residuals,
+        residuals: residuals.iter().map(|(hi, lo)| hi + lo).collect(),
         unscaled_covariance,
-        condition_number,
+        condition_number: singular.max() / singular.min(),
     })
 }
 
-/// `eᵢ = yᵢ − Σⱼ xᵢⱼβⱼ`, each as one compensated dot product `[yᵢ, xᵢ]·[1, −β]`.
-fn residuals_of(design: &Design, y: &[f64], beta: &[f64]) -> Vec<f64> {
-    let coefficients: Vec<f64> = std::iter::once(1.0)
-        .chain(beta.iter().map(|b| -b))
-        .collect();
-    let mut row = Vec::with_capacity(beta.len() + 1);
+/// `eᵢ = yᵢ − Σⱼ xᵢⱼβⱼ`, each as one compensated dot product `[yᵢ, xᵢ]·[1, −β]`, kept
+/// unrounded as `(hi, lo)`: the refinement needs the digits below the residual's last place.
+fn split_residuals(design: &Design, y: &[f64], beta: &[f64]) -> Vec<(f64, f64)> {
     (0..y.len())
         .map(|i| {
-            row.clear();
-            row.push(y[i]);
-            row.extend(design.row(i));
-            accurate::dot(&row, &coefficients)
+            let row = std::iter::once(y[i]).chain(design.row(i));
+            let coefficients = std::iter::once(1.0).chain(beta.iter().map(|b| -b));
+            accurate::dot_split(row.zip(coefficients))
         })
         .collect()
 }
 
-fn weighted_norm(column: &[f64], root_w: &[f64]) -> f64 {
-    // Scale first so that squares of values near 1e±300 neither overflow nor underflow.
-    let peak = column
-        .iter()
-        .zip(root_w)
-        .fold(0.0_f64, |m, (v, w)| m.max((v * w).abs()));
-    if peak == 0.0 {
-        return 0.0;
-    }
-    let sum: f64 = column
-        .iter()
-        .zip(root_w)
-        .map(|(v, w)| (v * w / peak).powi(2))
-        .sum();
-    peak * sum.sqrt()
-}
-
-/// `2^round(log₂ x)`, so that dividing by it is exact; 1 for zero.
-fn power_of_two_near(x: f64) -> f64 {
-    if x == 0.0 || !x.is_finite() {
-        1.0
-    } else {
-        2f64.powi(x.log2().round() as i32)
-    }
-}
-
-/// `order[k]` is the original column that pivoting moved to position `k`.
-fn pivot_order(qr: &nalgebra::linalg::ColPivQR<f64, nalgebra::Dyn, nalgebra::Dyn>, p: usize) -> Vec<usize> {
+/// `order[k]` is the working column that pivoting moved to position `k`.
+fn pivot_order(qr: &PivotedQr, p: usize) -> Vec<usize> {
     let mut index = DMatrix::from_fn(1, p, |_, j| j as f64);
     qr.p().permute_columns(&mut index);
     index.iter().map(|&v| v as usize).collect()
 }
 
 /// Fails with [`CoreError::Aliased`] at the first pivot whose `|R_kk|` is at or below
-/// `tolerance · max |R_ii|`, naming the term and the combination of earlier pivots that
-/// reproduces it: solving `R₁₁c = r₁ₖ` gives `xₖ ≈ Σ cᵢ (sₖ/sᵢ) xᵢ`.
-fn check_rank(
-    design: &Design,
-    r: &DMatrix<f64>,
-    order: &[usize],
-    scales: &[f64],
-    tolerance: f64,
-) -> Result<()> {
+/// `tolerance · max |R_ii|`, naming the term and what reproduces it. For a general design,
+/// solving `R₁₁c = r₁ₖ` gives `zₖ ≈ Σ cᵢ zᵢ`, reported in the user's units.
+fn check_rank(design: &Design, r: &DMatrix<f64>, order: &[usize], tolerance: f64) -> Result<()> {
     let diag: Vec<f64> = (0..order.len()).map(|k| r[(k, k)].abs()).collect();
     let largest = diag.iter().copied().fold(0.0, f64::max);
     let Some(k) = diag.iter().position(|&d| d <= tolerance * largest) else {
@@ -163,15 +154,33 @@ fn check_rank(
     };
     let names: Vec<&str> = design.terms().iter().map(|t| t.name.as_str()).collect();
     let target = order[k];
-    let combination = if k == 0 {
+    let combination = if let Some(x) = design.polynomial_source() {
+        let mut distinct = x.to_vec();
+        distinct.sort_by(f64::total_cmp);
+        distinct.dedup();
+        format!(
+            "a combination of the lower powers (the data hold only {} distinct values of the predictor)",
+            distinct.len()
+        )
+    } else if k == 0 {
         "zero".to_string()
     } else {
         let r11 = r.view((0, 0), (k, k)).into_owned();
         let r1k = r.view((0, k), (k, 1)).into_owned();
+        let norms: Vec<f64> = design
+            .columns()
+            .iter()
+            .map(|c| accurate::dot(c, c).sqrt())
+            .collect();
         match r11.solve_upper_triangular(&r1k) {
-            Some(c) => describe_combination(
-                (0..k).map(|i| (names[order[i]], c[i] * scales[target] / scales[order[i]])),
-            ),
+            Some(c) => describe_combination((0..k).map(|i| {
+                let col = order[i];
+                // zⱼ = xⱼ/sⱼ with sⱼ ≈ ‖xⱼ‖, so the weights in x-units are cᵢ·s_target/sᵢ.
+                (
+                    names[col],
+                    c[i] * norm_scale(norms[target]) / norm_scale(norms[col]),
+                )
+            })),
             None => "a combination of the other terms".to_string(),
         }
     };
@@ -180,6 +189,10 @@ fn check_rank(
         combination,
         tolerance,
     })
+}
+
+fn norm_scale(norm: f64) -> f64 {
+    super::basis::power_of_two_near(norm)
 }
 
 fn describe_combination<'a>(parts: impl Iterator<Item = (&'a str, f64)>) -> String {
@@ -213,16 +226,17 @@ mod tests {
         let CoreError::Aliased { combination, .. } = &err else {
             panic!("expected Aliased, got {err:?}");
         };
-        let message = err.to_string();
-        assert!(message.contains("aliased"), "{message}");
+        assert!(err.to_string().contains("aliased"), "{err}");
         // Whichever of a, b, c is named, the other two appear in the combination.
         assert_eq!(combination.matches('·').count(), 2, "{combination}");
     }
 
     #[test]
-    fn power_of_two_scaling_is_exact() {
-        assert_eq!(power_of_two_near(3.0), 4.0);
-        assert_eq!(power_of_two_near(0.0), 1.0);
-        assert_eq!(1.1 / power_of_two_near(1000.0) * power_of_two_near(1000.0), 1.1);
+    fn polynomial_with_too_few_distinct_values_is_aliased() {
+        let x = [1.0, 1.0, 2.0, 2.0, 3.0, 3.0];
+        let y = [1.0, 1.1, 2.0, 2.2, 2.9, 3.1];
+        let design = Design::polynomial("x", &x, 3, true).expect("degree 3");
+        let err = fit(&design, &y, None, &FitOptions::default()).expect_err("aliased");
+        assert!(err.to_string().contains("only 3 distinct values"), "{err}");
     }
 }
