@@ -1,1 +1,61 @@
-//! placeholder
+//! Loading tables of measurements for Plumbline.
+//!
+//! [`load`] opens CSV/TSV/semicolon text (via polars, after sniffing the delimiter, header
+//! and decimal mark), Parquet (polars) and spreadsheets (calamine), and types every column
+//! as numeric or text. [`Table::complete_rows`] then hands an analysis the complete rows of
+//! the columns it needs and says which rows it dropped and why.
+//!
+//! Rows are numbered from 1 among the file's data rows (the header is not counted); that
+//! number is the one users see and the one exclusions name.
+
+mod cell;
+mod delimited;
+mod error;
+mod parquet;
+mod select;
+mod sheet;
+mod sniff;
+mod table;
+
+pub use cell::{Cell, DecimalMark, DEFAULT_MISSING_TOKENS};
+pub use error::{DataError, Result};
+pub use select::{DropReason, Dropped, Selection};
+pub use sniff::HeaderMode;
+pub use table::{Column, ColumnSummary, ColumnValues, SourceFormat, Table};
+
+use std::path::Path;
+
+/// How to read a file. The defaults detect everything.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct LoadOptions {
+    /// Field delimiter for text files; `None` sniffs it from the first lines.
+    pub delimiter: Option<u8>,
+    /// Whether the first row holds column names.
+    pub header: HeaderMode,
+    /// Decimal mark of numbers in text files; `None` detects it.
+    pub decimal: Option<DecimalMark>,
+    /// Extra cell values that mean "missing" (e.g. `-999`), beside [`DEFAULT_MISSING_TOKENS`].
+    pub missing_tokens: Vec<String>,
+    /// Spreadsheet sheet to read; `None` reads the first.
+    pub sheet: Option<String>,
+}
+
+/// Opens `path`, choosing the reader by the file's extension (`.parquet`/`.pq`;
+/// `.xlsx`/`.xlsm`/`.xlsb`/`.xls`/`.ods`; anything else is read as delimited text).
+///
+/// The file is only read, never written.
+///
+/// # Errors
+/// A [`DataError`] naming the file and, where it applies, the line, row or column at fault
+/// and what to do about it.
+pub fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
+    let extension = path
+        .extension()
+        .map(|e| e.to_string_lossy().to_ascii_lowercase())
+        .unwrap_or_default();
+    match extension.as_str() {
+        "parquet" | "pq" => parquet::load(path, options),
+        "xlsx" | "xlsm" | "xlsb" | "xls" | "ods" => sheet::load(path, options),
+        _ => delimited::load(path, options),
+    }
+}

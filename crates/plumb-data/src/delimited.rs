@@ -1,0 +1,170 @@
+//! Delimited text (CSV, TSV, semicolon-separated): sniffing, validation, then polars.
+
+use std::io::Cursor;
+use std::path::Path;
+
+use polars::prelude::{CsvParseOptions, CsvReadOptions, DataFrame, SerReader};
+
+use crate::cell::{classify, Cell};
+use crate::sniff::{self, HeaderMode, Record};
+use crate::table::{SourceFormat, Table};
+use crate::{DataError, LoadOptions, Result};
+
+const BOM: &[u8] = b"\xEF\xBB\xBF";
+
+/// Reads a delimited text file. The whole file is read into memory once; blank lines are
+/// skipped and do not count as rows.
+pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
+    let bytes = std::fs::read(path).map_err(|source| DataError::Io {
+        path: path.to_path_buf(),
+        source,
+    })?;
+    let text = bytes.strip_prefix(BOM).unwrap_or(&bytes);
+    check_utf8(path, text)?;
+    let recs = sniff::records(text).map_err(|line| DataError::UnclosedQuote {
+        path: path.to_path_buf(),
+        line,
+    })?;
+    if recs.is_empty() {
+        return Err(DataError::Empty {
+            path: path.to_path_buf(),
+        });
+    }
+    let delimiter = options
+        .delimiter
+        .unwrap_or_else(|| sniff::delimiter(text, &recs));
+    let sample: Vec<Vec<String>> = recs
+        .iter()
+        .take(200)
+        .map(|r| sniff::fields(&text[r.start..r.end], delimiter))
+        .collect();
+    let decimal = options
+        .decimal
+        .unwrap_or_else(|| sniff::decimal_mark(&sample, delimiter));
+    let header = match options.header {
+        HeaderMode::Yes => true,
+        HeaderMode::No => false,
+        HeaderMode::Auto => sniff::has_header(&sample, decimal, &options.missing_tokens),
+    };
+    check_field_counts(path, text, &recs, delimiter, header)?;
+    let frame = parse(path, text, &recs, delimiter)?;
+    let mut columns = string_columns(path, &frame)?;
+    let names = if header {
+        columns
+            .iter_mut()
+            .map(|c| c.remove(0).unwrap_or_default())
+            .collect()
+    } else {
+        (1..=columns.len()).map(|j| format!("column{j}")).collect()
+    };
+    if columns.first().is_none_or(Vec::is_empty) {
+        return Err(DataError::NoDataRows {
+            path: path.to_path_buf(),
+        });
+    }
+    let cells: Vec<Vec<Cell>> = columns
+        .into_iter()
+        .map(|col| {
+            col.into_iter()
+                .map(|v| match v {
+                    None => Cell::Missing,
+                    Some(s) => classify(&s, decimal, &options.missing_tokens),
+                })
+                .collect()
+        })
+        .collect();
+    let format = SourceFormat::Delimited {
+        delimiter,
+        decimal,
+        header,
+    };
+    Ok(Table::new(path, format, names, cells, Vec::new()))
+}
+
+fn check_utf8(path: &Path, text: &[u8]) -> Result<()> {
+    match std::str::from_utf8(text) {
+        Ok(_) => Ok(()),
+        Err(e) => {
+            let line = 1 + text[..e.valid_up_to()].iter().filter(|&&b| b == b'\n').count();
+            Err(DataError::NotUtf8 {
+                path: path.to_path_buf(),
+                line,
+            })
+        }
+    }
+}
+
+fn check_field_counts(
+    path: &Path,
+    text: &[u8],
+    recs: &[Record],
+    delimiter: u8,
+    header: bool,
+) -> Result<()> {
+    let expected = sniff::field_count(&text[recs[0].start..recs[0].end], delimiter);
+    for (i, r) in recs.iter().enumerate() {
+        let found = sniff::field_count(&text[r.start..r.end], delimiter);
+        if found != expected {
+            return Err(DataError::Ragged {
+                path: path.to_path_buf(),
+                line: r.line,
+                row: i + usize::from(!header),
+                found,
+                expected,
+                delimiter: printable(delimiter),
+            });
+        }
+    }
+    Ok(())
+}
+
+fn printable(d: u8) -> String {
+    match d {
+        b'\t' => "tab".into(),
+        b',' => "comma".into(),
+        b';' => "semicolon".into(),
+        other => format!("'{}'", other as char),
+    }
+}
+
+/// Hands polars the records alone (no blank lines), every column as text: typing is ours,
+/// so that a stray word in a numeric column is reported by row instead of silently nulled.
+fn parse(path: &Path, text: &[u8], recs: &[Record], delimiter: u8) -> Result<DataFrame> {
+    let mut clean = Vec::with_capacity(text.len() + recs.len());
+    for r in recs {
+        clean.extend_from_slice(&text[r.start..r.end]);
+        clean.push(b'\n');
+    }
+    let parse_options = CsvParseOptions::default()
+        .with_separator(delimiter)
+        .with_quote_char(Some(b'"'))
+        .with_missing_is_null(true);
+    CsvReadOptions::default()
+        .with_has_header(false)
+        .with_infer_schema_length(Some(0))
+        .with_raise_if_empty(false)
+        .with_parse_options(parse_options)
+        .into_reader_with_file_handle(Cursor::new(clean))
+        .finish()
+        .map_err(|e| DataError::Parse {
+            path: path.to_path_buf(),
+            message: format!("the text could not be split into fields ({e})"),
+        })
+}
+
+fn string_columns(path: &Path, frame: &DataFrame) -> Result<Vec<Vec<Option<String>>>> {
+    frame
+        .get_columns()
+        .iter()
+        .map(|c| {
+            let strings = c.str().map_err(|e| DataError::Parse {
+                path: path.to_path_buf(),
+                message: format!("column {} was not read as text ({e})", c.name()),
+            })?;
+            Ok(strings
+                .into_iter()
+                .map(|v| v.map(str::to_string))
+                .collect())
+        })
+        .collect()
+}

@@ -1,0 +1,153 @@
+//! Complete-row selection: the rows an analysis can use, and an account of the rest.
+
+use crate::table::{ColumnValues, Table};
+use crate::{DataError, Result};
+
+/// Why a row was left out of an analysis.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum DropReason {
+    /// A needed cell is empty or a missing token.
+    Missing,
+    /// A needed cell holds ±∞ (written as such, or a number beyond the f64 range).
+    NonFinite,
+}
+
+impl DropReason {
+    /// Lower-case name used in output.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Self::Missing => "missing",
+            Self::NonFinite => "non-finite",
+        }
+    }
+}
+
+/// A dropped row and the first needed column that made it so.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Dropped {
+    /// 1-based data row.
+    pub row: usize,
+    /// Column at fault.
+    pub column: String,
+    /// Why.
+    pub reason: DropReason,
+}
+
+/// The complete rows of some numeric columns.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Selection {
+    /// 1-based data rows used, ascending.
+    pub rows: Vec<usize>,
+    /// Values of each requested column on those rows, in request order.
+    pub columns: Vec<Vec<f64>>,
+    /// Rows left out for missing or non-finite values.
+    pub dropped: Vec<Dropped>,
+    /// Rows left out because the caller excluded them (ascending, deduplicated), whether or
+    /// not they were also incomplete.
+    pub excluded: Vec<usize>,
+}
+
+impl Table {
+    /// The numeric values of a column.
+    ///
+    /// # Errors
+    /// Unknown column (with a suggestion), text column (naming the first non-number cell),
+    /// or a column with no values at all.
+    pub fn numeric(&self, name: &str) -> Result<&[Option<f64>]> {
+        let column = self.column(name).ok_or_else(|| DataError::UnknownColumn {
+            path: self.source().to_path_buf(),
+            name: name.to_string(),
+            hint: self.column_hint(name),
+        })?;
+        match &column.values {
+            ColumnValues::Numeric(v) if v.iter().all(Option::is_none) => Err(DataError::AllMissing {
+                path: self.source().to_path_buf(),
+                column: name.to_string(),
+            }),
+            ColumnValues::Numeric(v) => Ok(v),
+            ColumnValues::Text {
+                first_text_row,
+                first_text,
+                text_count,
+                ..
+            } => Err(DataError::TextColumn {
+                path: self.source().to_path_buf(),
+                column: name.to_string(),
+                row: *first_text_row,
+                value: first_text.clone(),
+                text_count: *text_count,
+            }),
+        }
+    }
+
+    /// Rows where every named column holds a finite number, minus `exclude` (1-based rows).
+    ///
+    /// # Errors
+    /// As [`Table::numeric`], and [`DataError::RowOutOfRange`] for an exclusion beyond the table.
+    pub fn complete_rows(&self, names: &[&str], exclude: &[usize]) -> Result<Selection> {
+        let columns: Vec<&[Option<f64>]> = names
+            .iter()
+            .map(|n| self.numeric(n))
+            .collect::<Result<_>>()?;
+        let mut excluded = exclude.to_vec();
+        excluded.sort_unstable();
+        excluded.dedup();
+        if let Some(&row) = excluded.iter().find(|&&r| r == 0 || r > self.n_rows()) {
+            return Err(DataError::RowOutOfRange {
+                path: self.source().to_path_buf(),
+                row,
+                n_rows: self.n_rows(),
+            });
+        }
+        let mut selection = Selection {
+            rows: Vec::new(),
+            columns: vec![Vec::new(); names.len()],
+            dropped: Vec::new(),
+            excluded,
+        };
+        for i in 0..self.n_rows() {
+            let row = i + 1;
+            if selection.excluded.binary_search(&row).is_ok() {
+                continue;
+            }
+            let fault = names.iter().zip(&columns).find_map(|(name, col)| match col[i] {
+                None => Some((name, DropReason::Missing)),
+                Some(v) if !v.is_finite() => Some((name, DropReason::NonFinite)),
+                Some(_) => None,
+            });
+            match fault {
+                Some((name, reason)) => selection.dropped.push(Dropped {
+                    row,
+                    column: (*name).to_string(),
+                    reason,
+                }),
+                None => {
+                    selection.rows.push(row);
+                    for (out, col) in selection.columns.iter_mut().zip(&columns) {
+                        out.push(col[i].unwrap_or(f64::NAN));
+                    }
+                }
+            }
+        }
+        Ok(selection)
+    }
+
+    fn column_hint(&self, name: &str) -> String {
+        let lower = name.to_lowercase();
+        let close: Vec<&str> = self
+            .columns()
+            .iter()
+            .map(|c| c.name.as_str())
+            .filter(|c| {
+                let c = c.to_lowercase();
+                c == lower || c.contains(&lower) || lower.contains(&c)
+            })
+            .collect();
+        if close.is_empty() {
+            let all: Vec<&str> = self.columns().iter().map(|c| c.name.as_str()).collect();
+            format!("the columns are: {}", all.join(", "))
+        } else {
+            format!("did you mean {}?", close.join(" or "))
+        }
+    }
+}

@@ -1,0 +1,100 @@
+//! Spreadsheets (xlsx, xlsm, xlsb, xls, ods) via calamine: the first sheet or a named one.
+
+use std::path::Path;
+
+use calamine::{open_workbook_auto, Data, Reader};
+
+use crate::cell::{classify, Cell, DecimalMark};
+use crate::sniff::{self, HeaderMode};
+use crate::table::{SourceFormat, Table};
+use crate::{DataError, LoadOptions, Result};
+
+pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
+    let parse_error = |e: &dyn std::fmt::Display| DataError::Parse {
+        path: path.to_path_buf(),
+        message: format!("not a readable spreadsheet ({e})"),
+    };
+    let mut workbook = open_workbook_auto(path).map_err(|e| parse_error(&e))?;
+    let names = workbook.sheet_names();
+    let sheet = match &options.sheet {
+        Some(s) if names.contains(s) => s.clone(),
+        Some(s) => {
+            return Err(DataError::NoSuchSheet {
+                path: path.to_path_buf(),
+                sheet: s.clone(),
+                available: names.join(", "),
+            })
+        }
+        None => names.first().cloned().ok_or_else(|| DataError::Empty {
+            path: path.to_path_buf(),
+        })?,
+    };
+    let range = workbook.worksheet_range(&sheet).map_err(|e| parse_error(&e))?;
+    let mut error_cells = 0usize;
+    let rows: Vec<Vec<Cell>> = range
+        .rows()
+        .map(|row| row.iter().map(|d| to_cell(d, options, &mut error_cells)).collect())
+        .filter(|r: &Vec<Cell>| r.iter().any(|c| *c != Cell::Missing))
+        .collect();
+    if rows.is_empty() {
+        return Err(DataError::Empty {
+            path: path.to_path_buf(),
+        });
+    }
+    let raw_rows: Vec<Vec<String>> = range
+        .rows()
+        .take(200)
+        .map(|r| r.iter().map(ToString::to_string).collect())
+        .collect();
+    let header = match options.header {
+        HeaderMode::Yes => true,
+        HeaderMode::No => false,
+        HeaderMode::Auto => sniff::has_header(&raw_rows, DecimalMark::Point, &options.missing_tokens),
+    };
+    let width = rows.iter().map(Vec::len).max().unwrap_or(0);
+    let (names, body) = if header {
+        let names = (0..width)
+            .map(|j| match rows[0].get(j) {
+                Some(Cell::Text(s)) => s.clone(),
+                Some(Cell::Number(v)) => v.to_string(),
+                _ => String::new(),
+            })
+            .collect();
+        (names, &rows[1..])
+    } else {
+        ((1..=width).map(|j| format!("column{j}")).collect(), &rows[..])
+    };
+    if body.is_empty() {
+        return Err(DataError::NoDataRows {
+            path: path.to_path_buf(),
+        });
+    }
+    let cells = (0..width)
+        .map(|j| body.iter().map(|r| r.get(j).cloned().unwrap_or(Cell::Missing)).collect())
+        .collect();
+    let mut notes = Vec::new();
+    if error_cells > 0 {
+        notes.push(format!(
+            "sheet '{sheet}': {error_cells} cells hold spreadsheet errors (such as #DIV/0!) and are read as missing"
+        ));
+    }
+    Ok(Table::new(path, SourceFormat::Sheet { name: sheet, header }, names, cells, notes))
+}
+
+fn to_cell(d: &Data, options: &LoadOptions, error_cells: &mut usize) -> Cell {
+    match d {
+        Data::Int(i) => Cell::Number(*i as f64),
+        Data::Float(f) if f.is_nan() => Cell::Missing,
+        Data::Float(f) => Cell::Number(*f),
+        Data::DateTime(dt) => Cell::Number(dt.as_f64()),
+        Data::String(s) | Data::DateTimeIso(s) | Data::DurationIso(s) => {
+            classify(s, options.decimal.unwrap_or(DecimalMark::Point), &options.missing_tokens)
+        }
+        Data::Bool(b) => Cell::Text(b.to_string()),
+        Data::Error(_) => {
+            *error_cells += 1;
+            Cell::Missing
+        }
+        Data::Empty => Cell::Missing,
+    }
+}

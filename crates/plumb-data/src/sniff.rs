@@ -1,0 +1,249 @@
+//! Finding the records of a delimited text file and guessing how it is written:
+//! delimiter, header row and decimal mark.
+
+use crate::cell::{classify, Cell, DecimalMark};
+
+/// Whether the first row names the columns.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum HeaderMode {
+    /// Decide from the content: a first row with no numbers above columns that hold numbers
+    /// (or a table of text only) is a header.
+    #[default]
+    Auto,
+    /// The first row is a header.
+    Yes,
+    /// There is no header; columns are named `column1`, `column2`, ….
+    No,
+}
+
+/// Delimiters tried, in order of preference when they fit equally well.
+const CANDIDATES: [u8; 4] = [b'\t', b';', b',', b'|'];
+/// Records looked at when sniffing.
+const SAMPLE: usize = 200;
+
+/// One record (logical line) of the file.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) struct Record {
+    /// Byte range, without the line ending.
+    pub start: usize,
+    /// End of the range (exclusive).
+    pub end: usize,
+    /// 1-based line where the record starts.
+    pub line: usize,
+}
+
+/// Splits `text` into records at line endings outside double quotes, skipping blank lines.
+/// Returns the line of an unclosed quote as the error.
+pub(crate) fn records(text: &[u8]) -> Result<Vec<Record>, usize> {
+    let mut out = Vec::new();
+    let (mut start, mut line, mut start_line) = (0, 1, 1);
+    let mut quoted = false;
+    let mut quote_line = 0;
+    let push = |out: &mut Vec<Record>, start: usize, end: usize, line: usize| {
+        let end = if end > start && text[end - 1] == b'\r' { end - 1 } else { end };
+        if text[start..end].iter().any(|b| !b.is_ascii_whitespace()) {
+            out.push(Record { start, end, line });
+        }
+    };
+    for (i, &b) in text.iter().enumerate() {
+        match b {
+            b'"' => {
+                quoted = !quoted;
+                if quoted {
+                    quote_line = line;
+                }
+            }
+            b'\n' => {
+                if !quoted {
+                    push(&mut out, start, i, start_line);
+                    start = i + 1;
+                    start_line = line + 1;
+                }
+                line += 1;
+            }
+            _ => {}
+        }
+    }
+    if quoted {
+        return Err(quote_line);
+    }
+    if start < text.len() {
+        push(&mut out, start, text.len(), start_line);
+    }
+    Ok(out)
+}
+
+/// Number of fields of a record under `delimiter` (delimiters inside quotes do not count).
+pub(crate) fn field_count(record: &[u8], delimiter: u8) -> usize {
+    let mut quoted = false;
+    let mut count = 1;
+    for &b in record {
+        if b == b'"' {
+            quoted = !quoted;
+        } else if b == delimiter && !quoted {
+            count += 1;
+        }
+    }
+    count
+}
+
+/// Splits a record into unquoted field texts (used only on the sniffing sample).
+pub(crate) fn fields(record: &[u8], delimiter: u8) -> Vec<String> {
+    let mut out = Vec::new();
+    let mut current = Vec::new();
+    let mut quoted = false;
+    let mut i = 0;
+    while i < record.len() {
+        let b = record[i];
+        if b == b'"' {
+            if quoted && record.get(i + 1) == Some(&b'"') {
+                current.push(b'"');
+                i += 1;
+            } else {
+                quoted = !quoted;
+            }
+        } else if b == delimiter && !quoted {
+            out.push(String::from_utf8_lossy(&current).into_owned());
+            current.clear();
+        } else {
+            current.push(b);
+        }
+        i += 1;
+    }
+    out.push(String::from_utf8_lossy(&current).into_owned());
+    out
+}
+
+/// The delimiter whose field count is the same on the most sampled records (ties go to
+/// the earlier of tab, semicolon, comma, bar); comma when none splits anything.
+pub(crate) fn delimiter(text: &[u8], recs: &[Record]) -> u8 {
+    let sample = &recs[..recs.len().min(SAMPLE)];
+    let mut best = (b',', 0.0, 0usize);
+    for &d in &CANDIDATES {
+        let counts: Vec<usize> = sample
+            .iter()
+            .map(|r| field_count(&text[r.start..r.end], d))
+            .collect();
+        let mode = mode(&counts);
+        if mode < 2 {
+            continue;
+        }
+        let agree = counts.iter().filter(|&&c| c == mode).count() as f64 / counts.len() as f64;
+        if agree > best.1 + 1e-12 {
+            best = (d, agree, mode);
+        }
+    }
+    best.0
+}
+
+fn mode(counts: &[usize]) -> usize {
+    let mut sorted = counts.to_vec();
+    sorted.sort_unstable();
+    let mut best = (0, 0);
+    let mut i = 0;
+    while i < sorted.len() {
+        let j = sorted[i..].iter().take_while(|&&c| c == sorted[i]).count();
+        if j > best.1 {
+            best = (sorted[i], j);
+        }
+        i += j;
+    }
+    best.0
+}
+
+/// Comma when, with a delimiter other than comma, sampled cells look like `12,5` and none
+/// like `12.5`; point otherwise.
+pub(crate) fn decimal_mark(sample: &[Vec<String>], delimiter: u8) -> DecimalMark {
+    if delimiter == b',' {
+        return DecimalMark::Point;
+    }
+    let looks = |s: &str, mark: char| {
+        let s = s.trim().trim_start_matches(['-', '+']);
+        match s.split_once(mark) {
+            Some((a, b)) => {
+                !b.is_empty()
+                    && a.bytes().all(|c| c.is_ascii_digit() || c == b'.' || c == b',')
+                    && b.bytes().all(|c| c.is_ascii_digit())
+            }
+            None => false,
+        }
+    };
+    let cells = sample.iter().flatten();
+    let comma = cells.clone().filter(|s| looks(s, ',') && !s.contains('.')).count();
+    let point = cells.filter(|s| looks(s, '.') && !s.contains(',')).count();
+    if comma > 0 && point == 0 {
+        DecimalMark::Comma
+    } else {
+        DecimalMark::Point
+    }
+}
+
+/// Whether the first sampled row is a header (see [`HeaderMode::Auto`]).
+pub(crate) fn has_header(sample: &[Vec<String>], decimal: DecimalMark, missing: &[String]) -> bool {
+    let Some(first) = sample.first() else {
+        return false;
+    };
+    let is_number = |s: &str| matches!(classify(s, decimal, missing), Cell::Number(_));
+    if first.iter().any(|s| is_number(s)) {
+        return false;
+    }
+    let body = &sample[1..];
+    if body.is_empty() {
+        return true;
+    }
+    let numeric_below = (0..first.len()).any(|j| {
+        body.iter()
+            .filter_map(|r| r.get(j))
+            .any(|s| is_number(s))
+    });
+    let all_text = body.iter().flatten().all(|s| !is_number(s));
+    numeric_below || all_text
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn sniff(text: &str) -> (u8, DecimalMark, bool) {
+        let recs = records(text.as_bytes()).expect("closed quotes");
+        let d = delimiter(text.as_bytes(), &recs);
+        let sample: Vec<Vec<String>> = recs
+            .iter()
+            .map(|r| fields(&text.as_bytes()[r.start..r.end], d))
+            .collect();
+        let mark = decimal_mark(&sample, d);
+        (d, mark, has_header(&sample, mark, &[]))
+    }
+
+    #[test]
+    fn semicolon_file_with_decimal_commas() {
+        let (d, mark, header) = sniff("dose;turbidity\n1,5;12,25\n2,0;9,5\n");
+        assert_eq!((d, mark, header), (b';', DecimalMark::Comma, true));
+    }
+
+    #[test]
+    fn comma_file_without_header() {
+        let (d, mark, header) = sniff("1.5,2.5,3\n2,3.5,4\n");
+        assert_eq!((d, mark, header), (b',', DecimalMark::Point, false));
+    }
+
+    #[test]
+    fn tab_file_with_quoted_commas() {
+        let (d, _, header) = sniff("site\tnote\tvalue\n\"A\"\t\"x, y\"\t3\nB\tz\t4\n");
+        assert_eq!((d, header), (b'\t', true));
+    }
+
+    #[test]
+    fn records_skip_blank_lines_and_keep_quoted_newlines() {
+        let text = b"a,b\r\n\r\n1,\"two\nlines\"\n   \n3,4";
+        let recs = records(text).expect("closed");
+        let lines: Vec<usize> = recs.iter().map(|r| r.line).collect();
+        assert_eq!(lines, [1, 3, 6]);
+        assert_eq!(&text[recs[0].start..recs[0].end], b"a,b");
+    }
+
+    #[test]
+    fn unclosed_quote_reports_its_line() {
+        assert_eq!(records(b"a,b\n1,\"open\n2,3\n"), Err(2));
+    }
+}

@@ -1,0 +1,265 @@
+//! A loaded table: named, typed columns over numbered data rows.
+
+use std::path::{Path, PathBuf};
+
+use crate::cell::{Cell, DecimalMark};
+
+/// How the file was read, so that the same reading can be repeated and reported.
+#[derive(Debug, Clone, PartialEq)]
+pub enum SourceFormat {
+    /// Delimited text.
+    Delimited {
+        /// Field delimiter.
+        delimiter: u8,
+        /// Decimal mark of numbers.
+        decimal: DecimalMark,
+        /// Whether the first row was taken as the header.
+        header: bool,
+    },
+    /// Apache Parquet.
+    Parquet,
+    /// A spreadsheet sheet.
+    Sheet {
+        /// Sheet name.
+        name: String,
+        /// Whether the first row was taken as the header.
+        header: bool,
+    },
+}
+
+/// The values of one column.
+#[derive(Debug, Clone, PartialEq)]
+pub enum ColumnValues {
+    /// Every non-missing cell is a number (a column with no values at all is numeric and empty).
+    Numeric(Vec<Option<f64>>),
+    /// At least one non-missing cell is not a number.
+    Text {
+        /// Cell texts (numbers kept as written).
+        values: Vec<Option<String>>,
+        /// 1-based data row of the first cell that is not a number.
+        first_text_row: usize,
+        /// That cell's text.
+        first_text: String,
+        /// Cells that are not numbers.
+        text_count: usize,
+    },
+}
+
+/// A named column.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Column {
+    /// Name (from the header, or `columnN`).
+    pub name: String,
+    /// Typed values, one per data row.
+    pub values: ColumnValues,
+}
+
+/// What a column summary shows: type, missing count, range.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ColumnSummary {
+    /// Column name.
+    pub name: String,
+    /// `numeric`, `text` or `empty`.
+    pub kind: &'static str,
+    /// Missing cells.
+    pub missing: usize,
+    /// Smallest finite value (numeric columns).
+    pub min: Option<f64>,
+    /// Largest finite value (numeric columns).
+    pub max: Option<f64>,
+}
+
+impl Column {
+    /// Types a column of cells: numeric unless some non-missing cell is text.
+    pub(crate) fn from_cells(name: String, cells: Vec<Cell>) -> Self {
+        let first_text = cells.iter().position(|c| matches!(c, Cell::Text(_)));
+        let values = match first_text {
+            None => ColumnValues::Numeric(
+                cells
+                    .into_iter()
+                    .map(|c| match c {
+                        Cell::Number(v) => Some(v),
+                        _ => None,
+                    })
+                    .collect(),
+            ),
+            Some(i) => {
+                let text_count = cells.iter().filter(|c| matches!(c, Cell::Text(_))).count();
+                let first = match &cells[i] {
+                    Cell::Text(s) => s.clone(),
+                    _ => unreachable!("position found a text cell"),
+                };
+                ColumnValues::Text {
+                    values: cells
+                        .into_iter()
+                        .map(|c| match c {
+                            Cell::Missing => None,
+                            Cell::Number(v) => Some(v.to_string()),
+                            Cell::Text(s) => Some(s),
+                        })
+                        .collect(),
+                    first_text_row: i + 1,
+                    first_text: first,
+                    text_count,
+                }
+            }
+        };
+        Self { name, values }
+    }
+
+    /// Number of data rows.
+    pub fn len(&self) -> usize {
+        match &self.values {
+            ColumnValues::Numeric(v) => v.len(),
+            ColumnValues::Text { values, .. } => values.len(),
+        }
+    }
+
+    /// Whether the column has no rows.
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// Type, missing count and range.
+    pub fn summary(&self) -> ColumnSummary {
+        match &self.values {
+            ColumnValues::Numeric(v) => {
+                let finite = v.iter().flatten().copied().filter(|x| x.is_finite());
+                let (min, max) = finite.fold((None, None), |(lo, hi): (Option<f64>, Option<f64>), x| {
+                    (Some(lo.map_or(x, |l| l.min(x))), Some(hi.map_or(x, |h| h.max(x))))
+                });
+                let missing = v.iter().filter(|x| x.is_none()).count();
+                ColumnSummary {
+                    name: self.name.clone(),
+                    kind: if missing == v.len() { "empty" } else { "numeric" },
+                    missing,
+                    min,
+                    max,
+                }
+            }
+            ColumnValues::Text { values, .. } => ColumnSummary {
+                name: self.name.clone(),
+                kind: "text",
+                missing: values.iter().filter(|x| x.is_none()).count(),
+                min: None,
+                max: None,
+            },
+        }
+    }
+}
+
+/// A loaded table.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Table {
+    source: PathBuf,
+    format: SourceFormat,
+    columns: Vec<Column>,
+    n_rows: usize,
+    notes: Vec<String>,
+}
+
+impl Table {
+    /// Builds a table, making duplicate or blank column names unique (with a note).
+    pub(crate) fn new(
+        source: &Path,
+        format: SourceFormat,
+        names: Vec<String>,
+        cells: Vec<Vec<Cell>>,
+        mut notes: Vec<String>,
+    ) -> Self {
+        let n_rows = cells.first().map_or(0, Vec::len);
+        let names = unique_names(names, &mut notes);
+        let columns = names
+            .into_iter()
+            .zip(cells)
+            .map(|(name, c)| Column::from_cells(name, c))
+            .collect();
+        Self {
+            source: source.to_path_buf(),
+            format,
+            columns,
+            n_rows,
+            notes,
+        }
+    }
+
+    /// The file the table came from.
+    pub fn source(&self) -> &Path {
+        &self.source
+    }
+
+    /// How it was read.
+    pub fn format(&self) -> &SourceFormat {
+        &self.format
+    }
+
+    /// All columns, in file order.
+    pub fn columns(&self) -> &[Column] {
+        &self.columns
+    }
+
+    /// Number of data rows.
+    pub fn n_rows(&self) -> usize {
+        self.n_rows
+    }
+
+    /// Things the loader changed or noticed (renamed duplicate headers, error cells, …).
+    pub fn notes(&self) -> &[String] {
+        &self.notes
+    }
+
+    /// The column named `name`, if any.
+    pub fn column(&self, name: &str) -> Option<&Column> {
+        self.columns.iter().find(|c| c.name == name)
+    }
+}
+
+fn unique_names(names: Vec<String>, notes: &mut Vec<String>) -> Vec<String> {
+    let mut out: Vec<String> = Vec::with_capacity(names.len());
+    for (i, raw) in names.into_iter().enumerate() {
+        let base = if raw.trim().is_empty() {
+            format!("column{}", i + 1)
+        } else {
+            raw.trim().to_string()
+        };
+        let mut name = base.clone();
+        let mut k = 2;
+        while out.contains(&name) {
+            name = format!("{base}_{k}");
+            k += 1;
+        }
+        if name != base {
+            notes.push(format!(
+                "column {} repeats the name '{base}'; it is called '{name}' here",
+                i + 1
+            ));
+        }
+        out.push(name);
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn duplicate_and_blank_names_become_unique_with_a_note() {
+        let mut notes = Vec::new();
+        let names = unique_names(vec!["x".into(), "x".into(), " ".into()], &mut notes);
+        assert_eq!(names, ["x", "x_2", "column3"]);
+        assert_eq!(notes.len(), 1);
+    }
+
+    #[test]
+    fn one_text_cell_makes_a_text_column_that_remembers_where() {
+        let c = Column::from_cells(
+            "dose".into(),
+            vec![Cell::Number(1.0), Cell::Missing, Cell::Text("n.d.".into())],
+        );
+        let ColumnValues::Text { first_text_row, text_count, .. } = c.values else {
+            panic!("expected text");
+        };
+        assert_eq!((first_text_row, text_count), (3, 1));
+    }
+}
