@@ -125,8 +125,14 @@ mod tests {
         for s in ["", "NA", "N/A", "NaN", ".", " "] {
             assert_eq!(classify(s, DecimalMark::Point, &[]), Cell::Missing, "{s:?}");
         }
-        assert_eq!(classify("-999", DecimalMark::Point, &["-999".into()]), Cell::Missing);
-        assert_eq!(classify("n.d.", DecimalMark::Point, &[]), Cell::Text("n.d.".into()));
+        assert_eq!(
+            classify("-999", DecimalMark::Point, &["-999".into()]),
+            Cell::Missing
+        );
+        assert_eq!(
+            classify("n.d.", DecimalMark::Point, &[]),
+            Cell::Text("n.d.".into())
+        );
         assert_eq!(num("-Inf", DecimalMark::Point), Some(f64::NEG_INFINITY));
         assert_eq!(num("1e400", DecimalMark::Point), Some(f64::INFINITY));
     }

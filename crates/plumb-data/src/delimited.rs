@@ -85,7 +85,10 @@ fn check_utf8(path: &Path, text: &[u8]) -> Result<()> {
     match std::str::from_utf8(text) {
         Ok(_) => Ok(()),
         Err(e) => {
-            let line = 1 + text[..e.valid_up_to()].iter().filter(|&&b| b == b'\n').count();
+            let line = 1 + text[..e.valid_up_to()]
+                .iter()
+                .filter(|&&b| b == b'\n')
+                .count();
             Err(DataError::NotUtf8 {
                 path: path.to_path_buf(),
                 line,
@@ -161,10 +164,7 @@ fn string_columns(path: &Path, frame: &DataFrame) -> Result<Vec<Vec<Option<Strin
                 path: path.to_path_buf(),
                 message: format!("column {} was not read as text ({e})", c.name()),
             })?;
-            Ok(strings
-                .into_iter()
-                .map(|v| v.map(str::to_string))
-                .collect())
+            Ok(strings.into_iter().map(|v| v.map(str::to_string)).collect())
         })
         .collect()
 }

@@ -8,6 +8,7 @@
 //! Rows are numbered from 1 among the file's data rows (the header is not counted); that
 //! number is the one users see and the one exclusions name.
 
+pub mod analysis;
 mod cell;
 mod delimited;
 mod error;

@@ -17,7 +17,9 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
         path: path.to_path_buf(),
         source,
     })?;
-    let frame = ParquetReader::new(file).finish().map_err(|e| parse_error(&e))?;
+    let frame = ParquetReader::new(file)
+        .finish()
+        .map_err(|e| parse_error(&e))?;
     if frame.height() == 0 {
         return Err(DataError::NoDataRows {
             path: path.to_path_buf(),
@@ -30,7 +32,9 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
         names.push(column.name().to_string());
         let dtype = column.dtype();
         let col: Vec<Cell> = if dtype.is_primitive_numeric() {
-            let floats = column.cast(&DataType::Float64).map_err(|e| parse_error(&e))?;
+            let floats = column
+                .cast(&DataType::Float64)
+                .map_err(|e| parse_error(&e))?;
             let floats = floats.f64().map_err(|e| parse_error(&e))?;
             floats
                 .into_iter()
@@ -42,7 +46,11 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
         } else if let Ok(strings) = column.str() {
             strings
                 .into_iter()
-                .map(|v| v.map_or(Cell::Missing, |s| classify(s, DecimalMark::Point, &options.missing_tokens)))
+                .map(|v| {
+                    v.map_or(Cell::Missing, |s| {
+                        classify(s, DecimalMark::Point, &options.missing_tokens)
+                    })
+                })
                 .collect()
         } else {
             notes.push(format!(

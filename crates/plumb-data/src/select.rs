@@ -60,10 +60,12 @@ impl Table {
             hint: self.column_hint(name),
         })?;
         match &column.values {
-            ColumnValues::Numeric(v) if v.iter().all(Option::is_none) => Err(DataError::AllMissing {
-                path: self.source().to_path_buf(),
-                column: name.to_string(),
-            }),
+            ColumnValues::Numeric(v) if v.iter().all(Option::is_none) => {
+                Err(DataError::AllMissing {
+                    path: self.source().to_path_buf(),
+                    column: name.to_string(),
+                })
+            }
             ColumnValues::Numeric(v) => Ok(v),
             ColumnValues::Text {
                 first_text_row,
@@ -110,11 +112,14 @@ impl Table {
             if selection.excluded.binary_search(&row).is_ok() {
                 continue;
             }
-            let fault = names.iter().zip(&columns).find_map(|(name, col)| match col[i] {
-                None => Some((name, DropReason::Missing)),
-                Some(v) if !v.is_finite() => Some((name, DropReason::NonFinite)),
-                Some(_) => None,
-            });
+            let fault = names
+                .iter()
+                .zip(&columns)
+                .find_map(|(name, col)| match col[i] {
+                    None => Some((name, DropReason::Missing)),
+                    Some(v) if !v.is_finite() => Some((name, DropReason::NonFinite)),
+                    Some(_) => None,
+                });
             match fault {
                 Some((name, reason)) => selection.dropped.push(Dropped {
                     row,

@@ -29,11 +29,17 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
             path: path.to_path_buf(),
         })?,
     };
-    let range = workbook.worksheet_range(&sheet).map_err(|e| parse_error(&e))?;
+    let range = workbook
+        .worksheet_range(&sheet)
+        .map_err(|e| parse_error(&e))?;
     let mut error_cells = 0usize;
     let rows: Vec<Vec<Cell>> = range
         .rows()
-        .map(|row| row.iter().map(|d| to_cell(d, options, &mut error_cells)).collect())
+        .map(|row| {
+            row.iter()
+                .map(|d| to_cell(d, options, &mut error_cells))
+                .collect()
+        })
         .filter(|r: &Vec<Cell>| r.iter().any(|c| *c != Cell::Missing))
         .collect();
     if rows.is_empty() {
@@ -49,7 +55,9 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
     let header = match options.header {
         HeaderMode::Yes => true,
         HeaderMode::No => false,
-        HeaderMode::Auto => sniff::has_header(&raw_rows, DecimalMark::Point, &options.missing_tokens),
+        HeaderMode::Auto => {
+            sniff::has_header(&raw_rows, DecimalMark::Point, &options.missing_tokens)
+        }
     };
     let width = rows.iter().map(Vec::len).max().unwrap_or(0);
     let (names, body) = if header {
@@ -62,7 +70,10 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
             .collect();
         (names, &rows[1..])
     } else {
-        ((1..=width).map(|j| format!("column{j}")).collect(), &rows[..])
+        (
+            (1..=width).map(|j| format!("column{j}")).collect(),
+            &rows[..],
+        )
     };
     if body.is_empty() {
         return Err(DataError::NoDataRows {
@@ -70,7 +81,11 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
         });
     }
     let cells = (0..width)
-        .map(|j| body.iter().map(|r| r.get(j).cloned().unwrap_or(Cell::Missing)).collect())
+        .map(|j| {
+            body.iter()
+                .map(|r| r.get(j).cloned().unwrap_or(Cell::Missing))
+                .collect()
+        })
         .collect();
     let mut notes = Vec::new();
     if error_cells > 0 {
@@ -78,7 +93,16 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
             "sheet '{sheet}': {error_cells} cells hold spreadsheet errors (such as #DIV/0!) and are read as missing"
         ));
     }
-    Ok(Table::new(path, SourceFormat::Sheet { name: sheet, header }, names, cells, notes))
+    Ok(Table::new(
+        path,
+        SourceFormat::Sheet {
+            name: sheet,
+            header,
+        },
+        names,
+        cells,
+        notes,
+    ))
 }
 
 fn to_cell(d: &Data, options: &LoadOptions, error_cells: &mut usize) -> Cell {
@@ -87,9 +111,11 @@ fn to_cell(d: &Data, options: &LoadOptions, error_cells: &mut usize) -> Cell {
         Data::Float(f) if f.is_nan() => Cell::Missing,
         Data::Float(f) => Cell::Number(*f),
         Data::DateTime(dt) => Cell::Number(dt.as_f64()),
-        Data::String(s) | Data::DateTimeIso(s) | Data::DurationIso(s) => {
-            classify(s, options.decimal.unwrap_or(DecimalMark::Point), &options.missing_tokens)
-        }
+        Data::String(s) | Data::DateTimeIso(s) | Data::DurationIso(s) => classify(
+            s,
+            options.decimal.unwrap_or(DecimalMark::Point),
+            &options.missing_tokens,
+        ),
         Data::Bool(b) => Cell::Text(b.to_string()),
         Data::Error(_) => {
             *error_cells += 1;

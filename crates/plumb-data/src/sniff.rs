@@ -40,7 +40,11 @@ pub(crate) fn records(text: &[u8]) -> Result<Vec<Record>, usize> {
     let mut quoted = false;
     let mut quote_line = 0;
     let push = |out: &mut Vec<Record>, start: usize, end: usize, line: usize| {
-        let end = if end > start && text[end - 1] == b'\r' { end - 1 } else { end };
+        let end = if end > start && text[end - 1] == b'\r' {
+            end - 1
+        } else {
+            end
+        };
         if text[start..end].iter().any(|b| !b.is_ascii_whitespace()) {
             out.push(Record { start, end, line });
         }
@@ -162,14 +166,18 @@ pub(crate) fn decimal_mark(sample: &[Vec<String>], delimiter: u8) -> DecimalMark
         match s.split_once(mark) {
             Some((a, b)) => {
                 !b.is_empty()
-                    && a.bytes().all(|c| c.is_ascii_digit() || c == b'.' || c == b',')
+                    && a.bytes()
+                        .all(|c| c.is_ascii_digit() || c == b'.' || c == b',')
                     && b.bytes().all(|c| c.is_ascii_digit())
             }
             None => false,
         }
     };
     let cells = sample.iter().flatten();
-    let comma = cells.clone().filter(|s| looks(s, ',') && !s.contains('.')).count();
+    let comma = cells
+        .clone()
+        .filter(|s| looks(s, ',') && !s.contains('.'))
+        .count();
     let point = cells.filter(|s| looks(s, '.') && !s.contains(',')).count();
     if comma > 0 && point == 0 {
         DecimalMark::Comma
@@ -191,11 +199,8 @@ pub(crate) fn has_header(sample: &[Vec<String>], decimal: DecimalMark, missing: 
     if body.is_empty() {
         return true;
     }
-    let numeric_below = (0..first.len()).any(|j| {
-        body.iter()
-            .filter_map(|r| r.get(j))
-            .any(|s| is_number(s))
-    });
+    let numeric_below =
+        (0..first.len()).any(|j| body.iter().filter_map(|r| r.get(j)).any(|s| is_number(s)));
     let all_text = body.iter().flatten().all(|s| !is_number(s));
     numeric_below || all_text
 }

@@ -125,13 +125,21 @@ impl Column {
         match &self.values {
             ColumnValues::Numeric(v) => {
                 let finite = v.iter().flatten().copied().filter(|x| x.is_finite());
-                let (min, max) = finite.fold((None, None), |(lo, hi): (Option<f64>, Option<f64>), x| {
-                    (Some(lo.map_or(x, |l| l.min(x))), Some(hi.map_or(x, |h| h.max(x))))
-                });
+                let (min, max) =
+                    finite.fold((None, None), |(lo, hi): (Option<f64>, Option<f64>), x| {
+                        (
+                            Some(lo.map_or(x, |l| l.min(x))),
+                            Some(hi.map_or(x, |h| h.max(x))),
+                        )
+                    });
                 let missing = v.iter().filter(|x| x.is_none()).count();
                 ColumnSummary {
                     name: self.name.clone(),
-                    kind: if missing == v.len() { "empty" } else { "numeric" },
+                    kind: if missing == v.len() {
+                        "empty"
+                    } else {
+                        "numeric"
+                    },
                     missing,
                     min,
                     max,
@@ -257,7 +265,12 @@ mod tests {
             "dose".into(),
             vec![Cell::Number(1.0), Cell::Missing, Cell::Text("n.d.".into())],
         );
-        let ColumnValues::Text { first_text_row, text_count, .. } = c.values else {
+        let ColumnValues::Text {
+            first_text_row,
+            text_count,
+            ..
+        } = c.values
+        else {
             panic!("expected text");
         };
         assert_eq!((first_text_row, text_count), (3, 1));

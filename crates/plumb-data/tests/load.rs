@@ -3,7 +3,9 @@
 use std::io::Write;
 use std::path::PathBuf;
 
-use plumb_data::{load, ColumnValues, DataError, DecimalMark, HeaderMode, LoadOptions, SourceFormat};
+use plumb_data::{
+    load, ColumnValues, DataError, DecimalMark, HeaderMode, LoadOptions, SourceFormat,
+};
 
 fn write(dir: &tempfile::TempDir, name: &str, bytes: &[u8]) -> PathBuf {
     let path = dir.path().join(name);
@@ -20,16 +22,34 @@ fn numbers(table: &plumb_data::Table, name: &str) -> Vec<Option<f64>> {
 #[test]
 fn semicolon_export_with_bom_decimal_commas_and_crlf() {
     let dir = tempfile::tempdir().expect("tempdir");
-    let path = write(&dir, "jar.csv", b"\xEF\xBB\xBFdose;turbidity\r\n1,5;12,25\r\n2,0;NA\r\n2,5;7,75\r\n");
+    let path = write(
+        &dir,
+        "jar.csv",
+        b"\xEF\xBB\xBFdose;turbidity\r\n1,5;12,25\r\n2,0;NA\r\n2,5;7,75\r\n",
+    );
     let table = load(&path, &LoadOptions::default()).expect("loads");
     assert_eq!(
         table.format(),
-        &SourceFormat::Delimited { delimiter: b';', decimal: DecimalMark::Comma, header: true }
+        &SourceFormat::Delimited {
+            delimiter: b';',
+            decimal: DecimalMark::Comma,
+            header: true
+        }
     );
-    assert_eq!(table.columns()[0].name, "dose", "BOM is not part of the first name");
-    assert_eq!(numbers(&table, "turbidity"), [Some(12.25), None, Some(7.75)]);
+    assert_eq!(
+        table.columns()[0].name,
+        "dose",
+        "BOM is not part of the first name"
+    );
+    assert_eq!(
+        numbers(&table, "turbidity"),
+        [Some(12.25), None, Some(7.75)]
+    );
     let original = std::fs::read(&path).expect("read back");
-    assert!(original.starts_with(b"\xEF\xBB\xBF"), "the source file is never written");
+    assert!(
+        original.starts_with(b"\xEF\xBB\xBF"),
+        "the source file is never written"
+    );
 }
 
 #[test]
@@ -38,7 +58,10 @@ fn headerless_tab_file_gets_numbered_columns() {
     let path = write(&dir, "plain.tsv", b"1\t2\n3\t4\n\n5\t6\n");
     let table = load(&path, &LoadOptions::default()).expect("loads");
     assert_eq!(table.n_rows(), 3, "the blank line is not a row");
-    assert_eq!(numbers(&table, "column2"), [Some(2.0), Some(4.0), Some(6.0)]);
+    assert_eq!(
+        numbers(&table, "column2"),
+        [Some(2.0), Some(4.0), Some(6.0)]
+    );
 }
 
 #[test]
@@ -60,8 +83,23 @@ fn ragged_row_names_line_and_row() {
     let path = write(&dir, "ragged.csv", b"a,b,c\n1,2,3\n4,5\n6,7,8\n");
     let err = load(&path, &LoadOptions::default()).expect_err("ragged");
     let message = err.to_string();
-    assert!(matches!(err, DataError::Ragged { line: 3, row: 2, found: 2, expected: 3, .. }), "{message}");
-    assert!(message.contains("ragged.csv") && message.contains("line 3"), "{message}");
+    assert!(
+        matches!(
+            err,
+            DataError::Ragged {
+                line: 3,
+                row: 2,
+                found: 2,
+                expected: 3,
+                ..
+            }
+        ),
+        "{message}"
+    );
+    assert!(
+        message.contains("ragged.csv") && message.contains("line 3"),
+        "{message}"
+    );
 }
 
 #[test]
@@ -77,10 +115,16 @@ fn a_word_in_a_numeric_column_is_reported_by_row() {
     let dir = tempfile::tempdir().expect("tempdir");
     let path = write(&dir, "lod.csv", b"x,y\n1,2\n2,<LOD\n3,4\n");
     let table = load(&path, &LoadOptions::default()).expect("loads");
-    assert!(matches!(table.columns()[1].values, ColumnValues::Text { .. }));
+    assert!(matches!(
+        table.columns()[1].values,
+        ColumnValues::Text { .. }
+    ));
     let err = table.numeric("y").expect_err("text column");
     let message = err.to_string();
-    assert!(message.contains("row 2") && message.contains("<LOD") && message.contains("--missing"), "{message}");
+    assert!(
+        message.contains("row 2") && message.contains("<LOD") && message.contains("--missing"),
+        "{message}"
+    );
 }
 
 #[test]
@@ -95,7 +139,11 @@ fn unknown_column_suggests_close_names() {
 #[test]
 fn complete_rows_account_for_every_row() {
     let dir = tempfile::tempdir().expect("tempdir");
-    let path = write(&dir, "gaps.csv", b"x,y,z\n1,2,a\n,3,b\n3,inf,c\n4,5,d\n5,6,e\n");
+    let path = write(
+        &dir,
+        "gaps.csv",
+        b"x,y,z\n1,2,a\n,3,b\n3,inf,c\n4,5,d\n5,6,e\n",
+    );
     let table = load(&path, &LoadOptions::default()).expect("loads");
     let sel = table.complete_rows(&["x", "y"], &[5]).expect("selects");
     assert_eq!(sel.rows, [1, 4]);
@@ -107,7 +155,9 @@ fn complete_rows_account_for_every_row() {
         .collect();
     assert_eq!(dropped, [(2, "x", "missing"), (3, "y", "non-finite")]);
     assert_eq!(sel.excluded, [5]);
-    let err = table.complete_rows(&["x"], &[9]).expect_err("row 9 does not exist");
+    let err = table
+        .complete_rows(&["x"], &[9])
+        .expect_err("row 9 does not exist");
     assert!(err.to_string().contains("row 9 does not exist"), "{err}");
 }
 
@@ -115,15 +165,25 @@ fn complete_rows_account_for_every_row() {
 fn empty_and_header_only_files_are_refused_clearly() {
     let dir = tempfile::tempdir().expect("tempdir");
     let empty = write(&dir, "empty.csv", b"\n  \n");
-    assert!(matches!(load(&empty, &LoadOptions::default()), Err(DataError::Empty { .. })));
+    assert!(matches!(
+        load(&empty, &LoadOptions::default()),
+        Err(DataError::Empty { .. })
+    ));
     let header_only = write(&dir, "header.csv", b"x,y\n");
-    assert!(matches!(load(&header_only, &LoadOptions::default()), Err(DataError::NoDataRows { .. })));
+    assert!(matches!(
+        load(&header_only, &LoadOptions::default()),
+        Err(DataError::NoDataRows { .. })
+    ));
 }
 
 #[test]
 fn quoted_fields_keep_their_delimiters() {
     let dir = tempfile::tempdir().expect("tempdir");
-    let path = write(&dir, "q.csv", b"site,note,value\n\"A, north\",\"said \"\"ok\"\"\",1.5\nB,plain,2.5\n");
+    let path = write(
+        &dir,
+        "q.csv",
+        b"site,note,value\n\"A, north\",\"said \"\"ok\"\"\",1.5\nB,plain,2.5\n",
+    );
     let table = load(&path, &LoadOptions::default()).expect("loads");
     let ColumnValues::Text { values, .. } = &table.columns()[0].values else {
         panic!("site is text");

@@ -1,0 +1,146 @@
+//! One least-squares analysis from a table: choose rows, build the design, fit.
+//!
+//! This is the single path from a loaded file to a [`LinearFit`], shared by the command
+//! line, the report and the workbench, so that each shows the same numbers for the same request.
+
+use plumb_core::regression::{fit, Design, FitOptions, LinearFit};
+use plumb_core::CoreError;
+use thiserror::Error;
+
+use crate::select::Selection;
+use crate::table::Table;
+use crate::DataError;
+
+/// What to fit.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FitRequest {
+    /// Response column.
+    pub y: String,
+    /// Predictor columns (exactly one when `degree > 1`).
+    pub x: Vec<String>,
+    /// Include the intercept.
+    pub intercept: bool,
+    /// Polynomial degree of the single predictor (1 = straight line).
+    pub degree: u32,
+    /// Optional column of positive weights (weighted least squares).
+    pub weights: Option<String>,
+    /// 1-based data rows to leave out.
+    pub exclude: Vec<usize>,
+    /// Confidence level of the intervals.
+    pub level: f64,
+}
+
+impl Default for FitRequest {
+    fn default() -> Self {
+        Self {
+            y: String::new(),
+            x: Vec::new(),
+            intercept: true,
+            degree: 1,
+            weights: None,
+            exclude: Vec::new(),
+            level: 0.95,
+        }
+    }
+}
+
+/// A fit together with the account of which rows it used.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FitOutcome {
+    /// The rows used, dropped and excluded.
+    pub selection: Selection,
+    /// The fit on the rows used.
+    pub fit: LinearFit,
+}
+
+/// Why an analysis could not run, with the file named.
+#[derive(Debug, Error)]
+pub enum AnalysisError {
+    /// Loading or selecting failed.
+    #[error(transparent)]
+    Data(#[from] DataError),
+    /// The request itself does not make sense.
+    #[error("{0}")]
+    Request(String),
+    /// The rows chosen cannot support the model.
+    #[error("{file}: {source}")]
+    Model {
+        /// File name.
+        file: String,
+        /// What the core said.
+        source: CoreError,
+    },
+}
+
+/// Runs `request` on `table`.
+///
+/// # Errors
+/// See [`AnalysisError`]: every message names the file, and the column or row where it applies.
+pub fn run_fit(table: &Table, request: &FitRequest) -> Result<FitOutcome, AnalysisError> {
+    let file = table.source().display().to_string();
+    if request.x.is_empty() {
+        return Err(AnalysisError::Request(
+            "name at least one predictor column (--x COLUMN)".into(),
+        ));
+    }
+    if request.degree > 1 && request.x.len() != 1 {
+        return Err(AnalysisError::Request(format!(
+            "a polynomial of degree {} takes exactly one predictor; {} were given",
+            request.degree,
+            request.x.len()
+        )));
+    }
+    if let Some(dup) = request.x.iter().find(|x| **x == request.y) {
+        return Err(AnalysisError::Request(format!(
+            "column '{dup}' is both the response and a predictor; choose different columns"
+        )));
+    }
+    let mut names: Vec<&str> = vec![request.y.as_str()];
+    names.extend(request.x.iter().map(String::as_str));
+    if let Some(w) = &request.weights {
+        names.push(w);
+    }
+    let selection = table.complete_rows(&names, &request.exclude)?;
+    let y = &selection.columns[0];
+    let predictors: Vec<(&str, &[f64])> = request
+        .x
+        .iter()
+        .zip(&selection.columns[1..])
+        .map(|(n, c)| (n.as_str(), c.as_slice()))
+        .collect();
+    let model_error = |source: CoreError| AnalysisError::Model {
+        file: file.clone(),
+        source,
+    };
+    let design = if request.degree > 1 {
+        Design::polynomial(
+            predictors[0].0,
+            predictors[0].1,
+            request.degree,
+            request.intercept,
+        )
+        .map_err(model_error)?
+    } else {
+        Design::linear(&predictors, request.intercept)
+    };
+    let weights = request.weights.as_ref().map(|_| {
+        selection
+            .columns
+            .last()
+            .expect("weights column selected")
+            .as_slice()
+    });
+    let options = FitOptions {
+        level: request.level,
+        ..FitOptions::default()
+    };
+    let fit = fit(&design, y, weights, &options).map_err(|e| match e {
+        CoreError::BadWeight { index, value } => AnalysisError::Request(format!(
+            "{file}, column '{}', row {}: weight {value} is not positive; weights must be positive and finite",
+            request.weights.as_deref().unwrap_or_default(),
+            selection.rows[index]
+        )),
+        other => model_error(other),
+    })?;
+    Ok(FitOutcome { selection, fit })
+}

@@ -1,0 +1,211 @@
+//! Command-line arguments.
+
+use std::path::PathBuf;
+
+use clap::{Args as ClapArgs, Parser, Subcommand, ValueEnum};
+use plumb_data::{DecimalMark, HeaderMode, LoadOptions};
+
+/// Plumbline: exploratory fitting with honest numbers.
+#[derive(Debug, Parser)]
+#[command(name = "plumb", version, about)]
+pub struct Args {
+    /// What to do.
+    #[command(subcommand)]
+    pub command: Option<Command>,
+}
+
+/// Subcommands.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Fit a least-squares line, plane or polynomial and report it.
+    Fit(FitArgs),
+    /// List the columns of a data file with their type, missing count and range.
+    Columns(ColumnsArgs),
+}
+
+/// Output format.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Format {
+    /// Readable layout for people.
+    Text,
+    /// One JSON object on standard output.
+    Json,
+}
+
+/// Header handling on the command line.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum HeaderArg {
+    /// Detect from the content.
+    Auto,
+    /// The first row names the columns.
+    Yes,
+    /// No header row.
+    No,
+}
+
+/// Decimal mark on the command line.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum DecimalArg {
+    /// Detect from the content.
+    Auto,
+    /// `3.14`.
+    Point,
+    /// `3,14`.
+    Comma,
+}
+
+/// How to read the data file (shared by every subcommand).
+#[derive(Debug, ClapArgs)]
+pub struct LoadArgs {
+    /// Data file: CSV/TSV/semicolon text, Parquet, or a spreadsheet (xlsx, xls, ods).
+    pub data: PathBuf,
+    /// Field delimiter of a text file (one character, or "tab"); detected when omitted.
+    #[arg(long, value_parser = parse_delimiter)]
+    pub delimiter: Option<u8>,
+    /// Whether the first row names the columns.
+    #[arg(long, value_enum, default_value_t = HeaderArg::Auto)]
+    pub header: HeaderArg,
+    /// Decimal mark of numbers in a text file.
+    #[arg(long, value_enum, default_value_t = DecimalArg::Auto)]
+    pub decimal: DecimalArg,
+    /// A cell value that means "missing" (repeatable), beside empty, NA, N/A, NaN and ".".
+    #[arg(long = "missing", value_name = "TOKEN")]
+    pub missing: Vec<String>,
+    /// Spreadsheet sheet to read (default: the first).
+    #[arg(long)]
+    pub sheet: Option<String>,
+}
+
+impl LoadArgs {
+    /// The loader's options.
+    pub fn options(&self) -> LoadOptions {
+        LoadOptions {
+            delimiter: self.delimiter,
+            header: match self.header {
+                HeaderArg::Auto => HeaderMode::Auto,
+                HeaderArg::Yes => HeaderMode::Yes,
+                HeaderArg::No => HeaderMode::No,
+            },
+            decimal: match self.decimal {
+                DecimalArg::Auto => None,
+                DecimalArg::Point => Some(DecimalMark::Point),
+                DecimalArg::Comma => Some(DecimalMark::Comma),
+            },
+            missing_tokens: self.missing.clone(),
+            sheet: self.sheet.clone(),
+        }
+    }
+}
+
+/// `plumb fit`.
+#[derive(Debug, ClapArgs)]
+pub struct FitArgs {
+    /// How to read the file.
+    #[command(flatten)]
+    pub load: LoadArgs,
+    /// Response column.
+    #[arg(long, value_name = "COLUMN")]
+    pub y: String,
+    /// Predictor column (repeat for several).
+    #[arg(long, value_name = "COLUMN", required = true)]
+    pub x: Vec<String>,
+    /// Fit through the origin (no intercept); R² is then uncentered.
+    #[arg(long)]
+    pub no_intercept: bool,
+    /// Polynomial degree of the single predictor (1..=10).
+    #[arg(long, default_value_t = 1, value_parser = clap::value_parser!(u32).range(1..=10))]
+    pub degree: u32,
+    /// Column of positive weights (weighted least squares).
+    #[arg(long, value_name = "COLUMN")]
+    pub weights: Option<String>,
+    /// Data rows to leave out, numbered from 1 after the header: "3,17,40-42".
+    #[arg(long, value_name = "ROWS", value_parser = parse_rows)]
+    pub exclude: Option<RowList>,
+    /// Confidence level of the coefficient intervals.
+    #[arg(long, default_value_t = 0.95, value_parser = parse_level)]
+    pub level: f64,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    pub format: Format,
+}
+
+/// `plumb columns`.
+#[derive(Debug, ClapArgs)]
+pub struct ColumnsArgs {
+    /// How to read the file.
+    #[command(flatten)]
+    pub load: LoadArgs,
+}
+
+/// Row numbers given on the command line.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct RowList(pub Vec<usize>);
+
+fn parse_rows(s: &str) -> Result<RowList, String> {
+    let mut rows = Vec::new();
+    for part in s.split(',').map(str::trim).filter(|p| !p.is_empty()) {
+        let bad =
+            || format!("'{part}' is not a row number or range such as 40-42 (rows count from 1)");
+        match part.split_once('-') {
+            Some((a, b)) => {
+                let (a, b): (usize, usize) = (
+                    a.trim().parse().map_err(|_| bad())?,
+                    b.trim().parse().map_err(|_| bad())?,
+                );
+                if a == 0 || b < a {
+                    return Err(bad());
+                }
+                rows.extend(a..=b);
+            }
+            None => {
+                let r: usize = part.parse().map_err(|_| bad())?;
+                if r == 0 {
+                    return Err(bad());
+                }
+                rows.push(r);
+            }
+        }
+    }
+    Ok(RowList(rows))
+}
+
+fn parse_level(s: &str) -> Result<f64, String> {
+    match s.parse::<f64>() {
+        Ok(v) if v > 0.0 && v < 1.0 => Ok(v),
+        _ => Err(format!(
+            "'{s}' is not a confidence level between 0 and 1 (such as 0.95)"
+        )),
+    }
+}
+
+fn parse_delimiter(s: &str) -> Result<u8, String> {
+    match s {
+        "tab" | "\\t" => Ok(b'\t'),
+        _ if s.len() == 1 && s.is_ascii() => Ok(s.as_bytes()[0]),
+        _ => Err(format!("'{s}' is not a one-character delimiter (or 'tab')")),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn row_lists_take_numbers_and_ranges() {
+        assert_eq!(
+            parse_rows("3, 17,40-42"),
+            Ok(RowList(vec![3, 17, 40, 41, 42]))
+        );
+        assert!(parse_rows("0").is_err());
+        assert!(parse_rows("5-2").is_err());
+        assert!(parse_rows("x").is_err());
+    }
+
+    #[test]
+    fn levels_and_delimiters_are_validated() {
+        assert_eq!(parse_level("0.9"), Ok(0.9));
+        assert!(parse_level("95").is_err());
+        assert_eq!(parse_delimiter("tab"), Ok(b'\t'));
+        assert!(parse_delimiter(";;").is_err());
+    }
+}

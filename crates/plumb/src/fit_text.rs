@@ -1,0 +1,238 @@
+//! The readable layout of `plumb fit`: a model line, the coefficient table, fit quality,
+//! the variance split, the row account, and the cautions.
+
+use std::fmt::Write;
+
+use plumb_data::analysis::{FitOutcome, FitRequest};
+use plumb_data::Table;
+
+/// Condition number above which the text output warns that the terms nearly coincide.
+/// Common practice, no source: around 1e8 half of double precision's digits are at risk.
+const CONDITION_WARNING: f64 = 1e8;
+
+pub fn render(table: &Table, request: &FitRequest, outcome: &FitOutcome) -> String {
+    let mut out = String::new();
+    // Writing to a String cannot fail.
+    let _ = write_all(&mut out, table, request, outcome);
+    out
+}
+
+fn write_all(
+    out: &mut String,
+    table: &Table,
+    request: &FitRequest,
+    o: &FitOutcome,
+) -> std::fmt::Result {
+    let fit = &o.fit;
+    let sel = &o.selection;
+    let terms: Vec<String> = fit
+        .coefficients
+        .iter()
+        .enumerate()
+        .map(|(j, c)| {
+            if c.term == "intercept" {
+                format!("b{j}")
+            } else {
+                format!("b{j}·{}", c.term)
+            }
+        })
+        .collect();
+    let method = if request.weights.is_some() {
+        "weighted least squares"
+    } else {
+        "least squares"
+    };
+    writeln!(out, "{}", table.source().display())?;
+    writeln!(
+        out,
+        "  model   {} = {}   ({method})",
+        request.y,
+        terms.join(" + ")
+    )?;
+    writeln!(
+        out,
+        "  rows    {} used of {}; {} dropped for gaps; {} excluded by you{}",
+        fit.n,
+        table.n_rows(),
+        sel.dropped.len(),
+        sel.excluded.len(),
+        if sel.excluded.is_empty() {
+            String::new()
+        } else {
+            format!(" ({})", join_rows(&sel.excluded))
+        }
+    )?;
+    writeln!(out)?;
+    let pct = format!("{}% interval", fit.level * 100.0);
+    writeln!(
+        out,
+        "  {:<18} {:>14} {:>12} {:>9} {:>11}   {:<29} {:>9}",
+        "term", "estimate", "std. error", "t", "p", pct, "z-units"
+    )?;
+    for c in &fit.coefficients {
+        writeln!(
+            out,
+            "  {:<18} {:>14} {:>12} {:>9} {:>11}   [{:>12}, {:>12}] {:>9}",
+            c.term,
+            num(c.estimate),
+            num(c.std_error),
+            fixed(c.t, 3),
+            pval(c.p_value),
+            num(c.ci_low),
+            num(c.ci_high),
+            c.standardized.map_or_else(|| "—".into(), |v| fixed(v, 4)),
+        )?;
+    }
+    writeln!(out)?;
+    writeln!(out, "  how well it fits")?;
+    writeln!(
+        out,
+        "    R² ({})          {:.6}",
+        fit.r_squared_kind.as_str(),
+        fit.r_squared
+    )?;
+    writeln!(out, "    adjusted R²           {:.6}", fit.adj_r_squared)?;
+    writeln!(
+        out,
+        "    scatter about fit σ̂   {}  ({} df)",
+        num(fit.residual_std_error),
+        fit.anova.df_residual
+    )?;
+    if let (Some(f), Some(p)) = (fit.anova.f_statistic, fit.anova.f_p_value) {
+        writeln!(
+            out,
+            "    overall F             {}  on {} and {} df, p {}",
+            fixed(f, 4),
+            fit.anova.df_model,
+            fit.anova.df_residual,
+            pval(p)
+        )?;
+    }
+    writeln!(
+        out,
+        "    AIC {}   BIC {}   log-likelihood {}",
+        fixed(fit.aic, 3),
+        fixed(fit.bic, 3),
+        fixed(fit.log_likelihood, 3)
+    )?;
+    writeln!(out)?;
+    writeln!(
+        out,
+        "  variance split          sum of squares    df      mean square"
+    )?;
+    let a = &fit.anova;
+    writeln!(
+        out,
+        "    explained by model  {:>16}  {:>4}  {:>15}",
+        num(a.ss_model),
+        a.df_model,
+        a.ms_model.map_or_else(|| "—".into(), num)
+    )?;
+    writeln!(
+        out,
+        "    left in residuals   {:>16}  {:>4}  {:>15}",
+        num(a.ss_residual),
+        a.df_residual,
+        num(a.ms_residual)
+    )?;
+    let total = format!("total ({})", fit.r_squared_kind.as_str());
+    writeln!(
+        out,
+        "    {total:<20}{:>16}  {:>4}",
+        num(a.ss_total),
+        a.df_model + a.df_residual
+    )?;
+    if !sel.dropped.is_empty() {
+        writeln!(out)?;
+        let listed: Vec<String> = sel
+            .dropped
+            .iter()
+            .take(12)
+            .map(|d| format!("{} ({} {})", d.row, d.column, d.reason.as_str()))
+            .collect();
+        let more = sel.dropped.len().saturating_sub(12);
+        writeln!(
+            out,
+            "  dropped rows: {}{}",
+            listed.join(", "),
+            if more > 0 {
+                format!(" and {more} more")
+            } else {
+                String::new()
+            }
+        )?;
+    }
+    writeln!(out)?;
+    if fit.condition_number > CONDITION_WARNING {
+        writeln!(out, "  warning: the terms nearly coincide (condition number {:.2e}); estimates may be unstable", fit.condition_number)?;
+    }
+    if !sel.excluded.is_empty() {
+        writeln!(
+            out,
+            "  note: rows were excluded by hand; record a reason for each with the results."
+        )?;
+    }
+    writeln!(out, "  note: association is not causation; follow your laboratory's validation protocol and local regulations.")?;
+    for note in table.notes() {
+        writeln!(out, "  note: {note}")?;
+    }
+    Ok(())
+}
+
+fn join_rows(rows: &[usize]) -> String {
+    rows.iter()
+        .map(ToString::to_string)
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+/// Six significant digits, switching to exponent form for very large or small magnitudes.
+fn num(v: f64) -> String {
+    if !v.is_finite() {
+        return v.to_string();
+    }
+    let a = v.abs();
+    if a != 0.0 && !(1e-4..1e7).contains(&a) {
+        format!("{v:.5e}")
+    } else {
+        let digits = if a == 0.0 {
+            0
+        } else {
+            a.log10().floor() as i32
+        };
+        let decimals = (5 - digits).clamp(0, 10) as usize;
+        format!("{v:.decimals$}")
+    }
+}
+
+fn fixed(v: f64, decimals: usize) -> String {
+    if v.is_finite() && v.abs() >= 1e7 {
+        format!("{v:.3e}")
+    } else {
+        format!("{v:.decimals$}")
+    }
+}
+
+fn pval(p: f64) -> String {
+    if p.is_nan() {
+        "—".into()
+    } else if p < 1e-4 {
+        format!("{p:.2e}")
+    } else {
+        format!("{p:.4}")
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn numbers_keep_six_significant_digits() {
+        assert_eq!(num(3.14159265), "3.14159");
+        assert_eq!(num(1234.5678), "1234.57");
+        assert_eq!(num(0.000012345), "1.23450e-5");
+        assert_eq!(pval(0.00001234), "1.23e-5");
+        assert_eq!(pval(0.5), "0.5000");
+    }
+}

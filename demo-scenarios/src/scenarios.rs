@@ -1,0 +1,152 @@
+//! The scenarios themselves. All numbers are invented; the stories are ours.
+
+use std::fmt::Write as _;
+use std::io::Write as _;
+use std::path::{Path, PathBuf};
+
+use rand::{Rng, SeedableRng};
+use rand_chacha::ChaCha8Rng;
+use rand_distr::{Distribution, Normal};
+
+/// Seed of every scenario (each adds its own offset).
+pub const SEED: u64 = 20_261_202;
+
+/// Writes every scenario into `dir` and returns the paths written.
+pub fn write_all(dir: &Path) -> std::io::Result<Vec<PathBuf>> {
+    std::fs::create_dir_all(dir)?;
+    let files = [
+        ("jar-tests.csv", jar_tests()),
+        ("calibration-run.csv", calibration_run()),
+    ];
+    let mut written = Vec::new();
+    for (name, text) in files {
+        let path = dir.join(name);
+        write_atomically(&path, text.as_bytes())?;
+        written.push(path);
+    }
+    Ok(written)
+}
+
+fn write_atomically(path: &Path, bytes: &[u8]) -> std::io::Result<()> {
+    let tmp = path.with_extension("tmp");
+    {
+        let mut f = std::fs::File::create(&tmp)?;
+        f.write_all(bytes)?;
+        f.sync_all()?;
+    }
+    std::fs::rename(tmp, path)
+}
+
+fn normal(sd: f64) -> Normal<f64> {
+    Normal::new(0.0, sd).expect("positive standard deviation")
+}
+
+/// Jar tests at a small river-water treatment works: six jars per morning over eight mornings,
+/// coagulant dose against settled turbidity. The response flattens out at high dose (curved),
+/// and two rows were keyed in with a slipped decimal point. Exported the way the bench
+/// spreadsheet does it: semicolons, decimal commas.
+pub fn jar_tests() -> String {
+    let mut rng = ChaCha8Rng::seed_from_u64(SEED + 1);
+    let mut out = String::from("jar;morning;dose_mg_l;raw_ntu;settled_ntu;ph;analyst\n");
+    let analysts = ["IK", "MB", "TS"];
+    let doses = [8.0, 14.0, 20.0, 26.0, 32.0, 40.0];
+    let mut jar = 0;
+    for morning in 1..=8 {
+        let raw: f64 = 38.0 + 6.0 * (morning as f64 * 0.9).sin() + normal(1.5).sample(&mut rng);
+        let analyst = analysts[morning % 3];
+        for &base_dose in &doses {
+            jar += 1;
+            let dose: f64 = base_dose + rng.random_range(-1.0..1.0);
+            let settled =
+                1.6 + raw * 0.55 * (-dose / 9.5).exp() * (1.0 + normal(0.06).sample(&mut rng));
+            let ph = 7.6 - 0.012 * dose + normal(0.04).sample(&mut rng);
+            let mut settled_text = comma(settled, 2);
+            if jar == 17 || jar == 38 {
+                settled_text = comma(settled * 10.0, 1); // the slipped decimal point
+            }
+            let _ = writeln!(
+                out,
+                "J{jar:02};{morning};{};{};{settled_text};{};{analyst}",
+                comma(dose, 1),
+                comma(raw, 1),
+                comma(ph, 2)
+            );
+        }
+    }
+    out
+}
+
+/// A calibration run on a benchtop photometer: nine standards in triplicate, read in random
+/// order. The 25 mg/L standard had been left uncapped and reads high in all three replicates.
+pub fn calibration_run() -> String {
+    let mut rng = ChaCha8Rng::seed_from_u64(SEED + 2);
+    let standards = [0.0, 2.0, 5.0, 10.0, 15.0, 20.0, 25.0, 30.0, 40.0];
+    let mut runs: Vec<(f64, u32)> = standards
+        .iter()
+        .flat_map(|&c| (1..=3).map(move |r| (c, r)))
+        .collect();
+    for i in (1..runs.len()).rev() {
+        let j = rng.random_range(0..=i);
+        runs.swap(i, j);
+    }
+    let mut out = String::from("read_order,standard_mg_l,replicate,absorbance,lamp_hours\n");
+    for (k, (conc, rep)) in runs.iter().enumerate() {
+        let drift = if *conc == 25.0 { 0.045 } else { 0.0 };
+        let absorbance = 0.004 + 0.0213 * conc + drift + normal(0.0035).sample(&mut rng);
+        let lamp = 1412.0 + 0.05 * k as f64;
+        let _ = writeln!(out, "{},{conc:.1},{rep},{absorbance:.4},{lamp:.2}", k + 1);
+    }
+    out
+}
+
+fn comma(v: f64, decimals: usize) -> String {
+    format!("{v:.decimals$}").replace('.', ",")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn committed_files_match_the_generator() {
+        // The files in data/ must be what this seed produces; regenerate with
+        // `cargo run -p plumb-demo` after changing a scenario.
+        let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("data");
+        for (name, text) in [
+            ("jar-tests.csv", jar_tests()),
+            ("calibration-run.csv", calibration_run()),
+        ] {
+            let committed =
+                std::fs::read_to_string(dir.join(name)).expect("committed scenario file");
+            assert!(
+                committed == text,
+                "{name} differs from the generator's output"
+            );
+        }
+    }
+
+    #[test]
+    fn jar_tests_have_the_two_slipped_rows() {
+        let text = jar_tests();
+        let settled: Vec<f64> = text
+            .lines()
+            .skip(1)
+            .map(|l| {
+                l.split(';')
+                    .nth(4)
+                    .expect("five fields")
+                    .replace(',', ".")
+                    .parse()
+                    .expect("number")
+            })
+            .collect();
+        assert_eq!(settled.len(), 48);
+        let big: Vec<usize> = settled
+            .iter()
+            .enumerate()
+            .filter(|(_, &v)| v > 30.0)
+            .map(|(i, _)| i + 1)
+            .collect();
+        assert!(big.contains(&17) && big.contains(&38), "{big:?}");
+    }
+}
