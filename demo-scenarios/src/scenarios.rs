@@ -141,12 +141,18 @@ mod tests {
             })
             .collect();
         assert_eq!(settled.len(), 48);
-        let big: Vec<usize> = settled
-            .iter()
-            .enumerate()
-            .filter(|(_, &v)| v > 30.0)
-            .map(|(i, _)| i + 1)
-            .collect();
-        assert!(big.contains(&17) && big.contains(&38), "{big:?}");
+        // Compare each jar with the median of the jars dosed alike on the other mornings.
+        for (i, &v) in settled.iter().enumerate() {
+            let mut alike: Vec<f64> = (i % 6..48).step_by(6).map(|k| settled[k]).collect();
+            alike.sort_by(f64::total_cmp);
+            let median = alike[alike.len() / 2];
+            let slipped = i + 1 == 17 || i + 1 == 38;
+            assert_eq!(
+                v > 4.0 * median,
+                slipped,
+                "jar {}: {v} against median {median}",
+                i + 1
+            );
+        }
     }
 }

@@ -229,7 +229,7 @@ mod tests {
 
     #[test]
     fn numbers_keep_six_significant_digits() {
-        assert_eq!(num(3.14159265), "3.14159");
+        assert_eq!(num(4.256789123), "4.25679");
         assert_eq!(num(1234.5678), "1234.57");
         assert_eq!(num(0.000012345), "1.23450e-5");
         assert_eq!(pval(0.00001234), "1.23e-5");

@@ -1,0 +1,365 @@
+//! The command-line contract: `plumb fit` JSON fields, accuracy end to end, and the errors
+//! users see for bad input (exit code, and a message naming file, column or row).
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+use plumb_tests::{lre, nist_dir, parse_nist};
+use serde_json::Value;
+
+fn plumb(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_plumb"))
+        .args(args)
+        .output()
+        .expect("plumb runs")
+}
+
+fn json(out: &Output) -> Value {
+    assert!(
+        out.status.success(),
+        "plumb failed: {}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    serde_json::from_slice(&out.stdout).expect("one JSON object")
+}
+
+fn stderr(out: &Output) -> String {
+    String::from_utf8_lossy(&out.stderr).into_owned()
+}
+
+fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
+    let path = dir.join(name);
+    std::fs::write(&path, text).expect("temp file");
+    path
+}
+
+fn demo(name: &str) -> String {
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("../../demo-scenarios/data")
+        .join(name)
+        .to_string_lossy()
+        .into_owned()
+}
+
+mod contract {
+    //! Field names and shapes that later tools rely on.
+    use super::*;
+
+    #[test]
+    fn fit_json_has_every_contract_field() {
+        let out = plumb(&[
+            "fit",
+            &demo("jar-tests.csv"),
+            "--y",
+            "settled_ntu",
+            "--x",
+            "dose_mg_l",
+            "--degree",
+            "2",
+            "--exclude",
+            "17,38",
+            "--format",
+            "json",
+        ]);
+        let v = json(&out);
+        for key in [
+            "n",
+            "n_dropped",
+            "df_residual",
+            "r_squared",
+            "r_squared_kind",
+            "adj_r_squared",
+            "residual_std_error",
+            "f_statistic",
+            "f_p_value",
+            "aic",
+            "bic",
+            "excluded_rows",
+            "coefficients",
+        ] {
+            assert!(v.get(key).is_some(), "missing {key}");
+        }
+        assert_eq!(v["n"], 46);
+        assert_eq!(v["excluded_rows"], serde_json::json!([17, 38]));
+        assert_eq!(v["r_squared_kind"], "centered");
+        let terms: Vec<&str> = v["coefficients"]
+            .as_array()
+            .expect("list")
+            .iter()
+            .map(|c| c["term"].as_str().expect("term"))
+            .collect();
+        assert_eq!(terms, ["intercept", "dose_mg_l", "dose_mg_l^2"]);
+        for c in v["coefficients"].as_array().expect("list") {
+            for key in [
+                "estimate",
+                "std_error",
+                "t",
+                "p_value",
+                "ci_low",
+                "ci_high",
+                "standardized",
+            ] {
+                assert!(c.get(key).is_some(), "coefficient lacks {key}");
+            }
+        }
+        assert!(
+            v["coefficients"][0]["standardized"].is_null(),
+            "intercept has no standardized value"
+        );
+    }
+
+    #[test]
+    fn excluding_the_two_slipped_rows_changes_the_answer() {
+        let base = [
+            "fit",
+            &demo("jar-tests.csv"),
+            "--y",
+            "settled_ntu",
+            "--x",
+            "dose_mg_l",
+            "--degree",
+            "2",
+            "--format",
+            "json",
+        ];
+        let all = json(&plumb(&base));
+        let mut args = base.to_vec();
+        args.extend(["--exclude", "17,38"]);
+        let kept = json(&plumb(&args));
+        let (r_all, r_kept) = (
+            all["r_squared"].as_f64().expect("R²"),
+            kept["r_squared"].as_f64().expect("R²"),
+        );
+        assert!(r_all < 0.5 && r_kept > 0.9, "R² {r_all} → {r_kept}");
+    }
+
+    #[test]
+    fn text_output_names_the_r_squared_kind_and_cautions() {
+        let out = plumb(&[
+            "fit",
+            &demo("calibration-run.csv"),
+            "--y",
+            "absorbance",
+            "--x",
+            "standard_mg_l",
+            "--no-intercept",
+        ]);
+        assert!(out.status.success(), "{}", stderr(&out));
+        let text = String::from_utf8_lossy(&out.stdout);
+        assert!(text.contains("R² (uncentered)"), "{text}");
+        assert!(text.contains("association is not causation"), "{text}");
+    }
+}
+
+mod accuracy {
+    //! NIST StRD certified values reached through the whole path: CSV text → loader → fit → JSON.
+    use super::*;
+
+    #[test]
+    fn nist_sets_through_the_command_line_keep_ten_digits() {
+        let Some(dir) = nist_dir() else { return };
+        let tmp = tempfile::tempdir().expect("tempdir");
+        for name in ["Norris", "Pontius", "NoInt1", "Longley", "Wampler4"] {
+            let case = parse_nist(&dir.join(format!("{name}.dat")));
+            let xs: Vec<String> = (1..=case.x.len()).map(|j| format!("x{j}")).collect();
+            let mut csv = format!("y,{}\n", xs.join(","));
+            for i in 0..case.y.len() {
+                let row: Vec<String> = std::iter::once(case.y[i])
+                    .chain(case.x.iter().map(|c| c[i]))
+                    .map(|v| format!("{v:?}"))
+                    .collect();
+                csv.push_str(&row.join(","));
+                csv.push('\n');
+            }
+            let path = write(tmp.path(), &format!("{name}.csv"), &csv);
+            let path = path.to_string_lossy();
+            let mut args = vec!["fit", &path, "--y", "y", "--format", "json"];
+            for x in &xs {
+                args.extend(["--x", x]);
+            }
+            let degree = case.degree().map(|d| d.to_string());
+            if let Some(d) = &degree {
+                args.extend(["--degree", d]);
+            }
+            if !case.intercept {
+                args.push("--no-intercept");
+            }
+            let v = json(&plumb(&args));
+            for (c, got) in case
+                .parameters
+                .iter()
+                .zip(v["coefficients"].as_array().expect("list"))
+            {
+                let est = lre(got["estimate"].as_f64().expect("estimate"), c.estimate);
+                let sd = lre(got["std_error"].as_f64().expect("se"), c.std_dev);
+                assert!(
+                    est >= 10.0 && sd >= 10.0,
+                    "{name}: LRE estimate {est:.1}, sd {sd:.1}"
+                );
+            }
+            let r2 = lre(v["r_squared"].as_f64().expect("R²"), case.r_squared);
+            let rsd = lre(
+                v["residual_std_error"].as_f64().expect("σ"),
+                case.residual_sd,
+            );
+            assert!(
+                r2 >= 10.0 && rsd >= 10.0,
+                "{name}: LRE R² {r2:.1}, residual SD {rsd:.1}"
+            );
+        }
+    }
+}
+
+mod bad_input {
+    //! Each bad input exits non-zero with one line naming the file and what to do; never a panic.
+    use super::*;
+
+    fn refused(csv: &str, args: &[&str], expect: &[&str]) {
+        let tmp = tempfile::tempdir().expect("tempdir");
+        let path = write(tmp.path(), "bad.csv", csv);
+        let before = std::fs::read(&path).expect("read");
+        let path_text = path.to_string_lossy().into_owned();
+        let mut full = vec!["fit", path_text.as_str()];
+        full.extend_from_slice(args);
+        let out = plumb(&full);
+        let err = stderr(&out);
+        assert_eq!(
+            out.status.code(),
+            Some(1),
+            "exit code for {expect:?}: {err}"
+        );
+        assert!(!err.contains("panicked"), "{err}");
+        assert!(
+            err.contains("bad.csv") || expect.iter().any(|e| e.starts_with('!')),
+            "file not named: {err}"
+        );
+        for e in expect {
+            assert!(
+                err.contains(e.trim_start_matches('!')),
+                "expected '{e}' in: {err}"
+            );
+        }
+        assert_eq!(err.trim_end().lines().count(), 1, "one line: {err}");
+        assert_eq!(
+            std::fs::read(&path).expect("read"),
+            before,
+            "the data file is never written"
+        );
+    }
+
+    #[test]
+    fn unknown_column() {
+        refused(
+            "x,y\n1,2\n2,3\n3,5\n",
+            &["--y", "y", "--x", "X1"],
+            &["no column named 'X1'"],
+        );
+    }
+
+    #[test]
+    fn text_column_as_predictor() {
+        refused(
+            "x,y\n1,2\nlow,3\n3,5\n",
+            &["--y", "y", "--x", "x"],
+            &["row 2", "'low'"],
+        );
+    }
+
+    #[test]
+    fn all_missing_column() {
+        refused(
+            "x,y,z\n1,2,\n2,3,NA\n3,5,\n",
+            &["--y", "y", "--x", "z"],
+            &["every cell is missing"],
+        );
+    }
+
+    #[test]
+    fn constant_predictor() {
+        refused(
+            "x,y\n4,2\n4,3\n4,5\n4,1\n",
+            &["--y", "y", "--x", "x"],
+            &["'x' is constant"],
+        );
+    }
+
+    #[test]
+    fn too_few_rows() {
+        refused(
+            "x,y\n1,2\n2,3\n",
+            &["--y", "y", "--x", "x"],
+            &["2 complete rows for 2 parameters"],
+        );
+    }
+
+    #[test]
+    fn exact_collinearity_names_the_aliased_term() {
+        refused(
+            "a,b,c,y\n1,2,3,1\n2,1,3,2\n3,4,7,2\n4,3,7,5\n5,6,11,4\n",
+            &["--y", "y", "--x", "a", "--x", "b", "--x", "c"],
+            &["aliased", "·"],
+        );
+    }
+
+    #[test]
+    fn ragged_rows() {
+        refused(
+            "x,y\n1,2\n2\n3,5\n",
+            &["--y", "y", "--x", "x"],
+            &["line 3", "1 fields"],
+        );
+    }
+
+    #[test]
+    fn exclusion_beyond_the_table() {
+        refused(
+            "x,y\n1,2\n2,3\n3,5\n4,4\n",
+            &["--y", "y", "--x", "x", "--exclude", "7"],
+            &["row 7 does not exist"],
+        );
+    }
+
+    #[test]
+    fn polynomial_of_two_predictors() {
+        refused(
+            "a,b,y\n1,2,1\n2,1,2\n3,4,2\n4,3,5\n",
+            &["--y", "y", "--x", "a", "--x", "b", "--degree", "2"],
+            &["!exactly one predictor"],
+        );
+    }
+
+    #[test]
+    fn missing_file() {
+        let out = plumb(&["fit", "/nonexistent/plumb-test.csv", "--y", "y", "--x", "x"]);
+        assert_eq!(out.status.code(), Some(1));
+        assert!(
+            stderr(&out).contains("/nonexistent/plumb-test.csv"),
+            "{}",
+            stderr(&out)
+        );
+    }
+
+    #[test]
+    fn non_finite_values_are_dropped_and_reported() {
+        let tmp = tempfile::tempdir().expect("tempdir");
+        let path = write(
+            tmp.path(),
+            "inf.csv",
+            "x,y\n1,2\n2,inf\n3,5\n4,4\n5,7\nNaN,3\n",
+        );
+        let v = json(&plumb(&[
+            "fit",
+            &path.to_string_lossy(),
+            "--y",
+            "y",
+            "--x",
+            "x",
+            "--format",
+            "json",
+        ]));
+        assert_eq!(v["n"], 4);
+        assert_eq!(v["n_dropped"], 2);
+        assert_eq!(v["dropped_rows"][0]["reason"], "non-finite");
+        assert_eq!(v["dropped_rows"][1]["reason"], "missing");
+    }
+}
