@@ -27,6 +27,16 @@ pub enum DataError {
         /// File.
         path: PathBuf,
     },
+    /// A sheet with no data rows (perhaps the data are on another sheet).
+    #[error("{}, sheet '{sheet}': no data rows; pick the sheet that holds the table with --sheet (the workbook has: {available})", path.display())]
+    EmptySheet {
+        /// File.
+        path: PathBuf,
+        /// Sheet read.
+        sheet: String,
+        /// Sheet names, comma-separated.
+        available: String,
+    },
     /// Bytes that are not UTF-8.
     #[error("{}, line {line}: the bytes are not valid UTF-8 (perhaps a legacy encoding such as Windows-1252); re-save the file as UTF-8", path.display())]
     NotUtf8 {

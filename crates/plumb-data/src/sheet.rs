@@ -42,10 +42,13 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
         })
         .filter(|r: &Vec<Cell>| r.iter().any(|c| *c != Cell::Missing))
         .collect();
+    let empty_sheet = || DataError::EmptySheet {
+        path: path.to_path_buf(),
+        sheet: sheet.clone(),
+        available: names.join(", "),
+    };
     if rows.is_empty() {
-        return Err(DataError::Empty {
-            path: path.to_path_buf(),
-        });
+        return Err(empty_sheet());
     }
     let raw_rows: Vec<Vec<String>> = range
         .rows()
@@ -76,9 +79,7 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
         )
     };
     if body.is_empty() {
-        return Err(DataError::NoDataRows {
-            path: path.to_path_buf(),
-        });
+        return Err(empty_sheet());
     }
     let cells = (0..width)
         .map(|j| {

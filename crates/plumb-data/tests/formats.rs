@@ -1,0 +1,107 @@
+//! Spreadsheet and Parquet files, written here by their own writer libraries and read back.
+
+use plumb_data::{load, ColumnValues, DataError, LoadOptions, SourceFormat};
+use polars::prelude::{df, ParquetWriter};
+use rust_xlsxwriter::Workbook;
+
+#[test]
+fn xlsx_first_sheet_and_a_named_sheet() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let path = dir.path().join("bench.xlsx");
+    let mut book = Workbook::new();
+    let first = book.add_worksheet().set_name("notes").expect("name");
+    first.write_string(0, 0, "read me").expect("write");
+    let data = book.add_worksheet().set_name("readings").expect("name");
+    for (j, h) in ["standard", "absorbance", "who"].iter().enumerate() {
+        data.write_string(0, j as u16, *h).expect("write");
+    }
+    let rows = [
+        (0.0, Some(0.004), "IK"),
+        (5.0, None, "IK"),
+        (10.0, Some(0.215), "MB"),
+    ];
+    for (i, (s, a, who)) in rows.iter().enumerate() {
+        let r = i as u32 + 1;
+        data.write_number(r, 0, *s).expect("write");
+        if let Some(a) = a {
+            data.write_number(r, 1, *a).expect("write");
+        }
+        data.write_string(r, 2, *who).expect("write");
+    }
+    book.save(&path).expect("save xlsx");
+
+    let options = LoadOptions {
+        sheet: Some("readings".into()),
+        ..LoadOptions::default()
+    };
+    let table = load(&path, &options).expect("named sheet loads");
+    assert_eq!(
+        table.format(),
+        &SourceFormat::Sheet {
+            name: "readings".into(),
+            header: true
+        }
+    );
+    assert_eq!(
+        table.numeric("absorbance").expect("numeric"),
+        [Some(0.004), None, Some(0.215)]
+    );
+    assert!(matches!(
+        table.column("who").expect("who").values,
+        ColumnValues::Text { .. }
+    ));
+
+    // The first sheet is read by default; here it holds a note, not a table.
+    let err = load(&path, &LoadOptions::default()).expect_err("first sheet has no rows");
+    assert!(
+        matches!(&err, DataError::EmptySheet { sheet, .. } if sheet == "notes"),
+        "{err}"
+    );
+    assert!(err.to_string().contains("--sheet"), "{err}");
+
+    let missing = LoadOptions {
+        sheet: Some("Sheet9".into()),
+        ..LoadOptions::default()
+    };
+    let err = load(&path, &missing).expect_err("no such sheet");
+    assert!(matches!(err, DataError::NoSuchSheet { .. }), "{err}");
+    assert!(err.to_string().contains("notes, readings"), "{err}");
+}
+
+#[test]
+fn parquet_numbers_and_text() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let path = dir.path().join("log.parquet");
+    let mut frame = df!(
+        "t" => [1i64, 2, 3],
+        "level" => [Some(0.5f64), None, Some(1.5)],
+        "site" => ["a", "b", "c"]
+    )
+    .expect("frame");
+    let file = std::fs::File::create(&path).expect("create");
+    ParquetWriter::new(file)
+        .finish(&mut frame)
+        .expect("write parquet");
+    let table = load(&path, &LoadOptions::default()).expect("parquet loads");
+    assert_eq!(
+        table.numeric("t").expect("numeric"),
+        [Some(1.0), Some(2.0), Some(3.0)]
+    );
+    assert_eq!(
+        table.numeric("level").expect("numeric"),
+        [Some(0.5), None, Some(1.5)]
+    );
+    assert!(table.numeric("site").is_err());
+}
+
+#[test]
+fn a_text_file_named_like_a_spreadsheet_is_refused_clearly() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let path = dir.path().join("fake.xlsx");
+    std::fs::write(&path, "x,y\n1,2\n").expect("write");
+    let err = load(&path, &LoadOptions::default()).expect_err("not a workbook");
+    assert!(
+        err.to_string().contains("fake.xlsx") && err.to_string().contains("spreadsheet"),
+        "{err}"
+    );
+}
