@@ -45,23 +45,28 @@ mod contract {
     //! Field names and shapes that later tools rely on.
     use super::*;
 
-    #[test]
-    fn fit_json_has_every_contract_field() {
-        let out = plumb(&[
+    /// The demo jar tests fitted as a quadratic in dose, with extra arguments.
+    fn jar_quadratic(extra: &[&str]) -> Value {
+        let data = demo("jar-tests.csv");
+        let mut args = vec![
             "fit",
-            &demo("jar-tests.csv"),
+            &data,
             "--y",
             "settled_ntu",
             "--x",
             "dose_mg_l",
             "--degree",
             "2",
-            "--exclude",
-            "17,38",
             "--format",
             "json",
-        ]);
-        let v = json(&out);
+        ];
+        args.extend_from_slice(extra);
+        json(&plumb(&args))
+    }
+
+    #[test]
+    fn fit_json_has_every_contract_field() {
+        let v = jar_quadratic(&["--exclude", "17,38"]);
         for key in [
             "n",
             "n_dropped",
@@ -82,14 +87,13 @@ mod contract {
         assert_eq!(v["n"], 46);
         assert_eq!(v["excluded_rows"], serde_json::json!([17, 38]));
         assert_eq!(v["r_squared_kind"], "centered");
-        let terms: Vec<&str> = v["coefficients"]
-            .as_array()
-            .expect("list")
+        let coefficients = v["coefficients"].as_array().expect("list");
+        let terms: Vec<&str> = coefficients
             .iter()
             .map(|c| c["term"].as_str().expect("term"))
             .collect();
         assert_eq!(terms, ["intercept", "dose_mg_l", "dose_mg_l^2"]);
-        for c in v["coefficients"].as_array().expect("list") {
+        for c in coefficients {
             for key in [
                 "estimate",
                 "std_error",
@@ -103,33 +107,17 @@ mod contract {
             }
         }
         assert!(
-            v["coefficients"][0]["standardized"].is_null(),
+            coefficients[0]["standardized"].is_null(),
             "intercept has no standardized value"
         );
     }
 
     #[test]
     fn excluding_the_two_slipped_rows_changes_the_answer() {
-        let base = [
-            "fit",
-            &demo("jar-tests.csv"),
-            "--y",
-            "settled_ntu",
-            "--x",
-            "dose_mg_l",
-            "--degree",
-            "2",
-            "--format",
-            "json",
-        ];
-        let all = json(&plumb(&base));
-        let mut args = base.to_vec();
-        args.extend(["--exclude", "17,38"]);
-        let kept = json(&plumb(&args));
-        let (r_all, r_kept) = (
-            all["r_squared"].as_f64().expect("R²"),
-            kept["r_squared"].as_f64().expect("R²"),
-        );
+        let r_all = jar_quadratic(&[])["r_squared"].as_f64().expect("R²");
+        let r_kept = jar_quadratic(&["--exclude", "17,38"])["r_squared"]
+            .as_f64()
+            .expect("R²");
         assert!(r_all < 0.5 && r_kept > 0.9, "R² {r_all} → {r_kept}");
     }
 
