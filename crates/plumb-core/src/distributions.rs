@@ -4,9 +4,9 @@
 //! `I_x(a, b)` (statrs), never as `1 − cdf`, so that a p-value of 1e-40 is as accurate
 //! relative to itself as one of 0.3.
 
-use statrs::distribution::{ContinuousCDF, StudentsT};
+use statrs::distribution::{ContinuousCDF, Normal, StudentsT};
 use statrs::function::beta::beta_reg;
-use statrs::function::gamma::ln_gamma;
+use statrs::function::gamma::{gamma_lr, gamma_ur, ln_gamma};
 
 /// Two-sided p-value of a t statistic with `df` degrees of freedom:
 /// `p = P(|T| ≥ |t|) = I_{df/(df+t²)}(df/2, 1/2)`.
@@ -76,6 +76,47 @@ pub fn f_upper_tail(f: f64, d1: f64, d2: f64) -> f64 {
     beta_reg(0.5 * d2, 0.5 * d1, d2 / (d2 + d1 * f))
 }
 
+/// Upper tail of the standard normal: `Q(z) = P(Z ≥ z) = ½·Γ(½, z²/2)/Γ(½)` for `z ≥ 0`
+/// (the regularized upper incomplete gamma, accurate to a few ulps in statrs, where its
+/// `erfc` is good to about 1e-11 only) and `Q(z) = ½ + ½·P(½, z²/2)` for `z < 0`.
+pub fn normal_upper_tail(z: f64) -> f64 {
+    if z.is_nan() {
+        return f64::NAN;
+    }
+    if z == 0.0 {
+        return 0.5;
+    }
+    if z.is_infinite() {
+        return if z > 0.0 { 0.0 } else { 1.0 };
+    }
+    let half_z2 = 0.5 * z * z;
+    if z >= 0.0 {
+        0.5 * gamma_ur(0.5, half_z2)
+    } else {
+        0.5 + 0.5 * gamma_lr(0.5, half_z2)
+    }
+}
+
+/// Upper quantile `z` with `Q(z) = alpha`, from statrs' inverse CDF polished by Newton steps
+/// on `Q(z) − alpha` with `Q'(z) = −φ(z) = −e^{−z²/2}/√(2π)`.
+///
+/// # Panics
+/// If `alpha` is not in (0, 1) (a caller bug).
+pub fn normal_upper_quantile(alpha: f64) -> f64 {
+    assert!(alpha > 0.0 && alpha < 1.0, "alpha must be in (0, 1)");
+    let dist = Normal::new(0.0, 1.0).expect("unit normal");
+    let mut z = dist.inverse_cdf(1.0 - alpha);
+    for _ in 0..3 {
+        let density = (-0.5 * z * z).exp() / (2.0 * std::f64::consts::PI).sqrt();
+        let step = (normal_upper_tail(z) - alpha) / density;
+        z += step;
+        if step.abs() <= 1e-16 * z.abs() {
+            break;
+        }
+    }
+    z
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -135,6 +176,27 @@ mod tests {
             1.35_f64.powi(-10),
             max_relative = 1e-10
         );
+    }
+
+    #[test]
+    fn normal_quantile_matches_scipy() {
+        // scipy 1.14.1: norm.isf(0.025) = 1.9599639845400545; norm.sf(3) = 0.0013498980316300933.
+        assert_relative_eq!(
+            normal_upper_quantile(0.025),
+            1.959_963_984_540_054_5,
+            max_relative = 1e-14
+        );
+        assert_relative_eq!(
+            normal_upper_tail(3.0),
+            0.001_349_898_031_630_093_3,
+            max_relative = 1e-14
+        );
+        assert_relative_eq!(
+            normal_upper_tail(-3.0),
+            1.0 - 0.001_349_898_031_630_093_3,
+            max_relative = 1e-15
+        );
+        assert_eq!(normal_upper_tail(0.0), 0.5);
     }
 
     #[test]

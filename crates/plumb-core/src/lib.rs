@@ -10,6 +10,7 @@
 //! * [`accurate`]: compensated sums and dot products used where cancellation would cost digits.
 
 pub mod accurate;
+pub mod association;
 pub mod describe;
 pub mod distributions;
 mod error;

@@ -1,0 +1,141 @@
+//! The correlation matrix of many columns, pairwise complete, with adjusted p-values.
+
+use super::{adjust_p_values, kendall_tau_b, pearson, spearman, Adjustment, Pairwise};
+
+/// Which coefficient fills the matrix.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Method {
+    /// Pearson's r.
+    Pearson,
+    /// Spearman's ρ.
+    Spearman,
+    /// Kendall's τ-b.
+    Kendall,
+}
+
+impl Method {
+    /// Lower-case name used in output.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Self::Pearson => "pearson",
+            Self::Spearman => "spearman",
+            Self::Kendall => "kendall",
+        }
+    }
+
+    /// The coefficient of one pair.
+    pub fn compute(self, x: &[f64], y: &[f64]) -> Pairwise {
+        match self {
+            Self::Pearson => pearson(x, y, 0.95),
+            Self::Spearman => spearman(x, y),
+            Self::Kendall => kendall_tau_b(x, y),
+        }
+    }
+}
+
+/// Square matrices over `k` columns; `None` where a cell is undefined (see `reason`).
+#[derive(Debug, Clone, PartialEq)]
+pub struct CorrelationMatrix {
+    /// The coefficient.
+    pub r: Vec<Vec<Option<f64>>>,
+    /// Unadjusted two-sided p-value (`None` on the diagonal).
+    pub p_value: Vec<Vec<Option<f64>>>,
+    /// p-value adjusted across the `n_tests` off-diagonal pairs.
+    pub p_adjusted: Vec<Vec<Option<f64>>>,
+    /// Complete pairs used.
+    pub n: Vec<Vec<usize>>,
+    /// Why a cell is undefined (`None` where defined).
+    pub reason: Vec<Vec<Option<String>>>,
+    /// Pairs tested (defined off-diagonal cells, each counted once).
+    pub n_tests: usize,
+}
+
+/// Fills the matrix with `method` over pairwise-complete rows (a row counts for a pair when
+/// both of its cells are `Some` and finite) and adjusts the p-values of all defined pairs.
+pub fn correlation_matrix(
+    columns: &[&[Option<f64>]],
+    method: Method,
+    adjust: Adjustment,
+) -> CorrelationMatrix {
+    let k = columns.len();
+    let mut m = CorrelationMatrix {
+        r: vec![vec![None; k]; k],
+        p_value: vec![vec![None; k]; k],
+        p_adjusted: vec![vec![None; k]; k],
+        n: vec![vec![0; k]; k],
+        reason: vec![vec![None; k]; k],
+        n_tests: 0,
+    };
+    let mut tested = Vec::new();
+    for i in 0..k {
+        m.n[i][i] = columns[i]
+            .iter()
+            .flatten()
+            .filter(|v| v.is_finite())
+            .count();
+        m.r[i][i] = Some(1.0);
+        for j in i + 1..k {
+            let (x, y) = complete_pairs(columns[i], columns[j]);
+            m.n[i][j] = x.len();
+            m.n[j][i] = x.len();
+            match method.compute(&x, &y) {
+                Ok(a) => {
+                    for (a_, b_) in [(i, j), (j, i)] {
+                        m.r[a_][b_] = Some(a.r);
+                        m.p_value[a_][b_] = Some(a.p_value);
+                    }
+                    tested.push((i, j, a.p_value));
+                }
+                Err(why) => {
+                    m.reason[i][j] = Some(why.to_string());
+                    m.reason[j][i] = Some(why.to_string());
+                }
+            }
+        }
+    }
+    m.n_tests = tested.len();
+    let raw: Vec<f64> = tested.iter().map(|t| t.2).collect();
+    let method = if tested.len() > 1 {
+        adjust
+    } else {
+        Adjustment::None
+    };
+    for ((i, j, _), p) in tested.iter().zip(adjust_p_values(&raw, method)) {
+        m.p_adjusted[*i][*j] = Some(p);
+        m.p_adjusted[*j][*i] = Some(p);
+    }
+    m
+}
+
+fn complete_pairs(a: &[Option<f64>], b: &[Option<f64>]) -> (Vec<f64>, Vec<f64>) {
+    a.iter()
+        .zip(b)
+        .filter_map(|(x, y)| match (x, y) {
+            (Some(x), Some(y)) if x.is_finite() && y.is_finite() => Some((*x, *y)),
+            _ => None,
+        })
+        .unzip()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn matrix_is_symmetric_and_counts_its_tests() {
+        let a = [Some(1.0), Some(2.0), Some(3.0), Some(4.0), None];
+        let b = [Some(2.0), Some(1.0), Some(4.0), Some(3.0), Some(5.0)];
+        let c = [Some(7.0), Some(7.0), Some(7.0), Some(7.0), Some(7.0)];
+        let m = correlation_matrix(&[&a, &b, &c], Method::Pearson, Adjustment::Holm);
+        assert_eq!(m.r[0][1], m.r[1][0]);
+        assert_eq!(m.n[0][1], 4);
+        assert_eq!(m.n_tests, 1, "pairs with the constant column are undefined");
+        assert!(m.reason[0][2]
+            .as_deref()
+            .is_some_and(|r| r.contains("does not vary")));
+        assert_eq!(
+            m.p_adjusted[0][1], m.p_value[0][1],
+            "one test: nothing to adjust"
+        );
+    }
+}
