@@ -19,8 +19,58 @@ pub struct Args {
 pub enum Command {
     /// Fit a least-squares line, plane or polynomial and report it.
     Fit(FitArgs),
+    /// Measure how every pair of numeric columns moves together, with adjusted p-values.
+    Corr(CorrArgs),
     /// List the columns of a data file with their type, missing count and range.
     Columns(ColumnsArgs),
+}
+
+/// Coefficient for `plumb corr`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum MethodArg {
+    /// Pearson's r (linear association).
+    Pearson,
+    /// Spearman's rank correlation (monotone association).
+    Spearman,
+    /// Kendall's tau-b (rank concordance, tie-corrected).
+    Kendall,
+    /// Distance correlation (any dependence; permutation p-value).
+    Distance,
+}
+
+/// Multiple-testing adjustment for `plumb corr`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum AdjustArg {
+    /// Holm's step-down (family-wise error rate).
+    Holm,
+    /// Benjamini–Hochberg (false discovery rate).
+    Bh,
+    /// No adjustment.
+    None,
+}
+
+/// `plumb corr`.
+#[derive(Debug, ClapArgs)]
+pub struct CorrArgs {
+    /// How to read the file.
+    #[command(flatten)]
+    pub load: LoadArgs,
+    /// Columns to include, comma-separated (default: every numeric column but the order column).
+    #[arg(long, value_delimiter = ',', value_name = "A,B,C")]
+    pub columns: Vec<String>,
+    /// Coefficient to compute.
+    #[arg(long, value_enum, default_value_t = MethodArg::Pearson)]
+    pub method: MethodArg,
+    /// Adjustment of p-values across the pairs tested (applied when more than one pair is tested).
+    #[arg(long, value_enum, default_value_t = AdjustArg::Holm)]
+    pub adjust: AdjustArg,
+    /// Column giving the order of the rows (time, run sequence): adds correlations of first
+    /// differences and after removing a linear trend, to expose shared drifts.
+    #[arg(long, value_name = "COLUMN")]
+    pub order: Option<String>,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    pub format: Format,
 }
 
 /// Output format.

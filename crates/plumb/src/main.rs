@@ -3,6 +3,7 @@
 
 mod cli;
 mod columns_cmd;
+mod corr_cmd;
 mod fit_cmd;
 mod fit_json;
 mod fit_text;
@@ -15,6 +16,7 @@ fn main() -> ExitCode {
     let args = cli::Args::parse();
     let result = match args.command {
         Some(cli::Command::Fit(a)) => fit_cmd::run(&a),
+        Some(cli::Command::Corr(a)) => corr_cmd::run(&a),
         Some(cli::Command::Columns(a)) => columns_cmd::run(&a),
         None => Err(anyhow::anyhow!(
             "the desktop workbench is not part of this build yet; use a subcommand such as `plumb fit` (see `plumb --help`)"

@@ -1,6 +1,12 @@
 //! The correlation matrix of many columns, pairwise complete, with adjusted p-values.
 
-use super::{adjust_p_values, kendall_tau_b, pearson, spearman, Adjustment, Pairwise};
+/// Seed of the permutation p-values of distance correlation in a matrix.
+pub const DISTANCE_SEED: u64 = 0x5EED_D15C;
+
+use super::{
+    adjust_p_values, distance_correlation, kendall_tau_b, pearson, spearman, trend_guard,
+    Adjustment, Pairwise,
+};
 
 /// Which coefficient fills the matrix.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -11,6 +17,8 @@ pub enum Method {
     Spearman,
     /// Kendall's τ-b.
     Kendall,
+    /// Distance correlation, with a seeded permutation p-value.
+    Distance,
 }
 
 impl Method {
@@ -20,6 +28,7 @@ impl Method {
             Self::Pearson => "pearson",
             Self::Spearman => "spearman",
             Self::Kendall => "kendall",
+            Self::Distance => "distance",
         }
     }
 
@@ -29,6 +38,7 @@ impl Method {
             Self::Pearson => pearson(x, y, 0.95),
             Self::Spearman => spearman(x, y),
             Self::Kendall => kendall_tau_b(x, y),
+            Self::Distance => distance_correlation(x, y, DISTANCE_SEED),
         }
     }
 }
@@ -48,16 +58,24 @@ pub struct CorrelationMatrix {
     pub reason: Vec<Vec<Option<String>>>,
     /// Pairs tested (defined off-diagonal cells, each counted once).
     pub n_tests: usize,
+    /// With an order column: Pearson r of first differences (see [`super::TrendGuard`]).
+    pub r_differenced: Option<Vec<Vec<Option<f64>>>>,
+    /// With an order column: Pearson r after a linear trend on the order is removed from each.
+    pub r_detrended: Option<Vec<Vec<Option<f64>>>>,
 }
 
 /// Fills the matrix with `method` over pairwise-complete rows (a row counts for a pair when
-/// both of its cells are `Some` and finite) and adjusts the p-values of all defined pairs.
+/// both of its cells are `Some` and finite) and adjusts the p-values of all defined pairs
+/// (when more than one pair is tested). With `order`, also fills the trend guards, on rows
+/// where the order is known too.
 pub fn correlation_matrix(
     columns: &[&[Option<f64>]],
     method: Method,
     adjust: Adjustment,
+    order: Option<&[Option<f64>]>,
 ) -> CorrelationMatrix {
     let k = columns.len();
+    let guard_cells = || Some(vec![vec![None; k]; k]);
     let mut m = CorrelationMatrix {
         r: vec![vec![None; k]; k],
         p_value: vec![vec![None; k]; k],
@@ -65,6 +83,8 @@ pub fn correlation_matrix(
         n: vec![vec![0; k]; k],
         reason: vec![vec![None; k]; k],
         n_tests: 0,
+        r_differenced: order.and(guard_cells()),
+        r_detrended: order.and(guard_cells()),
     };
     let mut tested = Vec::new();
     for i in 0..k {
@@ -75,6 +95,9 @@ pub fn correlation_matrix(
             .count();
         m.r[i][i] = Some(1.0);
         for j in i + 1..k {
+            if let Some(t) = order {
+                fill_guards(&mut m, i, j, columns[i], columns[j], t);
+            }
             let (x, y) = complete_pairs(columns[i], columns[j]);
             m.n[i][j] = x.len();
             m.n[j][i] = x.len();
@@ -107,6 +130,33 @@ pub fn correlation_matrix(
     m
 }
 
+fn fill_guards(
+    m: &mut CorrelationMatrix,
+    i: usize,
+    j: usize,
+    a: &[Option<f64>],
+    b: &[Option<f64>],
+    t: &[Option<f64>],
+) {
+    let finite = |v: &Option<f64>| v.filter(|x| x.is_finite());
+    let ((x, y), order): ((Vec<f64>, Vec<f64>), Vec<f64>) = a
+        .iter()
+        .zip(b)
+        .zip(t)
+        .filter_map(|((x, y), t)| Some(((finite(x)?, finite(y)?), finite(t)?)))
+        .unzip();
+    let g = trend_guard(&x, &y, &order);
+    for (cells, value) in [
+        (&mut m.r_differenced, g.r_differenced),
+        (&mut m.r_detrended, g.r_detrended),
+    ] {
+        if let Some(cells) = cells {
+            cells[i][j] = value;
+            cells[j][i] = value;
+        }
+    }
+}
+
 fn complete_pairs(a: &[Option<f64>], b: &[Option<f64>]) -> (Vec<f64>, Vec<f64>) {
     a.iter()
         .zip(b)
@@ -126,7 +176,7 @@ mod tests {
         let a = [Some(1.0), Some(2.0), Some(3.0), Some(4.0), None];
         let b = [Some(2.0), Some(1.0), Some(4.0), Some(3.0), Some(5.0)];
         let c = [Some(7.0), Some(7.0), Some(7.0), Some(7.0), Some(7.0)];
-        let m = correlation_matrix(&[&a, &b, &c], Method::Pearson, Adjustment::Holm);
+        let m = correlation_matrix(&[&a, &b, &c], Method::Pearson, Adjustment::Holm, None);
         assert_eq!(m.r[0][1], m.r[1][0]);
         assert_eq!(m.n[0][1], 4);
         assert_eq!(m.n_tests, 1, "pairs with the constant column are undefined");

@@ -4,18 +4,22 @@
 //! it is undefined (too few rows, a constant column, all values tied).
 
 mod adjust;
+mod distance;
 mod kendall;
 mod matrix;
 mod pearson;
 mod rank;
 mod spearman;
+mod trend;
 
 pub use adjust::{adjust_p_values, Adjustment};
+pub use distance::{distance_correlation, DISTANCE_MAX_N, DISTANCE_PERMUTATIONS};
 pub use kendall::kendall_tau_b;
 pub use matrix::{correlation_matrix, CorrelationMatrix, Method};
 pub use pearson::pearson;
 pub use rank::average_ranks;
 pub use spearman::spearman;
+pub use trend::{trend_guard, TrendGuard};
 
 /// A coefficient of association with its two-sided p-value.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -45,6 +49,13 @@ pub enum Undefined {
         /// Which variable: 0 for the first, 1 for the second.
         which: usize,
     },
+    /// More pairs than the method accepts.
+    TooLarge {
+        /// Pairs available.
+        n: usize,
+        /// Largest accepted.
+        max: usize,
+    },
 }
 
 impl std::fmt::Display for Undefined {
@@ -56,6 +67,10 @@ impl std::fmt::Display for Undefined {
                     "undefined because only {n} complete pairs (at least {needed} needed)"
                 )
             }
+            Self::TooLarge { n, max } => write!(
+                f,
+                "undefined because {n} pairs exceed this method's limit of {max} (its cost grows as n²)"
+            ),
             Self::Constant { which } => write!(
                 f,
                 "undefined because the {} variable does not vary over the complete pairs",

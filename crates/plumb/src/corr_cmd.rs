@@ -1,0 +1,192 @@
+//! `plumb corr`: the pairwise association matrix, as JSON or as a list of pairs.
+
+use std::fmt::Write;
+
+use plumb_core::association::{correlation_matrix, Adjustment, CorrelationMatrix, Method};
+use plumb_data::ColumnValues;
+use serde::Serialize;
+
+use crate::cli::{AdjustArg, CorrArgs, Format, MethodArg};
+
+/// |r| at or above which a pair counts as strong for the shared-trend cue; below
+/// `TREND_FADES` once the trend is removed, the cue fires. Common practice, no source.
+const STRONG: f64 = 0.7;
+const TREND_FADES: f64 = 0.3;
+
+#[derive(Serialize)]
+struct CorrJson<'a> {
+    data: String,
+    method: &'static str,
+    adjust: &'static str,
+    n_tests: usize,
+    columns: &'a [String],
+    order: Option<&'a str>,
+    r: &'a [Vec<Option<f64>>],
+    p_value: &'a [Vec<Option<f64>>],
+    p_adjusted: &'a [Vec<Option<f64>>],
+    n: &'a [Vec<usize>],
+    reason: &'a [Vec<Option<String>>],
+    r_differenced: Option<&'a [Vec<Option<f64>>]>,
+    r_detrended: Option<&'a [Vec<Option<f64>>]>,
+}
+
+pub fn run(args: &CorrArgs) -> anyhow::Result<String> {
+    let table = plumb_data::load(&args.load.data, &args.load.options())?;
+    let columns: Vec<String> = if args.columns.is_empty() {
+        table
+            .columns()
+            .iter()
+            .filter(
+                |c| matches!(&c.values, ColumnValues::Numeric(v) if v.iter().any(Option::is_some)),
+            )
+            .map(|c| c.name.clone())
+            .filter(|n| Some(n) != args.order.as_ref())
+            .collect()
+    } else {
+        args.columns.clone()
+    };
+    if columns.len() < 2 {
+        anyhow::bail!(
+            "{}: at least two numeric columns are needed, found {}; name them with --columns",
+            table.source().display(),
+            columns.len()
+        );
+    }
+    let values: Vec<&[Option<f64>]> = columns
+        .iter()
+        .map(|c| table.numeric(c))
+        .collect::<Result<_, _>>()?;
+    let order = args
+        .order
+        .as_deref()
+        .map(|o| table.numeric(o))
+        .transpose()?;
+    let method = match args.method {
+        MethodArg::Pearson => Method::Pearson,
+        MethodArg::Spearman => Method::Spearman,
+        MethodArg::Kendall => Method::Kendall,
+        MethodArg::Distance => Method::Distance,
+    };
+    let adjust = match args.adjust {
+        AdjustArg::Holm => Adjustment::Holm,
+        AdjustArg::Bh => Adjustment::BenjaminiHochberg,
+        AdjustArg::None => Adjustment::None,
+    };
+    let m = correlation_matrix(&values, method, adjust, order);
+    let applied = if m.n_tests > 1 {
+        adjust
+    } else {
+        Adjustment::None
+    };
+    Ok(match args.format {
+        Format::Json => {
+            let json = CorrJson {
+                data: table.source().display().to_string(),
+                method: method.as_str(),
+                adjust: applied.as_str(),
+                n_tests: m.n_tests,
+                columns: &columns,
+                order: args.order.as_deref(),
+                r: &m.r,
+                p_value: &m.p_value,
+                p_adjusted: &m.p_adjusted,
+                n: &m.n,
+                reason: &m.reason,
+                r_differenced: m.r_differenced.as_deref(),
+                r_detrended: m.r_detrended.as_deref(),
+            };
+            serde_json::to_string_pretty(&json)? + "\n"
+        }
+        Format::Text => text(
+            &table.source().display().to_string(),
+            &columns,
+            method,
+            applied,
+            &m,
+        ),
+    })
+}
+
+fn text(
+    file: &str,
+    columns: &[String],
+    method: Method,
+    adjust: Adjustment,
+    m: &CorrelationMatrix,
+) -> String {
+    let mut pairs: Vec<(usize, usize)> = (0..columns.len())
+        .flat_map(|i| (i + 1..columns.len()).map(move |j| (i, j)))
+        .collect();
+    pairs.sort_by(|a, b| {
+        let key = |(i, j): (usize, usize)| m.r[i][j].map_or(-1.0, f64::abs);
+        key(*b).total_cmp(&key(*a))
+    });
+    let guarded = m.r_detrended.is_some();
+    let mut out = String::new();
+    let _ = writeln!(out, "{file}");
+    let _ = writeln!(
+        out,
+        "  {} pairs of {} columns, {} coefficient; p adjusted by {} across {} tests\n",
+        pairs.len(),
+        columns.len(),
+        method.as_str(),
+        adjust.as_str(),
+        m.n_tests
+    );
+    let _ = write!(
+        out,
+        "  {:<20} {:<20} {:>8} {:>10} {:>10} {:>6}",
+        "column", "with", "coef", "p", "p adj.", "n"
+    );
+    if guarded {
+        let _ = write!(out, " {:>9} {:>9}", "Δ-series", "detrended");
+    }
+    out.push('\n');
+    let cell = |v: Option<f64>, d: usize| v.map_or_else(|| "—".to_string(), |x| format!("{x:.d$}"));
+    let p = |v: Option<f64>| {
+        v.map_or_else(
+            || "—".to_string(),
+            |x| {
+                if x < 1e-4 {
+                    format!("{x:.1e}")
+                } else {
+                    format!("{x:.4}")
+                }
+            },
+        )
+    };
+    let mut cues = Vec::new();
+    for (i, j) in pairs {
+        let _ = write!(
+            out,
+            "  {:<20} {:<20} {:>8} {:>10} {:>10} {:>6}",
+            columns[i],
+            columns[j],
+            cell(m.r[i][j], 3),
+            p(m.p_value[i][j]),
+            p(m.p_adjusted[i][j]),
+            m.n[i][j]
+        );
+        if let (Some(diff), Some(det)) = (&m.r_differenced, &m.r_detrended) {
+            let _ = write!(out, " {:>9} {:>9}", cell(diff[i][j], 3), cell(det[i][j], 3));
+            let strong = m.r[i][j].is_some_and(|r| r.abs() >= STRONG);
+            let fades = det[i][j].is_some_and(|r| r.abs() < TREND_FADES)
+                || diff[i][j].is_some_and(|r| r.abs() < TREND_FADES);
+            if strong && fades {
+                cues.push(format!(
+                    "{} and {} move together mostly because both drift along the order",
+                    columns[i], columns[j]
+                ));
+            }
+        }
+        if let Some(why) = &m.reason[i][j] {
+            let _ = write!(out, "  ({why})");
+        }
+        out.push('\n');
+    }
+    for cue in cues {
+        let _ = writeln!(out, "\n  cue: {cue}");
+    }
+    let _ = writeln!(out, "\n  note: association is not causation; a coefficient summarizes one kind of pattern only.");
+    out
+}
