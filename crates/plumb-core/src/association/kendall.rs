@@ -16,6 +16,10 @@ use crate::distributions;
 pub fn kendall_tau_b(x: &[f64], y: &[f64]) -> Pairwise {
     check_pairs(x, y, 3)?;
     let n = x.len();
+    // Adding 0.0 turns −0.0 into +0.0, so that the total order used for sorting agrees with
+    // `==` used for ties (total_cmp alone would sort −0.0 before +0.0 inside a tie).
+    let x: Vec<f64> = x.iter().map(|v| v + 0.0).collect();
+    let y: Vec<f64> = y.iter().map(|v| v + 0.0).collect();
     let mut order: Vec<usize> = (0..n).collect();
     order.sort_by(|&a, &b| x[a].total_cmp(&x[b]).then(y[a].total_cmp(&y[b])));
     let xs: Vec<f64> = order.iter().map(|&i| x[i]).collect();
@@ -177,6 +181,17 @@ mod tests {
     fn agrees_with_the_quadratic_definition_with_ties() {
         let x = [1.0, 2.0, 2.0, 3.0, 5.0, 5.0, 5.0, 4.0, 0.5, 2.0];
         let y = [3.0, 1.0, 1.0, 4.0, 4.0, 2.0, 6.0, 6.0, 0.0, 2.0];
+        assert_relative_eq!(
+            kendall_tau_b(&x, &y).expect("defined").r,
+            tau_b_direct(&x, &y),
+            max_relative = 1e-14
+        );
+    }
+
+    #[test]
+    fn negative_zero_ties_with_zero() {
+        let x = [0.0, -0.0, 1.0, 0.0, 2.0];
+        let y = [3.0, 1.0, 2.0, 0.5, 4.0];
         assert_relative_eq!(
             kendall_tau_b(&x, &y).expect("defined").r,
             tau_b_direct(&x, &y),
