@@ -1,10 +1,18 @@
 #!/usr/bin/env python3
-"""Cross-check `plumb fit --format json` against statsmodels on seeded random data.
+"""Cross-check `plumb fit` and `plumb influence` (JSON) against statsmodels on seeded random data.
 
 Reference libraries (pinned in requirements.txt): statsmodels 0.14.4 (OLS, WLS: estimates,
 standard errors, t, p, confidence intervals, R², adjusted R², F and its p, log-likelihood,
 AIC, BIC) and numpy 2.1.3 (standardized coefficients b·s_x/s_y, with weighted standard
 deviations under weights). Every field must agree to 1e-9 relative.
+
+`plumb influence` is compared, on the unweighted cases, with statsmodels 0.14.4
+`OLSInfluence` (hat_matrix_diag, resid_studentized_internal, resid_studentized_external,
+cooks_distance, dffits, dfbetas), to 1e-9 relative, where an entry smaller than 1e-3 of the
+largest entry of its field is compared relative to that 1e-3 floor (such entries carry
+cancellation of the same absolute size in both programs). statsmodels forms DFBETAS as
+β̂ − β̂₍ᵢ₎ from n refits, a subtraction that loses digits when the change is small; each DFBETAS
+entry is therefore also allowed that subtraction's own rounding, 64·eps·|β̂ⱼ|/(s₍ᵢ₎√Cⱼⱼ).
 
 Usage: fit_vs_statsmodels.py PATH_TO_PLUMB
 Prints one line per case and closes with 'N passed, M failed'; exits 1 on any failure.
@@ -69,6 +77,45 @@ def write_csv(path, cols, holes, rng):
             f.write(",".join(cells) + "\n")
 
 
+def influence_reference(res):
+    inf = res.get_influence()
+    subtraction_floor = (
+        64 * np.finfo(float).eps * np.abs(res.params)[None, :]
+        / np.sqrt(inf.sigma2_not_obsi)[:, None]
+        / np.sqrt(np.diag(res.normalized_cov_params))[None, :]
+    )
+    return subtraction_floor, {
+        "leverage": inf.hat_matrix_diag,
+        "studentized_internal": inf.resid_studentized_internal,
+        "studentized_external": inf.resid_studentized_external,
+        "cooks_distance": inf.cooks_distance[0],
+        "dffits": inf.dffits[0],
+        "dfbetas": inf.dfbetas,
+    }
+
+
+def compare_influence(got, reference_pair):
+    dfbetas_floor, want = reference_pair
+    problems = []
+    rows = got["rows"]
+    if len(rows) != len(want["leverage"]):
+        return [f"row count {len(rows)} vs {len(want['leverage'])}"]
+    for field, ref in want.items():
+        ref = np.asarray(ref)
+        mine = np.array([r[field] for r in rows], dtype=float)
+        floor = 1e-3 * np.max(np.abs(ref))
+        for idx in np.ndindex(ref.shape):
+            a, b = float(mine[idx]), float(ref[idx])
+            scale = max(abs(a), abs(b), floor)
+            rel = abs(a - b) / scale
+            if field == "dfbetas" and abs(a - b) <= dfbetas_floor[idx]:
+                rel = 0.0
+            WORST[f"influence.{field}"] = max(WORST.get(f"influence.{field}", 0.0), rel)
+            if rel > RTOL:
+                problems.append(f"influence {field}{list(idx)}: plumb {a!r} vs reference {b!r}")
+    return problems
+
+
 def reference(cols, xnames, holes, intercept, degree, weighted, exclude, level):
     n = len(cols["y"])
     needed = ["y"] + xnames + (["w"] if weighted else [])
@@ -102,7 +149,7 @@ def reference(cols, xnames, holes, intercept, degree, weighted, exclude, level):
     sd_y = wsd(y)
     std = [None] if intercept else []
     std += [float(res.params[j + int(intercept)] * wsd(X[:, j]) / sd_y) for j in range(X.shape[1])]
-    return {
+    return res, {
         "n": int(res.nobs),
         "n_dropped": n_dropped,
         "df_residual": int(res.df_resid),
@@ -209,7 +256,15 @@ def main():
                 print(f"FAIL {label}: excluded_rows {got['excluded_rows']} != {exclude}")
                 failed += 1
                 continue
-            problems = compare(got, reference(cols, xnames, holes, intercept, degree, weighted, set(exclude), level))
+            res, want = reference(cols, xnames, holes, intercept, degree, weighted, set(exclude), level)
+            problems = compare(got, want)
+            if not weighted:
+                args[1] = "influence"
+                inf_run = subprocess.run(args, capture_output=True, text=True)
+                if inf_run.returncode != 0:
+                    problems.append(f"plumb influence exited {inf_run.returncode}: {inf_run.stderr.strip()}")
+                else:
+                    problems += compare_influence(json.loads(inf_run.stdout), influence_reference(res))
             if problems:
                 failed += 1
                 print(f"FAIL {label}")

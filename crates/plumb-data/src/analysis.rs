@@ -3,7 +3,7 @@
 //! This is the single path from a loaded file to a [`LinearFit`], shared by the command
 //! line, the report and the workbench, so that each shows the same numbers for the same request.
 
-use plumb_core::regression::{fit, Design, FitOptions, LinearFit};
+use plumb_core::regression::{fit, influence, CaseInfluence, Design, FitOptions, LinearFit};
 use plumb_core::CoreError;
 use thiserror::Error;
 
@@ -77,6 +77,76 @@ pub enum AnalysisError {
 /// # Errors
 /// See [`AnalysisError`]: every message names the file, and the column or row where it applies.
 pub fn run_fit(table: &Table, request: &FitRequest) -> Result<FitOutcome, AnalysisError> {
+    let prepared = prepare(table, request)?;
+    let fit = prepared.fit(table, request)?;
+    Ok(FitOutcome {
+        selection: prepared.selection,
+        fit,
+    })
+}
+
+/// Runs `request` and computes the case diagnostics of every row used (in `selection.rows` order).
+///
+/// # Errors
+/// As [`run_fit`].
+pub fn run_influence(
+    table: &Table,
+    request: &FitRequest,
+) -> Result<(FitOutcome, Vec<CaseInfluence>), AnalysisError> {
+    let prepared = prepare(table, request)?;
+    let fit = prepared.fit(table, request)?;
+    let cases = influence(
+        &prepared.design,
+        prepared.weights(),
+        &fit,
+        &prepared.options,
+    )
+    .map_err(|source| AnalysisError::Model {
+        file: table.source().display().to_string(),
+        source,
+    })?;
+    Ok((
+        FitOutcome {
+            selection: prepared.selection,
+            fit,
+        },
+        cases,
+    ))
+}
+
+/// Rows chosen and the design built, ready to fit.
+struct Prepared {
+    selection: Selection,
+    design: Design,
+    has_weights: bool,
+    options: FitOptions,
+}
+
+impl Prepared {
+    fn weights(&self) -> Option<&[f64]> {
+        self.has_weights.then(|| {
+            self.selection
+                .columns
+                .last()
+                .expect("weights column selected")
+                .as_slice()
+        })
+    }
+
+    fn fit(&self, table: &Table, request: &FitRequest) -> Result<LinearFit, AnalysisError> {
+        let file = table.source().display().to_string();
+        fit(&self.design, &self.selection.columns[0], self.weights(), &self.options).map_err(|e| match e {
+            CoreError::BadWeight { index, value } => AnalysisError::Request(format!(
+                "{file}, column '{}', row {}: weight {value} is not positive; weights must be positive and finite",
+                request.weights.as_deref().unwrap_or_default(),
+                self.selection.rows[index]
+            )),
+            source => AnalysisError::Model { file, source },
+        })
+    }
+}
+
+fn prepare(table: &Table, request: &FitRequest) -> Result<Prepared, AnalysisError> {
     let file = table.source().display().to_string();
     if request.x.is_empty() {
         return Err(AnalysisError::Request(
@@ -101,17 +171,12 @@ pub fn run_fit(table: &Table, request: &FitRequest) -> Result<FitOutcome, Analys
         names.push(w);
     }
     let selection = table.complete_rows(&names, &request.exclude)?;
-    let y = &selection.columns[0];
     let predictors: Vec<(&str, &[f64])> = request
         .x
         .iter()
         .zip(&selection.columns[1..])
         .map(|(n, c)| (n.as_str(), c.as_slice()))
         .collect();
-    let model_error = |source: CoreError| AnalysisError::Model {
-        file: file.clone(),
-        source,
-    };
     let design = if request.degree > 1 {
         Design::polynomial(
             predictors[0].0,
@@ -119,28 +184,17 @@ pub fn run_fit(table: &Table, request: &FitRequest) -> Result<FitOutcome, Analys
             request.degree,
             request.intercept,
         )
-        .map_err(model_error)?
+        .map_err(|source| AnalysisError::Model { file, source })?
     } else {
         Design::linear(&predictors, request.intercept)
     };
-    let weights = request.weights.as_ref().map(|_| {
-        selection
-            .columns
-            .last()
-            .expect("weights column selected")
-            .as_slice()
-    });
-    let options = FitOptions {
-        level: request.level,
-        ..FitOptions::default()
-    };
-    let fit = fit(&design, y, weights, &options).map_err(|e| match e {
-        CoreError::BadWeight { index, value } => AnalysisError::Request(format!(
-            "{file}, column '{}', row {}: weight {value} is not positive; weights must be positive and finite",
-            request.weights.as_deref().unwrap_or_default(),
-            selection.rows[index]
-        )),
-        other => model_error(other),
-    })?;
-    Ok(FitOutcome { selection, fit })
+    Ok(Prepared {
+        selection,
+        design,
+        has_weights: request.weights.is_some(),
+        options: FitOptions {
+            level: request.level,
+            ..FitOptions::default()
+        },
+    })
 }

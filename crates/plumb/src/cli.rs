@@ -19,6 +19,8 @@ pub struct Args {
 pub enum Command {
     /// Fit a least-squares line, plane or polynomial and report it.
     Fit(FitArgs),
+    /// Diagnose each row of a fit: leverage, studentized residuals, Cook's distance, DFFITS, DFBETAS.
+    Influence(InfluenceArgs),
     /// Measure how every pair of numeric columns moves together, with adjusted p-values.
     Corr(CorrArgs),
     /// List the columns of a data file with their type, missing count and range.
@@ -147,12 +149,9 @@ impl LoadArgs {
     }
 }
 
-/// `plumb fit`.
+/// The model shared by `plumb fit` and `plumb influence`.
 #[derive(Debug, ClapArgs)]
-pub struct FitArgs {
-    /// How to read the file.
-    #[command(flatten)]
-    pub load: LoadArgs,
+pub struct ModelArgs {
     /// Response column.
     #[arg(long, value_name = "COLUMN")]
     pub y: String,
@@ -174,6 +173,50 @@ pub struct FitArgs {
     /// Confidence level of the coefficient intervals.
     #[arg(long, default_value_t = 0.95, value_parser = parse_level)]
     pub level: f64,
+}
+
+impl ModelArgs {
+    /// The analysis request these arguments describe.
+    pub fn request(&self) -> plumb_data::analysis::FitRequest {
+        plumb_data::analysis::FitRequest {
+            y: self.y.clone(),
+            x: self.x.clone(),
+            intercept: !self.no_intercept,
+            degree: self.degree,
+            weights: self.weights.clone(),
+            exclude: self
+                .exclude
+                .as_ref()
+                .map(|r| r.0.clone())
+                .unwrap_or_default(),
+            level: self.level,
+        }
+    }
+}
+
+/// `plumb fit`.
+#[derive(Debug, ClapArgs)]
+pub struct FitArgs {
+    /// How to read the file.
+    #[command(flatten)]
+    pub load: LoadArgs,
+    /// The model.
+    #[command(flatten)]
+    pub model: ModelArgs,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    pub format: Format,
+}
+
+/// `plumb influence`.
+#[derive(Debug, ClapArgs)]
+pub struct InfluenceArgs {
+    /// How to read the file.
+    #[command(flatten)]
+    pub load: LoadArgs,
+    /// The model.
+    #[command(flatten)]
+    pub model: ModelArgs,
     /// Output format.
     #[arg(long, value_enum, default_value_t = Format::Text)]
     pub format: Format,

@@ -7,6 +7,7 @@ mod corr_cmd;
 mod fit_cmd;
 mod fit_json;
 mod fit_text;
+mod influence_cmd;
 
 use std::process::ExitCode;
 
@@ -16,6 +17,7 @@ fn main() -> ExitCode {
     let args = cli::Args::parse();
     let result = match args.command {
         Some(cli::Command::Fit(a)) => fit_cmd::run(&a),
+        Some(cli::Command::Influence(a)) => influence_cmd::run(&a),
         Some(cli::Command::Corr(a)) => corr_cmd::run(&a),
         Some(cli::Command::Columns(a)) => columns_cmd::run(&a),
         None => Err(anyhow::anyhow!(

@@ -7,10 +7,15 @@
 mod basis;
 mod design;
 mod inference;
+mod influence;
 mod solve;
 
 pub use design::{Design, Term, TermKind, MAX_DEGREE};
 pub use inference::{Anova, Coefficient, LinearFit, RSquaredKind};
+pub use influence::{
+    influence, normal_scores, CaseInfluence, InfluenceFlag, COOKS_FLAG_NUMERATOR,
+    LEVERAGE_FLAG_FACTOR, STUDENTIZED_FLAG,
+};
 
 use crate::{CoreError, Result};
 

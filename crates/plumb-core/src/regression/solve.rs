@@ -25,14 +25,31 @@ pub(crate) struct Solution {
     pub condition_number: f64,
 }
 
-/// Solves `min Σ wᵢ (yᵢ − xᵢᵀβ)²`; see [`super::fit`] and [`super::basis`] for the method.
-pub(crate) fn least_squares(
+/// The factorization of one weighted design, shared by the solver and the influence measures.
+pub(crate) struct Factor {
+    /// `√wᵢ` (ones without weights).
+    pub root_w: Vec<f64>,
+    /// The working basis `Z` and the map `T` back to the terms.
+    pub basis: Basis,
+    /// Pivoted QR of `W^{1/2}Z`.
+    pub qr: PivotedQr,
+    /// Its `R`.
+    pub r: DMatrix<f64>,
+    /// `order[k]`: working column at pivot position `k`.
+    pub order: Vec<usize>,
+    /// `R⁻¹`.
+    pub r_inv: DMatrix<f64>,
+    /// `M = T·P·R⁻¹`: `β = M·(Q₁ᵀ√W y)` and `(XᵀWX)⁻¹ = M·Mᵀ`.
+    pub m: DMatrix<f64>,
+}
+
+/// Factors the weighted working basis and checks its rank.
+pub(crate) fn factor(
     design: &Design,
-    y: &[f64],
     weights: Option<&[f64]>,
     rank_tolerance: f64,
-) -> Result<Solution> {
-    let n = y.len();
+) -> Result<Factor> {
+    let n = design.n_rows();
     let p = design.n_terms();
     let root_w: Vec<f64> = match weights {
         Some(w) => w.iter().map(|v| v.sqrt()).collect(),
@@ -47,11 +64,39 @@ pub(crate) fn least_squares(
     let r_inv = r
         .solve_upper_triangular(&DMatrix::identity(p, p))
         .expect("rank was checked, R has a non-zero diagonal");
-    // M = T·P·R⁻¹, so that β = M·(Qᵀ√W y) and (XᵀWX)⁻¹ = M·Mᵀ.
     let m = DMatrix::from_fn(p, p, |j, l| {
         let t_row: Vec<f64> = order.iter().map(|&col| basis.to_terms[(j, col)]).collect();
         accurate::dot(&t_row, r_inv.column(l).as_slice())
     });
+    Ok(Factor {
+        root_w,
+        basis,
+        qr,
+        r,
+        order,
+        r_inv,
+        m,
+    })
+}
+
+/// Solves `min Σ wᵢ (yᵢ − xᵢᵀβ)²`; see [`super::fit`] and [`super::basis`] for the method.
+pub(crate) fn least_squares(
+    design: &Design,
+    y: &[f64],
+    weights: Option<&[f64]>,
+    rank_tolerance: f64,
+) -> Result<Solution> {
+    let n = y.len();
+    let p = design.n_terms();
+    let Factor {
+        root_w,
+        basis,
+        qr,
+        r,
+        order,
+        r_inv,
+        m,
+    } = factor(design, weights, rank_tolerance)?;
     let solve = |rhs: &[f64]| -> Vec<f64> {
         let mut b = DVector::from_iterator(n, rhs.iter().zip(&root_w).map(|(v, w)| v * w));
         qr.q_tr_mul(&mut b);

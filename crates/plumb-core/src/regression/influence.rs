@@ -1,0 +1,217 @@
+//! Case diagnostics of a least-squares fit: leverage, studentized residuals, Cook's distance,
+//! DFFITS, DFBETAS, and the normal quantiles for a residual Q-Q check.
+
+use super::design::Design;
+use super::inference::LinearFit;
+use super::solve::factor;
+use super::FitOptions;
+use crate::{distributions, Result};
+
+/// Leverage above `2p/n` is flagged. Common practice, no source.
+pub const LEVERAGE_FLAG_FACTOR: f64 = 2.0;
+/// Cook's distance above `4/n` is flagged. Common practice, no source.
+pub const COOKS_FLAG_NUMERATOR: f64 = 4.0;
+/// |Externally studentized residual| above 3 is flagged. Common practice, no source.
+pub const STUDENTIZED_FLAG: f64 = 3.0;
+
+/// Diagnostics of one observation. With weights, residuals are the weighted `√wᵢ·eᵢ`.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CaseInfluence {
+    /// Fitted value `ŷᵢ`.
+    pub fitted: f64,
+    /// Residual `eᵢ = yᵢ − ŷᵢ`.
+    pub residual: f64,
+    /// Leverage `hᵢᵢ = ‖row i of Q₁‖²`, the diagonal of the hat matrix `W^{1/2}X(XᵀWX)⁻¹XᵀW^{1/2}`.
+    pub leverage: f64,
+    /// Internally studentized residual `rᵢ = √wᵢ eᵢ / (s√(1 − hᵢᵢ))`, `s² = RSS/(n − p)`.
+    pub studentized_internal: f64,
+    /// Externally studentized residual `tᵢ = √wᵢ eᵢ / (s₍ᵢ₎√(1 − hᵢᵢ))`, with
+    /// `s₍ᵢ₎² = ((n − p)s² − wᵢeᵢ²/(1 − hᵢᵢ)) / (n − p − 1)`.
+    pub studentized_external: f64,
+    /// Cook's distance `Dᵢ = rᵢ² hᵢᵢ / (p(1 − hᵢᵢ))`.
+    pub cooks_distance: f64,
+    /// `DFFITSᵢ = tᵢ √(hᵢᵢ/(1 − hᵢᵢ))`.
+    pub dffits: f64,
+    /// `DFBETASᵢⱼ = (β̂ⱼ − β̂₍ᵢ₎ⱼ) / (s₍ᵢ₎√Cⱼⱼ)`, `C = (XᵀWX)⁻¹`, with
+    /// `β̂ − β̂₍ᵢ₎ = C xᵢ wᵢ eᵢ / (1 − hᵢᵢ)`; one per term.
+    pub dfbetas: Vec<f64>,
+    /// Which rule-of-thumb thresholds the case crosses (see the constants of this module).
+    pub flags: Vec<InfluenceFlag>,
+}
+
+/// A threshold crossed by a case.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum InfluenceFlag {
+    /// `hᵢᵢ > 2p/n`.
+    HighLeverage,
+    /// `Dᵢ > 4/n`.
+    LargeCooksDistance,
+    /// `|tᵢ| > 3`.
+    LargeResidual,
+}
+
+impl InfluenceFlag {
+    /// Name used in output.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Self::HighLeverage => "high-leverage",
+            Self::LargeCooksDistance => "large-cooks-distance",
+            Self::LargeResidual => "large-residual",
+        }
+    }
+}
+
+/// Diagnostics of every observation of `fit` (which must come from the same `design`, `y`
+/// and `weights`). Cost O(np²): the weighted working basis is factored once more.
+///
+/// # Errors
+/// The same rank errors as the fit (which would have failed first).
+pub fn influence(
+    design: &Design,
+    weights: Option<&[f64]>,
+    fit: &LinearFit,
+    options: &FitOptions,
+) -> Result<Vec<CaseInfluence>> {
+    let n = design.n_rows();
+    let p = design.n_terms();
+    let f = factor(design, weights, options.rank_tolerance)?;
+    let q = f.qr.q();
+    let df = (n - p) as f64;
+    let s2 = fit.anova.ss_residual / df;
+    let s = s2.sqrt();
+    let cov_diag: Vec<f64> = (0..p).map(|j| f.m.row(j).norm_squared()).collect();
+    let (lev_cut, cook_cut) = (
+        LEVERAGE_FLAG_FACTOR * p as f64 / n as f64,
+        COOKS_FLAG_NUMERATOR / n as f64,
+    );
+    let cases = (0..n)
+        .map(|i| {
+            let qi = q.row(i).transpose();
+            let h = qi.norm_squared();
+            let e = fit.residuals[i];
+            let r = f.root_w[i] * e;
+            let one_minus_h = 1.0 - h;
+            let internal = r / (s * one_minus_h.sqrt());
+            let s_i = (((df * s2) - r * r / one_minus_h) / (df - 1.0))
+                .max(0.0)
+                .sqrt();
+            let external = r / (s_i * one_minus_h.sqrt());
+            let cooks = internal * internal * h / (p as f64 * one_minus_h);
+            // C xᵢ √wᵢ = M·q̃ᵢ with q̃ᵢ the row of Q₁ (Q₁ = W^{1/2}Z P R⁻¹); so Δβ = M qᵢ rᵢ/(1 − h).
+            let shift = &f.m * &qi * (r / one_minus_h);
+            let dfbetas = (0..p)
+                .map(|j| shift[j] / (s_i * cov_diag[j].sqrt()))
+                .collect();
+            let mut flags = Vec::new();
+            if h > lev_cut {
+                flags.push(InfluenceFlag::HighLeverage);
+            }
+            if cooks > cook_cut {
+                flags.push(InfluenceFlag::LargeCooksDistance);
+            }
+            if external.abs() > STUDENTIZED_FLAG {
+                flags.push(InfluenceFlag::LargeResidual);
+            }
+            CaseInfluence {
+                fitted: fit.fitted[i],
+                residual: e,
+                leverage: h,
+                studentized_internal: internal,
+                studentized_external: external,
+                cooks_distance: cooks,
+                dffits: external * (h / one_minus_h).sqrt(),
+                dfbetas,
+                flags,
+            }
+        })
+        .collect();
+    Ok(cases)
+}
+
+/// Normal quantiles for a Q-Q check of `n` sorted residuals, by Blom's plotting positions
+/// `Φ⁻¹((i − 3/8)/(n + 1/4))`, `i = 1..n` (Blom, *Statistical Estimates and Transformed
+/// Beta-Variables*, 1958).
+pub fn normal_scores(n: usize) -> Vec<f64> {
+    (1..=n)
+        .map(|i| {
+            let prob = (i as f64 - 0.375) / (n as f64 + 0.25);
+            -distributions::normal_upper_quantile(prob)
+        })
+        .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::regression::fit;
+    use approx::assert_relative_eq;
+
+    fn line() -> (Design, Vec<f64>) {
+        let x = [1.0, 2.0, 3.0, 4.0, 5.0, 10.0];
+        let y = vec![1.1, 1.9, 3.2, 3.9, 5.1, 7.0];
+        (Design::linear(&[("x", &x)], true), y)
+    }
+
+    #[test]
+    fn leverage_sums_to_p_and_matches_the_simple_formula() {
+        // Simple regression: hᵢ = 1/n + (xᵢ − x̄)²/Sxx (textbook identity).
+        let (d, y) = line();
+        let f = fit(&d, &y, None, &FitOptions::default()).expect("fits");
+        let cases = influence(&d, None, &f, &FitOptions::default()).expect("influence");
+        let x = &d.columns()[1];
+        let mean = x.iter().sum::<f64>() / 6.0;
+        let sxx: f64 = x.iter().map(|v| (v - mean).powi(2)).sum();
+        for (c, xi) in cases.iter().zip(x) {
+            assert_relative_eq!(
+                c.leverage,
+                1.0 / 6.0 + (xi - mean).powi(2) / sxx,
+                max_relative = 1e-13
+            );
+        }
+        assert_relative_eq!(
+            cases.iter().map(|c| c.leverage).sum::<f64>(),
+            2.0,
+            max_relative = 1e-13
+        );
+        assert!(cases[5].flags.contains(&InfluenceFlag::HighLeverage));
+    }
+
+    #[test]
+    fn dfbetas_and_external_residuals_agree_with_deleting_the_row() {
+        // Refit without each row and compare with the closed forms.
+        let (d, y) = line();
+        let opts = FitOptions::default();
+        let f = fit(&d, &y, None, &opts).expect("fits");
+        let cases = influence(&d, None, &f, &opts).expect("influence");
+        for i in 0..y.len() {
+            let keep: Vec<usize> = (0..y.len()).filter(|&k| k != i).collect();
+            let x: Vec<f64> = keep.iter().map(|&k| d.columns()[1][k]).collect();
+            let yy: Vec<f64> = keep.iter().map(|&k| y[k]).collect();
+            let g = fit(&Design::linear(&[("x", &x)], true), &yy, None, &opts).expect("refit");
+            let s_i = g.residual_std_error;
+            for j in 0..2 {
+                let se = f.covariance[(j, j)].sqrt() / f.residual_std_error;
+                let expected =
+                    (f.coefficients[j].estimate - g.coefficients[j].estimate) / (s_i * se);
+                assert_relative_eq!(
+                    cases[i].dfbetas[j],
+                    expected,
+                    max_relative = 1e-9,
+                    epsilon = 1e-12
+                );
+            }
+            let predicted =
+                g.coefficients[0].estimate + g.coefficients[1].estimate * d.columns()[1][i];
+            // The deleted residual yᵢ − ŷ₍ᵢ₎ has variance σ²/(1 − hᵢᵢ).
+            let t = (y[i] - predicted) * (1.0 - cases[i].leverage).sqrt() / s_i;
+            assert_relative_eq!(cases[i].studentized_external, t, max_relative = 1e-9);
+        }
+    }
+
+    #[test]
+    fn normal_scores_are_symmetric() {
+        let z = normal_scores(5);
+        assert_relative_eq!(z[0], -z[4], max_relative = 1e-14);
+        assert_eq!(z[2], 0.0);
+    }
+}

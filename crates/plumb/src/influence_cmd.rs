@@ -1,0 +1,143 @@
+//! `plumb influence`: case diagnostics of a fit, row by row.
+
+use std::fmt::Write;
+
+use plumb_core::regression::{
+    CaseInfluence, COOKS_FLAG_NUMERATOR, LEVERAGE_FLAG_FACTOR, STUDENTIZED_FLAG,
+};
+use plumb_data::analysis::run_influence;
+use serde::Serialize;
+
+use crate::cli::{Format, InfluenceArgs};
+
+/// Rows listed in the text layout (those with flags are always listed).
+const TEXT_ROWS: usize = 12;
+
+#[derive(Serialize)]
+struct InfluenceJson<'a> {
+    data: String,
+    n: usize,
+    terms: Vec<&'a str>,
+    thresholds: Thresholds,
+    excluded_rows: &'a [usize],
+    rows: Vec<RowJson<'a>>,
+}
+
+#[derive(Serialize)]
+struct Thresholds {
+    leverage: f64,
+    cooks_distance: f64,
+    studentized_external: f64,
+    source: &'static str,
+}
+
+#[derive(Serialize)]
+struct RowJson<'a> {
+    row: usize,
+    fitted: f64,
+    residual: f64,
+    leverage: f64,
+    studentized_internal: f64,
+    studentized_external: f64,
+    cooks_distance: f64,
+    dffits: f64,
+    dfbetas: &'a [f64],
+    flags: Vec<&'static str>,
+}
+
+pub fn run(args: &InfluenceArgs) -> anyhow::Result<String> {
+    let table = plumb_data::load(&args.load.data, &args.load.options())?;
+    let (outcome, cases) = run_influence(&table, &args.model.request())?;
+    let n = outcome.fit.n;
+    let p = outcome.fit.coefficients.len();
+    let thresholds = Thresholds {
+        leverage: LEVERAGE_FLAG_FACTOR * p as f64 / n as f64,
+        cooks_distance: COOKS_FLAG_NUMERATOR / n as f64,
+        studentized_external: STUDENTIZED_FLAG,
+        source: "common practice, no source",
+    };
+    let rows: Vec<RowJson> = outcome
+        .selection
+        .rows
+        .iter()
+        .zip(&cases)
+        .map(|(&row, c)| row_json(row, c))
+        .collect();
+    Ok(match args.format {
+        Format::Json => {
+            let json = InfluenceJson {
+                data: table.source().display().to_string(),
+                n,
+                terms: outcome
+                    .fit
+                    .coefficients
+                    .iter()
+                    .map(|c| c.term.as_str())
+                    .collect(),
+                thresholds,
+                excluded_rows: &outcome.selection.excluded,
+                rows,
+            };
+            serde_json::to_string_pretty(&json)? + "\n"
+        }
+        Format::Text => text(&table.source().display().to_string(), &thresholds, rows),
+    })
+}
+
+fn row_json(row: usize, c: &CaseInfluence) -> RowJson<'_> {
+    RowJson {
+        row,
+        fitted: c.fitted,
+        residual: c.residual,
+        leverage: c.leverage,
+        studentized_internal: c.studentized_internal,
+        studentized_external: c.studentized_external,
+        cooks_distance: c.cooks_distance,
+        dffits: c.dffits,
+        dfbetas: &c.dfbetas,
+        flags: c.flags.iter().map(|f| f.as_str()).collect(),
+    }
+}
+
+fn text(file: &str, t: &Thresholds, mut rows: Vec<RowJson>) -> String {
+    rows.sort_by(|a, b| b.cooks_distance.total_cmp(&a.cooks_distance));
+    let flagged = rows.iter().filter(|r| !r.flags.is_empty()).count();
+    let mut out = String::new();
+    let _ = writeln!(out, "{file}");
+    let _ = writeln!(
+        out,
+        "  {} rows, {flagged} crossing a threshold (leverage > {:.3}, Cook's distance > {:.3}, |studentized| > {}; {})\n",
+        rows.len(),
+        t.leverage,
+        t.cooks_distance,
+        t.studentized_external,
+        t.source
+    );
+    let _ = writeln!(
+        out,
+        "  {:>6} {:>12} {:>12} {:>9} {:>12} {:>10} {:>9}   flags",
+        "row", "fitted", "residual", "leverage", "studentized", "Cook's D", "DFFITS"
+    );
+    for (k, r) in rows.iter().enumerate() {
+        if k >= TEXT_ROWS && r.flags.is_empty() {
+            continue;
+        }
+        let _ = writeln!(
+            out,
+            "  {:>6} {:>12.5} {:>12.5} {:>9.4} {:>12.3} {:>10.4} {:>9.3}   {}",
+            r.row,
+            r.fitted,
+            r.residual,
+            r.leverage,
+            r.studentized_external,
+            r.cooks_distance,
+            r.dffits,
+            r.flags.join(", ")
+        );
+    }
+    let _ = writeln!(
+        out,
+        "\n  rows sorted by Cook's distance; every exclusion needs a documented reason."
+    );
+    out
+}
