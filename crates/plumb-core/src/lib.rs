@@ -10,7 +10,9 @@
 //! * [`accurate`]: compensated sums and dot products used where cancellation would cost digits.
 
 pub mod accurate;
+pub mod alternative;
 pub mod association;
+pub mod cues;
 pub mod describe;
 pub mod distributions;
 mod error;

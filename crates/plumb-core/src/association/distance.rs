@@ -56,6 +56,19 @@ pub fn distance_correlation(x: &[f64], y: &[f64], seed: u64) -> Pairwise {
     })
 }
 
+/// The coefficient alone (no permutations), for callers that only need its size.
+/// Same formula and limits as [`distance_correlation`].
+pub fn distance_correlation_coefficient(x: &[f64], y: &[f64]) -> Option<f64> {
+    check_pairs(x, y, 3).ok()?;
+    if x.len() > DISTANCE_MAX_N {
+        return None;
+    }
+    let (ax, sx) = row_means(x);
+    let (ay, sy) = row_means(y);
+    let var = dcov2(x, x, &ax, &ax, sx, sx) * dcov2(y, y, &ay, &ay, sy, sy);
+    Some((dcov2(x, y, &ax, &ay, sx, sy).max(0.0) / var.sqrt()).sqrt())
+}
+
 /// Row means `āᵢ = n⁻¹Σⱼ|vᵢ − vⱼ|` and the grand mean `n⁻²Σᵢⱼ|vᵢ − vⱼ|`.
 fn row_means(v: &[f64]) -> (Vec<f64>, f64) {
     let n = v.len() as f64;

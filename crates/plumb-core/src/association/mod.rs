@@ -13,7 +13,9 @@ mod spearman;
 mod trend;
 
 pub use adjust::{adjust_p_values, Adjustment};
-pub use distance::{distance_correlation, DISTANCE_MAX_N, DISTANCE_PERMUTATIONS};
+pub use distance::{
+    distance_correlation, distance_correlation_coefficient, DISTANCE_MAX_N, DISTANCE_PERMUTATIONS,
+};
 pub use kendall::kendall_tau_b;
 pub use matrix::{correlation_matrix, CorrelationMatrix, Method};
 pub use pearson::pearson;

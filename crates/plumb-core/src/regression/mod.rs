@@ -4,12 +4,16 @@
 //! positive weights (all ones for ordinary least squares). The estimate minimizes
 //! `Σ wᵢ (yᵢ − xᵢᵀβ)²`. See [`fit`] for the method and [`LinearFit`] for what is reported.
 
+mod bands;
 mod basis;
+mod compare;
 mod design;
 mod inference;
 mod influence;
 mod solve;
 
+pub use bands::{bands, BandPoint};
+pub use compare::{compare_nested, variance_inflation, NestedComparison};
 pub use design::{Design, Term, TermKind, MAX_DEGREE};
 pub use inference::{Anova, Coefficient, LinearFit, RSquaredKind};
 pub use influence::{

@@ -1,0 +1,135 @@
+//! Comparing models: partial F for nested fits, and variance inflation of each predictor.
+
+use super::{fit, Design, FitOptions, LinearFit, TermKind};
+use crate::{distributions, Result};
+
+/// The test of a larger model against a smaller one nested in it.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct NestedComparison {
+    /// `ΔR² = R²_full − R²_reduced`.
+    pub delta_r_squared: f64,
+    /// `F = ((RSS_r − RSS_f)/(df_r − df_f)) / (RSS_f/df_f)`.
+    pub f_statistic: f64,
+    /// Numerator degrees of freedom `df_r − df_f`.
+    pub df_num: usize,
+    /// Denominator degrees of freedom `df_f`.
+    pub df_den: usize,
+    /// `P(F_{df_num, df_den} ≥ F)`.
+    pub p_value: f64,
+    /// `AIC_full − AIC_reduced` (negative favours the larger model).
+    pub delta_aic: f64,
+    /// `BIC_full − BIC_reduced`.
+    pub delta_bic: f64,
+}
+
+/// Partial F test of `full` against `reduced`, which must be fitted to the same rows with a
+/// subset of its terms (the caller's responsibility; only the degrees of freedom are checked).
+///
+/// # Panics
+/// If `full` does not have fewer residual degrees of freedom than `reduced`.
+pub fn compare_nested(reduced: &LinearFit, full: &LinearFit) -> NestedComparison {
+    let (dr, df) = (reduced.anova.df_residual, full.anova.df_residual);
+    assert!(
+        df < dr && reduced.n == full.n,
+        "models are not nested fits of the same rows"
+    );
+    let (rss_r, rss_f) = (reduced.anova.ss_residual, full.anova.ss_residual);
+    let df_num = dr - df;
+    let f_statistic = ((rss_r - rss_f) / df_num as f64) / (rss_f / df as f64);
+    NestedComparison {
+        delta_r_squared: full.r_squared - reduced.r_squared,
+        f_statistic,
+        df_num,
+        df_den: df,
+        p_value: distributions::f_upper_tail(f_statistic, df_num as f64, df as f64),
+        delta_aic: full.aic - reduced.aic,
+        delta_bic: full.bic - reduced.bic,
+    }
+}
+
+/// Variance inflation factor of every non-intercept term: `VIFⱼ = 1/(1 − R²ⱼ)`, with `R²ⱼ`
+/// from regressing term j on the other terms of the design (centred R² when the design has an
+/// intercept, uncentred otherwise). `None` for the intercept; 1 for a lone predictor.
+///
+/// # Errors
+/// A rank error from an auxiliary fit (which the main fit would have raised first).
+pub fn variance_inflation(design: &Design, weights: Option<&[f64]>) -> Result<Vec<Option<f64>>> {
+    let terms = design.terms();
+    let others_exist = terms
+        .iter()
+        .filter(|t| t.kind != TermKind::Intercept)
+        .count()
+        > 1;
+    terms
+        .iter()
+        .enumerate()
+        .map(|(j, term)| {
+            if term.kind == TermKind::Intercept {
+                return Ok(None);
+            }
+            if !others_exist {
+                return Ok(Some(1.0));
+            }
+            let mut aux = Design::new(design.n_rows(), design.has_intercept());
+            for (k, (t, c)) in terms.iter().zip(design.columns()).enumerate() {
+                if k != j && t.kind != TermKind::Intercept {
+                    aux.push(t.clone(), c.clone());
+                }
+            }
+            let r2 = fit(&aux, &design.columns()[j], weights, &FitOptions::default())?.r_squared;
+            Ok(Some(1.0 / (1.0 - r2)))
+        })
+        .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use approx::assert_relative_eq;
+
+    #[test]
+    fn uncorrelated_predictors_have_no_inflation() {
+        // Orthogonal, centred columns: every auxiliary R² is 0 (by construction).
+        let a = [1.0, -1.0, 1.0, -1.0, 0.0, 0.0];
+        let b = [1.0, 1.0, -1.0, -1.0, 0.0, 0.0];
+        let d = Design::linear(&[("a", &a), ("b", &b)], true);
+        let vif = variance_inflation(&d, None).expect("defined");
+        assert_eq!(vif[0], None);
+        assert_relative_eq!(vif[1].expect("a"), 1.0, epsilon = 1e-12);
+        assert_relative_eq!(vif[2].expect("b"), 1.0, epsilon = 1e-12);
+    }
+
+    #[test]
+    fn a_needed_curve_gives_a_large_partial_f() {
+        let x: Vec<f64> = (0..20).map(f64::from).collect();
+        let y: Vec<f64> = x
+            .iter()
+            .enumerate()
+            .map(|(k, v)| 0.3 * v * v + if k % 2 == 0 { 0.5 } else { -0.5 })
+            .collect();
+        let o = FitOptions::default();
+        let line = fit(
+            &Design::polynomial("x", &x, 1, true).expect("d1"),
+            &y,
+            None,
+            &o,
+        )
+        .expect("fits");
+        let quad = fit(
+            &Design::polynomial("x", &x, 2, true).expect("d2"),
+            &y,
+            None,
+            &o,
+        )
+        .expect("fits");
+        let c = compare_nested(&line, &quad);
+        assert_eq!((c.df_num, c.df_den), (1, 17));
+        assert!(c.p_value < 1e-10 && c.delta_r_squared > 0.0 && c.delta_aic < 0.0);
+        // With one added term the partial F is the square of that term's t (textbook identity).
+        assert_relative_eq!(
+            c.f_statistic,
+            quad.coefficients[2].t.powi(2),
+            max_relative = 1e-9
+        );
+    }
+}
