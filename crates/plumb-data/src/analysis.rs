@@ -3,7 +3,14 @@
 //! This is the single path from a loaded file to a [`LinearFit`], shared by the command
 //! line, the report and the workbench, so that each shows the same numbers for the same request.
 
-use plumb_core::regression::{fit, influence, CaseInfluence, Design, FitOptions, LinearFit};
+use plumb_core::alternative::{
+    deming, loess, theil_sen, AlternativeError, DemingFit, LoessFit, TheilSenFit,
+};
+use plumb_core::cues::{pair_cues, PairCues};
+use plumb_core::regression::{
+    fit, influence, variance_inflation, CaseInfluence, Design, FitOptions, LinearFit,
+    StandardizedView,
+};
 use plumb_core::CoreError;
 use thiserror::Error;
 
@@ -51,6 +58,61 @@ pub struct FitOutcome {
     pub selection: Selection,
     /// The fit on the rows used.
     pub fit: LinearFit,
+    /// Variance inflation factor per term (`None` for the intercept), with two or more predictors.
+    pub vif: Option<Vec<Option<f64>>>,
+}
+
+/// An overlay line for the same pair.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Robust {
+    /// Theil–Sen median of slopes.
+    TheilSen,
+    /// Deming regression with this error-variance ratio.
+    Deming(f64),
+}
+
+/// A fitted overlay line.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum RobustFit {
+    /// Theil–Sen.
+    TheilSen(TheilSenFit),
+    /// Deming.
+    Deming(DemingFit),
+}
+
+/// What is computed beside the least-squares fit when there is a single predictor.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PairExtras {
+    /// The requested overlay line, or why it is undefined.
+    pub robust: Option<Result<RobustFit, AlternativeError>>,
+    /// The requested LOESS smooth (degree 2), or why it is undefined.
+    pub loess: Option<Result<LoessFit, AlternativeError>>,
+    /// Non-linearity and single-point cues.
+    pub cues: Option<PairCues>,
+    /// The pair in z-units.
+    pub z_view: Option<StandardizedView>,
+}
+
+/// Overlays and cues for a one-predictor request (`None` with several predictors).
+pub fn pair_extras(
+    outcome: &FitOutcome,
+    request: &FitRequest,
+    robust: Option<Robust>,
+    loess_span: Option<f64>,
+) -> Option<PairExtras> {
+    if request.x.len() != 1 {
+        return None;
+    }
+    let (y, x) = (&outcome.selection.columns[0], &outcome.selection.columns[1]);
+    Some(PairExtras {
+        robust: robust.map(|r| match r {
+            Robust::TheilSen => theil_sen(x, y, request.level).map(RobustFit::TheilSen),
+            Robust::Deming(lambda) => deming(x, y, lambda).map(RobustFit::Deming),
+        }),
+        loess: loess_span.map(|span| loess(x, y, span, 2)),
+        cues: pair_cues(x, y),
+        z_view: StandardizedView::of(x, y),
+    })
 }
 
 /// Why an analysis could not run, with the file named.
@@ -79,9 +141,17 @@ pub enum AnalysisError {
 pub fn run_fit(table: &Table, request: &FitRequest) -> Result<FitOutcome, AnalysisError> {
     let prepared = prepare(table, request)?;
     let fit = prepared.fit(table, request)?;
+    let vif = (request.x.len() > 1)
+        .then(|| variance_inflation(&prepared.design, prepared.weights()))
+        .transpose()
+        .map_err(|source| AnalysisError::Model {
+            file: table.source().display().to_string(),
+            source,
+        })?;
     Ok(FitOutcome {
         selection: prepared.selection,
         fit,
+        vif,
     })
 }
 
@@ -109,6 +179,7 @@ pub fn run_influence(
         FitOutcome {
             selection: prepared.selection,
             fit,
+            vif: None,
         },
         cases,
     ))

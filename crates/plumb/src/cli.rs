@@ -203,6 +203,13 @@ pub struct FitArgs {
     /// The model.
     #[command(flatten)]
     pub model: ModelArgs,
+    /// Overlay line for a single predictor: "theil-sen", or "deming" / "deming:LAMBDA" with
+    /// LAMBDA = Var(error in y)/Var(error in x) (default 1).
+    #[arg(long, value_name = "METHOD", value_parser = parse_robust)]
+    pub robust: Option<plumb_data::analysis::Robust>,
+    /// LOESS smooth (degree 2) with this span, the fraction of points in each local fit (0–1].
+    #[arg(long, value_name = "SPAN")]
+    pub loess: Option<f64>,
     /// Output format.
     #[arg(long, value_enum, default_value_t = Format::Text)]
     pub format: Format,
@@ -262,6 +269,21 @@ fn parse_rows(s: &str) -> Result<RowList, String> {
     Ok(RowList(rows))
 }
 
+fn parse_robust(s: &str) -> Result<plumb_data::analysis::Robust, String> {
+    use plumb_data::analysis::Robust;
+    match s.split_once(':') {
+        None if s == "theil-sen" => Ok(Robust::TheilSen),
+        None if s == "deming" => Ok(Robust::Deming(1.0)),
+        Some(("deming", l)) => match l.parse::<f64>() {
+            Ok(v) if v.is_finite() && v > 0.0 => Ok(Robust::Deming(v)),
+            _ => Err(format!(
+                "'{l}' is not a positive error-variance ratio (such as deming:2)"
+            )),
+        },
+        _ => Err(format!("'{s}' is not theil-sen, deming or deming:LAMBDA")),
+    }
+}
+
 fn parse_level(s: &str) -> Result<f64, String> {
     match s.parse::<f64>() {
         Ok(v) if v > 0.0 && v < 1.0 => Ok(v),
@@ -292,6 +314,16 @@ mod tests {
         assert!(parse_rows("0").is_err());
         assert!(parse_rows("5-2").is_err());
         assert!(parse_rows("x").is_err());
+    }
+
+    #[test]
+    fn robust_methods_parse() {
+        use plumb_data::analysis::Robust;
+        assert_eq!(parse_robust("theil-sen"), Ok(Robust::TheilSen));
+        assert_eq!(parse_robust("deming"), Ok(Robust::Deming(1.0)));
+        assert_eq!(parse_robust("deming:2.5"), Ok(Robust::Deming(2.5)));
+        assert!(parse_robust("deming:-1").is_err());
+        assert!(parse_robust("median").is_err());
     }
 
     #[test]

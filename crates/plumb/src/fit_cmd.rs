@@ -1,6 +1,6 @@
 //! `plumb fit`: load, fit, print.
 
-use plumb_data::analysis::run_fit;
+use plumb_data::analysis::{pair_extras, run_fit};
 
 use crate::cli::{FitArgs, Format};
 use crate::{fit_json, fit_text};
@@ -8,9 +8,16 @@ use crate::{fit_json, fit_text};
 pub fn run(args: &FitArgs) -> anyhow::Result<String> {
     let table = plumb_data::load(&args.load.data, &args.load.options())?;
     let request = args.model.request();
+    if (args.robust.is_some() || args.loess.is_some()) && request.x.len() != 1 {
+        anyhow::bail!(
+            "--robust and --loess draw a line for one predictor; {} were given",
+            request.x.len()
+        );
+    }
     let outcome = run_fit(&table, &request)?;
+    let extras = pair_extras(&outcome, &request, args.robust, args.loess);
     Ok(match args.format {
-        Format::Json => fit_json::render(&table, &request, &outcome)?,
-        Format::Text => fit_text::render(&table, &request, &outcome),
+        Format::Json => fit_json::render(&table, &request, &outcome, extras.as_ref())?,
+        Format::Text => fit_text::render(&table, &request, &outcome, extras.as_ref()),
     })
 }

@@ -4,7 +4,7 @@
 //! a value that is not finite (for example t when the fit is exact) is written as `null`.
 
 use plumb_core::regression::Coefficient;
-use plumb_data::analysis::{FitOutcome, FitRequest};
+use plumb_data::analysis::{FitOutcome, FitRequest, PairExtras};
 use plumb_data::Table;
 use serde::Serialize;
 
@@ -35,6 +35,13 @@ struct FitJson<'a> {
     bic: f64,
     condition_number: f64,
     coefficients: Vec<CoefficientJson<'a>>,
+    vif: Option<Vec<VifJson<'a>>>,
+}
+
+#[derive(Serialize)]
+struct VifJson<'a> {
+    term: &'a str,
+    vif: f64,
 }
 
 #[derive(Serialize)]
@@ -84,6 +91,7 @@ pub fn render(
     table: &Table,
     request: &FitRequest,
     outcome: &FitOutcome,
+    extras: Option<&PairExtras>,
 ) -> serde_json::Result<String> {
     let fit = &outcome.fit;
     let sel = &outcome.selection;
@@ -128,8 +136,19 @@ pub fn render(
         bic: fit.bic,
         condition_number: fit.condition_number,
         coefficients: fit.coefficients.iter().map(CoefficientJson::from).collect(),
+        vif: outcome.vif.as_ref().map(|v| {
+            fit.coefficients
+                .iter()
+                .zip(v)
+                .filter_map(|(c, f)| f.map(|vif| VifJson { term: &c.term, vif }))
+                .collect()
+        }),
     };
-    let mut text = serde_json::to_string_pretty(&json)?;
+    let mut value = serde_json::to_value(&json)?;
+    if let (Some(extras), Some(map)) = (extras, value.as_object_mut()) {
+        map.extend(crate::fit_extras_json::extras(extras));
+    }
+    let mut text = serde_json::to_string_pretty(&value)?;
     text.push('\n');
     Ok(text)
 }

@@ -3,18 +3,69 @@
 
 use std::fmt::Write;
 
-use plumb_data::analysis::{FitOutcome, FitRequest};
+use plumb_data::analysis::{FitOutcome, FitRequest, PairExtras, RobustFit};
 use plumb_data::Table;
 
 /// Condition number above which the text output warns that the terms nearly coincide.
 /// Common practice, no source: around 1e8 half of double precision's digits are at risk.
 const CONDITION_WARNING: f64 = 1e8;
 
-pub fn render(table: &Table, request: &FitRequest, outcome: &FitOutcome) -> String {
+pub fn render(
+    table: &Table,
+    request: &FitRequest,
+    outcome: &FitOutcome,
+    extras: Option<&PairExtras>,
+) -> String {
     let mut out = String::new();
     // Writing to a String cannot fail.
     let _ = write_all(&mut out, table, request, outcome);
+    if let Some(e) = extras {
+        let _ = write_extras(&mut out, outcome, e);
+    }
+    let _ = write_cautions(&mut out, table, outcome);
     out
+}
+
+fn write_extras(out: &mut String, o: &FitOutcome, e: &PairExtras) -> std::fmt::Result {
+    let rows = &o.selection.rows;
+    if let Some(z) = &e.z_view {
+        writeln!(out, "  in z-units           slope {} (= r), slope² {} (= R² of the line); a unit z SDs out on x is expected {}·z SDs out on y", fixed(z.slope, 4), fixed(z.slope_squared, 4), fixed(z.slope, 3))?;
+    }
+    match &e.robust {
+        Some(Ok(RobustFit::TheilSen(t))) => writeln!(
+            out,
+            "  Theil–Sen line       slope {} [{}, {}], intercept {}",
+            num(t.slope),
+            num(t.slope_low),
+            num(t.slope_high),
+            num(t.intercept)
+        )?,
+        Some(Ok(RobustFit::Deming(d))) => writeln!(
+            out,
+            "  Deming line (λ = {})  slope {} ± {} (jackknife SE), intercept {} ± {}",
+            d.lambda,
+            num(d.slope),
+            num(d.slope_se),
+            num(d.intercept),
+            num(d.intercept_se)
+        )?,
+        Some(Err(why)) => writeln!(out, "  overlay line         {why}")?,
+        None => {}
+    }
+    match &e.loess {
+        Some(Ok(l)) => writeln!(out, "  LOESS (span {})     R² {:.6}", l.span, l.r_squared)?,
+        Some(Err(why)) => writeln!(out, "  LOESS                {why}")?,
+        None => {}
+    }
+    if let Some(c) = &e.cues {
+        if c.nonlinear {
+            writeln!(out, "  cue: the pair has a strong pattern that is not a straight line (line R² {:.3}, best curve R² {}); r understates it", c.linear_r_squared, c.curve_r_squared.map_or_else(|| "—".into(), |v| format!("{v:.3}")))?;
+        }
+        if c.driven_by_one_point {
+            writeln!(out, "  cue: r is {:.3} with row {} and {:.3} without it; one point carries the association", c.r, rows[c.most_influential], c.r_without_most_influential)?;
+        }
+    }
+    writeln!(out)
 }
 
 fn write_all(
@@ -162,7 +213,21 @@ fn write_all(
             }
         )?;
     }
+    if let Some(vif) = &o.vif {
+        let parts: Vec<String> = fit
+            .coefficients
+            .iter()
+            .zip(vif)
+            .filter_map(|(c, v)| v.map(|v| format!("{} {}", c.term, fixed(v, 2))))
+            .collect();
+        writeln!(out, "\n  variance inflation    {}", parts.join(", "))?;
+    }
     writeln!(out)?;
+    Ok(())
+}
+
+fn write_cautions(out: &mut String, table: &Table, o: &FitOutcome) -> std::fmt::Result {
+    let (fit, sel) = (&o.fit, &o.selection);
     if fit.condition_number > CONDITION_WARNING {
         writeln!(out, "  warning: the terms nearly coincide (condition number {:.2e}); estimates may be unstable", fit.condition_number)?;
     }

@@ -5,6 +5,7 @@ mod cli;
 mod columns_cmd;
 mod corr_cmd;
 mod fit_cmd;
+mod fit_extras_json;
 mod fit_json;
 mod fit_text;
 mod influence_cmd;

@@ -11,6 +11,7 @@ mod design;
 mod inference;
 mod influence;
 mod solve;
+mod standardized;
 
 pub use bands::{bands, BandPoint};
 pub use compare::{compare_nested, variance_inflation, NestedComparison};
@@ -20,6 +21,7 @@ pub use influence::{
     influence, normal_scores, CaseInfluence, InfluenceFlag, COOKS_FLAG_NUMERATOR,
     LEVERAGE_FLAG_FACTOR, STUDENTIZED_FLAG,
 };
+pub use standardized::StandardizedView;
 
 use crate::{CoreError, Result};
 
