@@ -19,9 +19,16 @@ use nalgebra::DMatrix;
 use super::design::Design;
 
 /// `Z` (unweighted, by column) and `T` with `β = T·α`.
+#[derive(Debug, Clone)]
 pub(crate) struct Basis {
     pub columns: Vec<Vec<f64>>,
     pub to_terms: DMatrix<f64>,
+    /// Per working column: `(shift, step, scale, power)` with `zₖ = ((v − shift)/step)^power / scale`,
+    /// where `v` is the polynomial's predictor, or term k's own value for a general design
+    /// (power 1, or 0 for the intercept).
+    pub recipe: Vec<(f64, f64, f64, i32)>,
+    /// Whether `v` is the single polynomial predictor (true) or each term's own value (false).
+    pub polynomial: bool,
 }
 
 impl Basis {
@@ -68,7 +75,40 @@ impl Basis {
             }
             binomial(pk, pj) * (-shift).powi(pk - pj) / step.powi(pk) / scales[k]
         });
-        Self { columns, to_terms }
+        let recipe = powers
+            .iter()
+            .zip(&scales)
+            .map(|(&k, &sc)| {
+                if polynomial {
+                    (shift, step, sc, k)
+                } else {
+                    (0.0, 1.0, sc, 1)
+                }
+            })
+            .collect();
+        Self {
+            columns,
+            to_terms,
+            recipe,
+            polynomial,
+        }
+    }
+
+    /// The working row `z` for one observation: `values` is `[x]` for a polynomial, or the
+    /// design row (one value per term) otherwise.
+    pub fn z_row(&self, values: &[f64]) -> Vec<f64> {
+        self.recipe
+            .iter()
+            .enumerate()
+            .map(|(k, &(shift, step, scale, power))| {
+                let v = if self.polynomial {
+                    values[0]
+                } else {
+                    values[k]
+                };
+                ((v - shift) / step).powi(power) / scale
+            })
+            .collect()
     }
 }
 

@@ -10,6 +10,7 @@ mod compare;
 mod design;
 mod inference;
 mod influence;
+mod live;
 mod solve;
 mod standardized;
 
@@ -21,6 +22,7 @@ pub use influence::{
     influence, normal_scores, CaseInfluence, InfluenceFlag, COOKS_FLAG_NUMERATOR,
     LEVERAGE_FLAG_FACTOR, STUDENTIZED_FLAG,
 };
+pub use live::{LiveFit, LiveSummary, CONDITION_LIMIT, PIVOT_FLOOR, REFRESH_EVERY, TIGHT_FIT};
 pub use standardized::StandardizedView;
 
 use crate::{CoreError, Result};

@@ -1,0 +1,527 @@
+//! The live exclusion engine: exclude, include or move one observation and get the model's
+//! numbers back without refitting from scratch.
+//!
+//! State: the Gram matrix `A = Σ zᵢzᵢᵀ` of the included rows in the solver's well-scaled
+//! working basis (see `basis`), its inverse, `b = Σ zᵢyᵢ`, and the sums of `y` and `y²` (with y
+//! shifted by its initial mean, which leaves every reported number unchanged when the model has
+//! an intercept and keeps the sums small). Each change is a rank-one update of `A⁻¹`
+//! (Sherman–Morrison, O(p²)); the coefficients `β = T·A⁻¹b`, their covariance `σ̂²·T A⁻¹ Tᵀ`
+//! and `RSS = Σy² − αᵀb` follow in O(p²) too.
+//!
+//! Drift guard: `A` itself is kept too (additive O(p²) updates) and `α = A⁻¹b` gets one step
+//! of refinement against it; every [`REFRESH_EVERY`] changes the sums are rebuilt from the
+//! rows (O(np²)).
+//! A full least-squares refit (the QR path of [`super::fit`]) replaces the update whenever the
+//! working basis is poorly conditioned (above [`CONDITION_LIMIT`]), an update would divide by
+//! `1 − hᵢᵢ` below [`PIVOT_FLOOR`], or the fit is so tight (`1 − R² <` [`TIGHT_FIT`]) that
+//! `Σy² − αᵀb` would cancel away the digits.
+
+use nalgebra::{DMatrix, DVector};
+
+use super::basis::Basis;
+use super::design::{Design, TermKind};
+use super::{fit, FitOptions, LinearFit};
+use crate::{distributions, CoreError, Result};
+
+/// Changes between rebuilds of the sums from the rows.
+pub const REFRESH_EVERY: usize = 16;
+/// Working-basis condition number above which every change is a full refit.
+pub const CONDITION_LIMIT: f64 = 1e3;
+/// Smallest `1 ± zᵀA⁻¹z` accepted in a rank-one update: removing a row of leverage above
+/// 0.95 amplifies the rounding already in `A⁻¹` twentyfold, so such a change is a refit.
+pub const PIVOT_FLOOR: f64 = 0.05;
+/// `1 − R²` below which the numbers come from a full refit.
+pub const TIGHT_FIT: f64 = 1e-6;
+
+/// The model's numbers after a change.
+#[derive(Debug, Clone, PartialEq)]
+pub struct LiveSummary {
+    /// Rows included.
+    pub n: usize,
+    /// `β̂`, in term order.
+    pub estimates: Vec<f64>,
+    /// Standard errors.
+    pub std_errors: Vec<f64>,
+    /// Two-sided p-values of `βⱼ = 0`.
+    pub p_values: Vec<f64>,
+    /// Interval ends at the options' level.
+    pub ci: Vec<(f64, f64)>,
+    /// R² (centred with an intercept, uncentred without).
+    pub r_squared: f64,
+    /// Adjusted R².
+    pub adj_r_squared: f64,
+    /// `σ̂`.
+    pub residual_std_error: f64,
+    /// Overall F and its p (None for an intercept-only model).
+    pub f_test: Option<(f64, f64)>,
+    /// Whether these numbers came from a full refit rather than an update.
+    pub refitted: bool,
+}
+
+/// A fit that follows exclusions and moved points.
+#[derive(Debug, Clone)]
+pub struct LiveFit {
+    design: Design,
+    /// Current values of each row: `[x]` for a polynomial, the design row otherwise.
+    values: Vec<Vec<f64>>,
+    y: Vec<f64>,
+    included: Vec<bool>,
+    basis_recipe: Basis,
+    z: Vec<Vec<f64>>,
+    y_shift: f64,
+    a: DMatrix<f64>,
+    a_inv: DMatrix<f64>,
+    b: DVector<f64>,
+    sum_y: f64,
+    sum_yy: f64,
+    options: FitOptions,
+    changes: usize,
+    always_refit: bool,
+    summary: Result<LiveSummary>,
+}
+
+impl LiveFit {
+    /// Starts with every row included. Weights are not supported here (use [`super::fit`]).
+    ///
+    /// # Errors
+    /// Whatever the initial fit raises.
+    pub fn new(design: Design, y: Vec<f64>, options: FitOptions) -> Result<Self> {
+        let first = fit(&design, &y, None, &options)?;
+        let mut basis = Basis::new(&design, &vec![1.0; y.len()]);
+        let values: Vec<Vec<f64>> = match design.polynomial_source() {
+            Some(x) => x.iter().map(|&v| vec![v]).collect(),
+            None => (0..y.len()).map(|i| design.row(i).collect()).collect(),
+        };
+        let z = values.iter().map(|v| basis.z_row(v)).collect();
+        basis.columns = Vec::new(); // the rows `z` hold the same numbers
+        let y_shift = if design.has_intercept() {
+            crate::describe::mean(&y, None)
+        } else {
+            0.0
+        };
+        let p = design.n_terms();
+        let mut live = Self {
+            included: vec![true; y.len()],
+            always_refit: first.condition_number > CONDITION_LIMIT,
+            design,
+            values,
+            y,
+            basis_recipe: basis,
+            z,
+            y_shift,
+            a: DMatrix::zeros(p, p),
+            a_inv: DMatrix::zeros(p, p),
+            b: DVector::zeros(p),
+            sum_y: 0.0,
+            sum_yy: 0.0,
+            options,
+            changes: 0,
+            summary: Ok(from_fit(&first, true)),
+        };
+        live.rebuild();
+        Ok(live)
+    }
+
+    /// The numbers after the last change (or why they are undefined, e.g. too few rows).
+    pub fn summary(&self) -> &Result<LiveSummary> {
+        &self.summary
+    }
+
+    /// Whether row `i` (0-based) is included.
+    pub fn is_included(&self, i: usize) -> bool {
+        self.included[i]
+    }
+
+    /// Leaves row `i` out. A no-op if it is already out.
+    pub fn exclude(&mut self, i: usize) -> &Result<LiveSummary> {
+        if self.included[i] {
+            self.included[i] = false;
+            self.update(i, -1.0);
+        }
+        &self.summary
+    }
+
+    /// Brings row `i` back. A no-op if it is already in.
+    pub fn include(&mut self, i: usize) -> &Result<LiveSummary> {
+        if !self.included[i] {
+            self.included[i] = true;
+            self.update(i, 1.0);
+        }
+        &self.summary
+    }
+
+    /// Moves row `i` to predictor value `x` and response `y` (a what-if: only this engine's
+    /// copy changes). Only for designs with one predictor (a line or a polynomial).
+    ///
+    /// # Errors
+    /// [`CoreError::InvalidOption`] for a design with several predictors or a non-finite value.
+    pub fn move_point(&mut self, i: usize, x: f64, y: f64) -> Result<&Result<LiveSummary>> {
+        let one = self.design.polynomial_source().is_some()
+            || self
+                .design
+                .terms()
+                .iter()
+                .filter(|t| t.kind != TermKind::Intercept)
+                .count()
+                == 1;
+        if !one || !x.is_finite() || !y.is_finite() {
+            return Err(CoreError::InvalidOption(
+                "a point can be moved only in a one-predictor model, to finite values".into(),
+            ));
+        }
+        let was_in = self.included[i];
+        if was_in {
+            self.included[i] = false;
+            self.update(i, -1.0);
+        }
+        self.values[i] = if self.design.polynomial_source().is_some() {
+            vec![x]
+        } else {
+            self.design
+                .terms()
+                .iter()
+                .map(|t| {
+                    if t.kind == TermKind::Intercept {
+                        1.0
+                    } else {
+                        x
+                    }
+                })
+                .collect()
+        };
+        self.y[i] = y;
+        self.z[i] = self.basis_recipe.z_row(&self.values[i]);
+        if was_in {
+            self.included[i] = true;
+            self.update(i, 1.0);
+        }
+        Ok(&self.summary)
+    }
+
+    /// Recomputes everything from the included rows with the QR solver.
+    pub fn refit(&mut self) -> &Result<LiveSummary> {
+        self.summary = self.full_fit();
+        self.rebuild();
+        &self.summary
+    }
+
+    fn update(&mut self, i: usize, sign: f64) {
+        self.changes += 1;
+        if self.always_refit || self.changes % REFRESH_EVERY == 0 {
+            self.refit();
+            return;
+        }
+        let z = DVector::from_column_slice(&self.z[i]);
+        let u = &self.a_inv * &z;
+        let denom = 1.0 + sign * z.dot(&u);
+        if denom.abs() < PIVOT_FLOOR || !denom.is_finite() {
+            self.refit();
+            return;
+        }
+        self.a_inv -= &u * u.transpose() * (sign / denom);
+        self.a += &z * z.transpose() * sign;
+        let yi = self.y[i] - self.y_shift;
+        self.b += &z * (sign * yi);
+        self.sum_y += sign * yi;
+        self.sum_yy += sign * yi * yi;
+        self.summary = self.from_sums();
+        if self
+            .summary
+            .as_ref()
+            .is_ok_and(|s| 1.0 - s.r_squared < TIGHT_FIT)
+        {
+            self.refit();
+        }
+    }
+
+    fn rebuild(&mut self) {
+        let p = self.design.n_terms();
+        let mut a = DMatrix::zeros(p, p);
+        self.b = DVector::zeros(p);
+        self.sum_y = 0.0;
+        self.sum_yy = 0.0;
+        for (i, z) in self.z.iter().enumerate().filter(|(i, _)| self.included[*i]) {
+            let z = DVector::from_column_slice(z);
+            a += &z * z.transpose();
+            let yi = self.y[i] - self.y_shift;
+            self.b += &z * yi;
+            self.sum_y += yi;
+            self.sum_yy += yi * yi;
+        }
+        // A singular Gram matrix (too few rows) leaves the inverse at zero; the summary then
+        // carries the error from the full fit.
+        self.a_inv = a
+            .clone()
+            .try_inverse()
+            .unwrap_or_else(|| DMatrix::zeros(p, p));
+        self.a = a;
+    }
+
+    fn full_fit(&self) -> Result<LiveSummary> {
+        let rows: Vec<usize> = (0..self.y.len()).filter(|&i| self.included[i]).collect();
+        let y: Vec<f64> = rows.iter().map(|&i| self.y[i]).collect();
+        let design = match self.design.polynomial_source() {
+            Some(_) => {
+                let x: Vec<f64> = rows.iter().map(|&i| self.values[i][0]).collect();
+                let degree = self
+                    .design
+                    .terms()
+                    .iter()
+                    .map(|t| t.kind.power())
+                    .max()
+                    .unwrap_or(1);
+                let name = self
+                    .design
+                    .terms()
+                    .iter()
+                    .find(|t| t.kind == TermKind::Linear)
+                    .map_or("x", |t| t.name.as_str());
+                Design::polynomial(name, &x, degree, self.design.has_intercept())?
+            }
+            None => {
+                let mut d = Design::new(rows.len(), false);
+                for (k, term) in self.design.terms().iter().enumerate() {
+                    d.push(
+                        term.clone(),
+                        rows.iter().map(|&i| self.values[i][k]).collect(),
+                    );
+                }
+                d
+            }
+        };
+        fit(&design, &y, None, &self.options).map(|f| from_fit(&f, true))
+    }
+
+    fn from_sums(&self) -> Result<LiveSummary> {
+        let p = self.design.n_terms();
+        let n = self.included.iter().filter(|&&v| v).count();
+        if n <= p {
+            return Err(CoreError::TooFewRows { n, p });
+        }
+        // One step of refinement against the additively kept A removes the drift of A⁻¹ from α.
+        let mut alpha = &self.a_inv * &self.b;
+        alpha += &self.a_inv * (&self.b - &self.a * &alpha);
+        let t = &self.basis_recipe.to_terms;
+        let mut beta: Vec<f64> = (t * &alpha).iter().copied().collect();
+        let intercept = self.design.has_intercept();
+        if intercept {
+            beta[0] += self.y_shift;
+        }
+        let rss = (self.sum_yy - alpha.dot(&self.b)).max(0.0);
+        let tss = if intercept {
+            self.sum_y.mul_add(-self.sum_y / n as f64, self.sum_yy)
+        } else {
+            self.sum_yy
+        };
+        let df = (n - p) as f64;
+        let s2 = rss / df;
+        let cov = t * &self.a_inv * t.transpose();
+        let std_errors: Vec<f64> = (0..p).map(|j| (s2 * cov[(j, j)]).sqrt()).collect();
+        let r_squared = 1.0 - rss / tss;
+        let k0 = usize::from(intercept);
+        let df_model = p - k0;
+        let f_test = (df_model > 0).then(|| {
+            let f = ((tss - rss) / df_model as f64) / s2;
+            (f, distributions::f_upper_tail(f, df_model as f64, df))
+        });
+        let q = distributions::t_upper_quantile(0.5 * (1.0 - self.options.level), df);
+        Ok(LiveSummary {
+            n,
+            p_values: beta
+                .iter()
+                .zip(&std_errors)
+                .map(|(b, s)| distributions::t_two_sided_p(b / s, df))
+                .collect(),
+            ci: beta
+                .iter()
+                .zip(&std_errors)
+                .map(|(b, s)| (b - q * s, b + q * s))
+                .collect(),
+            estimates: beta,
+            std_errors,
+            r_squared,
+            adj_r_squared: 1.0 - (1.0 - r_squared) * (n - k0) as f64 / df,
+            residual_std_error: s2.sqrt(),
+            f_test,
+            refitted: false,
+        })
+    }
+}
+
+fn from_fit(f: &LinearFit, refitted: bool) -> LiveSummary {
+    LiveSummary {
+        n: f.n,
+        estimates: f.coefficients.iter().map(|c| c.estimate).collect(),
+        std_errors: f.coefficients.iter().map(|c| c.std_error).collect(),
+        p_values: f.coefficients.iter().map(|c| c.p_value).collect(),
+        ci: f
+            .coefficients
+            .iter()
+            .map(|c| (c.ci_low, c.ci_high))
+            .collect(),
+        r_squared: f.r_squared,
+        adj_r_squared: f.adj_r_squared,
+        residual_std_error: f.residual_std_error,
+        f_test: f.anova.f_statistic.zip(f.anova.f_p_value),
+        refitted,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use proptest::prelude::*;
+
+    fn close(a: f64, b: f64) -> bool {
+        (a - b).abs() <= 1e-9 * a.abs().max(b.abs()) || (a - b).abs() < 1e-300
+    }
+
+    /// The engine's numbers must match a fresh fit of the rows it holds to 1e-9 relative. An
+    /// estimate (or interval end) is compared relative to the larger of itself and its standard
+    /// error: an estimate that is zero within its error has no relative digits to compare.
+    fn agrees_with_fresh_fit(live: &LiveFit) -> std::result::Result<(), String> {
+        let fresh = live.full_fit();
+        match (live.summary(), &fresh) {
+            (Ok(a), Ok(b)) => {
+                for j in 0..a.estimates.len() {
+                    let scale = a.estimates[j].abs().max(b.std_errors[j]);
+                    let ends = [
+                        (a.estimates[j], b.estimates[j]),
+                        (a.ci[j].0, b.ci[j].0),
+                        (a.ci[j].1, b.ci[j].1),
+                    ];
+                    if let Some((x, y)) = ends.iter().find(|(x, y)| (x - y).abs() > 1e-9 * scale) {
+                        return Err(format!(
+                            "term {j}: live {x} vs fresh {y}\nlive {a:?}\nfresh {b:?}"
+                        ));
+                    }
+                }
+                let pairs = a
+                    .std_errors
+                    .iter()
+                    .zip(&b.std_errors)
+                    .chain(a.p_values.iter().zip(&b.p_values))
+                    .chain([
+                        (&a.r_squared, &b.r_squared),
+                        (&a.adj_r_squared, &b.adj_r_squared),
+                        (&a.residual_std_error, &b.residual_std_error),
+                    ]);
+                for (x, y) in pairs {
+                    if !close(*x, *y) {
+                        return Err(format!("live {x} vs fresh {y}\nlive {a:?}\nfresh {b:?}"));
+                    }
+                }
+                Ok(())
+            }
+            (Err(_), Err(_)) => Ok(()),
+            (a, b) => Err(format!("live {a:?} vs fresh {b:?}")),
+        }
+    }
+
+    #[derive(Debug, Clone)]
+    enum Change {
+        Toggle(usize),
+        Move(usize, f64, f64),
+    }
+
+    fn change(n: usize) -> impl Strategy<Value = Change> {
+        prop_oneof![
+            3 => (0..n).prop_map(Change::Toggle),
+            1 => (0..n, -5.0..15.0f64, -20.0..40.0f64).prop_map(|(i, x, y)| Change::Move(i, x, y)),
+        ]
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(64))]
+
+        #[test]
+        fn any_sequence_of_toggles_and_moves_matches_a_fresh_fit(
+            degree in 1u32..=3,
+            intercept in proptest::bool::ANY,
+            noise in proptest::collection::vec(-1.0..1.0f64, 24),
+            changes in proptest::collection::vec(change(24), 1..150),
+        ) {
+            let x: Vec<f64> = (0..24).map(|k| f64::from(k) * 0.4 + 0.3).collect();
+            let y: Vec<f64> = x.iter().zip(&noise).map(|(v, e)| 2.0 + 1.5 * v - 0.1 * v * v + e).collect();
+            let design = Design::polynomial("x", &x, degree, intercept).expect("degree");
+            let mut live = LiveFit::new(design, y, FitOptions::default()).expect("initial fit");
+            for c in changes {
+                match c {
+                    Change::Toggle(i) => {
+                        if live.is_included(i) { live.exclude(i); } else { live.include(i); }
+                    }
+                    Change::Move(i, x, y) => { live.move_point(i, x, y).expect("one predictor"); }
+                }
+                prop_assert!(agrees_with_fresh_fit(&live).is_ok(), "{}", agrees_with_fresh_fit(&live).unwrap_err());
+            }
+        }
+
+        #[test]
+        fn two_predictor_toggles_match_a_fresh_fit(
+            noise in proptest::collection::vec(-1.0..1.0f64, 30),
+            toggles in proptest::collection::vec(0usize..30, 1..100),
+        ) {
+            let a: Vec<f64> = (0..30).map(|k| f64::from(k % 7) + 0.5 * f64::from(k)).collect();
+            let b: Vec<f64> = (0..30).map(|k| (f64::from(k) * 0.7).sin() * 4.0).collect();
+            let y: Vec<f64> = (0..30).map(|k| 1.0 + 0.8 * a[k] - 1.2 * b[k] + noise[k]).collect();
+            let mut live = LiveFit::new(Design::linear(&[("a", &a), ("b", &b)], true), y, FitOptions::default()).expect("fits");
+            for i in toggles {
+                if live.is_included(i) { live.exclude(i); } else { live.include(i); }
+                prop_assert!(agrees_with_fresh_fit(&live).is_ok(), "{}", agrees_with_fresh_fit(&live).unwrap_err());
+            }
+        }
+    }
+
+    #[test]
+    fn excluding_then_including_restores_the_numbers() {
+        let x: Vec<f64> = (0..12).map(f64::from).collect();
+        let y: Vec<f64> = x.iter().map(|v| 3.0 + 0.5 * v + (v * 1.3).sin()).collect();
+        let mut live = LiveFit::new(Design::linear(&[("x", &x)], true), y, FitOptions::default())
+            .expect("fits");
+        let before = live.summary().clone().expect("defined");
+        live.exclude(4);
+        assert!(
+            !live.summary().as_ref().expect("defined").refitted,
+            "an update, not a refit"
+        );
+        live.include(4);
+        let after = live.summary().clone().expect("defined");
+        assert!(
+            close(before.r_squared, after.r_squared)
+                && close(before.estimates[1], after.estimates[1])
+        );
+    }
+
+    #[test]
+    fn cubic_and_origin_models_take_the_update_path() {
+        // The property tests above would pass trivially if every change were a refit.
+        let x: Vec<f64> = (0..24).map(|k| f64::from(k) * 0.4 + 0.3).collect();
+        let y: Vec<f64> = x
+            .iter()
+            .map(|v| 2.0 + 1.5 * v - 0.1 * v * v + (v * 3.1).sin())
+            .collect();
+        for intercept in [true, false] {
+            let design = Design::polynomial("x", &x, 3, intercept).expect("degree");
+            let mut live = LiveFit::new(design, y.clone(), FitOptions::default()).expect("fits");
+            assert!(
+                !live.always_refit,
+                "condition too poor for updates (intercept {intercept})"
+            );
+            live.exclude(3);
+            assert!(!live.summary().as_ref().expect("defined").refitted);
+        }
+    }
+
+    #[test]
+    fn too_few_rows_is_reported_not_panicked() {
+        let x = [1.0, 2.0, 3.0, 4.0];
+        let y = vec![1.0, 2.5, 2.9, 4.2];
+        let mut live = LiveFit::new(Design::linear(&[("x", &x)], true), y, FitOptions::default())
+            .expect("fits");
+        live.exclude(0);
+        live.exclude(1);
+        assert!(matches!(live.summary(), Err(CoreError::TooFewRows { .. })));
+        live.include(1);
+        assert!(live.summary().is_ok());
+    }
+}
