@@ -207,7 +207,7 @@ impl LiveFit {
 
     fn update(&mut self, i: usize, sign: f64) {
         self.changes += 1;
-        if self.always_refit || self.changes % REFRESH_EVERY == 0 {
+        if self.always_refit || self.changes.is_multiple_of(REFRESH_EVERY) {
             self.refit();
             return;
         }
@@ -224,7 +224,7 @@ impl LiveFit {
         self.b += &z * (sign * yi);
         self.sum_y += sign * yi;
         self.sum_yy += sign * yi * yi;
-        self.summary = self.from_sums();
+        self.summary = self.summary_from_sums();
         if self
             .summary
             .as_ref()
@@ -292,7 +292,7 @@ impl LiveFit {
         fit(&design, &y, None, &self.options).map(|f| from_fit(&f, true))
     }
 
-    fn from_sums(&self) -> Result<LiveSummary> {
+    fn summary_from_sums(&self) -> Result<LiveSummary> {
         let p = self.design.n_terms();
         let n = self.included.iter().filter(|&&v| v).count();
         if n <= p {
@@ -452,7 +452,7 @@ mod tests {
                     }
                     Change::Move(i, x, y) => { live.move_point(i, x, y).expect("one predictor"); }
                 }
-                prop_assert!(agrees_with_fresh_fit(&live).is_ok(), "{}", agrees_with_fresh_fit(&live).unwrap_err());
+                prop_assert_eq!(agrees_with_fresh_fit(&live), Ok(()));
             }
         }
 
@@ -467,7 +467,7 @@ mod tests {
             let mut live = LiveFit::new(Design::linear(&[("a", &a), ("b", &b)], true), y, FitOptions::default()).expect("fits");
             for i in toggles {
                 if live.is_included(i) { live.exclude(i); } else { live.include(i); }
-                prop_assert!(agrees_with_fresh_fit(&live).is_ok(), "{}", agrees_with_fresh_fit(&live).unwrap_err());
+                prop_assert_eq!(agrees_with_fresh_fit(&live), Ok(()));
             }
         }
     }
