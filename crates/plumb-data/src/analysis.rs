@@ -8,8 +8,8 @@ use plumb_core::alternative::{
 };
 use plumb_core::cues::{pair_cues, PairCues};
 use plumb_core::regression::{
-    fit, influence, variance_inflation, CaseInfluence, Design, FitOptions, LinearFit,
-    StandardizedView,
+    bands, compare_nested, fit, influence, variance_inflation, BandPoint, CaseInfluence, Design,
+    FitOptions, LinearFit, NestedComparison, StandardizedView,
 };
 use plumb_core::CoreError;
 use thiserror::Error;
@@ -91,6 +91,47 @@ pub struct PairExtras {
     pub cues: Option<PairCues>,
     /// The pair in z-units.
     pub z_view: Option<StandardizedView>,
+    /// Polynomials of degree 1, 2 and 3 on the same rows, each tested against the one below.
+    pub degrees: Vec<DegreeStep>,
+    /// The fitted curve with its confidence and prediction bands on an even grid over the x range.
+    pub bands: Vec<BandPoint>,
+}
+
+/// One rung of the polynomial ladder.
+#[derive(Debug, Clone, PartialEq)]
+pub struct DegreeStep {
+    /// Degree.
+    pub degree: u32,
+    /// Its fit.
+    pub fit: LinearFit,
+    /// Against the degree below (None for degree 1).
+    pub versus_previous: Option<NestedComparison>,
+}
+
+/// Points in the band grid.
+pub const BAND_POINTS: usize = 41;
+
+fn degree_ladder(x: &[f64], y: &[f64], intercept: bool, level: f64) -> Vec<DegreeStep> {
+    let options = FitOptions {
+        level,
+        ..FitOptions::default()
+    };
+    let mut steps: Vec<DegreeStep> = Vec::new();
+    for degree in 1..=3 {
+        let Some(f) = Design::polynomial("x", x, degree, intercept)
+            .ok()
+            .and_then(|d| fit(&d, y, None, &options).ok())
+        else {
+            break;
+        };
+        let versus_previous = steps.last().map(|prev| compare_nested(&prev.fit, &f));
+        steps.push(DegreeStep {
+            degree,
+            fit: f,
+            versus_previous,
+        });
+    }
+    steps
 }
 
 /// Overlays and cues for a one-predictor request (`None` with several predictors).
@@ -112,7 +153,35 @@ pub fn pair_extras(
         loess: loess_span.map(|span| loess(x, y, span, 2)),
         cues: pair_cues(x, y),
         z_view: StandardizedView::of(x, y),
+        degrees: if request.weights.is_none() {
+            degree_ladder(x, y, request.intercept, request.level)
+        } else {
+            Vec::new()
+        },
+        bands: band_grid(x, outcome, request),
     })
+}
+
+fn band_grid(x: &[f64], outcome: &FitOutcome, request: &FitRequest) -> Vec<BandPoint> {
+    let (lo, hi) = x
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| {
+            (a.min(v), b.max(v))
+        });
+    let grid: Vec<f64> = (0..BAND_POINTS)
+        .map(|k| lo + (hi - lo) * k as f64 / (BAND_POINTS - 1) as f64)
+        .collect();
+    let design = if request.degree > 1 {
+        Design::polynomial(&request.x[0], x, request.degree, request.intercept).ok()
+    } else {
+        Some(Design::linear(
+            &[(request.x[0].as_str(), x)],
+            request.intercept,
+        ))
+    };
+    design
+        .and_then(|d| bands(&d, &outcome.fit, &grid))
+        .unwrap_or_default()
 }
 
 /// Why an analysis could not run, with the file named.

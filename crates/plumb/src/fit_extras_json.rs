@@ -48,6 +48,39 @@ pub fn extras(extras: &PairExtras) -> serde_json::Map<String, Value> {
             }),
         );
     }
+    if !extras.degrees.is_empty() {
+        let ladder: Vec<Value> = extras
+            .degrees
+            .iter()
+            .map(|d| {
+                json!({
+                    "degree": d.degree,
+                    "r_squared": d.fit.r_squared,
+                    "adj_r_squared": d.fit.adj_r_squared,
+                    "aic": d.fit.aic,
+                    "bic": d.fit.bic,
+                    "versus_previous": d.versus_previous.map(|c| json!({
+                        "delta_r_squared": c.delta_r_squared, "f_statistic": c.f_statistic,
+                        "df_num": c.df_num, "df_den": c.df_den, "p_value": c.p_value,
+                    })),
+                })
+            })
+            .collect();
+        out.insert("degree_comparison".into(), Value::Array(ladder));
+    }
+    if !extras.bands.is_empty() {
+        let pick = |f: fn(&plumb_core::regression::BandPoint) -> f64| {
+            extras.bands.iter().map(f).collect::<Vec<f64>>()
+        };
+        out.insert(
+            "bands".into(),
+            json!({
+                "x": pick(|b| b.x), "fitted": pick(|b| b.fitted),
+                "mean_low": pick(|b| b.mean_low), "mean_high": pick(|b| b.mean_high),
+                "predict_low": pick(|b| b.predict_low), "predict_high": pick(|b| b.predict_high),
+            }),
+        );
+    }
     if let Some(z) = &extras.z_view {
         out.insert("z_units".into(), json!({ "slope": z.slope, "slope_squared": z.slope_squared, "shrinkage_toward_mean": z.shrinkage() }));
     }

@@ -57,6 +57,25 @@ fn write_extras(out: &mut String, o: &FitOutcome, e: &PairExtras) -> std::fmt::R
         Some(Err(why)) => writeln!(out, "  LOESS                {why}")?,
         None => {}
     }
+    if e.degrees.len() > 1 {
+        let steps: Vec<String> = e
+            .degrees
+            .iter()
+            .skip(1)
+            .filter_map(|d| {
+                d.versus_previous.map(|c| {
+                    format!(
+                        "degree {}: ΔR² {:+.4}, partial F {} (p {})",
+                        d.degree,
+                        c.delta_r_squared,
+                        fixed(c.f_statistic, 3),
+                        pval(c.p_value)
+                    )
+                })
+            })
+            .collect();
+        writeln!(out, "  adding powers        {}", steps.join("; "))?;
+    }
     if let Some(c) = &e.cues {
         if c.nonlinear {
             writeln!(out, "  cue: the pair has a strong pattern that is not a straight line (line R² {:.3}, best curve R² {}); r understates it", c.linear_r_squared, c.curve_r_squared.map_or_else(|| "—".into(), |v| format!("{v:.3}")))?;

@@ -124,14 +124,14 @@ fn text(file: &str, t: &Thresholds, mut rows: Vec<RowJson>) -> String {
         }
         let _ = writeln!(
             out,
-            "  {:>6} {:>12.5} {:>12.5} {:>9.4} {:>12.3} {:>10.4} {:>9.3}   {}",
+            "  {:>6} {:>12} {:>12} {:>9} {:>12} {:>10} {:>9}   {}",
             r.row,
-            r.fitted,
-            r.residual,
-            r.leverage,
-            r.studentized_external,
-            r.cooks_distance,
-            r.dffits,
+            shown(r.fitted, 5),
+            shown(r.residual, 5),
+            shown(r.leverage, 4),
+            shown(r.studentized_external, 3),
+            shown(r.cooks_distance, 4),
+            shown(r.dffits, 3),
             r.flags.join(", ")
         );
     }
@@ -140,4 +140,13 @@ fn text(file: &str, t: &Thresholds, mut rows: Vec<RowJson>) -> String {
         "\n  rows sorted by Cook's distance; every exclusion needs a documented reason."
     );
     out
+}
+
+/// A value, or "—" where it is undefined (a row of leverage 1, or too few rows to leave one out).
+fn shown(v: f64, decimals: usize) -> String {
+    if v.is_finite() {
+        format!("{v:.decimals$}")
+    } else {
+        "—".into()
+    }
 }

@@ -351,3 +351,162 @@ mod bad_input {
         assert_eq!(v["dropped_rows"][1]["reason"], "missing");
     }
 }
+
+mod association_and_diagnostics {
+    //! `plumb corr`, `plumb influence` and the overlays of `plumb fit`.
+    use super::*;
+
+    #[test]
+    fn corr_json_has_square_arrays_and_counts_its_tests() {
+        let out = plumb(&[
+            "corr",
+            &demo("calibration-run.csv"),
+            "--order",
+            "read_order",
+            "--format",
+            "json",
+        ]);
+        let v = json(&out);
+        let columns = v["columns"].as_array().expect("columns").len();
+        assert_eq!(columns, 4, "every numeric column but the order column");
+        assert_eq!(v["n_tests"], 6);
+        assert_eq!(v["adjust"], "holm");
+        for key in [
+            "r",
+            "p_value",
+            "p_adjusted",
+            "n",
+            "reason",
+            "r_differenced",
+            "r_detrended",
+        ] {
+            let rows = v[key]
+                .as_array()
+                .unwrap_or_else(|| panic!("{key} is an array"));
+            assert_eq!(rows.len(), columns, "{key}");
+            assert!(
+                rows.iter()
+                    .all(|r| r.as_array().is_some_and(|c| c.len() == columns)),
+                "{key} is square"
+            );
+        }
+        assert!(v["p_value"][0][0].is_null(), "no p-value on the diagonal");
+    }
+
+    #[test]
+    fn corr_names_why_a_cell_is_undefined() {
+        let tmp = tempfile::tempdir().expect("tempdir");
+        let path = write(
+            tmp.path(),
+            "flat.csv",
+            "a,b,c\n1,5,2\n2,5,1\n3,5,4\n4,5,3\n",
+        );
+        let v = json(&plumb(&[
+            "corr",
+            &path.to_string_lossy(),
+            "--method",
+            "kendall",
+            "--format",
+            "json",
+        ]));
+        assert!(v["r"][0][1].is_null(), "b is constant");
+        assert!(
+            v["reason"][0][1]
+                .as_str()
+                .is_some_and(|r| r.starts_with("undefined because")),
+            "{}",
+            v["reason"]
+        );
+        assert_eq!(v["n_tests"], 1);
+        assert_eq!(v["adjust"], "none", "one test: nothing to adjust");
+    }
+
+    #[test]
+    fn influence_rows_carry_their_file_row_numbers_and_flags() {
+        let data = demo("jar-tests.csv");
+        let v = json(&plumb(&[
+            "influence",
+            &data,
+            "--y",
+            "settled_ntu",
+            "--x",
+            "dose_mg_l",
+            "--degree",
+            "2",
+            "--exclude",
+            "5",
+            "--format",
+            "json",
+        ]));
+        let rows = v["rows"].as_array().expect("rows");
+        assert_eq!(rows.len(), 47);
+        assert!(
+            rows.iter().all(|r| r["row"] != 5),
+            "the excluded row is not diagnosed"
+        );
+        let row38 = rows.iter().find(|r| r["row"] == 38).expect("row 38");
+        assert!(
+            row38["flags"]
+                .as_array()
+                .expect("flags")
+                .iter()
+                .any(|f| f == "large-residual"),
+            "{row38}"
+        );
+        assert_eq!(row38["dfbetas"].as_array().expect("dfbetas").len(), 3);
+        assert_eq!(v["thresholds"]["source"], "common practice, no source");
+    }
+
+    #[test]
+    fn fit_reports_overlays_and_cues_for_one_predictor() {
+        let data = demo("jar-tests.csv");
+        let v = json(&plumb(&[
+            "fit",
+            &data,
+            "--y",
+            "settled_ntu",
+            "--x",
+            "dose_mg_l",
+            "--exclude",
+            "17,38",
+            "--robust",
+            "deming:2",
+            "--loess",
+            "0.6",
+            "--format",
+            "json",
+        ]));
+        assert_eq!(v["robust"]["method"], "deming");
+        assert_eq!(v["robust"]["lambda"], 2.0);
+        assert!(
+            v["loess"]["r_squared"].as_f64().expect("loess R²")
+                > v["r_squared"].as_f64().expect("R²")
+        );
+        assert_eq!(v["cues"]["nonlinear"], true, "the dose response is curved");
+        let z = v["z_units"]["slope_squared"].as_f64().expect("z slope²");
+        assert!(
+            (z - v["r_squared"].as_f64().expect("R²")).abs() < 1e-12,
+            "slope² in z-units equals R²"
+        );
+        assert_eq!(v["degree_comparison"].as_array().expect("ladder").len(), 3);
+        assert_eq!(v["bands"]["x"].as_array().expect("grid").len(), 41);
+    }
+
+    #[test]
+    fn overlays_refuse_several_predictors() {
+        let out = plumb(&[
+            "fit",
+            &demo("jar-tests.csv"),
+            "--y",
+            "settled_ntu",
+            "--x",
+            "dose_mg_l",
+            "--x",
+            "ph",
+            "--robust",
+            "theil-sen",
+        ]);
+        assert_eq!(out.status.code(), Some(1));
+        assert!(stderr(&out).contains("one predictor"), "{}", stderr(&out));
+    }
+}

@@ -35,7 +35,8 @@ pub struct CaseInfluence {
     /// `DFBETASᵢⱼ = (β̂ⱼ − β̂₍ᵢ₎ⱼ) / (s₍ᵢ₎√Cⱼⱼ)`, `C = (XᵀWX)⁻¹`, with
     /// `β̂ − β̂₍ᵢ₎ = C xᵢ wᵢ eᵢ / (1 − hᵢᵢ)`; one per term.
     pub dfbetas: Vec<f64>,
-    /// Which rule-of-thumb thresholds the case crosses (see the constants of this module).
+    /// Which rule-of-thumb thresholds the case crosses (see the constants of this module);
+    /// an undefined (NaN) measure crosses none.
     pub flags: Vec<InfluenceFlag>,
 }
 
@@ -92,9 +93,15 @@ pub fn influence(
             let r = f.root_w[i] * e;
             let one_minus_h = 1.0 - h;
             let internal = r / (s * one_minus_h.sqrt());
-            let s_i = (((df * s2) - r * r / one_minus_h) / (df - 1.0))
-                .max(0.0)
-                .sqrt();
+            // Leaving a row out needs a residual degree of freedom to spare, and a row of
+            // leverage 1 cannot be left out at all: those measures are then undefined (NaN).
+            let s_i = if df > 1.0 && one_minus_h > 1e-12 {
+                (((df * s2) - r * r / one_minus_h) / (df - 1.0))
+                    .max(0.0)
+                    .sqrt()
+            } else {
+                f64::NAN
+            };
             let external = r / (s_i * one_minus_h.sqrt());
             let cooks = internal * internal * h / (p as f64 * one_minus_h);
             // C xᵢ √wᵢ = M·q̃ᵢ with q̃ᵢ the row of Q₁ (Q₁ = W^{1/2}Z P R⁻¹); so Δβ = M qᵢ rᵢ/(1 − h).
@@ -205,6 +212,20 @@ mod tests {
             // The deleted residual yᵢ − ŷ₍ᵢ₎ has variance σ²/(1 − hᵢᵢ).
             let t = (y[i] - predicted) * (1.0 - cases[i].leverage).sqrt() / s_i;
             assert_relative_eq!(cases[i].studentized_external, t, max_relative = 1e-9);
+        }
+    }
+
+    #[test]
+    fn leave_one_out_measures_are_undefined_without_a_spare_degree_of_freedom() {
+        let d = Design::linear(&[("x", &[1.0, 2.0, 3.0])], true);
+        let f = fit(&d, &[1.0, 2.2, 2.9], None, &FitOptions::default()).expect("fits");
+        let cases = influence(&d, None, &f, &FitOptions::default()).expect("influence");
+        for c in &cases {
+            assert!(
+                c.studentized_external.is_nan() && c.dffits.is_nan(),
+                "{c:?}"
+            );
+            assert!(!c.flags.contains(&InfluenceFlag::LargeResidual));
         }
     }
 
