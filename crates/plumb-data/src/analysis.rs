@@ -91,6 +91,8 @@ pub struct PairExtras {
     pub cues: Option<PairCues>,
     /// The pair in z-units.
     pub z_view: Option<StandardizedView>,
+    /// The fit read at the requested predictor value.
+    pub read_at: Option<ReadAt>,
     /// Polynomials of degree 1, 2 and 3 on the same rows, each tested against the one below.
     pub degrees: Vec<DegreeStep>,
     /// The fitted curve with its confidence and prediction bands on an even grid over the x range.
@@ -134,25 +136,63 @@ fn degree_ladder(x: &[f64], y: &[f64], intercept: bool, level: f64) -> Vec<Degre
     steps
 }
 
+/// What to add beside a one-predictor fit.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct ExtrasRequest {
+    /// Overlay line.
+    pub robust: Option<Robust>,
+    /// LOESS span.
+    pub loess_span: Option<f64>,
+    /// A predictor value to read the fit at.
+    pub at: Option<f64>,
+}
+
+/// The fit read at one predictor value.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ReadAt {
+    /// The value, its fit and its bands.
+    pub point: BandPoint,
+    /// `z_x = (x − x̄)/s_x`.
+    pub z_x: f64,
+    /// Expected `z_y = r·z_x`: the unit is expected `(1 − r)·z_x` SDs nearer the mean on y.
+    pub expected_z_y: f64,
+}
+
 /// Overlays and cues for a one-predictor request (`None` with several predictors).
 pub fn pair_extras(
     outcome: &FitOutcome,
     request: &FitRequest,
-    robust: Option<Robust>,
-    loess_span: Option<f64>,
+    extras: ExtrasRequest,
 ) -> Option<PairExtras> {
     if request.x.len() != 1 {
         return None;
     }
+    let ExtrasRequest {
+        robust,
+        loess_span,
+        at,
+    } = extras;
     let (y, x) = (&outcome.selection.columns[0], &outcome.selection.columns[1]);
+    let z_view = StandardizedView::of(x, y);
+    let read_at = at.and_then(|a| {
+        let point = *band_grid_at(x, outcome, request, &[a]).first()?;
+        let z = z_view?;
+        let z_x = (a - z.mean_x) / z.sd_x;
+        Some(ReadAt {
+            point,
+            z_x,
+            expected_z_y: z.slope * z_x,
+        })
+    });
     Some(PairExtras {
+        read_at,
         robust: robust.map(|r| match r {
             Robust::TheilSen => theil_sen(x, y, request.level).map(RobustFit::TheilSen),
             Robust::Deming(lambda) => deming(x, y, lambda).map(RobustFit::Deming),
         }),
         loess: loess_span.map(|span| loess(x, y, span, 2)),
         cues: pair_cues(x, y),
-        z_view: StandardizedView::of(x, y),
+        z_view,
         degrees: if request.weights.is_none() {
             degree_ladder(x, y, request.intercept, request.level)
         } else {
@@ -171,6 +211,15 @@ fn band_grid(x: &[f64], outcome: &FitOutcome, request: &FitRequest) -> Vec<BandP
     let grid: Vec<f64> = (0..BAND_POINTS)
         .map(|k| lo + (hi - lo) * k as f64 / (BAND_POINTS - 1) as f64)
         .collect();
+    band_grid_at(x, outcome, request, &grid)
+}
+
+fn band_grid_at(
+    x: &[f64],
+    outcome: &FitOutcome,
+    request: &FitRequest,
+    grid: &[f64],
+) -> Vec<BandPoint> {
     let design = if request.degree > 1 {
         Design::polynomial(&request.x[0], x, request.degree, request.intercept).ok()
     } else {
@@ -180,7 +229,7 @@ fn band_grid(x: &[f64], outcome: &FitOutcome, request: &FitRequest) -> Vec<BandP
         ))
     };
     design
-        .and_then(|d| bands(&d, &outcome.fit, &grid))
+        .and_then(|d| bands(&d, &outcome.fit, grid))
         .unwrap_or_default()
 }
 

@@ -210,6 +210,10 @@ pub struct FitArgs {
     /// LOESS smooth (degree 2) with this span, the fraction of points in each local fit (0–1].
     #[arg(long, value_name = "SPAN")]
     pub loess: Option<f64>,
+    /// Read a one-predictor fit at this x: fitted value with its bands, and (in z-units) how far
+    /// toward the mean a unit at this x is expected to sit on y.
+    #[arg(long, value_name = "X", allow_negative_numbers = true)]
+    pub at: Option<f64>,
     /// Output format.
     #[arg(long, value_enum, default_value_t = Format::Text)]
     pub format: Format,

@@ -1,6 +1,6 @@
 //! `plumb fit`: load, fit, print.
 
-use plumb_data::analysis::{pair_extras, run_fit};
+use plumb_data::analysis::{pair_extras, run_fit, ExtrasRequest};
 
 use crate::cli::{FitArgs, Format};
 use crate::{fit_json, fit_text};
@@ -15,7 +15,12 @@ pub fn run(args: &FitArgs) -> anyhow::Result<String> {
         );
     }
     let outcome = run_fit(&table, &request)?;
-    let extras = pair_extras(&outcome, &request, args.robust, args.loess);
+    let wanted = ExtrasRequest {
+        robust: args.robust,
+        loess_span: args.loess,
+        at: args.at,
+    };
+    let extras = pair_extras(&outcome, &request, wanted);
     Ok(match args.format {
         Format::Json => fit_json::render(&table, &request, &outcome, extras.as_ref())?,
         Format::Text => fit_text::render(&table, &request, &outcome, extras.as_ref()),

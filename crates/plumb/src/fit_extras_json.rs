@@ -81,6 +81,17 @@ pub fn extras(extras: &PairExtras) -> serde_json::Map<String, Value> {
             }),
         );
     }
+    if let Some(a) = &extras.read_at {
+        let p = a.point;
+        out.insert(
+            "at".into(),
+            json!({
+                "x": p.x, "fitted": p.fitted, "mean_low": p.mean_low, "mean_high": p.mean_high,
+                "predict_low": p.predict_low, "predict_high": p.predict_high,
+                "z_x": a.z_x, "expected_z_y": a.expected_z_y,
+            }),
+        );
+    }
     if let Some(z) = &extras.z_view {
         out.insert("z_units".into(), json!({ "slope": z.slope, "slope_squared": z.slope_squared, "shrinkage_toward_mean": z.shrinkage() }));
     }

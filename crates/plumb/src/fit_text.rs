@@ -31,6 +31,20 @@ fn write_extras(out: &mut String, o: &FitOutcome, e: &PairExtras) -> std::fmt::R
     if let Some(z) = &e.z_view {
         writeln!(out, "  in z-units           slope {} (= r), slope² {} (= R² of the line); a unit z SDs out on x is expected {}·z SDs out on y", fixed(z.slope, 4), fixed(z.slope_squared, 4), fixed(z.slope, 3))?;
     }
+    if let Some(a) = &e.read_at {
+        let p = a.point;
+        let label = format!("at x = {}", num(p.x));
+        writeln!(
+            out,
+            "  {label:<21}fitted {}; mean in [{}, {}]; a new reading in [{}, {}]",
+            num(p.fitted),
+            num(p.mean_low),
+            num(p.mean_high),
+            num(p.predict_low),
+            num(p.predict_high)
+        )?;
+        writeln!(out, "                       x is {} SDs from its mean; expected {} SDs on y (toward the mean by {})", fixed(a.z_x, 3), fixed(a.expected_z_y, 3), fixed(a.z_x - a.expected_z_y, 3))?;
+    }
     match &e.robust {
         Some(Ok(RobustFit::TheilSen(t))) => writeln!(
             out,

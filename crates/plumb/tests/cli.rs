@@ -493,6 +493,32 @@ mod association_and_diagnostics {
     }
 
     #[test]
+    fn reading_the_line_at_x_gives_bands_and_the_shrinkage_toward_the_mean() {
+        let v = json(&plumb(&[
+            "fit",
+            &demo("calibration-run.csv"),
+            "--y",
+            "absorbance",
+            "--x",
+            "standard_mg_l",
+            "--at",
+            "35",
+            "--format",
+            "json",
+        ]));
+        let at = &v["at"];
+        let f = |k: &str| at[k].as_f64().unwrap_or_else(|| panic!("{k}"));
+        assert!(
+            f("predict_low") < f("mean_low")
+                && f("mean_low") < f("fitted")
+                && f("fitted") < f("mean_high")
+                && f("mean_high") < f("predict_high")
+        );
+        let r = v["z_units"]["slope"].as_f64().expect("r");
+        assert!((f("expected_z_y") - r * f("z_x")).abs() < 1e-12);
+    }
+
+    #[test]
     fn overlays_refuse_several_predictors() {
         let out = plumb(&[
             "fit",
