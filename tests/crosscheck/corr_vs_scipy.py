@@ -2,8 +2,8 @@
 """Cross-check `plumb corr --format json` against scipy and statsmodels on seeded data with
 ties and missing values.
 
-Reference libraries (pinned in requirements.txt): scipy 1.14.1 (stats.pearsonr, spearmanr,
-kendalltau with their default p-values) and statsmodels 0.14.4 (stats.multitest.multipletests,
+Reference libraries (pinned in requirements.txt): scipy 1.14.1 (stats.pearsonr with its
+Fisher-z confidence_interval(0.95), spearmanr, kendalltau, with their default p-values) and statsmodels 0.14.4 (stats.multitest.multipletests,
 methods 'holm' and 'fdr_bh'). Coefficients, p-values and adjusted p-values must agree to 1e-9
 relative; the pair counts exactly.
 
@@ -63,6 +63,7 @@ def reference(cols, holes, method, adjust):
     p = [[None] * k for _ in range(k)]
     n = [[0] * k for _ in range(k)]
     tested = []
+    ci = {}
     for i in range(k):
         for j in range(i + 1, k):
             keep = [t for t in range(len(cols[i])) if t not in holes[i] and t not in holes[j]]
@@ -70,6 +71,8 @@ def reference(cols, holes, method, adjust):
             n[i][j] = n[j][i] = len(keep)
             if method == "pearson":
                 res = stats.pearsonr(x, y)
+                interval = res.confidence_interval(0.95)
+                ci[(i, j)] = (float(interval.low), float(interval.high))
             elif method == "spearman":
                 res = stats.spearmanr(x, y)
             else:
@@ -85,7 +88,7 @@ def reference(cols, holes, method, adjust):
         adjusted = raw
     for (i, j, _), a in zip(tested, adjusted):
         padj[i][j] = padj[j][i] = float(a)
-    return r, p, padj, n, len(tested)
+    return r, p, padj, n, len(tested), ci
 
 
 def main():
@@ -113,7 +116,7 @@ def main():
                         failed += 1
                         continue
                     got = json.loads(run.stdout)
-                    r, p, padj, cnt, n_tests = reference(cols, holes, method, adjust)
+                    r, p, padj, cnt, n_tests, ci = reference(cols, holes, method, adjust)
                     problems = []
                     if got["n_tests"] != n_tests:
                         problems.append(f"n_tests {got['n_tests']} vs {n_tests}")
@@ -126,6 +129,10 @@ def main():
                             for field, want in (("r", r), ("p_value", p), ("p_adjusted", padj)):
                                 if not close(got[field][i][j], want[i][j], f"{method}.{field}"):
                                     problems.append(f"{field}[{i}][{j}]: plumb {got[field][i][j]!r} vs reference {want[i][j]!r}")
+                    for (i, j), (lo, hi) in ci.items():
+                        for field, want in (("ci_low", lo), ("ci_high", hi)):
+                            if not close(got[field][i][j], want, f"pearson.{field}"):
+                                problems.append(f"{field}[{i}][{j}]: plumb {got[field][i][j]!r} vs scipy {want!r}")
                     if problems:
                         failed += 1
                         print(f"FAIL {label}")

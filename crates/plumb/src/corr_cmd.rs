@@ -25,6 +25,9 @@ struct CorrJson<'a> {
     p_value: &'a [Vec<Option<f64>>],
     p_adjusted: &'a [Vec<Option<f64>>],
     n: &'a [Vec<usize>],
+    ci_level: Option<f64>,
+    ci_low: Option<Vec<Vec<Option<f64>>>>,
+    ci_high: Option<Vec<Vec<Option<f64>>>>,
     reason: &'a [Vec<Option<String>>],
     r_differenced: Option<&'a [Vec<Option<f64>>]>,
     r_detrended: Option<&'a [Vec<Option<f64>>]>,
@@ -91,6 +94,9 @@ pub fn run(args: &CorrArgs) -> anyhow::Result<String> {
                 p_value: &m.p_value,
                 p_adjusted: &m.p_adjusted,
                 n: &m.n,
+                ci_level: (method == Method::Pearson).then_some(0.95),
+                ci_low: (method == Method::Pearson).then(|| ends(&m, |c| c.0)),
+                ci_high: (method == Method::Pearson).then(|| ends(&m, |c| c.1)),
                 reason: &m.reason,
                 r_differenced: m.r_differenced.as_deref(),
                 r_detrended: m.r_detrended.as_deref(),
@@ -105,6 +111,12 @@ pub fn run(args: &CorrArgs) -> anyhow::Result<String> {
             &m,
         ),
     })
+}
+
+fn ends(m: &CorrelationMatrix, pick: fn(&(f64, f64)) -> f64) -> Vec<Vec<Option<f64>>> {
+    m.ci.iter()
+        .map(|row| row.iter().map(|c| c.as_ref().map(pick)).collect())
+        .collect()
 }
 
 fn text(

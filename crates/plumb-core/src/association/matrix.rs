@@ -54,6 +54,8 @@ pub struct CorrelationMatrix {
     pub p_adjusted: Vec<Vec<Option<f64>>>,
     /// Complete pairs used.
     pub n: Vec<Vec<usize>>,
+    /// 95% interval of the coefficient where the method gives one (Pearson: Fisher's z).
+    pub ci: Vec<Vec<Option<(f64, f64)>>>,
     /// Why a cell is undefined (`None` where defined).
     pub reason: Vec<Vec<Option<String>>>,
     /// Pairs tested (defined off-diagonal cells, each counted once).
@@ -81,6 +83,7 @@ pub fn correlation_matrix(
         p_value: vec![vec![None; k]; k],
         p_adjusted: vec![vec![None; k]; k],
         n: vec![vec![0; k]; k],
+        ci: vec![vec![None; k]; k],
         reason: vec![vec![None; k]; k],
         n_tests: 0,
         r_differenced: order.and(guard_cells()),
@@ -106,6 +109,7 @@ pub fn correlation_matrix(
                     for (a_, b_) in [(i, j), (j, i)] {
                         m.r[a_][b_] = Some(a.r);
                         m.p_value[a_][b_] = Some(a.p_value);
+                        m.ci[a_][b_] = a.ci;
                     }
                     tested.push((i, j, a.p_value));
                 }
