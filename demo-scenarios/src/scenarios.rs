@@ -14,17 +14,22 @@ pub const SEED: u64 = 20_261_202;
 /// Writes every scenario into `dir` and returns the paths written.
 pub fn write_all(dir: &Path) -> std::io::Result<Vec<PathBuf>> {
     std::fs::create_dir_all(dir)?;
-    let files = [
-        ("jar-tests.csv", jar_tests()),
-        ("calibration-run.csv", calibration_run()),
-    ];
     let mut written = Vec::new();
-    for (name, text) in files {
+    for (name, text) in all() {
         let path = dir.join(name);
         write_atomically(&path, text.as_bytes())?;
         written.push(path);
     }
     Ok(written)
+}
+
+/// Every scenario: file name and contents.
+pub fn all() -> Vec<(&'static str, String)> {
+    vec![
+        ("jar-tests.csv", jar_tests()),
+        ("calibration-run.csv", calibration_run()),
+        ("field-survey.csv", field_survey()),
+    ]
 }
 
 fn write_atomically(path: &Path, bytes: &[u8]) -> std::io::Result<()> {
@@ -99,6 +104,36 @@ pub fn calibration_run() -> String {
     out
 }
 
+/// A meadow survey: 160 quadrats visited over one growing season in the order they were
+/// walked (`visit_day`). Sward height and soil temperature both climb through the season, so
+/// they correlate strongly without either driving the other; leaf nitrogen and leaf water sit
+/// on a ring (two leaf types, sampled on either side of a mid-season cut), so their Pearson r
+/// is near zero although the two are far from independent. The other traits are ordinary.
+pub fn field_survey() -> String {
+    let mut rng = ChaCha8Rng::seed_from_u64(SEED + 3);
+    let mut out = String::from(
+        "quadrat,visit_day,sward_height_cm,soil_temp_c,leaf_n_pct,leaf_water_pct,species_count,slope_deg\n",
+    );
+    for q in 1..=160u32 {
+        let day = 1.0 + f64::from(q - 1) * 0.9 + rng.random_range(0.0..0.8);
+        let season = day / 145.0;
+        let height = 8.0 + 30.0 * season + normal(3.0).sample(&mut rng);
+        let temp = 9.0 + 8.0 * season + normal(0.9).sample(&mut rng);
+        let angle = rng.random_range(0.0..std::f64::consts::TAU);
+        let leaf_n = 2.6 + 0.45 * angle.cos() + normal(0.04).sample(&mut rng);
+        let leaf_water = 71.0 + 4.0 * angle.sin() + normal(0.35).sample(&mut rng);
+        let slope = rng.random_range(0.0..18.0f64);
+        let species = (14.0 - 0.3 * slope + normal(2.0).sample(&mut rng))
+            .round()
+            .max(2.0);
+        let _ = writeln!(
+            out,
+            "Q{q:03},{day:.1},{height:.1},{temp:.2},{leaf_n:.3},{leaf_water:.2},{species},{slope:.1}"
+        );
+    }
+    out
+}
+
 fn comma(v: f64, decimals: usize) -> String {
     format!("{v:.decimals$}").replace('.', ",")
 }
@@ -112,10 +147,7 @@ mod tests {
         // The files in data/ must be what this seed produces; regenerate with
         // `cargo run -p plumb-demo` after changing a scenario.
         let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("data");
-        for (name, text) in [
-            ("jar-tests.csv", jar_tests()),
-            ("calibration-run.csv", calibration_run()),
-        ] {
+        for (name, text) in all() {
             let committed =
                 std::fs::read_to_string(dir.join(name)).expect("committed scenario file");
             assert!(

@@ -91,8 +91,21 @@ fn write_extras(out: &mut String, o: &FitOutcome, e: &PairExtras) -> std::fmt::R
         writeln!(out, "  adding powers        {}", steps.join("; "))?;
     }
     if let Some(c) = &e.cues {
-        if c.nonlinear {
-            writeln!(out, "  cue: the pair has a strong pattern that is not a straight line (line R² {:.3}, best curve R² {}); r understates it", c.linear_r_squared, c.curve_r_squared.map_or_else(|| "—".into(), |v| format!("{v:.3}")))?;
+        let curve_gain = c.curve_r_squared.is_some_and(|v| {
+            v - c.linear_r_squared >= plumb_core::cues::CURVE_R2_GAIN
+                && v >= plumb_core::cues::CURVE_R2_STRONG
+        });
+        if c.nonlinear && curve_gain {
+            writeln!(out, "  cue: the pair follows a curve, not a straight line (line R² {:.3}, best curve R² {}); r understates it", c.linear_r_squared, c.curve_r_squared.map_or_else(|| "—".into(), |v| format!("{v:.3}")))?;
+        } else if c.nonlinear {
+            let dcor = c.distance_correlation.map_or_else(
+                || "—".into(),
+                |d| format!("{:.3} (permutation p {})", d.0, pval(d.1)),
+            );
+            let grid = c
+                .grid_independence
+                .map_or_else(|| "—".into(), |g| pval(g.2));
+            writeln!(out, "  cue: x and y depend on each other in a way r does not see (distance correlation {dcor}, quantile-grid test p {grid}); plot the pair")?;
         }
         if c.driven_by_one_point {
             writeln!(out, "  cue: r is {:.3} with row {} and {:.3} without it; one point carries the association", c.r, rows[c.most_influential], c.r_without_most_influential)?;

@@ -31,7 +31,7 @@ fn main() -> ExitCode {
             ExitCode::SUCCESS
         }
         Err(e) => {
-            eprintln!("plumb: {e:#}");
+            eprintln!("plumb: {e}");
             ExitCode::FAILURE
         }
     }

@@ -519,6 +519,34 @@ mod association_and_diagnostics {
     }
 
     #[test]
+    fn the_survey_shows_its_shared_drift_and_its_ring() {
+        let survey = demo("field-survey.csv");
+        let out = plumb(&["corr", &survey, "--order", "visit_day"]);
+        let text = String::from_utf8_lossy(&out.stdout);
+        assert!(
+            text.contains(
+                "sward_height_cm and soil_temp_c move together mostly because both drift"
+            ),
+            "{text}"
+        );
+        let v = json(&plumb(&[
+            "fit",
+            &survey,
+            "--y",
+            "leaf_water_pct",
+            "--x",
+            "leaf_n_pct",
+            "--format",
+            "json",
+        ]));
+        assert!(
+            v["r_squared"].as_f64().expect("R²") < 0.05,
+            "the ring has almost no linear R²"
+        );
+        assert_eq!(v["cues"]["nonlinear"], true);
+    }
+
+    #[test]
     fn overlays_refuse_several_predictors() {
         let out = plumb(&[
             "fit",
