@@ -1,0 +1,14 @@
+//! Sessions and the colleague summary.
+//!
+//! * [`Session`]: the versioned, human-readable session file (atomic saves, hash check).
+//! * [`report`]: the summary — one self-contained HTML file, each chart as SVG and PNG, a CSV
+//!   of every statistic and a CSV of the exclusion log — built from the same analysis path as
+//!   the command line and the workbench.
+
+mod atomic;
+mod error;
+mod session;
+
+pub use atomic::write_atomically;
+pub use error::{ReportError, Result};
+pub use session::{file_sha256, DataSource, Exclusion, LoadSpec, ModelSpec, Session, SCHEMA_VERSION};

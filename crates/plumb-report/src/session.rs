@@ -1,0 +1,247 @@
+//! The session file: what was opened, how, which models, and every exclusion with its reason.
+//!
+//! A session is a JSON document (our own schema, see README.md) so that it can be read and
+//! diffed by people. It records the data file's path and SHA-256, so reopening it reproduces
+//! every number, and says so when the data changed.
+
+use std::path::{Path, PathBuf};
+
+use serde::{Deserialize, Serialize};
+use sha2::{Digest, Sha256};
+
+use crate::atomic::write_atomically;
+use crate::{ReportError, Result};
+
+/// Newest schema version this build writes and reads.
+pub const SCHEMA_VERSION: u32 = 1;
+
+/// A saved session.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Session {
+    /// Schema version (always [`SCHEMA_VERSION`] when written by this build).
+    pub plumbline_session: u32,
+    /// The data file and how to read it.
+    pub data: DataSource,
+    /// The models looked at, first one is the main one.
+    pub models: Vec<ModelSpec>,
+    /// Rows left out, each with its reason.
+    #[serde(default)]
+    pub exclusions: Vec<Exclusion>,
+    /// View settings of the workbench (free-form, kept as written).
+    #[serde(default)]
+    pub view: serde_json::Map<String, serde_json::Value>,
+}
+
+/// Where the data came from.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct DataSource {
+    /// Path as the user gave it (relative paths are relative to the session file's folder).
+    pub path: String,
+    /// SHA-256 of the file's bytes when the session was saved, lower-case hex.
+    pub sha256: String,
+    /// Data rows in the file at that time.
+    pub rows: usize,
+    /// Load options.
+    #[serde(default)]
+    pub load: LoadSpec,
+}
+
+/// The load options, as text.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct LoadSpec {
+    /// One-character delimiter, or null to detect.
+    pub delimiter: Option<String>,
+    /// "auto", "yes" or "no".
+    #[serde(default = "auto")]
+    pub header: String,
+    /// "auto", "point" or "comma".
+    #[serde(default = "auto")]
+    pub decimal: String,
+    /// Extra missing-value tokens.
+    #[serde(default)]
+    pub missing: Vec<String>,
+    /// Spreadsheet sheet.
+    pub sheet: Option<String>,
+}
+
+fn auto() -> String {
+    "auto".into()
+}
+
+/// One model of the session.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ModelSpec {
+    /// Response column.
+    pub y: String,
+    /// Predictor columns.
+    pub x: Vec<String>,
+    /// Intercept on or off.
+    #[serde(default = "yes")]
+    pub intercept: bool,
+    /// Polynomial degree of a single predictor.
+    #[serde(default = "one")]
+    pub degree: u32,
+    /// Weights column.
+    #[serde(default)]
+    pub weights: Option<String>,
+    /// Confidence level.
+    #[serde(default = "level")]
+    pub level: f64,
+}
+
+fn yes() -> bool {
+    true
+}
+fn one() -> u32 {
+    1
+}
+fn level() -> f64 {
+    0.95
+}
+
+/// A row left out, and why.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Exclusion {
+    /// 1-based data row.
+    pub row: usize,
+    /// The analyst's reason.
+    pub reason: String,
+    /// When it was recorded (RFC 3339, UTC), if known.
+    #[serde(default)]
+    pub at: Option<String>,
+}
+
+impl Session {
+    /// Reads a session, refusing newer schema versions and malformed files with a clear message.
+    ///
+    /// # Errors
+    /// [`ReportError::Io`], [`ReportError::FutureSession`] or [`ReportError::BadSession`].
+    pub fn load(path: &Path) -> Result<Self> {
+        let text = std::fs::read_to_string(path).map_err(|source| ReportError::Io {
+            path: path.to_path_buf(),
+            action: "reading the session",
+            source,
+        })?;
+        let bad = |e: serde_json::Error| ReportError::BadSession {
+            path: path.to_path_buf(),
+            detail: e.to_string(),
+        };
+        let value: serde_json::Value = serde_json::from_str(&text).map_err(bad)?;
+        let version = value.get("plumbline_session").and_then(serde_json::Value::as_u64);
+        match version {
+            Some(v) if v > u64::from(SCHEMA_VERSION) => Err(ReportError::FutureSession {
+                path: path.to_path_buf(),
+                found: u32::try_from(v).unwrap_or(u32::MAX),
+                supported: SCHEMA_VERSION,
+            }),
+            Some(_) => serde_json::from_value(value).map_err(bad),
+            None => Err(ReportError::BadSession {
+                path: path.to_path_buf(),
+                detail: "no 'plumbline_session' version field".into(),
+            }),
+        }
+    }
+
+    /// Saves atomically (see [`write_atomically`]), as pretty-printed JSON.
+    ///
+    /// # Errors
+    /// [`ReportError::Io`].
+    pub fn save(&self, path: &Path) -> Result<()> {
+        let mut text = serde_json::to_string_pretty(self).expect("a session always serializes");
+        text.push('\n');
+        write_atomically(path, text.as_bytes())
+    }
+
+    /// The data file's path, resolved against the session file's folder when relative.
+    pub fn data_path(&self, session_path: &Path) -> PathBuf {
+        let p = PathBuf::from(&self.data.path);
+        if p.is_absolute() {
+            p
+        } else {
+            session_path.parent().unwrap_or(Path::new(".")).join(p)
+        }
+    }
+}
+
+/// SHA-256 of a file, lower-case hex.
+///
+/// # Errors
+/// [`ReportError::Io`].
+pub fn file_sha256(path: &Path) -> Result<String> {
+    let bytes = std::fs::read(path).map_err(|source| ReportError::Io {
+        path: path.to_path_buf(),
+        action: "reading the data file to hash it",
+        source,
+    })?;
+    Ok(Sha256::digest(&bytes).iter().map(|b| format!("{b:02x}")).collect())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn sample() -> Session {
+        Session {
+            plumbline_session: SCHEMA_VERSION,
+            data: DataSource {
+                path: "jar.csv".into(),
+                sha256: "00".into(),
+                rows: 48,
+                load: LoadSpec::default(),
+            },
+            models: vec![ModelSpec {
+                y: "settled".into(),
+                x: vec!["dose".into()],
+                intercept: true,
+                degree: 2,
+                weights: None,
+                level: 0.95,
+            }],
+            exclusions: vec![Exclusion {
+                row: 17,
+                reason: "decimal point slipped".into(),
+                at: Some("2026-12-02T09:15:00Z".into()),
+            }],
+            view: serde_json::Map::new(),
+        }
+    }
+
+    #[test]
+    fn round_trips_through_a_file() {
+        let dir = tempfile::tempdir().expect("tempdir");
+        let path = dir.path().join("a.plumb");
+        sample().save(&path).expect("saves");
+        assert_eq!(Session::load(&path).expect("loads"), sample());
+        assert_eq!(sample().data_path(&path), dir.path().join("jar.csv"));
+    }
+
+    #[test]
+    fn refuses_future_truncated_and_foreign_files() {
+        let dir = tempfile::tempdir().expect("tempdir");
+        let future = dir.path().join("f.plumb");
+        std::fs::write(&future, r#"{"plumbline_session": 9, "whatever": true}"#).expect("write");
+        assert!(matches!(Session::load(&future), Err(ReportError::FutureSession { found: 9, .. })));
+        let text = serde_json::to_string(&sample()).expect("json");
+        let cut = dir.path().join("t.plumb");
+        std::fs::write(&cut, &text[..text.len() / 2]).expect("write");
+        let err = Session::load(&cut).expect_err("truncated");
+        assert!(err.to_string().contains("not a readable Plumbline session"), "{err}");
+        let foreign = dir.path().join("o.plumb");
+        std::fs::write(&foreign, "{\"a\": 1}").expect("write");
+        assert!(Session::load(&foreign).is_err());
+    }
+
+    #[test]
+    fn hashes_are_sha256() {
+        // SHA-256("abc") = ba7816bf… (FIPS 180-2, appendix B.1).
+        let dir = tempfile::tempdir().expect("tempdir");
+        let path = dir.path().join("abc");
+        std::fs::write(&path, "abc").expect("write");
+        assert_eq!(file_sha256(&path).expect("hash"), "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad");
+    }
+}
