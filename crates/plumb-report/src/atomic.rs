@@ -21,7 +21,11 @@ pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<()> {
     let file_name = path
         .file_name()
         .ok_or_else(|| io("naming the file")(std::io::Error::other("the path has no file name")))?;
-    let tmp = path.with_file_name(format!(".{}.tmp-{}", file_name.to_string_lossy(), std::process::id()));
+    let tmp = path.with_file_name(format!(
+        ".{}.tmp-{}",
+        file_name.to_string_lossy(),
+        std::process::id()
+    ));
     let result = (|| {
         let mut f = std::fs::File::create(&tmp).map_err(io("creating the temporary file"))?;
         f.write_all(bytes).map_err(io("writing"))?;
@@ -51,14 +55,24 @@ mod tests {
         let path = dir.path().join("s.json");
         std::fs::write(&path, "old").expect("seed");
         write_atomically(&path, b"new contents").expect("writes");
-        assert_eq!(std::fs::read_to_string(&path).expect("read"), "new contents");
-        let names: Vec<_> = std::fs::read_dir(dir.path()).expect("list").map(|e| e.expect("entry").file_name()).collect();
+        assert_eq!(
+            std::fs::read_to_string(&path).expect("read"),
+            "new contents"
+        );
+        let names: Vec<_> = std::fs::read_dir(dir.path())
+            .expect("list")
+            .map(|e| e.expect("entry").file_name())
+            .collect();
         assert_eq!(names.len(), 1, "{names:?}");
     }
 
     #[test]
     fn a_missing_folder_is_an_error_that_names_the_path() {
-        let err = write_atomically(Path::new("/nonexistent-plumb/x.json"), b"x").expect_err("no folder");
-        assert!(err.to_string().contains("/nonexistent-plumb/x.json"), "{err}");
+        let err =
+            write_atomically(Path::new("/nonexistent-plumb/x.json"), b"x").expect_err("no folder");
+        assert!(
+            err.to_string().contains("/nonexistent-plumb/x.json"),
+            "{err}"
+        );
     }
 }

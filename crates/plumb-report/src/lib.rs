@@ -6,9 +6,16 @@
 //!   the command line and the workbench.
 
 mod atomic;
+pub mod charts;
+mod effects;
 mod error;
+pub mod report;
 mod session;
+pub mod text;
 
 pub use atomic::write_atomically;
+pub use effects::{exclusion_effects, Effect, Headline};
 pub use error::{ReportError, Result};
-pub use session::{file_sha256, DataSource, Exclusion, LoadSpec, ModelSpec, Session, SCHEMA_VERSION};
+pub use session::{
+    file_sha256, DataSource, Exclusion, LoadSpec, ModelSpec, Session, SCHEMA_VERSION,
+};

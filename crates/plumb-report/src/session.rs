@@ -132,7 +132,9 @@ impl Session {
             detail: e.to_string(),
         };
         let value: serde_json::Value = serde_json::from_str(&text).map_err(bad)?;
-        let version = value.get("plumbline_session").and_then(serde_json::Value::as_u64);
+        let version = value
+            .get("plumbline_session")
+            .and_then(serde_json::Value::as_u64);
         match version {
             Some(v) if v > u64::from(SCHEMA_VERSION) => Err(ReportError::FutureSession {
                 path: path.to_path_buf(),
@@ -157,6 +159,20 @@ impl Session {
         write_atomically(path, text.as_bytes())
     }
 
+    /// How to write `data` in a session saved at `session_path`: relative to the session's
+    /// folder when the data file lies inside it, absolute otherwise.
+    pub fn data_path_for(data: &Path, session_path: &Path) -> String {
+        let absolute = std::fs::canonicalize(data).unwrap_or_else(|_| data.to_path_buf());
+        let folder = session_path
+            .parent()
+            .filter(|d| !d.as_os_str().is_empty())
+            .and_then(|d| std::fs::canonicalize(d).ok());
+        match folder.and_then(|f| absolute.strip_prefix(f).ok().map(Path::to_path_buf)) {
+            Some(relative) => relative.display().to_string(),
+            None => absolute.display().to_string(),
+        }
+    }
+
     /// The data file's path, resolved against the session file's folder when relative.
     pub fn data_path(&self, session_path: &Path) -> PathBuf {
         let p = PathBuf::from(&self.data.path);
@@ -178,7 +194,10 @@ pub fn file_sha256(path: &Path) -> Result<String> {
         action: "reading the data file to hash it",
         source,
     })?;
-    Ok(Sha256::digest(&bytes).iter().map(|b| format!("{b:02x}")).collect())
+    Ok(Sha256::digest(&bytes)
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect())
 }
 
 #[cfg(test)]
@@ -225,12 +244,18 @@ mod tests {
         let dir = tempfile::tempdir().expect("tempdir");
         let future = dir.path().join("f.plumb");
         std::fs::write(&future, r#"{"plumbline_session": 9, "whatever": true}"#).expect("write");
-        assert!(matches!(Session::load(&future), Err(ReportError::FutureSession { found: 9, .. })));
+        assert!(matches!(
+            Session::load(&future),
+            Err(ReportError::FutureSession { found: 9, .. })
+        ));
         let text = serde_json::to_string(&sample()).expect("json");
         let cut = dir.path().join("t.plumb");
         std::fs::write(&cut, &text[..text.len() / 2]).expect("write");
         let err = Session::load(&cut).expect_err("truncated");
-        assert!(err.to_string().contains("not a readable Plumbline session"), "{err}");
+        assert!(
+            err.to_string().contains("not a readable Plumbline session"),
+            "{err}"
+        );
         let foreign = dir.path().join("o.plumb");
         std::fs::write(&foreign, "{\"a\": 1}").expect("write");
         assert!(Session::load(&foreign).is_err());
@@ -242,6 +267,9 @@ mod tests {
         let dir = tempfile::tempdir().expect("tempdir");
         let path = dir.path().join("abc");
         std::fs::write(&path, "abc").expect("write");
-        assert_eq!(file_sha256(&path).expect("hash"), "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad");
+        assert_eq!(
+            file_sha256(&path).expect("hash"),
+            "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
+        );
     }
 }

@@ -21,6 +21,8 @@ pub enum Command {
     Fit(FitArgs),
     /// Diagnose each row of a fit: leverage, studentized residuals, Cook's distance, DFFITS, DFBETAS.
     Influence(InfluenceArgs),
+    /// Write the summary for a colleague (HTML, charts as SVG/PNG, CSVs) from a session or a data file.
+    Report(ReportArgs),
     /// Measure how every pair of numeric columns moves together, with adjusted p-values.
     Corr(CorrArgs),
     /// List the columns of a data file with their type, missing count and range.
@@ -231,6 +233,54 @@ pub struct InfluenceArgs {
     /// Output format.
     #[arg(long, value_enum, default_value_t = Format::Text)]
     pub format: Format,
+}
+
+/// `plumb report`.
+#[derive(Debug, ClapArgs)]
+pub struct ReportArgs {
+    /// A session file (`.plumb`), or a data file with --y and --x.
+    #[command(flatten)]
+    pub load: LoadArgs,
+    /// Response column (data-file input).
+    #[arg(long, value_name = "COLUMN")]
+    pub y: Option<String>,
+    /// Predictor column, repeatable (data-file input).
+    #[arg(long, value_name = "COLUMN")]
+    pub x: Vec<String>,
+    /// Fit through the origin.
+    #[arg(long)]
+    pub no_intercept: bool,
+    /// Polynomial degree of the single predictor (1..=10).
+    #[arg(long, default_value_t = 1, value_parser = clap::value_parser!(u32).range(1..=10))]
+    pub degree: u32,
+    /// Column of positive weights.
+    #[arg(long, value_name = "COLUMN")]
+    pub weights: Option<String>,
+    /// Data rows to leave out: "3,17,40-42".
+    #[arg(long, value_name = "ROWS", value_parser = parse_rows)]
+    pub exclude: Option<RowList>,
+    /// The reason for excluding a row, as ROW=TEXT (repeatable); rows without one are flagged.
+    #[arg(long = "reason", value_name = "ROW=TEXT", value_parser = parse_reason)]
+    pub reasons: Vec<(usize, String)>,
+    /// Confidence level of the intervals.
+    #[arg(long, default_value_t = 0.95, value_parser = parse_level)]
+    pub level: f64,
+    /// Where to write the HTML; the other files go beside it.
+    #[arg(short = 'o', long = "output", value_name = "FILE.html")]
+    pub output: PathBuf,
+    /// Also save this analysis as a session file (data-file input).
+    #[arg(long, value_name = "FILE.plumb")]
+    pub save_session: Option<PathBuf>,
+}
+
+fn parse_reason(s: &str) -> Result<(usize, String), String> {
+    let bad = || format!("'{s}' is not ROW=TEXT (such as 17=\"decimal point slipped\")");
+    let (row, text) = s.split_once('=').ok_or_else(bad)?;
+    let row: usize = row.trim().parse().map_err(|_| bad())?;
+    if row == 0 || text.trim().is_empty() {
+        return Err(bad());
+    }
+    Ok((row, text.trim().to_string()))
 }
 
 /// `plumb columns`.

@@ -9,6 +9,7 @@ mod fit_extras_json;
 mod fit_json;
 mod fit_text;
 mod influence_cmd;
+mod report_cmd;
 
 use std::process::ExitCode;
 
@@ -19,6 +20,7 @@ fn main() -> ExitCode {
     let result = match args.command {
         Some(cli::Command::Fit(a)) => fit_cmd::run(&a),
         Some(cli::Command::Influence(a)) => influence_cmd::run(&a),
+        Some(cli::Command::Report(a)) => report_cmd::run(&a),
         Some(cli::Command::Corr(a)) => corr_cmd::run(&a),
         Some(cli::Command::Columns(a)) => columns_cmd::run(&a),
         None => Err(anyhow::anyhow!(

@@ -564,3 +564,129 @@ mod association_and_diagnostics {
         assert!(stderr(&out).contains("one predictor"), "{}", stderr(&out));
     }
 }
+
+mod summary {
+    //! `plumb report` and session files.
+    use super::*;
+
+    #[test]
+    fn a_saved_session_reproduces_the_summary_exactly() {
+        let tmp = tempfile::tempdir().expect("tempdir");
+        let out1 = tmp.path().join("first.html");
+        let session = tmp.path().join("jar.plumb");
+        let data = demo("jar-tests.csv");
+        let run = plumb(&[
+            "report",
+            &data,
+            "--y",
+            "settled_ntu",
+            "--x",
+            "dose_mg_l",
+            "--degree",
+            "2",
+            "--exclude",
+            "17,38",
+            "--reason",
+            "17=decimal point slipped",
+            "-o",
+            &out1.to_string_lossy(),
+            "--save-session",
+            &session.to_string_lossy(),
+        ]);
+        assert!(run.status.success(), "{}", stderr(&run));
+        let out2 = tmp.path().join("second.html");
+        let again = plumb(&[
+            "report",
+            &session.to_string_lossy(),
+            "-o",
+            &out2.to_string_lossy(),
+        ]);
+        assert!(again.status.success(), "{}", stderr(&again));
+        let read = |name: &str| std::fs::read(tmp.path().join(name)).expect(name);
+        assert_eq!(read("first-statistics.csv"), read("second-statistics.csv"));
+        assert_eq!(read("first-exclusions.csv"), read("second-exclusions.csv"));
+        assert_eq!(read("first-pair.svg"), read("second-pair.svg"));
+        let html = String::from_utf8(read("second.html")).expect("utf-8");
+        assert!(html.contains("decimal point slipped") && html.contains("no reason given"));
+    }
+
+    #[test]
+    fn bad_sessions_are_refused_with_a_clear_message() {
+        let tmp = tempfile::tempdir().expect("tempdir");
+        let out = tmp.path().join("s.html").to_string_lossy().into_owned();
+        let future = write(tmp.path(), "future.plumb", r#"{"plumbline_session": 7}"#);
+        let e = plumb(&["report", &future.to_string_lossy(), "-o", &out]);
+        assert_eq!(e.status.code(), Some(1));
+        assert!(
+            stderr(&e).contains("newer than this Plumbline"),
+            "{}",
+            stderr(&e)
+        );
+        let cut = write(
+            tmp.path(),
+            "cut.plumb",
+            r#"{"plumbline_session": 1, "data": {"path": "x.csv", "sha"#,
+        );
+        assert!(
+            stderr(&plumb(&["report", &cut.to_string_lossy(), "-o", &out]))
+                .contains("not a readable Plumbline session")
+        );
+        let missing = write(
+            tmp.path(),
+            "gone.plumb",
+            r#"{"plumbline_session": 1, "data": {"path": "nowhere.csv", "sha256": "00", "rows": 3}, "models": [{"y": "y", "x": ["x"]}]}"#,
+        );
+        let m = plumb(&["report", &missing.to_string_lossy(), "-o", &out]);
+        assert_eq!(m.status.code(), Some(1));
+        assert!(stderr(&m).contains("nowhere.csv"), "{}", stderr(&m));
+    }
+
+    #[test]
+    fn a_reason_for_a_row_that_is_not_excluded_is_refused() {
+        let tmp = tempfile::tempdir().expect("tempdir");
+        let out = tmp.path().join("s.html").to_string_lossy().into_owned();
+        let e = plumb(&[
+            "report",
+            &demo("jar-tests.csv"),
+            "--y",
+            "settled_ntu",
+            "--x",
+            "dose_mg_l",
+            "--reason",
+            "3=typo",
+            "-o",
+            &out,
+        ]);
+        assert_eq!(e.status.code(), Some(1));
+        assert!(stderr(&e).contains("not in --exclude"), "{}", stderr(&e));
+    }
+
+    #[test]
+    fn a_changed_data_file_is_announced() {
+        let tmp = tempfile::tempdir().expect("tempdir");
+        let data = write(tmp.path(), "d.csv", "x,y\n1,2\n2,3.9\n3,6.2\n4,8.1\n");
+        let session = tmp.path().join("d.plumb");
+        let out = tmp.path().join("s.html").to_string_lossy().into_owned();
+        let first = plumb(&[
+            "report",
+            &data.to_string_lossy(),
+            "--y",
+            "y",
+            "--x",
+            "x",
+            "-o",
+            &out,
+            "--save-session",
+            &session.to_string_lossy(),
+        ]);
+        assert!(first.status.success(), "{}", stderr(&first));
+        std::fs::write(&data, "x,y\n1,2\n2,3.9\n3,6.2\n4,8.1\n5,9.8\n").expect("edit");
+        let again = plumb(&["report", &session.to_string_lossy(), "-o", &out]);
+        let text = String::from_utf8_lossy(&again.stdout);
+        assert!(
+            text.contains("changed since the session was saved")
+                && text.contains("4 data rows then, 5 now"),
+            "{text}"
+        );
+    }
+}

@@ -1,0 +1,305 @@
+//! Static charts of one fit: the pair with its fitted curve and bands, residuals against
+//! fitted values, and leverage against studentized residuals with Cook's-distance contours.
+//! Each is drawn once by plotters into SVG and into a PNG (text in the bundled DejaVu Sans, so
+//! no system font is looked up).
+
+use std::sync::Once;
+
+use plotters::coord::Shift;
+use plotters::prelude::*;
+
+use crate::{ReportError, Result};
+
+/// Chart size in pixels (SVG user units).
+pub const SIZE: (u32, u32) = (720, 460);
+
+const INK: RGBColor = RGBColor(38, 50, 56);
+const FIT: RGBColor = RGBColor(21, 101, 192);
+const OUT: RGBColor = RGBColor(216, 67, 21);
+const GUIDE: RGBColor = RGBColor(120, 144, 156);
+const FONT: &str = "sans-serif";
+
+/// One drawn chart.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Chart {
+    /// Short file-name stem, e.g. `pair`.
+    pub name: &'static str,
+    /// Title shown above it.
+    pub title: String,
+    /// SVG document.
+    pub svg: String,
+    /// PNG bytes.
+    pub png: Vec<u8>,
+}
+
+/// A point of a scatter, with its row number and whether it is excluded.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Dot {
+    /// Horizontal value.
+    pub x: f64,
+    /// Vertical value.
+    pub y: f64,
+    /// Excluded by the analyst (drawn hollow, in the exclusion colour).
+    pub excluded: bool,
+}
+
+/// What the pair chart shows.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PairChart<'a> {
+    /// Axis labels.
+    pub x_label: &'a str,
+    /// Axis labels.
+    pub y_label: &'a str,
+    /// Points.
+    pub dots: Vec<Dot>,
+    /// `(x, fitted, mean_low, mean_high, predict_low, predict_high)` along the curve.
+    pub curve: Vec<[f64; 6]>,
+}
+
+fn register_font() {
+    static ONCE: Once = Once::new();
+    ONCE.call_once(|| {
+        // The bundled font is valid; a failure would only cost text in PNGs.
+        let _ = plotters::style::register_font(FONT, FontStyle::Normal, dejavu::sans::regular());
+    });
+}
+
+/// Something that draws itself on any plotters backend.
+trait Paint {
+    fn paint<DB: DrawingBackend>(
+        &self,
+        root: &DrawingArea<DB, Shift>,
+    ) -> std::result::Result<(), String>;
+}
+
+/// Draws `painter` into an SVG and a PNG.
+fn render(name: &'static str, title: String, painter: &impl Paint) -> Result<Chart> {
+    register_font();
+    let fail = |detail: String| ReportError::Chart {
+        chart: name.to_string(),
+        detail,
+    };
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, SIZE).into_drawing_area();
+        painter.paint(&root).map_err(fail)?;
+        root.present().map_err(|e| fail(e.to_string()))?;
+    }
+    let mut rgb = vec![0u8; (SIZE.0 * SIZE.1 * 3) as usize];
+    {
+        let root = BitMapBackend::with_buffer(&mut rgb, SIZE).into_drawing_area();
+        painter.paint(&root).map_err(fail)?;
+        root.present().map_err(|e| fail(e.to_string()))?;
+    }
+    let image = image::RgbImage::from_raw(SIZE.0, SIZE.1, rgb)
+        .ok_or_else(|| fail("pixel buffer of the wrong size".into()))?;
+    let mut png = Vec::new();
+    image
+        .write_to(&mut std::io::Cursor::new(&mut png), image::ImageFormat::Png)
+        .map_err(|e| fail(e.to_string()))?;
+    Ok(Chart {
+        name,
+        title,
+        svg,
+        png,
+    })
+}
+
+fn range(values: impl Iterator<Item = f64>) -> (f64, f64) {
+    let (lo, hi) = values
+        .filter(|v| v.is_finite())
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), v| {
+            (a.min(v), b.max(v))
+        });
+    if !lo.is_finite() {
+        return (0.0, 1.0);
+    }
+    let pad = if hi > lo {
+        0.06 * (hi - lo)
+    } else {
+        0.5_f64.max(lo.abs() * 0.1)
+    };
+    (lo - pad, hi + pad)
+}
+
+fn dots_series<DB: DrawingBackend>(
+    chart: &mut ChartContext<
+        '_,
+        DB,
+        Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>,
+    >,
+    dots: &[Dot],
+) -> std::result::Result<(), String> {
+    chart
+        .draw_series(
+            dots.iter()
+                .filter(|d| !d.excluded)
+                .map(|d| Circle::new((d.x, d.y), 3, INK.filled())),
+        )
+        .map_err(|e| e.to_string())?;
+    chart
+        .draw_series(
+            dots.iter()
+                .filter(|d| d.excluded)
+                .map(|d| Circle::new((d.x, d.y), 5, OUT.stroke_width(2))),
+        )
+        .map_err(|e| e.to_string())?;
+    Ok(())
+}
+
+/// The pair with its fitted curve, mean band (shaded) and prediction band (dashed).
+pub fn pair_chart(data: &PairChart<'_>, title: String) -> Result<Chart> {
+    render("pair", title, data)
+}
+
+impl Paint for PairChart<'_> {
+    fn paint<DB: DrawingBackend>(
+        &self,
+        root: &DrawingArea<DB, Shift>,
+    ) -> std::result::Result<(), String> {
+        let data = self;
+        root.fill(&WHITE).map_err(|e| e.to_string())?;
+        let (x0, x1) = range(
+            data.dots
+                .iter()
+                .map(|d| d.x)
+                .chain(data.curve.iter().map(|c| c[0])),
+        );
+        let (y0, y1) = range(
+            data.dots
+                .iter()
+                .map(|d| d.y)
+                .chain(data.curve.iter().flat_map(|c| [c[4], c[5]])),
+        );
+        let mut chart = ChartBuilder::on(root)
+            .margin(14)
+            .x_label_area_size(42)
+            .y_label_area_size(64)
+            .build_cartesian_2d(x0..x1, y0..y1)
+            .map_err(|e| e.to_string())?;
+        chart
+            .configure_mesh()
+            .light_line_style(WHITE)
+            .x_desc(data.x_label)
+            .y_desc(data.y_label)
+            .label_style((FONT, 13))
+            .draw()
+            .map_err(|e| e.to_string())?;
+        if !data.curve.is_empty() {
+            let band: Vec<(f64, f64)> = data
+                .curve
+                .iter()
+                .map(|c| (c[0], c[3]))
+                .chain(data.curve.iter().rev().map(|c| (c[0], c[2])))
+                .collect();
+            chart
+                .draw_series(std::iter::once(Polygon::new(band, FIT.mix(0.18))))
+                .map_err(|e| e.to_string())?;
+            for k in [4, 5] {
+                chart
+                    .draw_series(DashedLineSeries::new(
+                        data.curve.iter().map(|c| (c[0], c[k])),
+                        6,
+                        4,
+                        GUIDE.stroke_width(1),
+                    ))
+                    .map_err(|e| e.to_string())?;
+            }
+            chart
+                .draw_series(LineSeries::new(
+                    data.curve.iter().map(|c| (c[0], c[1])),
+                    FIT.stroke_width(2),
+                ))
+                .map_err(|e| e.to_string())?;
+        }
+        dots_series(&mut chart, &data.dots)
+    }
+}
+
+/// Residuals against fitted values, with the zero line.
+pub fn residual_chart(dots: &[Dot], title: String) -> Result<Chart> {
+    render("residuals", title, &Residuals(dots))
+}
+
+struct Residuals<'a>(&'a [Dot]);
+
+impl Paint for Residuals<'_> {
+    fn paint<DB: DrawingBackend>(
+        &self,
+        root: &DrawingArea<DB, Shift>,
+    ) -> std::result::Result<(), String> {
+        let dots = self.0;
+        root.fill(&WHITE).map_err(|e| e.to_string())?;
+        let (x0, x1) = range(dots.iter().map(|d| d.x));
+        let (y0, y1) = range(dots.iter().map(|d| d.y).chain([0.0]));
+        let mut chart = ChartBuilder::on(root)
+            .margin(14)
+            .x_label_area_size(42)
+            .y_label_area_size(64)
+            .build_cartesian_2d(x0..x1, y0..y1)
+            .map_err(|e| e.to_string())?;
+        chart
+            .configure_mesh()
+            .light_line_style(WHITE)
+            .x_desc("fitted value")
+            .y_desc("residual")
+            .label_style((FONT, 13))
+            .draw()
+            .map_err(|e| e.to_string())?;
+        chart
+            .draw_series(LineSeries::new(
+                [(x0, 0.0), (x1, 0.0)],
+                GUIDE.stroke_width(1),
+            ))
+            .map_err(|e| e.to_string())?;
+        dots_series(&mut chart, dots)
+    }
+}
+
+/// Leverage against externally studentized residuals, with the curves where Cook's distance
+/// equals 0.5 and 1 for a model of `p` terms: `r = ±√(D·p·(1 − h)/h)`.
+pub fn leverage_chart(dots: &[Dot], p: usize, title: String) -> Result<Chart> {
+    render("leverage", title, &Leverage(dots, p))
+}
+
+struct Leverage<'a>(&'a [Dot], usize);
+
+impl Paint for Leverage<'_> {
+    fn paint<DB: DrawingBackend>(
+        &self,
+        root: &DrawingArea<DB, Shift>,
+    ) -> std::result::Result<(), String> {
+        let (dots, p) = (self.0, self.1);
+        root.fill(&WHITE).map_err(|e| e.to_string())?;
+        let (_, x1) = range(dots.iter().map(|d| d.x));
+        let x1 = x1.min(1.0);
+        let (y0, y1) = range(dots.iter().map(|d| d.y).chain([-3.5, 3.5]));
+        let mut chart = ChartBuilder::on(root)
+            .margin(14)
+            .x_label_area_size(42)
+            .y_label_area_size(64)
+            .build_cartesian_2d(0.0..x1, y0..y1)
+            .map_err(|e| e.to_string())?;
+        chart
+            .configure_mesh()
+            .light_line_style(WHITE)
+            .x_desc("leverage")
+            .y_desc("studentized residual")
+            .label_style((FONT, 13))
+            .draw()
+            .map_err(|e| e.to_string())?;
+        for d in [0.5, 1.0] {
+            for sign in [-1.0, 1.0] {
+                let pts = (1..=60).map(|k| {
+                    let h = x1 * f64::from(k) / 60.0;
+                    (h, sign * (d * p as f64 * (1.0 - h) / h).sqrt())
+                });
+                let pts: Vec<(f64, f64)> = pts.filter(|(_, r)| *r >= y0 && *r <= y1).collect();
+                chart
+                    .draw_series(DashedLineSeries::new(pts, 4, 4, GUIDE.stroke_width(1)))
+                    .map_err(|e| e.to_string())?;
+            }
+        }
+        dots_series(&mut chart, dots)
+    }
+}

@@ -1,0 +1,84 @@
+//! Escaping and number formatting shared by the HTML and CSV writers.
+
+/// Escapes `&`, `<`, `>`, `"` and `'` for HTML text and attributes.
+pub fn html(s: &str) -> String {
+    let mut out = String::with_capacity(s.len());
+    for c in s.chars() {
+        match c {
+            '&' => out.push_str("&amp;"),
+            '<' => out.push_str("&lt;"),
+            '>' => out.push_str("&gt;"),
+            '"' => out.push_str("&quot;"),
+            '\'' => out.push_str("&#39;"),
+            _ => out.push(c),
+        }
+    }
+    out
+}
+
+/// A CSV field: quoted (with doubled quotes) when it holds a comma, quote or line break.
+pub fn csv(s: &str) -> String {
+    if s.contains([',', '"', '\n', '\r']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_string()
+    }
+}
+
+/// Six significant digits for people; "—" for undefined values.
+pub fn num(v: f64) -> String {
+    if !v.is_finite() {
+        return "—".into();
+    }
+    let a = v.abs();
+    if a != 0.0 && !(1e-4..1e7).contains(&a) {
+        format!("{v:.4e}")
+    } else {
+        let digits = if a == 0.0 {
+            0
+        } else {
+            a.log10().floor() as i32
+        };
+        let decimals = (5 - digits).clamp(0, 10) as usize;
+        format!("{v:.decimals$}")
+    }
+}
+
+/// A p-value for people.
+pub fn p(v: f64) -> String {
+    if !v.is_finite() {
+        "—".into()
+    } else if v < 1e-4 {
+        format!("{v:.2e}")
+    } else {
+        format!("{v:.4}")
+    }
+}
+
+/// Full precision (shortest round-trip) for machine-readable files; empty when undefined.
+pub fn exact(v: f64) -> String {
+    if v.is_finite() {
+        // Debug formatting is the shortest round-trip form, with an exponent for tiny and huge values.
+        format!("{v:?}")
+    } else {
+        String::new()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn escapes_markup_and_csv_delimiters() {
+        assert_eq!(
+            html("<b>a & 'b'</b>"),
+            "&lt;b&gt;a &amp; &#39;b&#39;&lt;/b&gt;"
+        );
+        assert_eq!(csv("plain"), "plain");
+        assert_eq!(csv("a,\"b\""), "\"a,\"\"b\"\"\"");
+        assert_eq!(exact(0.1), "0.1");
+        assert_eq!(exact(1.8e-21), "1.8e-21");
+        assert_eq!(exact(f64::NAN), "");
+    }
+}

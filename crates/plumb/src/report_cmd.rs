@@ -1,0 +1,222 @@
+//! `plumb report`: the colleague summary, from a session or from a data file and a model.
+
+use std::path::Path;
+
+use plumb_data::analysis::FitRequest;
+use plumb_report::report::{build, write, ReportInput};
+use plumb_report::{
+    file_sha256, DataSource, Exclusion, LoadSpec, ModelSpec, Session, SCHEMA_VERSION,
+};
+
+use crate::cli::{DecimalArg, HeaderArg, ReportArgs};
+
+pub fn run(args: &ReportArgs) -> anyhow::Result<String> {
+    let input = &args.load.data;
+    let is_session = input.extension().is_some_and(|e| e == "plumb");
+    let (table, request, exclusions, reproduce, note) = if is_session {
+        from_session(input, &args.output)?
+    } else {
+        from_data(args)?
+    };
+    let sha256 = file_sha256(table.source())?;
+    let report = build(&ReportInput {
+        table: &table,
+        sha256: sha256.clone(),
+        request: request.clone(),
+        exclusions: exclusions.clone(),
+        reproduce,
+    })?;
+    let files = write(&report, &args.output)?;
+    if let (Some(path), false) = (&args.save_session, is_session) {
+        session_of(args, &table, &request, &exclusions, sha256).save(path)?;
+    }
+    let mut out = String::new();
+    if let Some(n) = note {
+        out.push_str(&format!("note: {n}\n"));
+    }
+    for f in files {
+        out.push_str(&format!("wrote {}\n", f.display()));
+    }
+    Ok(out)
+}
+
+type Prepared = (
+    plumb_data::Table,
+    FitRequest,
+    Vec<Exclusion>,
+    String,
+    Option<String>,
+);
+
+fn from_session(path: &Path, output: &Path) -> anyhow::Result<Prepared> {
+    let session = Session::load(path)?;
+    let data_path = session.data_path(path);
+    let spec = &session.data.load;
+    let options = plumb_data::LoadOptions {
+        delimiter: spec.delimiter.as_deref().and_then(|d| d.bytes().next()),
+        header: match spec.header.as_str() {
+            "yes" => plumb_data::HeaderMode::Yes,
+            "no" => plumb_data::HeaderMode::No,
+            _ => plumb_data::HeaderMode::Auto,
+        },
+        decimal: match spec.decimal.as_str() {
+            "point" => Some(plumb_data::DecimalMark::Point),
+            "comma" => Some(plumb_data::DecimalMark::Comma),
+            _ => None,
+        },
+        missing_tokens: spec.missing.clone(),
+        sheet: spec.sheet.clone(),
+    };
+    let table = plumb_data::load(&data_path, &options)?;
+    let hash = file_sha256(&data_path)?;
+    let note = (hash != session.data.sha256).then(|| {
+        format!(
+            "{} changed since the session was saved (SHA-256 differs; {} data rows then, {} now); the exclusions below name rows of the file as it is now",
+            data_path.display(),
+            session.data.rows,
+            table.n_rows()
+        )
+    });
+    let model = session
+        .models
+        .first()
+        .ok_or_else(|| anyhow::anyhow!("{}: the session names no model", path.display()))?;
+    let request = FitRequest {
+        y: model.y.clone(),
+        x: model.x.clone(),
+        intercept: model.intercept,
+        degree: model.degree,
+        weights: model.weights.clone(),
+        exclude: session.exclusions.iter().map(|e| e.row).collect(),
+        level: model.level,
+    };
+    let reproduce = format!("plumb report {} -o {}", path.display(), output.display());
+    Ok((table, request, session.exclusions.clone(), reproduce, note))
+}
+
+fn from_data(args: &ReportArgs) -> anyhow::Result<Prepared> {
+    let y = args.y.clone().ok_or_else(|| {
+        anyhow::anyhow!(
+            "{}: name the response with --y (or give a .plumb session)",
+            args.load.data.display()
+        )
+    })?;
+    if args.x.is_empty() {
+        anyhow::bail!(
+            "{}: name at least one predictor with --x",
+            args.load.data.display()
+        );
+    }
+    let table = plumb_data::load(&args.load.data, &args.load.options())?;
+    let exclude = args
+        .exclude
+        .as_ref()
+        .map(|r| r.0.clone())
+        .unwrap_or_default();
+    if let Some((row, _)) = args.reasons.iter().find(|(r, _)| !exclude.contains(r)) {
+        anyhow::bail!(
+            "--reason names row {row}, which is not in --exclude; add it there or drop the reason"
+        );
+    }
+    let exclusions = exclude
+        .iter()
+        .map(|&row| Exclusion {
+            row,
+            reason: args
+                .reasons
+                .iter()
+                .find(|(r, _)| *r == row)
+                .map(|(_, t)| t.clone())
+                .unwrap_or_default(),
+            at: None,
+        })
+        .filter(|e| !e.reason.is_empty())
+        .collect();
+    let request = FitRequest {
+        y,
+        x: args.x.clone(),
+        intercept: !args.no_intercept,
+        degree: args.degree,
+        weights: args.weights.clone(),
+        exclude,
+        level: args.level,
+    };
+    let reproduce = std::iter::once("plumb".to_string())
+        .chain(std::env::args().skip(1))
+        .map(|a| shell_quote(&a))
+        .collect::<Vec<_>>()
+        .join(" ");
+    Ok((table, request, exclusions, reproduce, None))
+}
+
+fn session_of(
+    args: &ReportArgs,
+    table: &plumb_data::Table,
+    request: &FitRequest,
+    exclusions: &[Exclusion],
+    sha256: String,
+) -> Session {
+    Session {
+        plumbline_session: SCHEMA_VERSION,
+        data: DataSource {
+            path: Session::data_path_for(
+                table.source(),
+                args.save_session.as_deref().unwrap_or(Path::new(".")),
+            ),
+            sha256,
+            rows: table.n_rows(),
+            load: LoadSpec {
+                delimiter: args.load.delimiter.map(|d| (d as char).to_string()),
+                header: match args.load.header {
+                    HeaderArg::Auto => "auto",
+                    HeaderArg::Yes => "yes",
+                    HeaderArg::No => "no",
+                }
+                .into(),
+                decimal: match args.load.decimal {
+                    DecimalArg::Auto => "auto",
+                    DecimalArg::Point => "point",
+                    DecimalArg::Comma => "comma",
+                }
+                .into(),
+                missing: args.load.missing.clone(),
+                sheet: args.load.sheet.clone(),
+            },
+        },
+        models: vec![ModelSpec {
+            y: request.y.clone(),
+            x: request.x.clone(),
+            intercept: request.intercept,
+            degree: request.degree,
+            weights: request.weights.clone(),
+            level: request.level,
+        }],
+        exclusions: request
+            .exclude
+            .iter()
+            .map(|&row| {
+                exclusions
+                    .iter()
+                    .find(|e| e.row == row)
+                    .cloned()
+                    .unwrap_or(Exclusion {
+                        row,
+                        reason: String::new(),
+                        at: None,
+                    })
+            })
+            .collect(),
+        view: serde_json::Map::new(),
+    }
+}
+
+fn shell_quote(a: &str) -> String {
+    if !a.is_empty()
+        && a.chars()
+            .all(|c| c.is_ascii_alphanumeric() || "-_./=:,+".contains(c))
+    {
+        a.to_string()
+    } else {
+        format!("'{}'", a.replace('\'', "'\\''"))
+    }
+}
