@@ -33,7 +33,8 @@ pub struct PairCues {
     pub r: f64,
     /// R² of the straight line (= r²).
     pub linear_r_squared: f64,
-    /// Best R² of a cubic polynomial and a LOESS smooth (span 0.75, degree 2).
+    /// Best R² of a cubic polynomial and (up to [`crate::alternative::LOESS_MAX_N`] pairs) a
+    /// LOESS smooth (span 0.75, degree 2).
     pub curve_r_squared: Option<f64>,
     /// Distance correlation and its permutation p (None above [`DCOR_CUE_MAX_N`]).
     pub distance_correlation: Option<(f64, f64)>,

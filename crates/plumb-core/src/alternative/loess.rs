@@ -3,6 +3,9 @@
 use super::{check, AlternativeError};
 use crate::describe;
 
+/// Largest n accepted: each of the n local fits looks at every point (O(n²) in all).
+pub const LOESS_MAX_N: usize = 5_000;
+
 /// Fitted LOESS curve at the data's x values.
 #[derive(Debug, Clone, PartialEq)]
 pub struct LoessFit {
@@ -23,10 +26,16 @@ pub struct LoessFit {
 /// `span` when `span > 1`) and a weighted least-squares polynomial of `degree` is evaluated at `x₀`.
 ///
 /// # Errors
-/// Fewer pairs than `degree + 2`, constant x, `span` not in (0, ∞) or giving fewer than
+/// More than [`LOESS_MAX_N`] pairs, fewer than `degree + 2`, constant x, `span` not in (0, ∞) or giving fewer than
 /// `degree + 1` points per fit, or `degree` outside 1..=2.
 pub fn loess(x: &[f64], y: &[f64], span: f64, degree: u32) -> Result<LoessFit, AlternativeError> {
     check(x, y, degree as usize + 2)?;
+    if x.len() > LOESS_MAX_N {
+        return Err(AlternativeError::TooLarge {
+            n: x.len(),
+            max: LOESS_MAX_N,
+        });
+    }
     if !(1..=2).contains(&degree) {
         return Err(AlternativeError::InvalidOption(format!(
             "LOESS degree {degree} must be 1 or 2"

@@ -7,7 +7,7 @@ mod loess;
 mod theil_sen;
 
 pub use deming::{deming, DemingFit};
-pub use loess::{loess, LoessFit};
+pub use loess::{loess, LoessFit, LOESS_MAX_N};
 pub use theil_sen::{theil_sen, TheilSenFit, THEIL_SEN_MAX_N};
 
 /// Why an alternative fit cannot be computed.
