@@ -122,6 +122,34 @@ fn range(values: impl Iterator<Item = f64>) -> (f64, f64) {
     (lo - pad, hi + pad)
 }
 
+type Plane =
+    Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>;
+
+/// The shared frame of every chart: margins, label areas, axis captions, no minor grid.
+fn axes<'a, DB: DrawingBackend>(
+    root: &'a DrawingArea<DB, Shift>,
+    x: std::ops::Range<f64>,
+    y: std::ops::Range<f64>,
+    x_desc: &str,
+    y_desc: &str,
+) -> std::result::Result<ChartContext<'a, DB, Plane>, String> {
+    let mut chart = ChartBuilder::on(root)
+        .margin(14)
+        .x_label_area_size(42)
+        .y_label_area_size(64)
+        .build_cartesian_2d(x, y)
+        .map_err(|e| e.to_string())?;
+    chart
+        .configure_mesh()
+        .light_line_style(WHITE)
+        .x_desc(x_desc)
+        .y_desc(y_desc)
+        .label_style((FONT, 13))
+        .draw()
+        .map_err(|e| e.to_string())?;
+    Ok(chart)
+}
+
 fn dots_series<DB: DrawingBackend>(
     chart: &mut ChartContext<
         '_,
@@ -171,20 +199,7 @@ impl Paint for PairChart<'_> {
                 .map(|d| d.y)
                 .chain(data.curve.iter().flat_map(|c| [c[4], c[5]])),
         );
-        let mut chart = ChartBuilder::on(root)
-            .margin(14)
-            .x_label_area_size(42)
-            .y_label_area_size(64)
-            .build_cartesian_2d(x0..x1, y0..y1)
-            .map_err(|e| e.to_string())?;
-        chart
-            .configure_mesh()
-            .light_line_style(WHITE)
-            .x_desc(data.x_label)
-            .y_desc(data.y_label)
-            .label_style((FONT, 13))
-            .draw()
-            .map_err(|e| e.to_string())?;
+        let mut chart = axes(root, x0..x1, y0..y1, data.x_label, data.y_label)?;
         if !data.curve.is_empty() {
             let band: Vec<(f64, f64)> = data
                 .curve
@@ -232,20 +247,7 @@ impl Paint for Residuals<'_> {
         root.fill(&WHITE).map_err(|e| e.to_string())?;
         let (x0, x1) = range(dots.iter().map(|d| d.x));
         let (y0, y1) = range(dots.iter().map(|d| d.y).chain([0.0]));
-        let mut chart = ChartBuilder::on(root)
-            .margin(14)
-            .x_label_area_size(42)
-            .y_label_area_size(64)
-            .build_cartesian_2d(x0..x1, y0..y1)
-            .map_err(|e| e.to_string())?;
-        chart
-            .configure_mesh()
-            .light_line_style(WHITE)
-            .x_desc("fitted value")
-            .y_desc("residual")
-            .label_style((FONT, 13))
-            .draw()
-            .map_err(|e| e.to_string())?;
+        let mut chart = axes(root, x0..x1, y0..y1, "fitted value", "residual")?;
         chart
             .draw_series(LineSeries::new(
                 [(x0, 0.0), (x1, 0.0)],
@@ -274,20 +276,7 @@ impl Paint for Leverage<'_> {
         let (_, x1) = range(dots.iter().map(|d| d.x));
         let x1 = x1.min(1.0);
         let (y0, y1) = range(dots.iter().map(|d| d.y).chain([-3.5, 3.5]));
-        let mut chart = ChartBuilder::on(root)
-            .margin(14)
-            .x_label_area_size(42)
-            .y_label_area_size(64)
-            .build_cartesian_2d(0.0..x1, y0..y1)
-            .map_err(|e| e.to_string())?;
-        chart
-            .configure_mesh()
-            .light_line_style(WHITE)
-            .x_desc("leverage")
-            .y_desc("studentized residual")
-            .label_style((FONT, 13))
-            .draw()
-            .map_err(|e| e.to_string())?;
+        let mut chart = axes(root, 0.0..x1, y0..y1, "leverage", "studentized residual")?;
         for d in [0.5, 1.0] {
             for sign in [-1.0, 1.0] {
                 let pts = (1..=60).map(|k| {

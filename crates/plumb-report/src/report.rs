@@ -259,17 +259,9 @@ fn page(
     }
     let _ = writeln!(out, "</section>");
 
-    let terms: Vec<String> = fit
-        .coefficients
+    let terms: Vec<String> = crate::text::equation_terms(fit)
         .iter()
-        .enumerate()
-        .map(|(j, c)| {
-            if c.term == "intercept" {
-                format!("b{j}")
-            } else {
-                format!("b{j}·{}", html(&c.term))
-            }
-        })
+        .map(|t| html(t))
         .collect();
     let _ = writeln!(
         out,

@@ -65,6 +65,21 @@ pub fn exact(v: f64) -> String {
     }
 }
 
+/// The right-hand side of a fitted model as terms `b0`, `b1·dose`, … (not escaped).
+pub fn equation_terms(fit: &plumb_core::regression::LinearFit) -> Vec<String> {
+    fit.coefficients
+        .iter()
+        .enumerate()
+        .map(|(j, c)| {
+            if c.term == "intercept" {
+                format!("b{j}")
+            } else {
+                format!("b{j}·{}", c.term)
+            }
+        })
+        .collect()
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

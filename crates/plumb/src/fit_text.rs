@@ -5,6 +5,7 @@ use std::fmt::Write;
 
 use plumb_data::analysis::{FitOutcome, FitRequest, PairExtras, RobustFit};
 use plumb_data::Table;
+use plumb_report::text::{num, p as pval};
 
 /// Condition number above which the text output warns that the terms nearly coincide.
 /// Common practice, no source: around 1e8 half of double precision's digits are at risk.
@@ -122,18 +123,7 @@ fn write_all(
 ) -> std::fmt::Result {
     let fit = &o.fit;
     let sel = &o.selection;
-    let terms: Vec<String> = fit
-        .coefficients
-        .iter()
-        .enumerate()
-        .map(|(j, c)| {
-            if c.term == "intercept" {
-                format!("b{j}")
-            } else {
-                format!("b{j}·{}", c.term)
-            }
-        })
-        .collect();
+    let terms = plumb_report::text::equation_terms(fit);
     let method = if request.weights.is_some() {
         "weighted least squares"
     } else {
@@ -297,25 +287,6 @@ fn join_rows(rows: &[usize]) -> String {
         .join(", ")
 }
 
-/// Six significant digits, switching to exponent form for very large or small magnitudes.
-fn num(v: f64) -> String {
-    if !v.is_finite() {
-        return v.to_string();
-    }
-    let a = v.abs();
-    if a != 0.0 && !(1e-4..1e7).contains(&a) {
-        format!("{v:.5e}")
-    } else {
-        let digits = if a == 0.0 {
-            0
-        } else {
-            a.log10().floor() as i32
-        };
-        let decimals = (5 - digits).clamp(0, 10) as usize;
-        format!("{v:.decimals$}")
-    }
-}
-
 fn fixed(v: f64, decimals: usize) -> String {
     if v.is_finite() && v.abs() >= 1e7 {
         format!("{v:.3e}")
@@ -324,26 +295,13 @@ fn fixed(v: f64, decimals: usize) -> String {
     }
 }
 
-fn pval(p: f64) -> String {
-    if p.is_nan() {
-        "—".into()
-    } else if p < 1e-4 {
-        format!("{p:.2e}")
-    } else {
-        format!("{p:.4}")
-    }
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
 
     #[test]
-    fn numbers_keep_six_significant_digits() {
-        assert_eq!(num(4.256789123), "4.25679");
-        assert_eq!(num(1234.5678), "1234.57");
-        assert_eq!(num(0.000012345), "1.23450e-5");
-        assert_eq!(pval(0.00001234), "1.23e-5");
-        assert_eq!(pval(0.5), "0.5000");
+    fn fixed_switches_to_exponents_for_huge_values() {
+        assert_eq!(fixed(2.5, 2), "2.50");
+        assert_eq!(fixed(3.0e9, 2), "3.000e9");
     }
 }
