@@ -118,6 +118,11 @@ fn from_data(args: &ReportArgs) -> anyhow::Result<Prepared> {
             "--reason names row {row}, which is not in --exclude; add it there or drop the reason"
         );
     }
+    // A session records when each exclusion was made; a one-off summary has no such record.
+    let at = args
+        .save_session
+        .is_some()
+        .then(|| humantime::format_rfc3339_seconds(std::time::SystemTime::now()).to_string());
     let exclusions = exclude
         .iter()
         .map(|&row| Exclusion {
@@ -128,9 +133,8 @@ fn from_data(args: &ReportArgs) -> anyhow::Result<Prepared> {
                 .find(|(r, _)| *r == row)
                 .map(|(_, t)| t.clone())
                 .unwrap_or_default(),
-            at: None,
+            at: at.clone(),
         })
-        .filter(|e| !e.reason.is_empty())
         .collect();
     let request = FitRequest {
         y,
@@ -191,21 +195,7 @@ fn session_of(
             weights: request.weights.clone(),
             level: request.level,
         }],
-        exclusions: request
-            .exclude
-            .iter()
-            .map(|&row| {
-                exclusions
-                    .iter()
-                    .find(|e| e.row == row)
-                    .cloned()
-                    .unwrap_or(Exclusion {
-                        row,
-                        reason: String::new(),
-                        at: None,
-                    })
-            })
-            .collect(),
+        exclusions: exclusions.to_vec(),
         view: serde_json::Map::new(),
     }
 }
