@@ -19,14 +19,10 @@ import numpy as np
 from scipy import stats
 from statsmodels.stats.outliers_influence import variance_inflation_factor
 
-RTOL = 1e-9
-WORST = {}
+from tally import Tally
 
-
-def close(a, b, field):
-    rel = abs(a - b) / max(abs(a), abs(b)) if a != b else 0.0
-    WORST[field] = max(WORST.get(field, 0.0), rel)
-    return rel <= RTOL
+TALLY = Tally()
+close = TALLY.close
 
 
 def run(plumb, args):
@@ -41,7 +37,6 @@ def main():
         sys.exit(__doc__)
     plumb = sys.argv[1]
     rng = np.random.default_rng(3_2026_12_02)
-    passed = failed = 0
     with tempfile.TemporaryDirectory() as tmp:
         for idx, (n, ties, level) in enumerate([(15, False, 0.95), (40, True, 0.9), (120, True, 0.95), (333, False, 0.99)]):
             x = rng.uniform(0, 10, n)
@@ -55,17 +50,12 @@ def main():
             try:
                 got = run(plumb, [path, "--y", "y", "--x", "x", "--robust", "theil-sen", "--level", str(level)])["robust"]
             except RuntimeError as e:
-                print(f"FAIL {label}: {e}")
-                failed += 1
+                TALLY.record(label, [str(e)])
                 continue
             ref = stats.theilslopes(y, x, alpha=level)
             want = {"slope": ref.slope, "intercept": ref.intercept, "slope_ci_low": ref.low_slope, "slope_ci_high": ref.high_slope}
             bad = [f"{k}: plumb {got[k]!r} vs scipy {v!r}" for k, v in want.items() if not close(got[k], float(v), f"theil-sen.{k}")]
-            print(("FAIL " if bad else "ok   ") + label)
-            for b in bad:
-                print("     " + b)
-            failed += bool(bad)
-            passed += not bad
+            TALLY.record(label, bad)
 
         for idx, (n, rho) in enumerate([(30, 0.3), (200, 0.9), (80, 0.99)]):
             base = rng.normal(size=n)
@@ -82,14 +72,8 @@ def main():
                 want = variance_inflation_factor(exog, j + 1)
                 if not close(entry["vif"], float(want), "vif"):
                     bad.append(f"{entry['term']}: plumb {entry['vif']!r} vs statsmodels {want!r}")
-            print(("FAIL " if bad else "ok   ") + label)
-            for b in bad:
-                print("     " + b)
-            failed += bool(bad)
-            passed += not bad
-    print("largest relative difference: " + ", ".join(f"{k} {v:.1e}" for k, v in sorted(WORST.items())))
-    print(f"{passed} passed, {failed} failed")
-    sys.exit(1 if failed else 0)
+            TALLY.record(label, bad)
+    TALLY.finish()
 
 
 if __name__ == "__main__":

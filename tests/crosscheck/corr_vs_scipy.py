@@ -22,19 +22,10 @@ import scipy
 from scipy import stats
 from statsmodels.stats.multitest import multipletests
 
-RTOL = 1e-9
-TINY = 1e-280
-WORST = {}
+from tally import Tally
 
-
-def close(a, b, field):
-    if a is None or b is None:
-        return a is None and b is None
-    if abs(a) < TINY and abs(b) < TINY:
-        return True
-    rel = abs(a - b) / max(abs(a), abs(b)) if a != b else 0.0
-    WORST[field] = max(WORST.get(field, 0.0), rel)
-    return rel <= RTOL
+TALLY = Tally()
+close = TALLY.close
 
 
 def make_table(rng, n, k, ties, missing):
@@ -97,7 +88,6 @@ def main():
     plumb = sys.argv[1]
     print(f"reference: scipy {scipy.__version__}, statsmodels multipletests")
     rng = np.random.default_rng(7_2026_12_02)
-    passed = failed = 0
     with tempfile.TemporaryDirectory() as tmp:
         idx = 0
         for n in (8, 25, 30, 120):
@@ -112,8 +102,7 @@ def main():
                     idx += 1
                     run = subprocess.run([plumb, "corr", path, "--method", method, "--adjust", adjust, "--format", "json"], capture_output=True, text=True)
                     if run.returncode != 0:
-                        print(f"FAIL {label}: exit {run.returncode}: {run.stderr.strip()}")
-                        failed += 1
+                        TALLY.record(label, [f"exit {run.returncode}: {run.stderr.strip()}"])
                         continue
                     got = json.loads(run.stdout)
                     r, p, padj, cnt, n_tests, ci = reference(cols, holes, method, adjust)
@@ -133,17 +122,8 @@ def main():
                         for field, want in (("ci_low", lo), ("ci_high", hi)):
                             if not close(got[field][i][j], want, f"pearson.{field}"):
                                 problems.append(f"{field}[{i}][{j}]: plumb {got[field][i][j]!r} vs scipy {want!r}")
-                    if problems:
-                        failed += 1
-                        print(f"FAIL {label}")
-                        for pr in problems[:6]:
-                            print(f"     {pr}")
-                    else:
-                        passed += 1
-                        print(f"ok   {label}")
-    print("largest relative difference: " + ", ".join(f"{k} {v:.1e}" for k, v in sorted(WORST.items())))
-    print(f"{passed} passed, {failed} failed")
-    sys.exit(1 if failed else 0)
+                    TALLY.record(label, problems)
+    TALLY.finish()
 
 
 if __name__ == "__main__":

@@ -28,10 +28,9 @@ import numpy as np
 import statsmodels
 import statsmodels.api as sm
 
-RTOL = 1e-9
-# Smallest magnitude compared relatively; below it (p-values that underflow toward 0) two
-# values agree if both are below it.
-TINY = 1e-280
+from tally import RTOL, Tally
+
+TALLY = Tally()
 
 
 def make_case(rng, n, p, intercept, degree, weighted, missing):
@@ -110,7 +109,7 @@ def compare_influence(got, reference_pair):
             rel = abs(a - b) / scale
             if field == "dfbetas" and abs(a - b) <= dfbetas_floor[idx]:
                 rel = 0.0
-            WORST[f"influence.{field}"] = max(WORST.get(f"influence.{field}", 0.0), rel)
+            TALLY.note(f"influence.{field}", rel)
             if rel > RTOL:
                 problems.append(f"influence {field}{list(idx)}: plumb {a!r} vs reference {b!r}")
     return problems
@@ -177,19 +176,7 @@ def reference(cols, xnames, holes, intercept, degree, weighted, exclude, level):
     }
 
 
-WORST = {}
-
-
-def close(a, b, field="?"):
-    if a is None or b is None:
-        return a is None and b is None
-    if isinstance(a, str) or isinstance(b, str):
-        return a == b
-    if abs(a) < TINY and abs(b) < TINY:
-        return True
-    rel = abs(a - b) / max(abs(a), abs(b)) if a != b else 0.0
-    WORST[field] = max(WORST.get(field, 0.0), rel)
-    return rel <= RTOL
+close = TALLY.close
 
 
 def compare(got, want):
@@ -214,7 +201,6 @@ def main():
     plumb = sys.argv[1]
     print(f"reference: statsmodels {statsmodels.__version__}, numpy {np.__version__}")
     rng = np.random.default_rng(20261202)
-    passed = failed = 0
     cases = []
     for n in (12, 60, 500):
         for p in (1, 3, 5):
@@ -248,13 +234,11 @@ def main():
             label = f"case {idx:2d}: n={n} p={p} degree={degree} intercept={intercept} weights={weighted} missing={missing} excluded={exclude}"
             run = subprocess.run(args, capture_output=True, text=True)
             if run.returncode != 0:
-                print(f"FAIL {label}: plumb exited {run.returncode}: {run.stderr.strip()}")
-                failed += 1
+                TALLY.record(label, [f"plumb exited {run.returncode}: {run.stderr.strip()}"])
                 continue
             got = json.loads(run.stdout)
             if got["excluded_rows"] != exclude:
-                print(f"FAIL {label}: excluded_rows {got['excluded_rows']} != {exclude}")
-                failed += 1
+                TALLY.record(label, [f"excluded_rows {got['excluded_rows']} != {exclude}"])
                 continue
             res, want = reference(cols, xnames, holes, intercept, degree, weighted, set(exclude), level)
             problems = compare(got, want)
@@ -265,17 +249,8 @@ def main():
                     problems.append(f"plumb influence exited {inf_run.returncode}: {inf_run.stderr.strip()}")
                 else:
                     problems += compare_influence(json.loads(inf_run.stdout), influence_reference(res))
-            if problems:
-                failed += 1
-                print(f"FAIL {label}")
-                for pr in problems[:8]:
-                    print(f"     {pr}")
-            else:
-                passed += 1
-                print(f"ok   {label}")
-    print("largest relative difference per field: " + ", ".join(f"{k} {v:.1e}" for k, v in sorted(WORST.items())))
-    print(f"{passed} passed, {failed} failed")
-    sys.exit(1 if failed else 0)
+            TALLY.record(label, problems)
+    TALLY.finish()
 
 
 if __name__ == "__main__":
