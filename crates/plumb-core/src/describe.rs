@@ -31,6 +31,18 @@ pub fn sum_sq_dev(x: &[f64], w: Option<&[f64]>) -> f64 {
     }
 }
 
+/// `√(Σ wᵢ (xᵢ − x̄_w)²)`, computed on `x / 2^k` (k near log₂ max|x|, exact) so that it
+/// neither overflows nor underflows for values near the f64 limits.
+pub fn root_sum_sq_dev(x: &[f64], w: Option<&[f64]>) -> f64 {
+    let peak = x.iter().fold(0.0_f64, |m, v| m.max(v.abs()));
+    if peak == 0.0 || !peak.is_finite() {
+        return if peak == 0.0 { 0.0 } else { f64::NAN };
+    }
+    let scale = 2f64.powi((peak.log2().round() as i32).clamp(-1022, 1023));
+    let scaled: Vec<f64> = x.iter().map(|v| v / scale).collect();
+    scale * sum_sq_dev(&scaled, w).sqrt()
+}
+
 /// Weighted sum of squares about zero `Σ wᵢ xᵢ²`.
 pub fn sum_sq(x: &[f64], w: Option<&[f64]>) -> f64 {
     match w {

@@ -163,7 +163,8 @@ pub(crate) fn power_of_two_near(x: f64) -> f64 {
     if x == 0.0 || !x.is_finite() {
         1.0
     } else {
-        2f64.powi(x.log2().round() as i32)
+        // Clamped to the normal range so that the scale itself is finite and non-zero.
+        2f64.powi((x.log2().round() as i32).clamp(-1022, 1023))
     }
 }
 
@@ -171,7 +172,7 @@ fn power_of_two_at_least(x: f64) -> f64 {
     if x == 0.0 || !x.is_finite() {
         1.0
     } else {
-        2f64.powi(x.log2().ceil() as i32)
+        2f64.powi((x.log2().ceil() as i32).clamp(-1022, 1023))
     }
 }
 

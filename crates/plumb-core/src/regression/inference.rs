@@ -135,16 +135,17 @@ pub(crate) fn summarize(
     let nf = n as f64;
     let log_likelihood =
         -0.5 * nf * ((2.0 * std::f64::consts::PI).ln() + (rss / nf).ln() + 1.0) + 0.5 * sum_ln_w;
-    let covariance = solution.unscaled_covariance * sigma2;
     let coefficients = coefficient_table(
         design,
         y,
         weights,
         &solution.beta,
-        &covariance,
+        &solution.unit_std_errors,
+        sigma2.sqrt(),
         df_residual,
         level,
     );
+    let covariance = solution.unscaled_covariance * sigma2;
     let fitted = y
         .iter()
         .zip(&solution.residuals)
@@ -168,6 +169,34 @@ pub(crate) fn summarize(
         covariance,
         condition_number: solution.condition_number,
     }
+}
+
+/// Undoes the working scale of y: the fit of `y/s` becomes the fit of `y`. Coefficients,
+/// their errors and intervals, σ̂, fitted values and residuals scale by `s`; sums of squares
+/// and the covariance by `s²` (and may then overflow to ∞ for data near the f64 limit, while
+/// R², t, p and F, which do not depend on `s`, stay finite); `ℓ` shifts by `−n·ln s`.
+pub(crate) fn rescale(fit: &mut LinearFit, s: f64) {
+    for c in &mut fit.coefficients {
+        c.estimate *= s;
+        c.std_error *= s;
+        c.ci_low *= s;
+        c.ci_high *= s;
+    }
+    fit.residual_std_error *= s;
+    let s2 = s * s;
+    let a = &mut fit.anova;
+    a.ss_model *= s2;
+    a.ss_residual *= s2;
+    a.ss_total *= s2;
+    a.ms_residual *= s2;
+    a.ms_model = a.ms_model.map(|m| m * s2);
+    let shift = fit.n as f64 * s.ln();
+    fit.log_likelihood -= shift;
+    fit.aic += 2.0 * shift;
+    fit.bic += 2.0 * shift;
+    fit.fitted.iter_mut().for_each(|v| *v *= s);
+    fit.residuals.iter_mut().for_each(|v| *v *= s);
+    fit.covariance *= s2;
 }
 
 fn anova(ss_total: f64, rss: f64, df_model: usize, df_residual: usize) -> Anova {
@@ -194,18 +223,20 @@ fn anova(ss_total: f64, rss: f64, df_model: usize, df_residual: usize) -> Anova 
     }
 }
 
+#[allow(clippy::too_many_arguments)] // one call site; the inputs are the fit's parts
 fn coefficient_table(
     design: &Design,
     y: &[f64],
     weights: Option<&[f64]>,
     beta: &[f64],
-    covariance: &DMatrix<f64>,
+    unit_se: &[f64],
+    sigma: f64,
     df_residual: usize,
     level: f64,
 ) -> Vec<Coefficient> {
     let df = df_residual as f64;
     let q = distributions::t_upper_quantile(0.5 * (1.0 - level), df);
-    let sd_y = describe::sum_sq_dev(y, weights).sqrt();
+    let sd_y = describe::root_sum_sq_dev(y, weights);
     design
         .terms()
         .iter()
@@ -213,10 +244,10 @@ fn coefficient_table(
         .enumerate()
         .map(|(j, (term, column))| {
             let estimate = beta[j];
-            let std_error = covariance[(j, j)].sqrt();
+            let std_error = sigma * unit_se[j];
             let t = estimate / std_error;
             let standardized = (term.kind != TermKind::Intercept)
-                .then(|| estimate * describe::sum_sq_dev(column, weights).sqrt() / sd_y);
+                .then(|| estimate * describe::root_sum_sq_dev(column, weights) / sd_y);
             Coefficient {
                 term: term.name.clone(),
                 estimate,
@@ -280,6 +311,47 @@ mod tests {
             max_relative = 1e-14
         );
         assert_eq!(fit.anova.df_model, 1);
+    }
+
+    #[test]
+    fn responses_near_the_f64_limit_keep_their_statistics() {
+        // y and 1e300·y give the same R², t and p, and estimates 1e300 times larger (scale
+        // invariance of least squares); plain sums of squares of 1e300·y would overflow.
+        let x = [1.0, 2.0, 3.0, 4.0, 5.0, 6.0];
+        let y = [1.3, 1.9, 3.4, 3.8, 5.3, 5.7];
+        let big: Vec<f64> = y.iter().map(|v| v * 1e300).collect();
+        let d = Design::linear(&[("x", &x)], true);
+        let a = fit(&d, &y, None, &FitOptions::default()).expect("fits");
+        let b = fit(&d, &big, None, &FitOptions::default()).expect("fits");
+        assert_relative_eq!(a.r_squared, b.r_squared, max_relative = 1e-14);
+        assert_relative_eq!(
+            a.coefficients[1].t,
+            b.coefficients[1].t,
+            max_relative = 1e-13
+        );
+        assert_relative_eq!(
+            a.coefficients[1].estimate * 1e300,
+            b.coefficients[1].estimate,
+            max_relative = 1e-13
+        );
+        assert!(b.residual_std_error.is_finite() && b.coefficients[1].std_error.is_finite());
+    }
+
+    #[test]
+    fn predictors_near_the_f64_limit_are_not_mistaken_for_zero() {
+        let x = [1e308, -1e308, 5e307, -3e307, 2e307, 7e307];
+        let y = [1.0, 2.0, 3.0, 4.0, 6.0, 5.5];
+        let f = fit(
+            &Design::linear(&[("x", &x)], true),
+            &y,
+            None,
+            &FitOptions::default(),
+        )
+        .expect("fits");
+        assert!(
+            f.r_squared.is_finite() && f.coefficients[1].std_error.is_finite(),
+            "{f:?}"
+        );
     }
 
     #[test]

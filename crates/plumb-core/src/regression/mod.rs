@@ -68,14 +68,23 @@ pub fn fit(
     options: &FitOptions,
 ) -> Result<LinearFit> {
     validate(design, y, weights, options)?;
-    let solution = solve::least_squares(design, y, weights, options.rank_tolerance)?;
-    Ok(inference::summarize(
-        design,
-        y,
-        weights,
-        solution,
-        options.level,
-    ))
+    // Work with y divided by a power of two near its largest magnitude (exact), so that sums of
+    // squares of values near 1e±300 neither overflow nor underflow; the scale is put back after.
+    let peak = y.iter().fold(0.0_f64, |m, v| m.max(v.abs()));
+    let scale = basis::power_of_two_near(peak);
+    let scaled: Vec<f64>;
+    let y_work = if scale == 1.0 {
+        y
+    } else {
+        scaled = y.iter().map(|v| v / scale).collect();
+        &scaled
+    };
+    let solution = solve::least_squares(design, y_work, weights, options.rank_tolerance)?;
+    let mut fit = inference::summarize(design, y_work, weights, solution, options.level);
+    if scale != 1.0 {
+        inference::rescale(&mut fit, scale);
+    }
+    Ok(fit)
 }
 
 fn validate(

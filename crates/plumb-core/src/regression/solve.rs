@@ -21,6 +21,9 @@ pub(crate) struct Solution {
     pub residuals: Vec<f64>,
     /// `(XᵀWX)⁻¹`, in term order and the user's units.
     pub unscaled_covariance: DMatrix<f64>,
+    /// `√[(XᵀWX)⁻¹]ⱼⱼ = ‖row j of M‖`, computed with scaling so that it does not underflow
+    /// where its square would (predictors near the f64 limit).
+    pub unit_std_errors: Vec<f64>,
     /// 2-norm condition number of the working basis (after equilibration).
     pub condition_number: f64,
 }
@@ -165,8 +168,20 @@ pub(crate) fn least_squares(
         beta,
         residuals: residuals.iter().map(|(hi, lo)| hi + lo).collect(),
         unscaled_covariance,
+        unit_std_errors: (0..p)
+            .map(|j| scaled_norm(m.row(j).iter().copied()))
+            .collect(),
         condition_number: singular.max() / singular.min(),
     })
+}
+
+/// `‖v‖₂` as `peak·√Σ(vᵢ/peak)²`, free of overflow and underflow in the squares.
+fn scaled_norm(v: impl Iterator<Item = f64> + Clone) -> f64 {
+    let peak = v.clone().fold(0.0_f64, |m, x| m.max(x.abs()));
+    if peak == 0.0 || !peak.is_finite() {
+        return peak;
+    }
+    peak * v.map(|x| (x / peak).powi(2)).sum::<f64>().sqrt()
 }
 
 /// `eᵢ = yᵢ − Σⱼ xᵢⱼβⱼ`, each as one compensated dot product `[yᵢ, xᵢ]·[1, −β]`, kept
