@@ -1,7 +1,7 @@
 //! Finding the records of a delimited text file and guessing how it is written:
 //! delimiter, header row and decimal mark.
 
-use crate::cell::{classify, Cell, DecimalMark};
+use crate::cell::{classify, parse_number, Cell, DecimalMark};
 
 /// Whether the first row names the columns.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -155,30 +155,21 @@ fn mode(counts: &[usize]) -> usize {
     best.0
 }
 
-/// Comma when, with a delimiter other than comma, sampled cells look like `12,5` and none
-/// like `12.5`; point otherwise.
+/// Comma when, with a delimiter other than comma, some sampled cells read as numbers only
+/// with a decimal comma (`12,5`, `1.234,5`) and none only with a decimal point (`12.5`,
+/// `1,234.5`); point otherwise. Cells that read either way (`12`, `1,234`) do not vote.
 pub(crate) fn decimal_mark(sample: &[Vec<String>], delimiter: u8) -> DecimalMark {
     if delimiter == b',' {
         return DecimalMark::Point;
     }
-    let looks = |s: &str, mark: char| {
-        let s = s.trim().trim_start_matches(['-', '+']);
-        match s.split_once(mark) {
-            Some((a, b)) => {
-                !b.is_empty()
-                    && a.bytes()
-                        .all(|c| c.is_ascii_digit() || c == b'.' || c == b',')
-                    && b.bytes().all(|c| c.is_ascii_digit())
-            }
-            None => false,
-        }
-    };
-    let cells = sample.iter().flatten();
-    let comma = cells
-        .clone()
-        .filter(|s| looks(s, ',') && !s.contains('.'))
-        .count();
-    let point = cells.filter(|s| looks(s, '.') && !s.contains(',')).count();
+    let (mut comma, mut point) = (0usize, 0usize);
+    for cell in sample.iter().flatten() {
+        let s = cell.trim();
+        let as_comma = parse_number(s, DecimalMark::Comma).is_some();
+        let as_point = parse_number(s, DecimalMark::Point).is_some();
+        comma += usize::from(as_comma && !as_point);
+        point += usize::from(as_point && !as_comma);
+    }
     if comma > 0 && point == 0 {
         DecimalMark::Comma
     } else {
@@ -223,6 +214,12 @@ mod tests {
     #[test]
     fn semicolon_file_with_decimal_commas() {
         let (d, mark, header) = sniff("dose;turbidity\n1,5;12,25\n2,0;9,5\n");
+        assert_eq!((d, mark, header), (b';', DecimalMark::Comma, true));
+    }
+
+    #[test]
+    fn decimal_commas_with_thousands_points() {
+        let (d, mark, header) = sniff("x;y\n1;1.234,5\n2;2.469,0\n");
         assert_eq!((d, mark, header), (b';', DecimalMark::Comma, true));
     }
 

@@ -86,7 +86,7 @@ impl Column {
             Some(i) => {
                 let text_count = cells.iter().filter(|c| matches!(c, Cell::Text(_))).count();
                 let first = match &cells[i] {
-                    Cell::Text(s) => s.clone(),
+                    Cell::Text(s) => shorten(s),
                     _ => unreachable!("position found a text cell"),
                 };
                 ColumnValues::Text {
@@ -219,6 +219,15 @@ impl Table {
     /// The column named `name`, if any.
     pub fn column(&self, name: &str) -> Option<&Column> {
         self.columns.iter().find(|c| c.name == name)
+    }
+}
+
+/// A cell's text as shown in a message: at most 40 characters, then "…".
+fn shorten(s: &str) -> String {
+    const KEEP: usize = 40;
+    match s.char_indices().nth(KEEP) {
+        Some((cut, _)) => format!("{}…", &s[..cut]),
+        None => s.to_string(),
     }
 }
 

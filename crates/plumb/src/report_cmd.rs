@@ -67,7 +67,12 @@ fn from_session(path: &Path, output: &Path) -> anyhow::Result<Prepared> {
         missing_tokens: spec.missing.clone(),
         sheet: spec.sheet.clone(),
     };
-    let table = plumb_data::load(&data_path, &options)?;
+    let table = plumb_data::load(&data_path, &options).map_err(|e| {
+        anyhow::anyhow!(
+            "{}: the session's data file cannot be used: {e}",
+            path.display()
+        )
+    })?;
     let hash = file_sha256(&data_path)?;
     let note = (hash != session.data.sha256).then(|| {
         format!(
