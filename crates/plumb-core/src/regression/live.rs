@@ -66,6 +66,7 @@ pub struct LiveFit {
     values: Vec<Vec<f64>>,
     y: Vec<f64>,
     included: Vec<bool>,
+    n_included: usize,
     basis_recipe: Basis,
     z: Vec<Vec<f64>>,
     y_shift: f64,
@@ -102,6 +103,7 @@ impl LiveFit {
         let p = design.n_terms();
         let mut live = Self {
             included: vec![true; y.len()],
+            n_included: y.len(),
             always_refit: first.condition_number > CONDITION_LIMIT,
             design,
             values,
@@ -136,6 +138,7 @@ impl LiveFit {
     pub fn exclude(&mut self, i: usize) -> &Result<LiveSummary> {
         if self.included[i] {
             self.included[i] = false;
+            self.n_included -= 1;
             self.update(i, -1.0);
         }
         &self.summary
@@ -145,6 +148,7 @@ impl LiveFit {
     pub fn include(&mut self, i: usize) -> &Result<LiveSummary> {
         if !self.included[i] {
             self.included[i] = true;
+            self.n_included += 1;
             self.update(i, 1.0);
         }
         &self.summary
@@ -172,6 +176,7 @@ impl LiveFit {
         let was_in = self.included[i];
         if was_in {
             self.included[i] = false;
+            self.n_included -= 1;
             self.update(i, -1.0);
         }
         self.values[i] = if self.design.polynomial_source().is_some() {
@@ -193,6 +198,7 @@ impl LiveFit {
         self.z[i] = self.basis_recipe.z_row(&self.values[i]);
         if was_in {
             self.included[i] = true;
+            self.n_included += 1;
             self.update(i, 1.0);
         }
         Ok(&self.summary)
@@ -294,7 +300,7 @@ impl LiveFit {
 
     fn summary_from_sums(&self) -> Result<LiveSummary> {
         let p = self.design.n_terms();
-        let n = self.included.iter().filter(|&&v| v).count();
+        let n = self.n_included;
         if n <= p {
             return Err(CoreError::TooFewRows { n, p });
         }
