@@ -5,7 +5,7 @@ use std::path::{Path, PathBuf};
 
 use plumb_core::regression::LinearFit;
 use plumb_data::analysis::{
-    pair_extras, run_fit, run_influence, ExtrasRequest, FitOutcome, FitRequest,
+    pair_extras, run_influence, ExtrasRequest, FitOutcome, FitRequest,
 };
 use plumb_data::Table;
 
@@ -51,8 +51,8 @@ pub struct Report {
 /// Loading, fitting or drawing failures, each naming what failed.
 pub fn build(input: &ReportInput<'_>) -> Result<Report> {
     let request = &input.request;
-    let outcome = run_fit(input.table, request)?;
-    let (_, cases) = run_influence(input.table, request)?;
+    // One fit serves the tables, the charts and the diagnostics.
+    let (outcome, cases) = run_influence(input.table, request)?;
     let extras = pair_extras(&outcome, request, ExtrasRequest::default());
     let effects = exclusion_effects(input.table, request)?;
     let charts = draw_charts(input, &outcome, &cases, extras.as_ref())?;
