@@ -58,6 +58,25 @@ pub fn dot_split(pairs: impl IntoIterator<Item = (f64, f64)>) -> (f64, f64) {
     two_sum(s, c)
 }
 
+/// `‖v‖₂` as `peak·√Σ(vᵢ/peak)²`, free of overflow and underflow in the squares.
+pub fn scaled_norm(v: impl Iterator<Item = f64> + Clone) -> f64 {
+    let peak = v.clone().fold(0.0_f64, |m, x| m.max(x.abs()));
+    if peak == 0.0 || !peak.is_finite() {
+        return peak;
+    }
+    peak * v.map(|x| (x / peak).powi(2)).sum::<f64>().sqrt()
+}
+
+/// `2^round(log₂ x)`, so that dividing by it is exact; 1 for zero or non-finite `x`.
+/// Clamped to the normal range so that the scale itself is finite and non-zero.
+pub fn power_of_two_near(x: f64) -> f64 {
+    if x == 0.0 || !x.is_finite() {
+        1.0
+    } else {
+        2f64.powi((x.log2().round() as i32).clamp(-1022, 1023))
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -83,6 +102,24 @@ mod tests {
         // 2^53 + 1 is not representable: the sum rounds to 2^53 and the 1 stays in `lo`.
         let (hi, lo) = dot_split([(2f64.powi(53), 1.0), (1.0, 1.0)]);
         assert_eq!((hi, lo), (2f64.powi(53), 1.0));
+    }
+
+    #[test]
+    fn power_of_two_scaling_is_exact() {
+        assert_eq!(power_of_two_near(3.0), 4.0);
+        assert_eq!(power_of_two_near(0.0), 1.0);
+        assert_eq!(
+            1.1 / power_of_two_near(1000.0) * power_of_two_near(1000.0),
+            1.1
+        );
+        assert!(power_of_two_near(1.7e308).is_finite());
+    }
+
+    #[test]
+    fn scaled_norm_survives_values_near_the_limits() {
+        assert_eq!(scaled_norm([3.0, 4.0].into_iter()), 5.0);
+        assert!(scaled_norm([1e200, 1e200].into_iter()).is_finite());
+        assert!(scaled_norm([1e-200, 1e-200].into_iter()) > 0.0);
     }
 
     #[test]

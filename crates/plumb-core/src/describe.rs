@@ -38,7 +38,7 @@ pub fn root_sum_sq_dev(x: &[f64], w: Option<&[f64]>) -> f64 {
     if peak == 0.0 || !peak.is_finite() {
         return if peak == 0.0 { 0.0 } else { f64::NAN };
     }
-    let scale = 2f64.powi((peak.log2().round() as i32).clamp(-1022, 1023));
+    let scale = accurate::power_of_two_near(peak);
     let scaled: Vec<f64> = x.iter().map(|v| v / scale).collect();
     scale * sum_sq_dev(&scaled, w).sqrt()
 }

@@ -4,9 +4,7 @@ use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 
 use plumb_core::regression::LinearFit;
-use plumb_data::analysis::{
-    pair_extras, run_influence, ExtrasRequest, FitOutcome, FitRequest,
-};
+use plumb_data::analysis::{pair_extras, run_influence, ExtrasRequest, FitOutcome, FitRequest};
 use plumb_data::Table;
 
 use crate::charts::{leverage_chart, pair_chart, residual_chart, Chart, Dot, PairChart};

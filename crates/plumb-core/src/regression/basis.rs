@@ -17,6 +17,7 @@
 use nalgebra::DMatrix;
 
 use super::design::Design;
+use crate::accurate;
 
 /// `Z` (unweighted, by column) and `T` with `β = T·α`.
 #[derive(Debug, Clone)]
@@ -51,7 +52,7 @@ impl Basis {
         };
         let scales: Vec<f64> = raw
             .iter()
-            .map(|c| power_of_two_near(weighted_norm(c, root_w)))
+            .map(|c| accurate::power_of_two_near(weighted_norm(c, root_w)))
             .collect();
         let columns = raw
             .into_iter()
@@ -141,31 +142,9 @@ fn binomial(n: i32, k: i32) -> f64 {
     (0..k).fold(1.0, |acc, i| acc * f64::from(n - i) / f64::from(i + 1))
 }
 
-/// `‖W^{1/2}c‖₂`, scaled first so that squares of values near 1e±300 neither overflow nor underflow.
+/// `‖W^{1/2}c‖₂`, free of overflow and underflow.
 fn weighted_norm(column: &[f64], root_w: &[f64]) -> f64 {
-    let peak = column
-        .iter()
-        .zip(root_w)
-        .fold(0.0_f64, |m, (v, w)| m.max((v * w).abs()));
-    if peak == 0.0 {
-        return 0.0;
-    }
-    let sum: f64 = column
-        .iter()
-        .zip(root_w)
-        .map(|(v, w)| (v * w / peak).powi(2))
-        .sum();
-    peak * sum.sqrt()
-}
-
-/// `2^round(log₂ x)`, so that dividing by it is exact; 1 for zero.
-pub(crate) fn power_of_two_near(x: f64) -> f64 {
-    if x == 0.0 || !x.is_finite() {
-        1.0
-    } else {
-        // Clamped to the normal range so that the scale itself is finite and non-zero.
-        2f64.powi((x.log2().round() as i32).clamp(-1022, 1023))
-    }
+    accurate::scaled_norm(column.iter().zip(root_w).map(|(v, w)| v * w))
 }
 
 fn power_of_two_at_least(x: f64) -> f64 {
@@ -179,16 +158,6 @@ fn power_of_two_at_least(x: f64) -> f64 {
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn power_of_two_scaling_is_exact() {
-        assert_eq!(power_of_two_near(3.0), 4.0);
-        assert_eq!(power_of_two_near(0.0), 1.0);
-        assert_eq!(
-            1.1 / power_of_two_near(1000.0) * power_of_two_near(1000.0),
-            1.1
-        );
-    }
 
     #[test]
     fn polynomial_basis_maps_back_to_powers_of_x() {

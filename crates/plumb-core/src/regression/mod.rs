@@ -71,7 +71,7 @@ pub fn fit(
     // Work with y divided by a power of two near its largest magnitude (exact), so that sums of
     // squares of values near 1e±300 neither overflow nor underflow; the scale is put back after.
     let peak = y.iter().fold(0.0_f64, |m, v| m.max(v.abs()));
-    let scale = basis::power_of_two_near(peak);
+    let scale = crate::accurate::power_of_two_near(peak);
     let scaled: Vec<f64>;
     let y_work = if scale == 1.0 {
         y

@@ -63,7 +63,7 @@ pub(crate) fn factor(
     let qr = z.col_piv_qr();
     let r = qr.r();
     let order = pivot_order(&qr, p);
-    check_rank(design, &r, &order, rank_tolerance)?;
+    check_rank(design, &r, &order, &basis, rank_tolerance)?;
     let r_inv = r
         .solve_upper_triangular(&DMatrix::identity(p, p))
         .expect("rank was checked, R has a non-zero diagonal");
@@ -169,19 +169,10 @@ pub(crate) fn least_squares(
         residuals: residuals.iter().map(|(hi, lo)| hi + lo).collect(),
         unscaled_covariance,
         unit_std_errors: (0..p)
-            .map(|j| scaled_norm(m.row(j).iter().copied()))
+            .map(|j| accurate::scaled_norm(m.row(j).iter().copied()))
             .collect(),
         condition_number: singular.max() / singular.min(),
     })
-}
-
-/// `‖v‖₂` as `peak·√Σ(vᵢ/peak)²`, free of overflow and underflow in the squares.
-fn scaled_norm(v: impl Iterator<Item = f64> + Clone) -> f64 {
-    let peak = v.clone().fold(0.0_f64, |m, x| m.max(x.abs()));
-    if peak == 0.0 || !peak.is_finite() {
-        return peak;
-    }
-    peak * v.map(|x| (x / peak).powi(2)).sum::<f64>().sqrt()
 }
 
 /// `eᵢ = yᵢ − Σⱼ xᵢⱼβⱼ`, each as one compensated dot product `[yᵢ, xᵢ]·[1, −β]`, kept
@@ -205,8 +196,15 @@ fn pivot_order(qr: &PivotedQr, p: usize) -> Vec<usize> {
 
 /// Fails with [`CoreError::Aliased`] at the first pivot whose `|R_kk|` is at or below
 /// `tolerance · max |R_ii|`, naming the term and what reproduces it. For a general design,
-/// solving `R₁₁c = r₁ₖ` gives `zₖ ≈ Σ cᵢ zᵢ`, reported in the user's units.
-fn check_rank(design: &Design, r: &DMatrix<f64>, order: &[usize], tolerance: f64) -> Result<()> {
+/// solving `R₁₁c = r₁ₖ` gives `zₖ ≈ Σ cᵢ zᵢ`; with `zⱼ = √w·xⱼ/sⱼ` (the basis scales) that is
+/// `xₖ ≈ Σ cᵢ (sₖ/sᵢ) xᵢ` in the user's units.
+fn check_rank(
+    design: &Design,
+    r: &DMatrix<f64>,
+    order: &[usize],
+    basis: &Basis,
+    tolerance: f64,
+) -> Result<()> {
     let diag: Vec<f64> = (0..order.len()).map(|k| r[(k, k)].abs()).collect();
     let largest = diag.iter().copied().fold(0.0, f64::max);
     let Some(k) = diag.iter().position(|&d| d <= tolerance * largest) else {
@@ -227,20 +225,11 @@ fn check_rank(design: &Design, r: &DMatrix<f64>, order: &[usize], tolerance: f64
     } else {
         let r11 = r.view((0, 0), (k, k)).into_owned();
         let r1k = r.view((0, k), (k, 1)).into_owned();
-        let norms: Vec<f64> = design
-            .columns()
-            .iter()
-            .map(|c| accurate::dot(c, c).sqrt())
-            .collect();
+        let scale = |j: usize| basis.recipe[j].2;
         match r11.solve_upper_triangular(&r1k) {
-            Some(c) => describe_combination((0..k).map(|i| {
-                let col = order[i];
-                // zⱼ = xⱼ/sⱼ with sⱼ ≈ ‖xⱼ‖, so the weights in x-units are cᵢ·s_target/sᵢ.
-                (
-                    names[col],
-                    c[i] * norm_scale(norms[target]) / norm_scale(norms[col]),
-                )
-            })),
+            Some(c) => describe_combination(
+                (0..k).map(|i| (names[order[i]], c[i] * scale(target) / scale(order[i]))),
+            ),
             None => "a combination of the other terms".to_string(),
         }
     };
@@ -249,10 +238,6 @@ fn check_rank(design: &Design, r: &DMatrix<f64>, order: &[usize], tolerance: f64
         combination,
         tolerance,
     })
-}
-
-fn norm_scale(norm: f64) -> f64 {
-    super::basis::power_of_two_near(norm)
 }
 
 fn describe_combination<'a>(parts: impl Iterator<Item = (&'a str, f64)>) -> String {
