@@ -6,6 +6,8 @@
 
 use std::path::{Path, PathBuf};
 
+use plumb_data::analysis::FitRequest;
+use plumb_data::{DecimalMark, HeaderMode, LoadOptions};
 use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
 
@@ -69,6 +71,75 @@ pub struct LoadSpec {
 
 fn auto() -> String {
     "auto".into()
+}
+
+impl LoadSpec {
+    /// The loader's options this spec stands for (unknown words read as "auto").
+    pub fn to_options(&self) -> LoadOptions {
+        LoadOptions {
+            delimiter: self.delimiter.as_deref().and_then(|d| d.bytes().next()),
+            header: match self.header.as_str() {
+                "yes" => HeaderMode::Yes,
+                "no" => HeaderMode::No,
+                _ => HeaderMode::Auto,
+            },
+            decimal: match self.decimal.as_str() {
+                "point" => Some(DecimalMark::Point),
+                "comma" => Some(DecimalMark::Comma),
+                _ => None,
+            },
+            missing_tokens: self.missing.clone(),
+            sheet: self.sheet.clone(),
+        }
+    }
+
+    /// The spec that records `options`.
+    pub fn from_options(options: &LoadOptions) -> Self {
+        Self {
+            delimiter: options.delimiter.map(|d| (d as char).to_string()),
+            header: match options.header {
+                HeaderMode::Auto => "auto",
+                HeaderMode::Yes => "yes",
+                HeaderMode::No => "no",
+            }
+            .into(),
+            decimal: match options.decimal {
+                None => "auto",
+                Some(DecimalMark::Point) => "point",
+                Some(DecimalMark::Comma) => "comma",
+            }
+            .into(),
+            missing: options.missing_tokens.clone(),
+            sheet: options.sheet.clone(),
+        }
+    }
+}
+
+impl ModelSpec {
+    /// The analysis request of this model with `exclude` left out.
+    pub fn request(&self, exclude: Vec<usize>) -> FitRequest {
+        FitRequest {
+            y: self.y.clone(),
+            x: self.x.clone(),
+            intercept: self.intercept,
+            degree: self.degree,
+            weights: self.weights.clone(),
+            exclude,
+            level: self.level,
+        }
+    }
+
+    /// The model of `request` (its exclusions are kept in the session's log, not here).
+    pub fn from_request(request: &FitRequest) -> Self {
+        Self {
+            y: request.y.clone(),
+            x: request.x.clone(),
+            intercept: request.intercept,
+            degree: request.degree,
+            weights: request.weights.clone(),
+            level: request.level,
+        }
+    }
 }
 
 /// One model of the session.
@@ -259,6 +330,22 @@ mod tests {
         let foreign = dir.path().join("o.plumb");
         std::fs::write(&foreign, "{\"a\": 1}").expect("write");
         assert!(Session::load(&foreign).is_err());
+    }
+
+    #[test]
+    fn load_options_and_models_round_trip_through_their_specs() {
+        let options = LoadOptions {
+            delimiter: Some(b';'),
+            header: HeaderMode::No,
+            decimal: Some(DecimalMark::Comma),
+            missing_tokens: vec!["-999".into()],
+            sheet: Some("runs".into()),
+        };
+        assert_eq!(LoadSpec::from_options(&options).to_options(), options);
+        assert_eq!(LoadSpec::default().to_options(), LoadOptions::default());
+        let model = &sample().models[0];
+        assert_eq!(&ModelSpec::from_request(&model.request(vec![3])), model);
+        assert_eq!(model.request(vec![3]).exclude, [3]);
     }
 
     #[test]

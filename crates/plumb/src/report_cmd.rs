@@ -8,17 +8,23 @@ use plumb_report::{
     file_sha256, DataSource, Exclusion, LoadSpec, ModelSpec, Session, SCHEMA_VERSION,
 };
 
-use crate::cli::{DecimalArg, HeaderArg, ReportArgs};
+use crate::cli::ReportArgs;
 
 pub fn run(args: &ReportArgs) -> anyhow::Result<String> {
     let input = &args.load.data;
     let is_session = input.extension().is_some_and(|e| e == "plumb");
-    let (table, request, exclusions, reproduce, note) = if is_session {
+    let Prepared {
+        table,
+        request,
+        exclusions,
+        reproduce,
+        note,
+        sha256,
+    } = if is_session {
         from_session(input, &args.output)?
     } else {
         from_data(args)?
     };
-    let sha256 = file_sha256(table.source())?;
     let report = build(&ReportInput {
         table: &table,
         sha256: sha256.clone(),
@@ -40,33 +46,22 @@ pub fn run(args: &ReportArgs) -> anyhow::Result<String> {
     Ok(out)
 }
 
-type Prepared = (
-    plumb_data::Table,
-    FitRequest,
-    Vec<Exclusion>,
-    String,
-    Option<String>,
-);
+/// What a summary is built from, however it was asked for.
+struct Prepared {
+    table: plumb_data::Table,
+    request: FitRequest,
+    exclusions: Vec<Exclusion>,
+    reproduce: String,
+    /// Something the user should know (a changed data file).
+    note: Option<String>,
+    /// SHA-256 of the data file, read once.
+    sha256: String,
+}
 
 fn from_session(path: &Path, output: &Path) -> anyhow::Result<Prepared> {
     let session = Session::load(path)?;
     let data_path = session.data_path(path);
-    let spec = &session.data.load;
-    let options = plumb_data::LoadOptions {
-        delimiter: spec.delimiter.as_deref().and_then(|d| d.bytes().next()),
-        header: match spec.header.as_str() {
-            "yes" => plumb_data::HeaderMode::Yes,
-            "no" => plumb_data::HeaderMode::No,
-            _ => plumb_data::HeaderMode::Auto,
-        },
-        decimal: match spec.decimal.as_str() {
-            "point" => Some(plumb_data::DecimalMark::Point),
-            "comma" => Some(plumb_data::DecimalMark::Comma),
-            _ => None,
-        },
-        missing_tokens: spec.missing.clone(),
-        sheet: spec.sheet.clone(),
-    };
+    let options = session.data.load.to_options();
     let table = plumb_data::load(&data_path, &options).map_err(|e| {
         anyhow::anyhow!(
             "{}: the session's data file cannot be used: {e}",
@@ -86,17 +81,16 @@ fn from_session(path: &Path, output: &Path) -> anyhow::Result<Prepared> {
         .models
         .first()
         .ok_or_else(|| anyhow::anyhow!("{}: the session names no model", path.display()))?;
-    let request = FitRequest {
-        y: model.y.clone(),
-        x: model.x.clone(),
-        intercept: model.intercept,
-        degree: model.degree,
-        weights: model.weights.clone(),
-        exclude: session.exclusions.iter().map(|e| e.row).collect(),
-        level: model.level,
-    };
+    let request = model.request(session.exclusions.iter().map(|e| e.row).collect());
     let reproduce = format!("plumb report {} -o {}", path.display(), output.display());
-    Ok((table, request, session.exclusions.clone(), reproduce, note))
+    Ok(Prepared {
+        table,
+        request,
+        exclusions: session.exclusions.clone(),
+        reproduce,
+        note,
+        sha256: hash,
+    })
 }
 
 fn from_data(args: &ReportArgs) -> anyhow::Result<Prepared> {
@@ -155,7 +149,15 @@ fn from_data(args: &ReportArgs) -> anyhow::Result<Prepared> {
         .map(|a| shell_quote(&a))
         .collect::<Vec<_>>()
         .join(" ");
-    Ok((table, request, exclusions, reproduce, None))
+    let sha256 = file_sha256(table.source())?;
+    Ok(Prepared {
+        table,
+        request,
+        exclusions,
+        reproduce,
+        note: None,
+        sha256,
+    })
 }
 
 fn session_of(
@@ -174,32 +176,9 @@ fn session_of(
             ),
             sha256,
             rows: table.n_rows(),
-            load: LoadSpec {
-                delimiter: args.load.delimiter.map(|d| (d as char).to_string()),
-                header: match args.load.header {
-                    HeaderArg::Auto => "auto",
-                    HeaderArg::Yes => "yes",
-                    HeaderArg::No => "no",
-                }
-                .into(),
-                decimal: match args.load.decimal {
-                    DecimalArg::Auto => "auto",
-                    DecimalArg::Point => "point",
-                    DecimalArg::Comma => "comma",
-                }
-                .into(),
-                missing: args.load.missing.clone(),
-                sheet: args.load.sheet.clone(),
-            },
+            load: LoadSpec::from_options(&args.load.options()),
         },
-        models: vec![ModelSpec {
-            y: request.y.clone(),
-            x: request.x.clone(),
-            intercept: request.intercept,
-            degree: request.degree,
-            weights: request.weights.clone(),
-            level: request.level,
-        }],
+        models: vec![ModelSpec::from_request(request)],
         exclusions: exclusions.to_vec(),
         view: serde_json::Map::new(),
     }
