@@ -80,6 +80,18 @@ pub fn equation_terms(fit: &plumb_core::regression::LinearFit) -> Vec<String> {
         .collect()
 }
 
+/// `a` as one word of a POSIX shell command line (quoted only when it needs to be).
+pub fn shell_word(a: &str) -> String {
+    if !a.is_empty()
+        && a.chars()
+            .all(|c| c.is_ascii_alphanumeric() || "-_./=:,+".contains(c))
+    {
+        a.to_string()
+    } else {
+        format!("'{}'", a.replace('\'', "'\\''"))
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -95,5 +107,7 @@ mod tests {
         assert_eq!(exact(0.1), "0.1");
         assert_eq!(exact(1.8e-21), "1.8e-21");
         assert_eq!(exact(f64::NAN), "");
+        assert_eq!(shell_word("jar-tests.csv"), "jar-tests.csv");
+        assert_eq!(shell_word("it's here"), "'it'\\''s here'");
     }
 }

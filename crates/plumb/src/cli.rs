@@ -7,11 +7,64 @@ use plumb_data::{DecimalMark, HeaderMode, LoadOptions};
 
 /// Plumbline: exploratory fitting with honest numbers.
 #[derive(Debug, Parser)]
-#[command(name = "plumb", version, about)]
+#[command(name = "plumb", version, about, args_conflicts_with_subcommands = true)]
 pub struct Args {
-    /// What to do.
+    /// What to do (without one, the desktop workbench opens).
     #[command(subcommand)]
     pub command: Option<Command>,
+    /// Options of the desktop workbench.
+    #[command(flatten)]
+    pub workbench: WorkbenchArgs,
+}
+
+/// `plumb [DATA]`: the desktop workbench.
+#[derive(Debug, ClapArgs)]
+pub struct WorkbenchArgs {
+    /// Data file (CSV, TSV, Parquet, spreadsheet) or .plumb session to open.
+    pub data: Option<PathBuf>,
+    /// Open this response column on the pair bench (with --x).
+    #[arg(long, value_name = "COLUMN", requires = "x")]
+    pub y: Option<String>,
+    /// Open this predictor column on the pair bench (with --y).
+    #[arg(long, value_name = "COLUMN", requires = "y")]
+    pub x: Option<String>,
+    /// Rows to exclude at start (1-based data rows, e.g. 3,17,40-42).
+    #[arg(long, value_name = "ROWS", value_parser = parse_rows)]
+    pub exclude: Option<RowList>,
+    /// Screen to show first.
+    #[arg(long, value_enum)]
+    pub screen: Option<ScreenArg>,
+    /// Render the window once to this PNG file and exit (for checks and documentation).
+    #[arg(long, value_name = "FILE.png")]
+    pub screenshot: Option<PathBuf>,
+    /// Window size in points, WIDTHxHEIGHT.
+    #[arg(long, value_name = "WxH", value_parser = parse_size)]
+    pub window_size: Option<(f32, f32)>,
+}
+
+/// Screens of the workbench.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum ScreenArg {
+    /// The file's columns.
+    Columns,
+    /// The co-movement map.
+    Map,
+    /// The pair bench.
+    Bench,
+}
+
+fn parse_size(s: &str) -> Result<(f32, f32), String> {
+    let (w, h) = s
+        .split_once(['x', 'X'])
+        .ok_or_else(|| format!("'{s}' is not WIDTHxHEIGHT, e.g. 1440x900"))?;
+    let parse = |v: &str| {
+        v.trim()
+            .parse::<f32>()
+            .ok()
+            .filter(|n| (200.0..=8000.0).contains(n))
+            .ok_or_else(|| format!("'{v}' is not a size between 200 and 8000"))
+    };
+    Ok((parse(w)?, parse(h)?))
 }
 
 /// Subcommands.

@@ -23,9 +23,7 @@ fn main() -> ExitCode {
         Some(cli::Command::Report(a)) => report_cmd::run(&a),
         Some(cli::Command::Corr(a)) => corr_cmd::run(&a),
         Some(cli::Command::Columns(a)) => columns_cmd::run(&a),
-        None => Err(anyhow::anyhow!(
-            "the desktop workbench is not part of this build yet; use a subcommand such as `plumb fit` (see `plumb --help`)"
-        )),
+        None => workbench(args.workbench),
     };
     match result {
         Ok(text) => {
@@ -37,4 +35,24 @@ fn main() -> ExitCode {
             ExitCode::FAILURE
         }
     }
+}
+
+/// Opens the desktop workbench.
+fn workbench(a: cli::WorkbenchArgs) -> anyhow::Result<String> {
+    let launch = plumb_app::Launch {
+        data: a.data,
+        pair: a.y.zip(a.x),
+        exclude: a.exclude.map(|r| r.0).unwrap_or_default(),
+        screen: a.screen.map(|s| match s {
+            cli::ScreenArg::Columns => plumb_app::Screen::Columns,
+            cli::ScreenArg::Map => plumb_app::Screen::Overview,
+            cli::ScreenArg::Bench => plumb_app::Screen::Bench,
+        }),
+        screenshot: a.screenshot.clone(),
+        size: a.window_size,
+    };
+    plumb_app::run(launch)?;
+    Ok(a.screenshot
+        .map(|p| format!("wrote {}\n", p.display()))
+        .unwrap_or_default())
 }

@@ -146,7 +146,7 @@ fn from_data(args: &ReportArgs) -> anyhow::Result<Prepared> {
     };
     let reproduce = std::iter::once("plumb".to_string())
         .chain(std::env::args().skip(1))
-        .map(|a| shell_quote(&a))
+        .map(|a| plumb_report::text::shell_word(&a))
         .collect::<Vec<_>>()
         .join(" ");
     let sha256 = file_sha256(table.source())?;
@@ -181,16 +181,5 @@ fn session_of(
         models: vec![ModelSpec::from_request(request)],
         exclusions: exclusions.to_vec(),
         view: serde_json::Map::new(),
-    }
-}
-
-fn shell_quote(a: &str) -> String {
-    if !a.is_empty()
-        && a.chars()
-            .all(|c| c.is_ascii_alphanumeric() || "-_./=:,+".contains(c))
-    {
-        a.to_string()
-    } else {
-        format!("'{}'", a.replace('\'', "'\\''"))
     }
 }

@@ -7,6 +7,7 @@ mod adjust;
 mod distance;
 mod kendall;
 mod matrix;
+mod order;
 mod pearson;
 mod rank;
 mod spearman;
@@ -18,6 +19,7 @@ pub use distance::{
 };
 pub use kendall::kendall_tau_b;
 pub use matrix::{correlation_matrix, CorrelationMatrix, Method};
+pub use order::similarity_order;
 pub use pearson::pearson;
 pub use rank::average_ranks;
 pub use spearman::spearman;

@@ -1,0 +1,67 @@
+//! The points of one view with their pair entries, indexed for hover when there are many.
+
+use crate::density::PointIndex;
+
+/// Above this many points a view draws a density image instead of markers.
+pub const DENSITY_FROM: usize = 20_000;
+/// Above this many points hover uses the grid index instead of a scan.
+const INDEX_FROM: usize = 2_000;
+
+/// Points of a view.
+#[derive(Debug, Clone, Default)]
+pub struct Cloud {
+    /// Positions in the view's units.
+    pub points: Vec<(f64, f64)>,
+    /// Pair entry of each point.
+    pub entries: Vec<usize>,
+    index: Option<PointIndex>,
+}
+
+impl Cloud {
+    /// A cloud; builds the index when it is large.
+    pub fn new(points: Vec<(f64, f64)>, entries: Vec<usize>) -> Self {
+        let index = (points.len() > INDEX_FROM)
+            .then(|| PointIndex::new(&points))
+            .flatten();
+        Self {
+            points,
+            entries,
+            index,
+        }
+    }
+
+    /// Whether the view should draw a density image.
+    pub fn is_dense(&self) -> bool {
+        self.points.len() > DENSITY_FROM
+    }
+
+    /// The entry nearest `(x, y)` within half-axes `(rx, ry)`.
+    pub fn nearest(&self, x: f64, y: f64, rx: f64, ry: f64) -> Option<usize> {
+        let k = match &self.index {
+            Some(ix) => ix.nearest(&self.points, x, y, rx, ry),
+            None => self
+                .points
+                .iter()
+                .enumerate()
+                .map(|(k, &(px, py))| (k, ((px - x) / rx).powi(2) + ((py - y) / ry).powi(2)))
+                .filter(|&(_, d)| d <= 1.0)
+                .min_by(|a, b| a.1.total_cmp(&b.1))
+                .map(|(k, _)| k),
+        }?;
+        Some(self.entries[k])
+    }
+
+    /// Position of `entry` in this view, if it is drawn here.
+    pub fn position_of(&self, entry: usize) -> Option<(f64, f64)> {
+        // Entries are ascending in every cloud but the quantile view's; scan is fine for a
+        // single lookup per frame.
+        match self.entries.binary_search(&entry) {
+            Ok(k) => Some(self.points[k]),
+            Err(_) => self
+                .entries
+                .iter()
+                .position(|&e| e == entry)
+                .map(|k| self.points[k]),
+        }
+    }
+}

@@ -1,0 +1,255 @@
+//! Large point clouds: binned counts for a density image, and a grid index so that hover and
+//! click find the nearest row without scanning every point each frame.
+
+/// A rectangle in data units.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Bounds {
+    /// Left edge.
+    pub x_min: f64,
+    /// Right edge.
+    pub x_max: f64,
+    /// Bottom edge.
+    pub y_min: f64,
+    /// Top edge.
+    pub y_max: f64,
+}
+
+impl Bounds {
+    /// The smallest rectangle holding every finite point (`None` if there is none); a
+    /// zero-width side is widened to 1 so that cells have a size.
+    pub fn around(points: impl Iterator<Item = (f64, f64)>) -> Option<Self> {
+        let mut b: Option<Self> = None;
+        for (x, y) in points.filter(|(x, y)| x.is_finite() && y.is_finite()) {
+            let c = b.get_or_insert(Self {
+                x_min: x,
+                x_max: x,
+                y_min: y,
+                y_max: y,
+            });
+            c.x_min = c.x_min.min(x);
+            c.x_max = c.x_max.max(x);
+            c.y_min = c.y_min.min(y);
+            c.y_max = c.y_max.max(y);
+        }
+        b.map(|mut c| {
+            if c.x_max <= c.x_min {
+                c.x_max = c.x_min + 1.0;
+            }
+            if c.y_max <= c.y_min {
+                c.y_max = c.y_min + 1.0;
+            }
+            c
+        })
+    }
+
+    fn width(&self) -> f64 {
+        self.x_max - self.x_min
+    }
+
+    fn height(&self) -> f64 {
+        self.y_max - self.y_min
+    }
+}
+
+/// Counts of points per cell of a `width × height` grid over `bounds`; row 0 is the top.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Density {
+    /// Cells across.
+    pub width: usize,
+    /// Cells down.
+    pub height: usize,
+    /// Row-major counts.
+    pub counts: Vec<u32>,
+    /// Largest count.
+    pub max: u32,
+    /// The area binned.
+    pub bounds: Bounds,
+}
+
+/// Bins `points` (those outside `bounds` are skipped). One pass, no allocation per point.
+pub fn bin(
+    points: impl Iterator<Item = (f64, f64)>,
+    bounds: Bounds,
+    width: usize,
+    height: usize,
+) -> Density {
+    let mut counts = vec![0u32; width * height];
+    let sx = width as f64 / bounds.width();
+    let sy = height as f64 / bounds.height();
+    for (x, y) in points {
+        let u = (x - bounds.x_min) * sx;
+        let v = (bounds.y_max - y) * sy;
+        // NaN fails the comparisons, so it is skipped too; a point on the right or bottom
+        // edge belongs to the last cell.
+        if (0.0..=width as f64).contains(&u) && (0.0..=height as f64).contains(&v) {
+            let (c, r) = ((u as usize).min(width - 1), (v as usize).min(height - 1));
+            counts[r * width + c] += 1;
+        }
+    }
+    let max = counts.iter().copied().max().unwrap_or(0);
+    Density {
+        width,
+        height,
+        counts,
+        max,
+        bounds,
+    }
+}
+
+/// Cells per side of the hover index.
+const INDEX_CELLS: usize = 256;
+
+/// Points sorted by the cell of a fixed grid over their extent.
+#[derive(Debug, Clone)]
+pub struct PointIndex {
+    bounds: Bounds,
+    /// `starts[c]..starts[c + 1]` are the positions in `entries` of the points in cell `c`.
+    starts: Vec<u32>,
+    entries: Vec<u32>,
+}
+
+impl PointIndex {
+    /// Indexes `points` (entry `i` is the `i`-th point). `None` when there is no finite point.
+    pub fn new(points: &[(f64, f64)]) -> Option<Self> {
+        let bounds = Bounds::around(points.iter().copied())?;
+        let cell_of = |&(x, y): &(f64, f64)| -> Option<usize> {
+            let u = ((x - bounds.x_min) / bounds.width() * INDEX_CELLS as f64) as usize;
+            let v = ((y - bounds.y_min) / bounds.height() * INDEX_CELLS as f64) as usize;
+            (x.is_finite() && y.is_finite())
+                .then(|| v.min(INDEX_CELLS - 1) * INDEX_CELLS + u.min(INDEX_CELLS - 1))
+        };
+        let mut starts = vec![0u32; INDEX_CELLS * INDEX_CELLS + 1];
+        let cells: Vec<Option<usize>> = points.iter().map(cell_of).collect();
+        for c in cells.iter().flatten() {
+            starts[c + 1] += 1;
+        }
+        for k in 1..starts.len() {
+            starts[k] += starts[k - 1];
+        }
+        let mut fill = starts.clone();
+        let mut entries = vec![0u32; starts[starts.len() - 1] as usize];
+        for (i, c) in cells.iter().enumerate() {
+            if let Some(c) = c {
+                entries[fill[*c] as usize] = i as u32;
+                fill[*c] += 1;
+            }
+        }
+        Some(Self {
+            bounds,
+            starts,
+            entries,
+        })
+    }
+
+    /// The point nearest to `(x, y)` within the ellipse of half-axes `(rx, ry)` (data units:
+    /// a pixel radius converted per axis), measured as `(dx/rx)² + (dy/ry)²`.
+    pub fn nearest(
+        &self,
+        points: &[(f64, f64)],
+        x: f64,
+        y: f64,
+        rx: f64,
+        ry: f64,
+    ) -> Option<usize> {
+        if !(rx > 0.0 && ry > 0.0) {
+            return None;
+        }
+        let to_u = |v: f64| (v - self.bounds.x_min) / self.bounds.width() * INDEX_CELLS as f64;
+        let to_v = |v: f64| (v - self.bounds.y_min) / self.bounds.height() * INDEX_CELLS as f64;
+        let clamp = |f: f64| f.clamp(0.0, (INDEX_CELLS - 1) as f64) as usize;
+        let (u0, u1) = (to_u(x - rx), to_u(x + rx));
+        let (v0, v1) = (to_v(y - ry), to_v(y + ry));
+        if u1 < 0.0 || v1 < 0.0 || u0 >= INDEX_CELLS as f64 || v0 >= INDEX_CELLS as f64 {
+            return None;
+        }
+        let mut best: Option<(usize, f64)> = None;
+        for v in clamp(v0)..=clamp(v1) {
+            for u in clamp(u0)..=clamp(u1) {
+                let c = v * INDEX_CELLS + u;
+                for &e in &self.entries[self.starts[c] as usize..self.starts[c + 1] as usize] {
+                    let (px, py) = points[e as usize];
+                    let d = ((px - x) / rx).powi(2) + ((py - y) / ry).powi(2);
+                    if d <= 1.0 && best.is_none_or(|(_, b)| d < b) {
+                        best = Some((e as usize, d));
+                    }
+                }
+            }
+        }
+        best.map(|(e, _)| e)
+    }
+}
+
+/// Whether `(x, y)` lies inside the polygon `ring` (even–odd rule; the ring need not be closed).
+pub fn inside(ring: &[[f64; 2]], x: f64, y: f64) -> bool {
+    let mut odd = false;
+    let n = ring.len();
+    for k in 0..n {
+        let [xi, yi] = ring[k];
+        let [xj, yj] = ring[(k + n - 1) % n];
+        if (yi > y) != (yj > y) && x < (xj - xi) * (y - yi) / (yj - yi) + xi {
+            odd = !odd;
+        }
+    }
+    odd
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn binning_counts_every_point_inside_once() {
+        let pts: Vec<(f64, f64)> = (0..1000)
+            .map(|i| (f64::from(i % 10), f64::from(i / 100)))
+            .chain([(f64::NAN, 1.0), (50.0, 1.0)])
+            .collect();
+        let b = Bounds {
+            x_min: 0.0,
+            x_max: 9.0,
+            y_min: 0.0,
+            y_max: 9.0,
+        };
+        let d = bin(pts.iter().copied(), b, 3, 3);
+        assert_eq!(
+            d.counts.iter().sum::<u32>(),
+            1000,
+            "NaN and out-of-range skipped"
+        );
+        // Top-left cell: x in 0..3 (0, 1, 2) and y in (6, 9] (7, 8, 9): 3 × 3 × 10 points.
+        assert_eq!(d.counts[0], 90);
+        assert_eq!(d.max, d.counts.iter().copied().max().expect("cells"));
+    }
+
+    #[test]
+    fn the_index_finds_what_a_full_scan_finds() {
+        let pts: Vec<(f64, f64)> = (0..5000)
+            .map(|i| {
+                let t = f64::from(i);
+                ((t * 0.618).fract() * 100.0, (t * 0.382).fract() * 3.0)
+            })
+            .collect();
+        let index = PointIndex::new(&pts).expect("points");
+        for k in 0..200 {
+            let (x, y) = (f64::from(k) * 0.5, f64::from(k % 30) * 0.1);
+            let (rx, ry) = (0.7, 0.02);
+            let scan = pts
+                .iter()
+                .enumerate()
+                .map(|(i, &(px, py))| (i, ((px - x) / rx).powi(2) + ((py - y) / ry).powi(2)))
+                .filter(|&(_, d)| d <= 1.0)
+                .min_by(|a, b| a.1.total_cmp(&b.1))
+                .map(|(i, _)| i);
+            assert_eq!(index.nearest(&pts, x, y, rx, ry), scan, "query {k}");
+        }
+    }
+
+    #[test]
+    fn polygon_membership() {
+        let square = [[0.0, 0.0], [2.0, 0.0], [2.0, 2.0], [0.0, 2.0]];
+        assert!(inside(&square, 1.0, 1.0));
+        assert!(!inside(&square, 3.0, 1.0));
+        let notch = [[0.0, 0.0], [4.0, 0.0], [4.0, 4.0], [2.0, 1.0], [0.0, 4.0]];
+        assert!(!inside(&notch, 2.0, 3.0));
+        assert!(inside(&notch, 1.0, 1.0));
+    }
+}

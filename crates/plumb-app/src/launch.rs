@@ -1,0 +1,185 @@
+//! Opening the window: options from the command line, the native window, and the screenshot
+//! mode that renders one frame to a PNG and exits.
+
+use std::path::PathBuf;
+use std::sync::mpsc;
+use std::sync::Arc;
+use std::time::{Duration, Instant};
+
+use eframe::egui;
+
+use crate::app::{Screen, Workbench};
+use crate::pair::PairSpec;
+use crate::WorkbenchError;
+
+/// How the window starts.
+#[derive(Debug, Clone, Default)]
+pub struct Launch {
+    /// A data file or session to open.
+    pub data: Option<PathBuf>,
+    /// A pair to open on the bench (response, predictor).
+    pub pair: Option<(String, String)>,
+    /// Rows to exclude at start (1-based), recorded with a reason saying so.
+    pub exclude: Vec<usize>,
+    /// Screen to show first.
+    pub screen: Option<Screen>,
+    /// Render to this PNG and exit.
+    pub screenshot: Option<PathBuf>,
+    /// Window size in points.
+    pub size: Option<(f32, f32)>,
+}
+
+/// Longest wait for the data and diagnostics before a screenshot is taken anyway.
+const SCREENSHOT_PATIENCE: Duration = Duration::from_secs(60);
+
+struct Shooter {
+    path: PathBuf,
+    started: Instant,
+    settled_frames: u32,
+    requested: bool,
+    rx: Option<mpsc::Receiver<Arc<egui::ColorImage>>>,
+    result: Arc<std::sync::Mutex<Option<Result<(), String>>>>,
+}
+
+struct Window {
+    wb: Workbench,
+    shooter: Option<Shooter>,
+    pending: Option<Launch>,
+}
+
+impl eframe::App for Window {
+    fn ui(&mut self, ui: &mut egui::Ui, _frame: &mut eframe::Frame) {
+        if self.pending.is_some() && !self.wb.is_loading() {
+            if let Some(launch) = self.pending.take() {
+                // A failed load leaves nothing to apply to; its message is on the status line.
+                if self.wb.loaded().is_some() {
+                    apply_after_load(&mut self.wb, launch);
+                }
+            }
+        }
+        self.wb.show(ui);
+        if let Some(s) = &mut self.shooter {
+            shoot(&self.wb, s, ui.ctx());
+        }
+    }
+
+    fn on_exit(&mut self, gl: Option<&eframe::glow::Context>) {
+        eframe::App::on_exit(&mut self.wb, gl);
+    }
+}
+
+/// Once the file is in: the pair, the exclusions and the screen asked for.
+fn apply_after_load(wb: &mut Workbench, launch: Launch) {
+    if let Some((y, x)) = &launch.pair {
+        if wb.open_pair(PairSpec::line(y, x)) {
+            wb.set_screen(Screen::Bench);
+        }
+    }
+    if !launch.exclude.is_empty() {
+        wb.exclude_rows(&launch.exclude);
+        wb.record_reason("excluded from the command line (--exclude)");
+    }
+    if let Some(s) = launch.screen {
+        wb.set_screen(s);
+    }
+}
+
+fn shoot(wb: &Workbench, s: &mut Shooter, ctx: &egui::Context) {
+    let ready = !wb.is_busy();
+    s.settled_frames = if ready { s.settled_frames + 1 } else { 0 };
+    let patience_over = s.started.elapsed() > SCREENSHOT_PATIENCE;
+    if !s.requested && (s.settled_frames >= 5 || patience_over) {
+        let (tx, rx) = mpsc::channel();
+        let ctx2 = ctx.clone();
+        ctx.request_screenshot(move |image| {
+            let _ = tx.send(image);
+            ctx2.request_repaint();
+        });
+        s.rx = Some(rx);
+        s.requested = true;
+    }
+    if let Some(image) = s.rx.as_ref().and_then(|rx| rx.try_recv().ok()) {
+        let outcome = save_png(&image, &s.path);
+        *s.result
+            .lock()
+            .unwrap_or_else(std::sync::PoisonError::into_inner) = Some(outcome);
+        ctx.send_viewport_cmd(egui::ViewportCommand::Close);
+    }
+    ctx.request_repaint_after(Duration::from_millis(50));
+}
+
+fn save_png(image: &egui::ColorImage, path: &std::path::Path) -> Result<(), String> {
+    let [w, h] = image.size;
+    let bytes: Vec<u8> = image.pixels.iter().flat_map(|c| c.to_array()).collect();
+    let buffer = image::RgbaImage::from_raw(w as u32, h as u32, bytes)
+        .ok_or("screenshot buffer has the wrong size")?;
+    let mut png = Vec::new();
+    buffer
+        .write_to(
+            &mut std::io::Cursor::new(&mut png),
+            image::ImageOutputFormat::Png,
+        )
+        .map_err(|e| e.to_string())?;
+    plumb_report::write_atomically(path, &png).map_err(|e| e.to_string())
+}
+
+/// Opens the window and runs until it is closed (or the screenshot is written).
+///
+/// # Errors
+/// The window system failed, or the screenshot could not be written.
+pub fn run(launch: Launch) -> Result<(), WorkbenchError> {
+    let (w, h) = launch.size.unwrap_or((1440.0, 900.0));
+    let options = eframe::NativeOptions {
+        viewport: egui::ViewportBuilder::default()
+            .with_inner_size([w, h])
+            .with_min_inner_size([900.0, 600.0])
+            .with_title("Plumbline")
+            .with_app_id("plumbline")
+            .with_drag_and_drop(true),
+        ..Default::default()
+    };
+    let result = Arc::new(std::sync::Mutex::new(None));
+    let shooter = launch.screenshot.clone().map(|path| Shooter {
+        path,
+        started: Instant::now(),
+        settled_frames: 0,
+        requested: false,
+        rx: None,
+        result: Arc::clone(&result),
+    });
+    let app_launch = launch.clone();
+    eframe::run_native(
+        "plumbline",
+        options,
+        Box::new(move |cc| {
+            let mut wb = Workbench::default();
+            if shooter.is_some() {
+                // A screenshot shows the file asked for, not last run's recovery question.
+                wb.ask = None;
+            }
+            wb.set_context(cc.egui_ctx.clone());
+            if let Some(d) = &app_launch.data {
+                wb.open_path(d);
+            }
+            Ok(Box::new(Window {
+                wb,
+                shooter,
+                pending: Some(app_launch),
+            }))
+        }),
+    )
+    .map_err(|e| WorkbenchError::Window(e.to_string()))?;
+    let outcome = result
+        .lock()
+        .unwrap_or_else(std::sync::PoisonError::into_inner)
+        .take();
+    match (launch.screenshot, outcome) {
+        (None, _) => Ok(()),
+        (Some(_), Some(Ok(()))) => Ok(()),
+        (Some(p), Some(Err(e))) => Err(WorkbenchError::Report(format!("{}: {e}", p.display()))),
+        (Some(p), None) => Err(WorkbenchError::Report(format!(
+            "{}: the window closed before a screenshot was taken",
+            p.display()
+        ))),
+    }
+}

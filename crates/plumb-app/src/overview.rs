@@ -1,0 +1,361 @@
+//! The co-movement map: a coefficient for every pair of numeric columns, drawn as a grid of
+//! coloured cells, with the raw and adjusted p-values on hover, and the strongest pairs listed
+//! beside it. Computed off the UI thread.
+
+use eframe::egui::{self, Color32, Pos2, Rect, RichText, Sense, Vec2};
+use plumb_core::association::{
+    correlation_matrix, similarity_order, Adjustment, CorrelationMatrix, Method,
+};
+use plumb_report::text::{num, p};
+
+use crate::app::{Screen, Workbench};
+use crate::dataset::Dataset;
+use crate::jobs::Job;
+use crate::pair::PairSpec;
+use crate::palette;
+
+/// What the map is computed from.
+#[derive(Debug, Clone, PartialEq)]
+pub struct MapKey {
+    /// Coefficient.
+    pub method: Method,
+    /// p-value adjustment across the pairs.
+    pub adjust: Adjustment,
+    /// Column giving the order of the rows (adds the shared-trend guard).
+    pub order: Option<String>,
+}
+
+/// A computed map.
+#[derive(Debug, Clone)]
+pub struct MapResult {
+    /// Its inputs.
+    pub key: MapKey,
+    /// Columns, in file order.
+    pub columns: Vec<String>,
+    /// The matrix.
+    pub matrix: CorrelationMatrix,
+    /// Columns ordered so that those moving together sit together.
+    pub similarity: Vec<usize>,
+}
+
+/// State of the screen.
+pub struct Overview {
+    /// Asked-for inputs.
+    pub key: MapKey,
+    /// Order cells by similarity (else by file order).
+    pub by_similarity: bool,
+    job: Option<Job<MapResult>>,
+    result: Option<MapResult>,
+}
+
+impl Default for Overview {
+    fn default() -> Self {
+        Self {
+            key: MapKey {
+                method: Method::Pearson,
+                adjust: Adjustment::Holm,
+                order: None,
+            },
+            by_similarity: true,
+            job: None,
+            result: None,
+        }
+    }
+}
+
+impl Overview {
+    /// Whether the map is being computed.
+    pub fn is_busy(&self) -> bool {
+        self.job.is_some()
+    }
+
+    /// The map last computed.
+    pub fn result(&self) -> Option<&MapResult> {
+        self.result.as_ref()
+    }
+
+    /// Picks up a finished map; starts one when the inputs changed.
+    pub fn poll(&mut self, data: &Dataset, ctx: &egui::Context) {
+        if let Some(r) = self.job.as_mut().and_then(Job::poll) {
+            self.job = None;
+            self.result = Some(r);
+        }
+        let current = self.result.as_ref().map(|r| &r.key) == Some(&self.key);
+        if !current && self.job.is_none() && data.numeric.len() >= 2 {
+            let key = self.key.clone();
+            let table = std::sync::Arc::clone(&data.table);
+            let columns = data.numeric.clone();
+            let ctx = ctx.clone();
+            self.job = Some(Job::spawn(
+                move |_| compute(&table, columns, key),
+                move || ctx.request_repaint(),
+            ));
+        }
+    }
+}
+
+/// The map for `columns` of `table`.
+pub fn compute(table: &plumb_data::Table, columns: Vec<String>, key: MapKey) -> MapResult {
+    let values: Vec<&[Option<f64>]> = columns
+        .iter()
+        .filter_map(|c| table.numeric(c).ok())
+        .collect();
+    let order = key.order.as_deref().and_then(|c| table.numeric(c).ok());
+    let matrix = correlation_matrix(&values, key.method, key.adjust, order);
+    let similarity = similarity_order(&matrix.r);
+    MapResult {
+        key,
+        columns,
+        matrix,
+        similarity,
+    }
+}
+
+/// Draws the screen.
+pub fn show(wb: &mut Workbench, ui: &mut egui::Ui) {
+    let Some(loaded) = &wb.loaded else { return };
+    let numeric = loaded.dataset.numeric.clone();
+    if numeric.len() < 2 {
+        ui.label("The map needs at least two numeric columns.");
+        return;
+    }
+    controls(&mut wb.overview, &numeric, ui);
+    let Some(result) = wb.overview.result.clone() else {
+        ui.horizontal(|ui| {
+            ui.spinner();
+            ui.label("computing the map…");
+        });
+        return;
+    };
+    if wb.overview.is_busy() {
+        ui.horizontal(|ui| {
+            ui.spinner();
+            ui.weak("updating…");
+        });
+    }
+    ui.label(testing_note(&result));
+    let order: Vec<usize> = if wb.overview.by_similarity {
+        result.similarity.clone()
+    } else {
+        (0..result.columns.len()).collect()
+    };
+    let mut chosen = None;
+    ui.horizontal_top(|ui| {
+        if let Some(c) = grid(ui, &result, &order) {
+            chosen = Some(c);
+        }
+        ui.vertical(|ui| {
+            if let Some(c) = strongest(ui, &result) {
+                chosen = Some(c);
+            }
+        });
+    });
+    ui.weak("Association is not causation. A coefficient measures one kind of association only: a strong curved or clustered relation can give r near 0. Open a pair to look at it.");
+    if let Some((i, j)) = chosen {
+        let spec = PairSpec::line(&result.columns[i], &result.columns[j]);
+        if wb.open_pair(spec) {
+            wb.screen = Screen::Bench;
+        }
+    }
+}
+
+fn controls(o: &mut Overview, numeric: &[String], ui: &mut egui::Ui) {
+    ui.horizontal_wrapped(|ui| {
+        ui.label("Coefficient:");
+        for (m, name, tip) in [
+            (Method::Pearson, "Pearson r", "Linear association"),
+            (Method::Spearman, "Spearman ρ", "Monotone association (ranks)"),
+            (Method::Kendall, "Kendall τ-b", "Rank concordance, tie-corrected"),
+        ] {
+            ui.radio_value(&mut o.key.method, m, name).on_hover_text(tip);
+        }
+        ui.separator();
+        ui.label("Adjust p for many pairs:");
+        for (a, name, tip) in [
+            (Adjustment::Holm, "Holm", "Holm's step-down: controls the chance of any false hit"),
+            (Adjustment::BenjaminiHochberg, "Benjamini–Hochberg", "Controls the expected share of false hits"),
+            (Adjustment::None, "none", "Raw p-values: with many pairs some will be small by chance"),
+        ] {
+            ui.radio_value(&mut o.key.adjust, a, name).on_hover_text(tip);
+        }
+        ui.separator();
+        ui.checkbox(&mut o.by_similarity, "group similar columns")
+            .on_hover_text("Order the columns so that those moving together sit together (average-linkage clustering on 1 − |r|); off: file order");
+        ui.separator();
+        ui.label("Row order:");
+        egui::ComboBox::from_id_salt("order-column")
+            .selected_text(o.key.order.clone().unwrap_or_else(|| "none".into()))
+            .show_ui(ui, |ui| {
+                ui.selectable_value(&mut o.key.order, None, "none");
+                for c in numeric {
+                    ui.selectable_value(&mut o.key.order, Some(c.clone()), c);
+                }
+            })
+            .response
+            .on_hover_text("A time or run-order column: each pair is also correlated on first differences and after removing a linear trend, to expose drifts shared by both columns");
+    });
+}
+
+fn testing_note(r: &MapResult) -> String {
+    let how = match r.key.adjust {
+        Adjustment::Holm => "p adjusted by Holm's step-down",
+        Adjustment::BenjaminiHochberg => "p adjusted by Benjamini–Hochberg",
+        Adjustment::None => "p NOT adjusted — expect chance hits",
+    };
+    format!(
+        "{} pairs tested with {}; {how} over all {}.",
+        r.matrix.n_tests,
+        r.key.method.as_str(),
+        r.matrix.n_tests
+    )
+}
+
+fn cell_text(r: &MapResult, i: usize, j: usize) -> String {
+    let m = &r.matrix;
+    let mut s = format!("{} vs {}\n", r.columns[i], r.columns[j]);
+    match m.r[i][j] {
+        Some(v) => {
+            s.push_str(&format!(
+                "{} = {}  (n = {})\n",
+                r.key.method.as_str(),
+                num(v),
+                m.n[i][j]
+            ));
+            if let Some(pv) = m.p_value[i][j] {
+                s.push_str(&format!("p = {}\n", p(pv)));
+            }
+            if let Some(pa) = m.p_adjusted[i][j] {
+                s.push_str(&format!(
+                    "adjusted p = {} (over {} pairs)\n",
+                    p(pa),
+                    m.n_tests
+                ));
+            }
+            if let Some(Some(d)) = m.r_differenced.as_ref().map(|g| g[i][j]) {
+                s.push_str(&format!("r of first differences = {}\n", num(d)));
+            }
+            if let Some(Some(d)) = m.r_detrended.as_ref().map(|g| g[i][j]) {
+                s.push_str(&format!("r after removing the trend = {}\n", num(d)));
+            }
+        }
+        None => s.push_str(m.reason[i][j].as_deref().unwrap_or("undefined")),
+    }
+    if i != j {
+        s.push_str("click to open this pair");
+    }
+    s
+}
+
+/// The grid of cells; returns the clicked pair (row column, column column).
+fn grid(ui: &mut egui::Ui, r: &MapResult, order: &[usize]) -> Option<(usize, usize)> {
+    let k = order.len();
+    let label_w = 120.0;
+    let side = (ui.available_height() - 60.0)
+        .min(ui.available_width() * 0.6 - label_w)
+        .clamp(160.0, 900.0);
+    let cell = side / k as f32;
+    let (response, painter) =
+        ui.allocate_painter(Vec2::new(label_w + side, label_w + side), Sense::click());
+    let origin = response.rect.min + Vec2::new(label_w, label_w);
+    let font = egui::FontId::proportional((cell * 0.32).clamp(8.0, 13.0));
+    let ink = ui.visuals().text_color();
+    for (a, &i) in order.iter().enumerate() {
+        let name = &r.columns[i];
+        painter.text(
+            Pos2::new(origin.x - 4.0, origin.y + (a as f32 + 0.5) * cell),
+            egui::Align2::RIGHT_CENTER,
+            name,
+            font.clone(),
+            ink,
+        );
+        let galley = painter.layout_no_wrap(name.clone(), font.clone(), ink);
+        let at = Pos2::new(
+            origin.x + (a as f32 + 0.5) * cell - galley.size().y / 2.0,
+            origin.y - 4.0,
+        );
+        painter.add(
+            egui::epaint::TextShape::new(at, galley, ink).with_angle(-std::f32::consts::FRAC_PI_2),
+        );
+        for (b, &j) in order.iter().enumerate() {
+            let rect = Rect::from_min_size(
+                origin + Vec2::new(b as f32 * cell, a as f32 * cell),
+                Vec2::splat(cell),
+            );
+            let fill = r.matrix.r[i][j].map_or(Color32::GRAY, palette::diverging);
+            painter.rect_filled(rect.shrink(0.5), 0.0, fill);
+            if cell >= 26.0 {
+                if let Some(v) = r.matrix.r[i][j] {
+                    painter.text(
+                        rect.center(),
+                        egui::Align2::CENTER_CENTER,
+                        format!("{v:.2}"),
+                        font.clone(),
+                        palette::ink_on(fill),
+                    );
+                }
+            }
+        }
+    }
+    let pointer = response.hover_pos()?;
+    let rel = pointer - origin;
+    if rel.x < 0.0 || rel.y < 0.0 {
+        return None;
+    }
+    let (a, b) = ((rel.y / cell) as usize, (rel.x / cell) as usize);
+    if a >= k || b >= k {
+        return None;
+    }
+    let (i, j) = (order[a], order[b]);
+    painter.rect_stroke(
+        Rect::from_min_size(
+            origin + Vec2::new(b as f32 * cell, a as f32 * cell),
+            Vec2::splat(cell),
+        ),
+        0.0,
+        egui::Stroke::new(2.0, ui.visuals().strong_text_color()),
+        egui::StrokeKind::Inside,
+    );
+    let clicked = response.clicked();
+    response.on_hover_text_at_pointer(cell_text(r, i, j));
+    (clicked && i != j).then_some((i, j))
+}
+
+/// The strongest pairs as buttons (readable by screen readers and tests too).
+fn strongest(ui: &mut egui::Ui, r: &MapResult) -> Option<(usize, usize)> {
+    let m = &r.matrix;
+    let k = r.columns.len();
+    let mut pairs: Vec<(usize, usize, f64)> = (0..k)
+        .flat_map(|i| (i + 1..k).map(move |j| (i, j)))
+        .filter_map(|(i, j)| m.r[i][j].map(|v| (i, j, v)))
+        .collect();
+    pairs.sort_by(|a, b| b.2.abs().total_cmp(&a.2.abs()));
+    ui.label(RichText::new("Strongest pairs").strong());
+    let mut chosen = None;
+    egui::Grid::new("strongest").striped(true).show(ui, |ui| {
+        for h in ["pair", "coefficient", "adjusted p", ""] {
+            ui.label(RichText::new(h).strong());
+        }
+        ui.end_row();
+        for &(i, j, v) in pairs.iter().take(12) {
+            let label = format!("{} ~ {}", r.columns[i], r.columns[j]);
+            if ui.button(&label).on_hover_text(cell_text(r, i, j)).clicked() {
+                chosen = Some((i, j));
+            }
+            ui.label(num(v));
+            ui.label(m.p_adjusted[i][j].or(m.p_value[i][j]).map_or("—".into(), p));
+            let shared = m
+                .r_differenced
+                .as_ref()
+                .and_then(|g| g[i][j])
+                .is_some_and(|d| d.abs() < 0.5 * v.abs());
+            if shared {
+                ui.colored_label(ui.visuals().warn_fg_color, "shared trend?")
+                    .on_hover_text("The first differences move together much less than the levels: both columns may simply drift with the row order");
+            } else {
+                ui.label("");
+            }
+            ui.end_row();
+        }
+    });
+    chosen
+}

@@ -1,0 +1,297 @@
+//! The pair on screen: its complete rows, the live fit that follows the analyst's marks, and
+//! the model's numbers.
+
+use std::sync::Arc;
+
+use plumb_core::regression::{Design, FitOptions, LiveFit, LiveSummary};
+use plumb_data::analysis::FitRequest;
+use plumb_data::Table;
+
+use crate::marks::Marks;
+use crate::WorkbenchError;
+
+/// Which model of which two columns.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PairSpec {
+    /// Response column.
+    pub y: String,
+    /// Predictor column.
+    pub x: String,
+    /// Polynomial degree (1 = straight line).
+    pub degree: u32,
+    /// Fit an intercept.
+    pub intercept: bool,
+    /// Confidence level of intervals and bands.
+    pub level: f64,
+}
+
+impl PairSpec {
+    /// A straight line with intercept at the 95% level.
+    pub fn line(y: &str, x: &str) -> Self {
+        Self {
+            y: y.to_string(),
+            x: x.to_string(),
+            degree: 1,
+            intercept: true,
+            level: 0.95,
+        }
+    }
+
+    /// The same model as a request of the shared analysis path (what `plumb fit` runs).
+    pub fn request(&self, exclude: Vec<usize>) -> FitRequest {
+        FitRequest {
+            y: self.y.clone(),
+            x: vec![self.x.clone()],
+            intercept: self.intercept,
+            degree: self.degree,
+            weights: None,
+            exclude,
+            level: self.level,
+        }
+    }
+
+    /// Term names as the fit reports them, e.g. `intercept`, `dose`, `dose^2`.
+    pub fn design(&self, x: &[f64]) -> Result<Design, plumb_core::CoreError> {
+        if self.degree > 1 {
+            Design::polynomial(&self.x, x, self.degree, self.intercept)
+        } else {
+            Ok(Design::linear(&[(self.x.as_str(), x)], self.intercept))
+        }
+    }
+}
+
+/// The rows and values of a pair: cheap to clone (the columns are shared), so views can hold
+/// a copy while the workbench changes.
+#[derive(Debug, Clone)]
+pub struct PairRows {
+    /// The model.
+    pub spec: PairSpec,
+    /// 1-based data rows with both values present, ascending.
+    pub rows: Arc<[usize]>,
+    /// Predictor values as in the data file, one per entry of `rows`.
+    pub x: Arc<[f64]>,
+    /// Response values as in the data file.
+    pub y: Arc<[f64]>,
+    /// Rows of the file left out because a value is missing or not finite.
+    pub incomplete: usize,
+    /// Term names of the fit, in order.
+    pub terms: Arc<[String]>,
+}
+
+/// The complete rows of a pair and a live fit over them.
+#[derive(Debug, Clone)]
+pub struct Pair {
+    base: PairRows,
+    live: LiveFit,
+    applied: Marks,
+}
+
+impl std::ops::Deref for Pair {
+    type Target = PairRows;
+
+    fn deref(&self) -> &PairRows {
+        &self.base
+    }
+}
+
+impl Pair {
+    /// Selects the complete rows of `spec`'s columns and fits them.
+    ///
+    /// # Errors
+    /// A column that is not numeric or unknown, or a model the rows cannot support; the
+    /// message names the file and column.
+    pub fn new(table: &Table, spec: PairSpec) -> Result<Self, WorkbenchError> {
+        let selection = table
+            .complete_rows(&[&spec.y, &spec.x], &[])
+            .map_err(|e| WorkbenchError::Model(e.to_string()))?;
+        let file = table.source().display().to_string();
+        let model_error = |e: plumb_core::CoreError| WorkbenchError::Model(format!("{file}: {e}"));
+        let [y, x]: [Vec<f64>; 2] = selection
+            .columns
+            .try_into()
+            .map_err(|_| WorkbenchError::Model("two columns expected".into()))?;
+        let design = spec.design(&x).map_err(model_error)?;
+        let terms: Vec<String> = design.terms().iter().map(|t| t.name.clone()).collect();
+        let options = FitOptions {
+            level: spec.level,
+            ..FitOptions::default()
+        };
+        let live = LiveFit::new(design, y.clone(), options).map_err(model_error)?;
+        Ok(Self {
+            base: PairRows {
+                spec,
+                rows: selection.rows.into(),
+                x: x.into(),
+                y: y.into(),
+                incomplete: selection.dropped.len(),
+                terms: terms.into(),
+            },
+            live,
+            applied: Marks::default(),
+        })
+    }
+
+    /// A cheap copy of the rows and values (no fit).
+    pub fn rows(&self) -> PairRows {
+        self.base.clone()
+    }
+
+    /// Brings the live fit in line with `marks` (only the rows that differ are updated) and
+    /// returns the numbers.
+    pub fn apply(&mut self, marks: &Marks) -> &Result<LiveSummary, plumb_core::CoreError> {
+        let old = std::mem::take(&mut self.applied);
+        for &row in old.excluded.keys() {
+            if !marks.excluded.contains_key(&row) {
+                if let Some(i) = self.index_of(row) {
+                    self.live.include(i);
+                }
+            }
+        }
+        for &row in marks.excluded.keys() {
+            if !old.excluded.contains_key(&row) {
+                if let Some(i) = self.index_of(row) {
+                    self.live.exclude(i);
+                }
+            }
+        }
+        let rows_moved = old.moved.keys().chain(marks.moved.keys());
+        let changed: std::collections::BTreeSet<usize> = rows_moved
+            .filter(|r| old.moved.get(r) != marks.moved.get(r))
+            .copied()
+            .collect();
+        for row in changed {
+            if let Some(i) = self.index_of(row) {
+                let (x, y) = marks
+                    .moved
+                    .get(&row)
+                    .copied()
+                    .unwrap_or((self.x[i], self.y[i]));
+                // Only finite positions reach here (the plot gives finite coordinates), and a
+                // pair always has one predictor, so a move cannot be refused.
+                let _ = self.live.move_point(i, x, y);
+            }
+        }
+        self.applied = marks.clone();
+        self.live.summary()
+    }
+
+    /// The numbers for the marks last applied.
+    pub fn summary(&self) -> &Result<LiveSummary, plumb_core::CoreError> {
+        self.live.summary()
+    }
+}
+
+impl PairRows {
+    /// Index into `rows` of data row `row`, if the row is one of this pair's.
+    pub fn index_of(&self, row: usize) -> Option<usize> {
+        self.rows.binary_search(&row).ok()
+    }
+
+    /// Current position of entry `i`: moved (what-if) or as in the file.
+    pub fn point(&self, i: usize, marks: &Marks) -> (f64, f64) {
+        marks
+            .moved
+            .get(&self.rows[i])
+            .copied()
+            .unwrap_or((self.x[i], self.y[i]))
+    }
+
+    /// Whether entry `i` is excluded under `marks`.
+    pub fn is_excluded(&self, i: usize, marks: &Marks) -> bool {
+        marks.excluded.contains_key(&self.rows[i])
+    }
+
+    /// Data rows excluded under `marks` that belong to this pair, ascending.
+    pub fn excluded_rows(&self, marks: &Marks) -> Vec<usize> {
+        marks
+            .excluded
+            .keys()
+            .copied()
+            .filter(|&r| self.index_of(r).is_some())
+            .collect()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::marks::Note;
+    use plumb_data::analysis::run_fit;
+
+    fn table() -> Table {
+        let dir = tempfile::tempdir().expect("temp dir");
+        let path = dir.path().join("t.csv");
+        let mut text = String::from("x,y,label\n");
+        for i in 0..40 {
+            let x = f64::from(i) * 0.5;
+            let wobble = ((i * 7919) % 13) as f64 / 13.0 - 0.5;
+            let y = 2.0 + 0.8 * x + 0.1 * x * x + wobble;
+            let cell = if i == 5 {
+                String::new()
+            } else {
+                format!("{y}")
+            };
+            text.push_str(&format!("{x},{cell},p{i}\n"));
+        }
+        std::fs::write(&path, text).expect("write");
+        let t = plumb_data::load(&path, &plumb_data::LoadOptions::default()).expect("load");
+        drop(dir);
+        t
+    }
+
+    fn excluding(rows: &[usize]) -> Marks {
+        let mut m = Marks::default();
+        for &r in rows {
+            m.excluded.insert(
+                r,
+                Note {
+                    reason: "test".into(),
+                    at: String::new(),
+                },
+            );
+        }
+        m
+    }
+
+    #[test]
+    fn live_numbers_match_the_shared_fit_path_after_any_sequence_of_marks() {
+        let t = table();
+        for degree in [1, 2] {
+            let spec = PairSpec {
+                degree,
+                ..PairSpec::line("y", "x")
+            };
+            let mut pair = Pair::new(&t, spec.clone()).expect("pair");
+            assert_eq!(pair.incomplete, 1);
+            assert_eq!(pair.index_of(6), None, "row 6 has no y");
+            for rows in [vec![3], vec![3, 17, 40], vec![17], vec![], vec![1, 2, 39]] {
+                let live = pair.apply(&excluding(&rows)).clone().expect("fits");
+                let reference = run_fit(&t, &spec.request(rows.clone())).expect("fit").fit;
+                assert!((live.r_squared - reference.r_squared).abs() < 1e-12);
+                for (a, c) in live.estimates.iter().zip(&reference.coefficients) {
+                    assert!((a - c.estimate).abs() <= 1e-10 * c.estimate.abs().max(1.0));
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn a_move_changes_the_numbers_and_undoing_it_restores_them() {
+        let t = table();
+        let mut pair = Pair::new(&t, PairSpec::line("y", "x")).expect("pair");
+        let base = pair.apply(&Marks::default()).clone().expect("fits");
+        let mut moved = Marks::default();
+        moved.moved.insert(10, (4.5, 40.0));
+        let what_if = pair.apply(&moved).clone().expect("fits");
+        assert!(what_if.r_squared < base.r_squared - 0.01);
+        let i = pair.index_of(10).expect("row 10");
+        assert_eq!(pair.point(i, &moved), (4.5, 40.0));
+        assert_ne!(
+            pair.point(i, &Marks::default()).1,
+            40.0,
+            "the data are unchanged"
+        );
+        let back = pair.apply(&Marks::default()).clone().expect("fits");
+        assert!((back.r_squared - base.r_squared).abs() < 1e-12);
+    }
+}

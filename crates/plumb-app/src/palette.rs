@@ -1,0 +1,122 @@
+//! Colours. Marks differ by shape as well as colour (excluded rows are hollow rings), so the
+//! views read in grayscale and for colour-blind analysts.
+
+use eframe::egui::{Color32, Visuals};
+
+/// Colour-blind-safe categorical colours for groups (Okabe & Ito's eight-colour set, without
+/// black).
+pub const GROUPS: [Color32; 7] = [
+    Color32::from_rgb(0xE6, 0x9F, 0x00),
+    Color32::from_rgb(0x56, 0xB4, 0xE9),
+    Color32::from_rgb(0x00, 0x9E, 0x73),
+    Color32::from_rgb(0xF0, 0xE4, 0x42),
+    Color32::from_rgb(0x00, 0x72, 0xB2),
+    Color32::from_rgb(0xD5, 0x5E, 0x00),
+    Color32::from_rgb(0xCC, 0x79, 0xA7),
+];
+
+/// Colour of group level `k`.
+pub fn group(k: usize) -> Color32 {
+    GROUPS[k % GROUPS.len()]
+}
+
+/// Included points.
+pub fn point(v: &Visuals) -> Color32 {
+    if v.dark_mode {
+        Color32::from_rgb(0xB8, 0xC4, 0xD0)
+    } else {
+        Color32::from_rgb(0x2F, 0x3B, 0x48)
+    }
+}
+
+/// The fitted line or curve.
+pub fn fit(v: &Visuals) -> Color32 {
+    if v.dark_mode {
+        Color32::from_rgb(0x5F, 0xC8, 0xE8)
+    } else {
+        Color32::from_rgb(0x0B, 0x5C, 0x8A)
+    }
+}
+
+/// The hovered or selected row, in every view.
+pub fn focus(v: &Visuals) -> Color32 {
+    if v.dark_mode {
+        Color32::from_rgb(0xFF, 0xB3, 0x47)
+    } else {
+        Color32::from_rgb(0xC2, 0x41, 0x0C)
+    }
+}
+
+/// Excluded rows (hollow rings).
+pub fn excluded(v: &Visuals) -> Color32 {
+    if v.dark_mode {
+        Color32::from_rgb(0xE0, 0x7A, 0x7A)
+    } else {
+        Color32::from_rgb(0xA3, 0x1F, 0x1F)
+    }
+}
+
+/// Background of the hypothetical banner.
+pub const WHAT_IF: Color32 = Color32::from_rgb(0xF2, 0xC1, 0x4E);
+
+/// Diverging scale for a coefficient in [−1, 1]: dark blue through a pale neutral to dark
+/// brown-orange. Lightness falls with |r| on both sides, so strength reads in grayscale; the
+/// sign reads from the hue (and from the number printed in the cell).
+pub fn diverging(r: f64) -> Color32 {
+    const NEG: [f32; 3] = [24.0, 64.0, 132.0];
+    const MID: [f32; 3] = [242.0, 240.0, 235.0];
+    const POS: [f32; 3] = [128.0, 52.0, 12.0];
+    let t = r.clamp(-1.0, 1.0) as f32;
+    let end = if t < 0.0 { NEG } else { POS };
+    let a = t.abs().powf(0.8);
+    let mix = |k: usize| (MID[k] + (end[k] - MID[k]) * a).round() as u8;
+    Color32::from_rgb(mix(0), mix(1), mix(2))
+}
+
+/// Black or white, whichever reads on `background`.
+pub fn ink_on(background: Color32) -> Color32 {
+    let [r, g, b, _] = background.to_array();
+    let luma = 0.299 * f32::from(r) + 0.587 * f32::from(g) + 0.114 * f32::from(b);
+    if luma > 140.0 {
+        Color32::BLACK
+    } else {
+        Color32::WHITE
+    }
+}
+
+/// Density ramp for `t` in [0, 1] (0 = empty cell, transparent).
+pub fn density(t: f32, v: &Visuals) -> Color32 {
+    if t <= 0.0 {
+        return Color32::TRANSPARENT;
+    }
+    let base = point(v);
+    let alpha = (40.0 + 215.0 * t.clamp(0.0, 1.0).sqrt()).round() as u8;
+    Color32::from_rgba_unmultiplied(base.r(), base.g(), base.b(), alpha)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn luma(c: Color32) -> f32 {
+        let [r, g, b, _] = c.to_array();
+        0.299 * f32::from(r) + 0.587 * f32::from(g) + 0.114 * f32::from(b)
+    }
+
+    #[test]
+    fn diverging_scale_darkens_with_strength_on_both_sides() {
+        let mut last = luma(diverging(0.0));
+        for k in 1..=10 {
+            let r = f64::from(k) / 10.0;
+            let (pos, neg) = (luma(diverging(r)), luma(diverging(-r)));
+            assert!(pos < last && neg < last + 30.0, "r = {r}");
+            assert!(
+                (pos - neg).abs() < 40.0,
+                "equal strength reads alike in grayscale at {r}"
+            );
+            last = pos;
+        }
+        assert_eq!(ink_on(diverging(0.0)), Color32::BLACK);
+        assert_eq!(ink_on(diverging(-1.0)), Color32::WHITE);
+    }
+}

@@ -1,0 +1,178 @@
+//! The workbench's state as a session file, and back; and the recovery copy that is written
+//! after every change so that a killed process loses nothing.
+
+use std::path::{Path, PathBuf};
+
+use plumb_report::{DataSource, Exclusion, LoadSpec, ModelSpec, Session, SCHEMA_VERSION};
+
+use crate::dataset::Dataset;
+use crate::marks::{Marks, Note};
+use crate::pair::PairSpec;
+
+/// Key in the session's `view` map naming the session file the recovery copy belongs to.
+const RECOVERY_OF: &str = "recovery_of";
+
+/// The session for `data` under `marks`, to be saved at `session_path`.
+pub fn session_of(
+    data: &Dataset,
+    sha256: &str,
+    spec: Option<&PairSpec>,
+    marks: &Marks,
+    session_path: &Path,
+) -> Session {
+    Session {
+        plumbline_session: SCHEMA_VERSION,
+        data: DataSource {
+            path: Session::data_path_for(data.table.source(), session_path),
+            sha256: sha256.to_string(),
+            rows: data.table.n_rows(),
+            load: LoadSpec::from_options(&data.options),
+        },
+        models: spec
+            .map(|s| ModelSpec::from_request(&s.request(Vec::new())))
+            .into_iter()
+            .collect(),
+        exclusions: marks
+            .excluded
+            .iter()
+            .map(|(&row, note)| Exclusion {
+                row,
+                reason: note.reason.clone(),
+                at: (!note.at.is_empty()).then(|| note.at.clone()),
+            })
+            .collect(),
+        view: serde_json::Map::new(),
+    }
+}
+
+/// The marks a session records (what-if moves are never saved).
+pub fn marks_of(session: &Session) -> Marks {
+    Marks {
+        excluded: session
+            .exclusions
+            .iter()
+            .map(|e| {
+                (
+                    e.row,
+                    Note {
+                        reason: e.reason.clone(),
+                        at: e.at.clone().unwrap_or_default(),
+                    },
+                )
+            })
+            .collect(),
+        moved: Default::default(),
+    }
+}
+
+/// The pair a session's first model describes, if it has one predictor.
+pub fn spec_of(session: &Session) -> Option<PairSpec> {
+    let m = session.models.first()?;
+    let [x] = m.x.as_slice() else { return None };
+    Some(PairSpec {
+        y: m.y.clone(),
+        x: x.clone(),
+        degree: m.degree,
+        intercept: m.intercept,
+        level: m.level,
+    })
+}
+
+/// The recovery file in the settings folder.
+pub fn recovery_path(config: &Path) -> PathBuf {
+    config.join("recovery.plumb")
+}
+
+/// Writes the recovery copy (atomically). `of` is the session file the work belongs to.
+///
+/// # Errors
+/// If the settings folder or the file cannot be written.
+pub fn write_recovery(
+    config: &Path,
+    mut session: Session,
+    of: Option<&Path>,
+) -> Result<(), String> {
+    std::fs::create_dir_all(config).map_err(|e| format!("{}: {e}", config.display()))?;
+    if let Some(of) = of {
+        session
+            .view
+            .insert(RECOVERY_OF.into(), of.display().to_string().into());
+    }
+    session
+        .save(&recovery_path(config))
+        .map_err(|e| e.to_string())
+}
+
+/// A recovery copy left by a previous run, if any (an unreadable one is reported as such).
+pub fn read_recovery(config: &Path) -> Option<Result<Session, String>> {
+    let path = recovery_path(config);
+    path.exists()
+        .then(|| Session::load(&path).map_err(|e| e.to_string()))
+}
+
+/// The session file a recovery copy belongs to.
+pub fn recovery_of(session: &Session) -> Option<PathBuf> {
+    session
+        .view
+        .get(RECOVERY_OF)
+        .and_then(serde_json::Value::as_str)
+        .map(PathBuf::from)
+}
+
+/// Removes the recovery copy (after a save, a discard or a clean exit with nothing unsaved).
+pub fn clear_recovery(config: &Path) {
+    // A missing file is the goal; any other failure leaves a stale offer, which is harmless.
+    let _ = std::fs::remove_file(recovery_path(config));
+}
+
+/// Whether `data` lies inside the folder of `session_path` (a session naming a file elsewhere
+/// is opened only after the analyst agrees).
+pub fn data_is_beside(session_path: &Path, data: &Path) -> bool {
+    let folder = session_path
+        .parent()
+        .filter(|d| !d.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    match (std::fs::canonicalize(folder), std::fs::canonicalize(data)) {
+        (Ok(f), Ok(d)) => d.starts_with(f),
+        _ => false,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_session_round_trips_marks_and_the_pair_and_the_recovery_copy_names_its_owner() {
+        let dir = tempfile::tempdir().expect("dir");
+        let data_path = dir.path().join("d.csv");
+        std::fs::write(&data_path, "a,b\n1,2\n2,3\n3,5\n4,4\n").expect("write");
+        let data = Dataset::load(&data_path, &Default::default()).expect("load");
+        let mut marks = Marks::default();
+        marks.excluded.insert(
+            3,
+            Note {
+                reason: "pipette slipped".into(),
+                at: "2026-12-01T10:00:00Z".into(),
+            },
+        );
+        marks.moved.insert(2, (9.0, 9.0));
+        let spec = PairSpec::line("b", "a");
+        let session_path = dir.path().join("s.plumb");
+        let s = session_of(&data, "abc", Some(&spec), &marks, &session_path);
+        assert_eq!(s.data.path, "d.csv");
+        let mut expect = marks.clone();
+        expect.moved.clear();
+        assert_eq!(marks_of(&s), expect, "moves are hypothetical and not saved");
+        assert_eq!(spec_of(&s), Some(spec));
+        let config = dir.path().join("config");
+        write_recovery(&config, s, Some(&session_path)).expect("write");
+        let back = read_recovery(&config).expect("present").expect("readable");
+        assert_eq!(recovery_of(&back), Some(session_path.clone()));
+        assert_eq!(marks_of(&back), expect);
+        assert!(data_is_beside(&session_path, &data_path));
+        assert!(!data_is_beside(&session_path, Path::new("/etc/hostname")));
+        clear_recovery(&config);
+        assert!(read_recovery(&config).is_none());
+    }
+}

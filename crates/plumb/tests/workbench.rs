@@ -1,0 +1,245 @@
+//! The workbench driven through its accessibility tree (egui_kittest), as an analyst would:
+//! open a demo file, pick a pair, exclude a row, undo, drag a point. The displayed R² is
+//! checked against `plumb fit --exclude` for the same rows, so the live engine and the
+//! command line are held to one answer.
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+use std::time::{Duration, Instant};
+
+use eframe::egui;
+use egui_kittest::kittest::{NodeT, Queryable};
+use egui_kittest::Harness;
+use plumb_app::Workbench;
+use sha2::{Digest, Sha256};
+
+fn demo(name: &str) -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("../../demo-scenarios/data")
+        .join(name)
+}
+
+/// `R² = …` as the workbench prints it, for `plumb fit` on the same request.
+fn cli_r_squared(data: &Path, y: &str, x: &str, exclude: &str) -> String {
+    let mut args = vec![
+        "fit".to_string(),
+        data.display().to_string(),
+        "--y".into(),
+        y.into(),
+        "--x".into(),
+        x.into(),
+        "--format".into(),
+        "json".into(),
+    ];
+    if !exclude.is_empty() {
+        args.extend(["--exclude".into(), exclude.into()]);
+    }
+    let out = Command::new(env!("CARGO_BIN_EXE_plumb"))
+        .args(&args)
+        .output()
+        .expect("plumb runs");
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
+    let r2 = v["r_squared"].as_f64().expect("r_squared");
+    format!("R² = {}", plumb_report::text::num(r2))
+}
+
+fn sha256(path: &Path) -> String {
+    let bytes = std::fs::read(path).expect("read");
+    format!("{:x}", Sha256::digest(bytes))
+}
+
+fn harness(config: &Path) -> Harness<'static, Workbench> {
+    Harness::builder()
+        .with_size(egui::Vec2::new(1440.0, 900.0))
+        .build_ui_state(
+            |ui, wb: &mut Workbench| wb.show(ui),
+            Workbench::new(Some(config.to_path_buf())),
+        )
+}
+
+/// Steps frames until background work is done (the loader and diagnostics run on threads).
+fn settle(h: &mut Harness<'_, Workbench>) {
+    let start = Instant::now();
+    loop {
+        h.step();
+        if !h.state().is_busy() {
+            h.run_steps(3);
+            if !h.state().is_busy() {
+                return;
+            }
+        }
+        assert!(
+            start.elapsed() < Duration::from_secs(60),
+            "background work did not finish"
+        );
+        std::thread::sleep(Duration::from_millis(10));
+    }
+}
+
+fn shown_r_squared(h: &Harness<'_, Workbench>) -> String {
+    let lines: Vec<String> = h
+        .get_all_by_label_contains("R² = ")
+        // A label keeps its text in the accessibility node's value.
+        .filter_map(|n| n.accesskit_node().value())
+        .filter(|l| l.starts_with("R² = "))
+        .collect();
+    assert_eq!(lines.len(), 1, "one headline R²: {lines:?}");
+    lines[0].clone()
+}
+
+fn choose(h: &mut Harness<'_, Workbench>, combo: &str, option: &str) {
+    h.get_by_label(combo).click();
+    h.run_steps(2);
+    let options = h.get_all_by_label(option).collect::<Vec<_>>();
+    options.last().expect("the option is listed").click();
+    h.run_steps(2);
+}
+
+fn open_calibration(h: &mut Harness<'_, Workbench>, data: &Path) {
+    h.get_by_label("File:").click();
+    h.run_steps(1);
+    h.get_by_label("File:")
+        .type_text(&data.display().to_string());
+    h.run_steps(1);
+    h.get_by_label("Open").click();
+    settle(h);
+    assert!(
+        h.state().loaded().is_some(),
+        "status: {:?}",
+        h.state().status()
+    );
+    h.get_by_label("Pair bench").click();
+    h.run_steps(2);
+    choose(h, "y:", "absorbance");
+    choose(h, "x:", "standard_mg_l");
+    settle(h);
+    let pair = h.state().bench().pair().expect("pair on the bench");
+    assert_eq!(
+        (pair.spec.y.as_str(), pair.spec.x.as_str()),
+        ("absorbance", "standard_mg_l")
+    );
+}
+
+#[test]
+fn excluding_a_row_shows_the_same_r_squared_as_the_command_line_and_undo_restores_it() {
+    let config = tempfile::tempdir().expect("config dir");
+    let data = demo("calibration-run.csv");
+    let before_hash = sha256(&data);
+    let mut h = harness(config.path());
+    open_calibration(&mut h, &data);
+    let all_rows = cli_r_squared(&data, "absorbance", "standard_mg_l", "");
+    assert_eq!(shown_r_squared(&h), all_rows);
+
+    h.get_by_label("Exclude row:").click();
+    h.run_steps(1);
+    h.get_by_label("Exclude row:").type_text("14");
+    h.get_by_label("Exclude").click();
+    h.run_steps(2);
+    let prompt = h.get_by_label("Why leave out row 14?");
+    prompt.click();
+    h.run_steps(1);
+    h.get_by_label("Why leave out row 14?")
+        .type_text("standard drifted: lamp warming up");
+    h.run_steps(1);
+    h.get_by_label("Record reason").click();
+    settle(&mut h);
+    assert!(h.state().bench().prompt().is_none());
+    let note = h.state().marks().excluded.get(&14).expect("row 14 is out");
+    assert_eq!(note.reason, "standard drifted: lamp warming up");
+    let without_14 = cli_r_squared(&data, "absorbance", "standard_mg_l", "14");
+    assert_ne!(
+        without_14, all_rows,
+        "the exclusion must change the answer for this check to bite"
+    );
+    assert_eq!(shown_r_squared(&h), without_14);
+    assert!(h.state().window_title().ends_with("• unsaved"));
+
+    // The recovery copy already holds the exclusion and its reason.
+    let recovery =
+        plumb_report::Session::load(&config.path().join("recovery.plumb")).expect("recovery copy");
+    assert_eq!(recovery.exclusions[0].row, 14);
+    assert_eq!(
+        recovery.exclusions[0].reason,
+        "standard drifted: lamp warming up"
+    );
+
+    h.get_by_label("Undo").click();
+    settle(&mut h);
+    assert_eq!(shown_r_squared(&h), all_rows);
+    assert!(h.state().marks().excluded.is_empty());
+    h.get_by_label("Redo").click();
+    settle(&mut h);
+    assert_eq!(shown_r_squared(&h), without_14);
+    // Ctrl+Z does the same as the button once no text field has focus.
+    h.key_press_modifiers(egui::Modifiers::COMMAND, egui::Key::Z);
+    settle(&mut h);
+    assert_eq!(shown_r_squared(&h), all_rows);
+    assert_eq!(sha256(&data), before_hash, "the data file is never written");
+}
+
+#[test]
+fn dragging_a_point_changes_the_numbers_as_a_what_if_and_leaves_the_data_alone() {
+    let config = tempfile::tempdir().expect("config dir");
+    let data = demo("calibration-run.csv");
+    let before_hash = sha256(&data);
+    let mut h = harness(config.path());
+    open_calibration(&mut h, &data);
+    let start = shown_r_squared(&h);
+    h.get_by_label("drag moves (what-if)").click();
+    h.run_steps(2);
+
+    let (row, from) = {
+        let wb = h.state();
+        let pair = wb.bench().pair().expect("pair");
+        let i = pair.index_of(5).expect("row 5 is in the pair");
+        let t = wb.bench().scatter_transform.expect("scatter drawn");
+        let at = t.position_from_point(&egui_plot::PlotPoint::new(pair.x[i], pair.y[i]));
+        (pair.rows[i], (at, pair.x[i], pair.y[i]))
+    };
+    let (p0, x0, y0) = from;
+    let p1 = p0 + egui::vec2(0.0, -120.0);
+    h.hover_at(p0);
+    h.step();
+    h.drag_at(p0);
+    h.step();
+    for k in 1..=6 {
+        h.hover_at(p0 + (p1 - p0) * (k as f32 / 6.0));
+        h.step();
+    }
+    h.drop_at(p1);
+    settle(&mut h);
+
+    let wb = h.state();
+    let moved = wb
+        .marks()
+        .moved
+        .get(&row)
+        .copied()
+        .expect("the row was moved");
+    assert!(
+        (moved.0 - x0).abs() < 1.0 && moved.1 > y0,
+        "moved upward: {moved:?} from ({x0}, {y0})"
+    );
+    assert_ne!(shown_r_squared(&h), start, "the numbers follow the drag");
+    assert!(
+        h.query_by_label_contains("WHAT-IF").is_some(),
+        "marked as hypothetical"
+    );
+    // The table in memory and the file on disk keep the measured value.
+    let table = &wb.loaded().expect("loaded").dataset.table;
+    assert_eq!(
+        table.numeric("absorbance").expect("column")[row - 1],
+        Some(y0)
+    );
+    assert_eq!(sha256(&data), before_hash);
+    // One undo takes back the whole drag.
+    h.get_by_label("Undo").click();
+    settle(&mut h);
+    assert!(!h.state().marks().is_hypothetical());
+    assert_eq!(shown_r_squared(&h), start);
+}
