@@ -281,7 +281,9 @@ impl Workbench {
         self.update_title(&ctx);
     }
 
-    fn poll(&mut self, ctx: &egui::Context) {
+    /// Picks up a finished load or file dialog (the frame loop calls this every frame; it is
+    /// public for programs that drive the workbench without a window).
+    pub fn poll_background(&mut self) {
         let finished = self.loading.as_mut().and_then(|l| l.job.poll());
         if let Some(result) = finished {
             let loading = self.loading.take();
@@ -297,6 +299,10 @@ impl Workbench {
                 self.dialog_done(purpose, &path);
             }
         }
+    }
+
+    fn poll(&mut self, ctx: &egui::Context) {
+        self.poll_background();
         let marks = self.history.current().clone();
         if let Some(loaded) = &self.loaded {
             self.bench.poll(&loaded.dataset, &marks, ctx);

@@ -72,7 +72,12 @@ pub struct Bench {
     /// The scatter's points at their file positions.
     pub(crate) scatter: Cloud,
     pub(crate) textures: std::collections::HashMap<&'static str, crate::plots::DensityTexture>,
-    pub(crate) generation: u64,
+    /// Changes with the marks (keys the scatter's density image).
+    pub(crate) marks_generation: u64,
+    /// Changes with each new set of diagnostics (keys the other views' density images).
+    pub(crate) diag_generation: u64,
+    /// Counts pairs opened (keys the views' zoom memory).
+    pub(crate) serial: u64,
     pub(crate) row_field: String,
     pub(crate) prompt: Option<Prompt>,
     /// Screen transform of the scatter in the last frame (lets tests aim at a point).
@@ -100,7 +105,9 @@ impl Default for Bench {
             sort: SortKey::Cook,
             scatter: Cloud::default(),
             textures: Default::default(),
-            generation: 0,
+            marks_generation: 0,
+            diag_generation: 0,
+            serial: 0,
             row_field: String::new(),
             prompt: None,
             scatter_transform: None,
@@ -153,6 +160,7 @@ impl Bench {
             (0..pair.rows.len()).collect(),
         );
         self.pair = Some(pair);
+        self.serial += 1;
         self.diag = None;
         self.hovered = None;
         self.selected = None;
@@ -182,7 +190,7 @@ impl Bench {
     /// Marks the diagnostics out of date.
     pub(crate) fn touch(&mut self) {
         self.stale = true;
-        self.generation += 1;
+        self.marks_generation += 1;
     }
 
     /// Applies changed marks to the live fit (immediately) and queues the diagnostics.
@@ -198,7 +206,7 @@ impl Bench {
         if let Some(d) = self.job.as_mut().and_then(Job::poll) {
             self.job = None;
             self.diag = Some(Arc::new(d));
-            self.generation += 1;
+            self.diag_generation += 1;
         }
         if self.stale && self.job.is_none() {
             if let Some(pair) = &self.pair {
@@ -221,7 +229,7 @@ impl Bench {
                 if let Some(d) = job.wait(limit.saturating_sub(start.elapsed())) {
                     self.job = None;
                     self.diag = Some(Arc::new(d));
-                    self.generation += 1;
+                    self.diag_generation += 1;
                 }
             } else if self.stale {
                 if let Some(pair) = &self.pair {

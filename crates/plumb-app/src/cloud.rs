@@ -1,6 +1,6 @@
 //! The points of one view with their pair entries, indexed for hover when there are many.
 
-use crate::density::PointIndex;
+use crate::density::{Bounds, PointIndex};
 
 /// Above this many points a view draws a density image instead of markers.
 pub const DENSITY_FROM: usize = 20_000;
@@ -14,6 +14,8 @@ pub struct Cloud {
     pub points: Vec<(f64, f64)>,
     /// Pair entry of each point.
     pub entries: Vec<usize>,
+    /// The smallest rectangle holding every finite point.
+    pub bounds: Option<Bounds>,
     index: Option<PointIndex>,
 }
 
@@ -24,6 +26,7 @@ impl Cloud {
             .then(|| PointIndex::new(&points))
             .flatten();
         Self {
+            bounds: Bounds::around(points.iter().copied()),
             points,
             entries,
             index,
@@ -33,6 +36,32 @@ impl Cloud {
     /// Whether the view should draw a density image.
     pub fn is_dense(&self) -> bool {
         self.points.len() > DENSITY_FROM
+    }
+
+    /// The entry nearest `(x, y)` within half-axes `(rx, ry)`, ignoring entries in `skip`.
+    pub fn nearest_except(
+        &self,
+        x: f64,
+        y: f64,
+        (rx, ry): (f64, f64),
+        skip: &std::collections::HashSet<usize>,
+    ) -> Option<usize> {
+        if skip.is_empty() {
+            return self.nearest(x, y, rx, ry);
+        }
+        // Rare: a skipped entry nearest. Fall back to a scan of the neighbourhood.
+        let hit = self.nearest(x, y, rx, ry)?;
+        if !skip.contains(&hit) {
+            return Some(hit);
+        }
+        self.points
+            .iter()
+            .zip(&self.entries)
+            .filter(|(_, e)| !skip.contains(e))
+            .map(|(&(px, py), &e)| (e, ((px - x) / rx).powi(2) + ((py - y) / ry).powi(2)))
+            .filter(|&(_, d)| d <= 1.0)
+            .min_by(|a, b| a.1.total_cmp(&b.1))
+            .map(|(e, _)| e)
     }
 
     /// The entry nearest `(x, y)` within half-axes `(rx, ry)`.

@@ -66,6 +66,31 @@ pub struct Density {
     pub bounds: Bounds,
 }
 
+impl Density {
+    /// The cell of `(x, y)`, if it lies inside (NaN does not; a point on the right or bottom
+    /// edge belongs to the last cell).
+    fn cell(&self, x: f64, y: f64) -> Option<usize> {
+        let u = (x - self.bounds.x_min) * self.width as f64 / self.bounds.width();
+        let v = (self.bounds.y_max - y) * self.height as f64 / self.bounds.height();
+        let inside =
+            (0.0..=self.width as f64).contains(&u) && (0.0..=self.height as f64).contains(&v);
+        inside.then(|| {
+            (v as usize).min(self.height - 1) * self.width + (u as usize).min(self.width - 1)
+        })
+    }
+
+    /// Takes `points` (previously binned) out again: O(k) for k points, so a few excluded
+    /// rows do not cost a second pass over all of them.
+    pub fn remove(&mut self, points: impl Iterator<Item = (f64, f64)>) {
+        for (x, y) in points {
+            if let Some(c) = self.cell(x, y) {
+                self.counts[c] = self.counts[c].saturating_sub(1);
+            }
+        }
+        self.max = self.counts.iter().copied().max().unwrap_or(0);
+    }
+}
+
 /// Bins `points` (those outside `bounds` are skipped). One pass, no allocation per point.
 pub fn bin(
     points: impl Iterator<Item = (f64, f64)>,
@@ -73,27 +98,20 @@ pub fn bin(
     width: usize,
     height: usize,
 ) -> Density {
-    let mut counts = vec![0u32; width * height];
-    let sx = width as f64 / bounds.width();
-    let sy = height as f64 / bounds.height();
-    for (x, y) in points {
-        let u = (x - bounds.x_min) * sx;
-        let v = (bounds.y_max - y) * sy;
-        // NaN fails the comparisons, so it is skipped too; a point on the right or bottom
-        // edge belongs to the last cell.
-        if (0.0..=width as f64).contains(&u) && (0.0..=height as f64).contains(&v) {
-            let (c, r) = ((u as usize).min(width - 1), (v as usize).min(height - 1));
-            counts[r * width + c] += 1;
-        }
-    }
-    let max = counts.iter().copied().max().unwrap_or(0);
-    Density {
+    let mut d = Density {
         width,
         height,
-        counts,
-        max,
+        counts: vec![0u32; width * height],
+        max: 0,
         bounds,
+    };
+    for (x, y) in points {
+        if let Some(c) = d.cell(x, y) {
+            d.counts[c] += 1;
+        }
     }
+    d.max = d.counts.iter().copied().max().unwrap_or(0);
+    d
 }
 
 /// Cells per side of the hover index.
@@ -218,6 +236,10 @@ mod tests {
         // Top-left cell: x in 0..3 (0, 1, 2) and y in (6, 9] (7, 8, 9): 3 × 3 × 10 points.
         assert_eq!(d.counts[0], 90);
         assert_eq!(d.max, d.counts.iter().copied().max().expect("cells"));
+        let mut less = d.clone();
+        less.remove(pts[..100].iter().copied());
+        let direct = bin(pts[100..].iter().copied(), b, 3, 3);
+        assert_eq!(less, direct, "removing points equals binning without them");
     }
 
     #[test]

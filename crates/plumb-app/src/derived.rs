@@ -119,6 +119,26 @@ pub struct Diagnostics {
     pub group_lines: Vec<GroupLine>,
     /// Points of the residual, leverage and quantile views.
     pub views: Views,
+    /// Positions in `cases` of the most influential rows, largest first, by Cook's distance,
+    /// by leverage and by |externally studentized residual| (at most [`TOP_ROWS`] each).
+    pub top: [Vec<usize>; 3],
+}
+
+/// Rows kept in each influence ranking.
+pub const TOP_ROWS: usize = 50;
+
+/// The `TOP_ROWS` largest `key`s, largest first (O(n) selection, then a small sort).
+fn top_by(cases: &[CaseInfluence], key: impl Fn(&CaseInfluence) -> f64) -> Vec<usize> {
+    let mut idx: Vec<usize> = (0..cases.len())
+        .filter(|&k| key(&cases[k]).is_finite())
+        .collect();
+    let by = |a: &usize, b: &usize| key(&cases[*b]).total_cmp(&key(&cases[*a]));
+    if idx.len() > TOP_ROWS {
+        idx.select_nth_unstable_by(TOP_ROWS, by);
+        idx.truncate(TOP_ROWS);
+    }
+    idx.sort_by(by);
+    idx
 }
 
 /// Points of the three diagnostic views (included rows), and where the excluded rows fall
@@ -191,7 +211,13 @@ pub fn compute(input: &Input) -> Diagnostics {
     let excluded: Vec<usize> = input.marks.excluded.keys().copied().collect();
     let effects =
         exclusion_effects(&input.table, &input.spec.request(excluded)).map_err(|e| e.to_string());
+    let top = [
+        top_by(&cases, |c| c.cooks_distance),
+        top_by(&cases, |c| c.leverage),
+        top_by(&cases, |c| c.studentized_external.abs()),
+    ];
     Diagnostics {
+        top,
         marks: input.marks.clone(),
         deming: input
             .overlays
@@ -410,6 +436,12 @@ mod tests {
             assert!((yhat - fit.fitted[k]).abs() < 1e-9 * yhat.abs().max(1.0));
         }
         assert_eq!(d.views.excluded_residuals.entries, vec![12]);
+        let cook_max = d.cases.iter().map(|c| c.cooks_distance).fold(0.0, f64::max);
+        assert_eq!(d.cases[d.top[0][0]].cooks_distance, cook_max);
+        assert!(d.top[1]
+            .windows(2)
+            .all(|w| d.cases[w[0]].leverage >= d.cases[w[1]].leverage));
+        assert_eq!(d.top[2].len(), 29);
         let live = Pair::new(&data.table, PairSpec::line("y", "x"))
             .expect("pair")
             .apply(&marks)

@@ -27,6 +27,8 @@ pub struct Launch {
     pub screenshot: Option<PathBuf>,
     /// Window size in points.
     pub size: Option<(f32, f32)>,
+    /// Colours (default: follow the system).
+    pub theme: Option<egui::ThemePreference>,
 }
 
 /// Longest wait for the data and diagnostics before a screenshot is taken anyway.
@@ -158,6 +160,9 @@ pub fn run(launch: Launch) -> Result<(), WorkbenchError> {
                 wb.ask = None;
             }
             wb.set_context(cc.egui_ctx.clone());
+            if let Some(t) = app_launch.theme {
+                cc.egui_ctx.set_theme(t);
+            }
             if let Some(d) = &app_launch.data {
                 wb.open_path(d);
             }

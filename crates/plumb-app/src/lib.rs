@@ -27,5 +27,6 @@ pub mod sessions;
 pub mod settings;
 
 pub use app::{Ask, Loaded, Screen, Status, Workbench};
+pub use eframe::egui::ThemePreference;
 pub use error::WorkbenchError;
 pub use launch::{run, Launch};

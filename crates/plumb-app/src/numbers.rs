@@ -258,16 +258,11 @@ fn influence_table(wb: &mut Workbench, ui: &mut egui::Ui, pair: &PairRows) {
     let Some(d) = wb.bench.diagnostics().cloned() else {
         return;
     };
-    let mut order: Vec<usize> = (0..d.cases.len()).collect();
-    let key = |k: usize| {
-        let c = &d.cases[k];
-        match wb.bench.sort {
-            SortKey::Cook => c.cooks_distance,
-            SortKey::Leverage => c.leverage,
-            SortKey::Residual => c.studentized_external.abs(),
-        }
+    let order = match wb.bench.sort {
+        SortKey::Cook => &d.top[0],
+        SortKey::Leverage => &d.top[1],
+        SortKey::Residual => &d.top[2],
     };
-    order.sort_by(|&a, &b| key(b).total_cmp(&key(a)));
     let mut pick = None;
     let mut exclude = None;
     egui::Grid::new("influence").striped(true).show(ui, |ui| {

@@ -205,14 +205,23 @@ fn testing_note(r: &MapResult) -> String {
     format!(
         "{} pairs tested with {}; {how} over all {}.",
         r.matrix.n_tests,
-        r.key.method.as_str(),
+        method_name(r.key.method),
         r.matrix.n_tests
     )
 }
 
+fn method_name(m: Method) -> &'static str {
+    match m {
+        Method::Pearson => "Pearson r",
+        Method::Spearman => "Spearman ρ",
+        Method::Kendall => "Kendall τ-b",
+        Method::Distance => "distance correlation",
+    }
+}
+
 fn cell_text(r: &MapResult, i: usize, j: usize) -> String {
     let m = &r.matrix;
-    let mut s = format!("{} vs {}\n", r.columns[i], r.columns[j]);
+    let mut s = format!("{} and {}\n", r.columns[i], r.columns[j]);
     match m.r[i][j] {
         Some(v) => {
             s.push_str(&format!(
@@ -250,7 +259,7 @@ fn cell_text(r: &MapResult, i: usize, j: usize) -> String {
 fn grid(ui: &mut egui::Ui, r: &MapResult, order: &[usize]) -> Option<(usize, usize)> {
     let k = order.len();
     let label_w = 120.0;
-    let side = (ui.available_height() - 60.0)
+    let side = (ui.available_height() - label_w - 40.0)
         .min(ui.available_width() * 0.6 - label_w)
         .clamp(160.0, 900.0);
     let cell = side / k as f32;
@@ -281,6 +290,11 @@ fn grid(ui: &mut egui::Ui, r: &MapResult, order: &[usize]) -> Option<(usize, usi
                 origin + Vec2::new(b as f32 * cell, a as f32 * cell),
                 Vec2::splat(cell),
             );
+            if i == j {
+                // The diagonal says nothing; it stays neutral so it does not read as a hit.
+                painter.rect_filled(rect.shrink(0.5), 0.0, ui.visuals().faint_bg_color);
+                continue;
+            }
             let fill = r.matrix.r[i][j].map_or(Color32::GRAY, palette::diverging);
             painter.rect_filled(rect.shrink(0.5), 0.0, fill);
             if cell >= 26.0 {
@@ -337,7 +351,7 @@ fn strongest(ui: &mut egui::Ui, r: &MapResult) -> Option<(usize, usize)> {
         }
         ui.end_row();
         for &(i, j, v) in pairs.iter().take(12) {
-            let label = format!("{} ~ {}", r.columns[i], r.columns[j]);
+            let label = format!("{} and {}", r.columns[i], r.columns[j]);
             if ui.button(&label).on_hover_text(cell_text(r, i, j)).clicked() {
                 chosen = Some((i, j));
             }

@@ -51,9 +51,25 @@ pub fn show(wb: &mut Workbench, ui: &mut egui::Ui) {
     });
 }
 
-fn plot(id: &'static str, size: Vec2, x_label: &str, y_label: &str, pan: bool) -> Plot<'static> {
-    Plot::new(id)
-        .width(size.x)
+/// A view's plot. Its memory (zoom, pan) is keyed by the pair, so a new pair starts fitted to
+/// its own data. A dense view starts at its data's extent: its density image would otherwise
+/// feed back into the automatic bounds.
+fn plot(
+    id: (&'static str, u64),
+    size: Vec2,
+    labels: (&str, &str),
+    pan: bool,
+    dense_bounds: Option<Bounds>,
+) -> Plot<'static> {
+    let (x_label, y_label) = labels;
+    let mut p = Plot::new(id);
+    if let Some(b) = dense_bounds {
+        let (mx, my) = ((b.x_max - b.x_min) * 0.04, (b.y_max - b.y_min) * 0.04);
+        p = p
+            .default_x_bounds(b.x_min - mx, b.x_max + mx)
+            .default_y_bounds(b.y_min - my, b.y_max + my);
+    }
+    p.width(size.x)
         .height(size.y)
         .x_axis_label(x_label.to_string())
         .y_axis_label(y_label.to_string())
@@ -71,6 +87,10 @@ struct Layer<'a> {
     colours: Option<&'a dyn Fn(usize) -> Color32>,
     /// Excluded rows (hollow rings).
     excluded: &'a Cloud,
+    /// Entries of `cloud` not to draw (drawn elsewhere: excluded or moved).
+    skip: &'a std::collections::HashSet<usize>,
+    /// Rows drawn as markers on top whatever the density (moved, included).
+    extra: &'a Cloud,
     /// The hovered or selected row.
     focus: Option<(f64, f64)>,
     /// Changes whenever the points do (keys the density image).
@@ -89,14 +109,32 @@ fn points_layer(
         cloud,
         colours,
         excluded,
+        skip,
+        extra,
         focus,
         generation,
     } = *layer;
+    let shown = || {
+        cloud
+            .points
+            .iter()
+            .zip(&cloud.entries)
+            .filter(|(_, e)| !skip.contains(e))
+            .chain(extra.points.iter().zip(&extra.entries))
+    };
     if cloud.is_dense() {
-        density_image(pu, cloud, density, generation, visuals);
+        density_image(pu, cloud, skip, density, generation, visuals);
+        let pts: Vec<[f64; 2]> = extra.points.iter().map(|&(x, y)| [x, y]).collect();
+        pu.points(
+            Points::new("moved", pts)
+                .color(palette::point(visuals))
+                .radius(3.0)
+                .filled(true)
+                .allow_hover(false),
+        );
     } else if let Some(colour_of) = colours {
         let mut by_colour: std::collections::BTreeMap<[u8; 4], Vec<[f64; 2]>> = Default::default();
-        for (&(x, y), &e) in cloud.points.iter().zip(&cloud.entries) {
+        for (&(x, y), &e) in shown() {
             by_colour
                 .entry(colour_of(e).to_array())
                 .or_default()
@@ -113,7 +151,7 @@ fn points_layer(
             );
         }
     } else {
-        let pts: Vec<[f64; 2]> = cloud.points.iter().map(|&(x, y)| [x, y]).collect();
+        let pts: Vec<[f64; 2]> = shown().map(|(&(x, y), _)| [x, y]).collect();
         pu.points(
             Points::new("rows", pts)
                 .color(palette::point(visuals))
@@ -146,6 +184,7 @@ fn points_layer(
 fn density_image(
     pu: &mut PlotUi<'_>,
     cloud: &Cloud,
+    skip: &std::collections::HashSet<usize>,
     slot: &mut Option<DensityTexture>,
     generation: u64,
     visuals: &egui::Visuals,
@@ -170,7 +209,12 @@ fn density_image(
         let frame = pu.transform().frame();
         let aspect = (frame.height() / frame.width().max(1.0)).clamp(0.1, 10.0);
         let h = ((DENSITY_CELLS as f32 * aspect) as usize).max(16);
-        let d = bin(cloud.points.iter().copied(), bounds, DENSITY_CELLS, h);
+        let mut d = bin(cloud.points.iter().copied(), bounds, DENSITY_CELLS, h);
+        if !skip.is_empty() {
+            // Skipped entries are positions in the cloud (the scatter's base cloud lists every
+            // entry in order); they are few, so they are taken out rather than filtered.
+            d.remove(skip.iter().filter_map(|&e| cloud.points.get(e).copied()));
+        }
         let scale = (f64::from(d.max.max(1))).ln_1p();
         let pixels: Vec<Color32> = d
             .counts
@@ -199,6 +243,37 @@ fn density_image(
     }
 }
 
+/// Excluded rows and moved (included) rows at their current positions, and the set of both.
+fn marked_clouds(
+    pair: &crate::pair::PairRows,
+    marks: &crate::marks::Marks,
+) -> (Cloud, Cloud, std::collections::HashSet<usize>) {
+    let entries = |rows: &mut dyn Iterator<Item = usize>| -> Vec<usize> {
+        rows.filter_map(|r| pair.index_of(r)).collect()
+    };
+    let out = entries(&mut marks.excluded.keys().copied());
+    let moved: Vec<usize> = entries(&mut marks.moved.keys().copied())
+        .into_iter()
+        .filter(|e| !out.contains(e))
+        .collect();
+    let cloud = |es: &[usize]| {
+        Cloud::new(
+            es.iter().map(|&e| pair.point(e, marks)).collect(),
+            es.to_vec(),
+        )
+    };
+    let skip = out.iter().chain(&moved).copied().collect();
+    (cloud(&out), cloud(&moved), skip)
+}
+
+/// The hover radius in data units along each axis.
+fn radius(transform: &PlotTransform) -> (f64, f64) {
+    (
+        HOVER_RADIUS / transform.dpos_dvalue_x().abs(),
+        HOVER_RADIUS / transform.dpos_dvalue_y().abs(),
+    )
+}
+
 /// The entry under the pointer, searching `clouds` in order.
 fn hovered_entry(
     shown: &egui::Response,
@@ -207,8 +282,7 @@ fn hovered_entry(
 ) -> Option<usize> {
     let pos = shown.hover_pos()?;
     let v = transform.value_from_position(pos);
-    let rx = HOVER_RADIUS / transform.dpos_dvalue_x().abs();
-    let ry = HOVER_RADIUS / transform.dpos_dvalue_y().abs();
+    let (rx, ry) = radius(transform);
     clouds.iter().find_map(|c| c.nearest(v.x, v.y, rx, ry))
 }
 
@@ -224,30 +298,10 @@ fn scatter(wb: &mut Workbench, ui: &mut egui::Ui, size: Vec2) {
     let marks = wb.marks().clone();
     title(ui, &format!("{} against {}", pair.spec.y, pair.spec.x), "The rows with the fitted line or curve, its confidence band (shaded) and prediction band (dashed). Hollow rings are excluded rows.");
     let visuals = ui.visuals().clone();
-    let (mut inc_pts, mut inc_e, mut exc_pts, mut exc_e) =
-        (Vec::new(), Vec::new(), Vec::new(), Vec::new());
-    let moved_any = marks.is_hypothetical();
-    let plain = marks.excluded.is_empty() && !moved_any;
-    let cloud_now = if plain {
-        None
-    } else {
-        for i in 0..pair.rows.len() {
-            let p = pair.point(i, &marks);
-            if pair.is_excluded(i, &marks) {
-                exc_pts.push(p);
-                exc_e.push(i);
-            } else {
-                inc_pts.push(p);
-                inc_e.push(i);
-            }
-        }
-        Some((Cloud::new(inc_pts, inc_e), Cloud::new(exc_pts, exc_e)))
-    };
-    let empty = Cloud::default();
-    let (included, excluded) = match &cloud_now {
-        Some((a, b)) => (a, b),
-        None => (&wb.bench.scatter, &empty),
-    };
+    // The base cloud holds every row at its file position (indexed once per pair); excluded
+    // and moved rows are few, so they are drawn from small clouds of their own.
+    let (excluded, moved, skip) = marked_clouds(&pair, &marks);
+    let included = &wb.bench.scatter;
     let focus_entry = wb.bench.hovered.or(wb.bench.selected);
     let focus = focus_entry.map(|e| pair.point(e, &marks));
     let groups = wb.bench.groups.clone();
@@ -257,23 +311,18 @@ fn scatter(wb: &mut Workbench, ui: &mut egui::Ui, size: Vec2) {
     });
     let summary = wb.bench.summary().and_then(Result::ok);
     let diag = wb.bench.diagnostics().cloned();
-    let (x_lo, x_hi) = included
-        .points
-        .iter()
-        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), p| {
-            (a.min(p.0), b.max(p.0))
-        });
+    let (x_lo, x_hi) = included.bounds.map_or((0.0, 0.0), |b| (b.x_min, b.x_max));
     let mut slot = wb.bench.textures.remove("scatter");
-    let generation = wb.bench.generation;
+    let generation = wb.bench.marks_generation;
     let pointer = wb.bench.pointer;
     let lasso = wb.bench.lasso.clone();
     let levels = wb.bench.levels.clone();
     let resp = plot(
-        "scatter",
+        ("scatter", wb.bench.serial),
         size,
-        &pair.spec.x,
-        &pair.spec.y,
+        (&pair.spec.x, &pair.spec.y),
         pointer == PointerMode::Exclude,
+        included.is_dense().then_some(included.bounds).flatten(),
     )
     .show(ui, |pu| {
         if let Some(d) = &diag {
@@ -285,7 +334,9 @@ fn scatter(wb: &mut Workbench, ui: &mut egui::Ui, size: Vec2) {
         let layer = Layer {
             cloud: included,
             colours,
-            excluded,
+            excluded: &excluded,
+            skip: &skip,
+            extra: &moved,
             focus,
             generation,
         };
@@ -327,8 +378,14 @@ fn scatter(wb: &mut Workbench, ui: &mut egui::Ui, size: Vec2) {
     if let Some(s) = slot {
         wb.bench.textures.insert("scatter", s);
     }
+    let hovered =
+        hovered_entry(&resp.response, &resp.transform, &[&excluded, &moved]).or_else(|| {
+            let pos = resp.response.hover_pos()?;
+            let v = resp.transform.value_from_position(pos);
+            included.nearest_except(v.x, v.y, radius(&resp.transform), &skip)
+        });
     let shown = Shown {
-        hovered: hovered_entry(&resp.response, &resp.transform, &[included, excluded]),
+        hovered,
         transform: resp.inner,
         response: resp.response,
     };
@@ -652,13 +709,23 @@ fn diagnostic_view(
         .or(wb.bench.selected)
         .and_then(|e| cloud.position_of(e).or_else(|| excluded.position_of(e)));
     let mut slot = wb.bench.textures.remove(id);
-    let generation = wb.bench.generation;
-    let resp = plot(id, size, x_label, y_label, true).show(ui, |pu| {
+    let generation = wb.bench.diag_generation;
+    let empty_set = std::collections::HashSet::new();
+    let resp = plot(
+        (id, wb.bench.serial),
+        size,
+        (x_label, y_label),
+        true,
+        cloud.is_dense().then_some(cloud.bounds).flatten(),
+    )
+    .show(ui, |pu| {
         guides(pu, cloud, &visuals);
         let layer = Layer {
             cloud,
             colours: None,
             excluded,
+            skip: &empty_set,
+            extra: &empty,
             focus,
             generation,
         };

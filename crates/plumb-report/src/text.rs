@@ -48,6 +48,9 @@ pub fn num(v: f64) -> String {
 pub fn p(v: f64) -> String {
     if !v.is_finite() {
         "—".into()
+    } else if v == 0.0 {
+        // Below the smallest positive double: the tail is too small to represent.
+        "< 1e-300".into()
     } else if v < 1e-4 {
         format!("{v:.2e}")
     } else {

@@ -40,6 +40,18 @@ pub struct WorkbenchArgs {
     /// Window size in points, WIDTHxHEIGHT.
     #[arg(long, value_name = "WxH", value_parser = parse_size)]
     pub window_size: Option<(f32, f32)>,
+    /// Colours (default: follow the system).
+    #[arg(long, value_enum)]
+    pub theme: Option<ThemeArg>,
+}
+
+/// Colour themes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum ThemeArg {
+    /// Light background.
+    Light,
+    /// Dark background.
+    Dark,
 }
 
 /// Screens of the workbench.

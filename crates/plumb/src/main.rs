@@ -50,6 +50,10 @@ fn workbench(a: cli::WorkbenchArgs) -> anyhow::Result<String> {
         }),
         screenshot: a.screenshot.clone(),
         size: a.window_size,
+        theme: a.theme.map(|t| match t {
+            cli::ThemeArg::Light => plumb_app::ThemePreference::Light,
+            cli::ThemeArg::Dark => plumb_app::ThemePreference::Dark,
+        }),
     };
     plumb_app::run(launch)?;
     Ok(a.screenshot
