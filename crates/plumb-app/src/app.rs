@@ -1,6 +1,7 @@
 //! The workbench window: state, the frame loop, shortcuts and the title bar.
 
 use std::path::{Path, PathBuf};
+use std::sync::Arc;
 
 use eframe::egui::{self, Key, KeyboardShortcut, Modifiers};
 use plumb_report::Session;
@@ -51,6 +52,8 @@ pub struct Loading {
     pub path: PathBuf,
     /// Its size in bytes, if known.
     pub bytes: Option<u64>,
+    /// How far the reader has got.
+    pub progress: Arc<plumb_data::Progress>,
     /// The reader.
     pub job: Job<Result<Loaded, WorkbenchError>>,
     /// What follows.

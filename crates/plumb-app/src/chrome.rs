@@ -77,14 +77,31 @@ pub fn status_bar(wb: &mut Workbench, ui: &mut egui::Ui) {
         ui.horizontal(|ui| {
             if let Some(l) = &wb.loading {
                 ui.spinner();
+                let read = l.progress.bytes_read();
+                let (stage, fraction) = match l.progress.stage() {
+                    plumb_data::Stage::Reading => (
+                        "reading",
+                        l.bytes.filter(|&b| b > 0).map(|b| read as f32 / b as f32),
+                    ),
+                    plumb_data::Stage::Parsing => ("splitting records", None),
+                    plumb_data::Stage::Typing => ("typing the cells", None),
+                };
                 let size = l
                     .bytes
-                    .map_or(String::new(), |b| format!(", {:.1} MB", b as f64 / 1e6));
+                    .map_or(String::new(), |b| format!(" ({:.1} MB)", b as f64 / 1e6));
                 ui.label(format!(
-                    "reading {}{size} — {:.1} s",
+                    "{}{size}: {stage}, {:.1} s",
                     l.path.display(),
                     l.job.elapsed().as_secs_f64()
                 ));
+                if let Some(f) = fraction {
+                    ui.add(
+                        egui::ProgressBar::new(f.clamp(0.0, 1.0))
+                            .desired_width(160.0)
+                            .show_percentage(),
+                    )
+                    .on_hover_text("bytes read from disk");
+                }
                 if ui
                     .button("Cancel")
                     .on_hover_text("Stop waiting for this file; the workbench keeps what it had")

@@ -32,8 +32,20 @@ impl Dataset {
     /// # Errors
     /// The loader's message, which names the file and the row or column at fault.
     pub fn load(path: &Path, options: &LoadOptions) -> Result<Self, WorkbenchError> {
-        let table =
-            plumb_data::load(path, options).map_err(|e| WorkbenchError::Load(e.to_string()))?;
+        Self::load_with_progress(path, options, &plumb_data::Progress::default())
+    }
+
+    /// [`Dataset::load`], reporting progress for the status bar.
+    ///
+    /// # Errors
+    /// As [`Dataset::load`].
+    pub fn load_with_progress(
+        path: &Path,
+        options: &LoadOptions,
+        progress: &plumb_data::Progress,
+    ) -> Result<Self, WorkbenchError> {
+        let table = plumb_data::load_with_progress(path, options, progress)
+            .map_err(|e| WorkbenchError::Load(e.to_string()))?;
         Ok(Self::from_table(table, options.clone()))
     }
 

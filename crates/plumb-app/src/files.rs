@@ -80,9 +80,11 @@ pub fn start_load(
     }
     let owned = path.to_path_buf();
     let notify = wb.repaint_hook();
+    let progress = std::sync::Arc::new(plumb_data::Progress::default());
+    let shared = std::sync::Arc::clone(&progress);
     let job = Job::spawn(
         move |_| {
-            let dataset = Dataset::load(&owned, &options)?;
+            let dataset = Dataset::load_with_progress(&owned, &options, &shared)?;
             let sha256 = file_sha256(&owned).map_err(|e| WorkbenchError::Load(e.to_string()))?;
             Ok(Loaded { dataset, sha256 })
         },
@@ -91,6 +93,7 @@ pub fn start_load(
     wb.loading = Some(Loading {
         path: path.to_path_buf(),
         bytes: std::fs::metadata(path).ok().map(|m| m.len()),
+        progress,
         job,
         then,
     });

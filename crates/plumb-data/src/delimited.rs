@@ -6,6 +6,7 @@ use std::path::Path;
 use polars::prelude::{CsvParseOptions, CsvReadOptions, DataFrame, SerReader};
 
 use crate::cell::{classify, Cell};
+use crate::progress::{read_all, Progress, Stage};
 use crate::sniff::{self, HeaderMode, Record};
 use crate::table::{SourceFormat, Table};
 use crate::{DataError, LoadOptions, Result};
@@ -14,11 +15,19 @@ const BOM: &[u8] = b"\xEF\xBB\xBF";
 
 /// Reads a delimited text file. The whole file is read into memory once; blank lines are
 /// skipped and do not count as rows.
-pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
-    let bytes = std::fs::read(path).map_err(|source| DataError::Io {
-        path: path.to_path_buf(),
-        source,
-    })?;
+pub(crate) fn load(
+    path: &Path,
+    options: &LoadOptions,
+    progress: Option<&Progress>,
+) -> Result<Table> {
+    crate::budget::check_text(path, options.memory_limit)?;
+    let bytes = read_all(path, progress)?;
+    let stage = |s| {
+        if let Some(p) = progress {
+            p.enter(s);
+        }
+    };
+    stage(Stage::Parsing);
     let text = bytes.strip_prefix(BOM).unwrap_or(&bytes);
     check_utf8(path, text)?;
     let recs = sniff::records(text).map_err(|line| DataError::UnclosedQuote {
@@ -48,6 +57,7 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
     };
     check_field_counts(path, text, &recs, delimiter, header)?;
     let frame = parse(path, text, &recs, delimiter)?;
+    stage(Stage::Typing);
     let mut columns = string_columns(path, &frame)?;
     let names = if header {
         columns

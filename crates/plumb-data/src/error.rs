@@ -7,6 +7,18 @@ use thiserror::Error;
 /// Why a file could not be read or a selection could not be made.
 #[derive(Debug, Error)]
 pub enum DataError {
+    /// Loading the file would need more memory than is available.
+    #[error("{}: {bytes} bytes of text need about {} MB of memory to load, more than the {} MB available; load a smaller extract (fewer rows or columns), or convert the columns you need to Parquet", path.display(), need / 1_000_000, limit / 1_000_000)]
+    TooLarge {
+        /// File.
+        path: PathBuf,
+        /// File size.
+        bytes: u64,
+        /// Estimated memory needed.
+        need: u64,
+        /// Memory available (or the limit set in the load options).
+        limit: u64,
+    },
     /// The operating system refused the read.
     #[error("{}: cannot read the file ({source}); check the path and permissions", path.display())]
     Io {

@@ -9,17 +9,21 @@
 //! number is the one users see and the one exclusions name.
 
 pub mod analysis;
+mod budget;
 mod cell;
 mod delimited;
 mod error;
 mod parquet;
+mod progress;
 mod select;
 mod sheet;
 mod sniff;
 mod table;
 
+pub use budget::{available_memory, TEXT_EXPANSION};
 pub use cell::{Cell, DecimalMark, DEFAULT_MISSING_TOKENS};
 pub use error::{DataError, Result};
+pub use progress::{Progress, Stage};
 pub use select::{DropReason, Dropped, Selection};
 pub use sniff::HeaderMode;
 pub use table::{Column, ColumnSummary, ColumnValues, SourceFormat, Table};
@@ -39,6 +43,8 @@ pub struct LoadOptions {
     pub missing_tokens: Vec<String>,
     /// Spreadsheet sheet to read; `None` reads the first.
     pub sheet: Option<String>,
+    /// Most memory a text load may need (bytes); `None`: what the system reports available.
+    pub memory_limit: Option<u64>,
 }
 
 /// Opens `path`, choosing the reader by the file's extension (`.parquet`/`.pq`;
@@ -50,6 +56,22 @@ pub struct LoadOptions {
 /// A [`DataError`] naming the file and, where it applies, the line, row or column at fault
 /// and what to do about it.
 pub fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
+    load_tracked(path, options, None)
+}
+
+/// [`load`], reporting how far it has got through `progress` (read from another thread).
+///
+/// # Errors
+/// As [`load`].
+pub fn load_with_progress(
+    path: &Path,
+    options: &LoadOptions,
+    progress: &Progress,
+) -> Result<Table> {
+    load_tracked(path, options, Some(progress))
+}
+
+fn load_tracked(path: &Path, options: &LoadOptions, progress: Option<&Progress>) -> Result<Table> {
     let extension = path
         .extension()
         .map(|e| e.to_string_lossy().to_ascii_lowercase())
@@ -57,6 +79,6 @@ pub fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
     match extension.as_str() {
         "parquet" | "pq" => parquet::load(path, options),
         "xlsx" | "xlsm" | "xlsb" | "xls" | "ods" => sheet::load(path, options),
-        _ => delimited::load(path, options),
+        _ => delimited::load(path, options, progress),
     }
 }

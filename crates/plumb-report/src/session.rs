@@ -90,6 +90,7 @@ impl LoadSpec {
             },
             missing_tokens: self.missing.clone(),
             sheet: self.sheet.clone(),
+            memory_limit: None,
         }
     }
 
@@ -340,6 +341,7 @@ mod tests {
             decimal: Some(DecimalMark::Comma),
             missing_tokens: vec!["-999".into()],
             sheet: Some("runs".into()),
+            memory_limit: None,
         };
         assert_eq!(LoadSpec::from_options(&options).to_options(), options);
         assert_eq!(LoadSpec::default().to_options(), LoadOptions::default());

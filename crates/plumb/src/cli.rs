@@ -212,6 +212,7 @@ impl LoadArgs {
             },
             missing_tokens: self.missing.clone(),
             sheet: self.sheet.clone(),
+            memory_limit: None,
         }
     }
 }
