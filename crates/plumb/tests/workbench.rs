@@ -243,3 +243,81 @@ fn dragging_a_point_changes_the_numbers_as_a_what_if_and_leaves_the_data_alone()
     assert!(!h.state().marks().is_hypothetical());
     assert_eq!(shown_r_squared(&h), start);
 }
+
+#[test]
+fn the_map_counts_the_pairs_tested_and_a_strong_pair_opens_on_the_bench() {
+    let config = tempfile::tempdir().expect("config dir");
+    let data = demo("field-survey.csv");
+    let mut h = harness(config.path());
+    h.state_mut().open_path(&data);
+    settle(&mut h);
+    h.get_by_label("Co-movement map").click();
+    settle(&mut h);
+    // Seven numeric columns: 7·6/2 = 21 pairs, all adjusted together.
+    assert!(h
+        .query_by_label_contains(
+            "21 pairs tested with Pearson r; p adjusted by Holm's step-down over all 21"
+        )
+        .is_some());
+    h.get_by_label("visit_day and sward_height_cm").click();
+    settle(&mut h);
+    assert_eq!(h.state().screen(), plumb_app::Screen::Bench);
+    let pair = h.state().bench().pair().expect("pair");
+    assert_eq!(
+        (pair.spec.y.as_str(), pair.spec.x.as_str()),
+        ("visit_day", "sward_height_cm")
+    );
+}
+
+#[test]
+fn a_saved_session_reopens_with_the_same_exclusions_reasons_and_numbers() {
+    let config = tempfile::tempdir().expect("config dir");
+    let work = tempfile::tempdir().expect("work dir");
+    let data = work.path().join("calibration-run.csv");
+    std::fs::copy(demo("calibration-run.csv"), &data).expect("copy");
+    let mut h = harness(config.path());
+    open_calibration(&mut h, &data);
+    h.state_mut().exclude_rows(&[9, 14]);
+    h.state_mut().record_reason("both read during lamp warm-up");
+    settle(&mut h);
+    let shown = shown_r_squared(&h);
+    let session = work.path().join("run.plumb");
+    h.state_mut().save_session_to(&session);
+    h.step();
+    assert!(!h.state().has_unsaved_changes(), "{:?}", h.state().status());
+    assert!(
+        !config.path().join("recovery.plumb").exists(),
+        "a save clears the recovery copy"
+    );
+    let summary = work.path().join("summary.html");
+    h.state_mut().export_summary_to(&summary);
+    let html = std::fs::read_to_string(&summary).expect("summary written");
+    assert!(
+        html.contains("both read during lamp warm-up"),
+        "reasons are in the summary"
+    );
+    assert!(
+        html.contains("run.plumb"),
+        "it names the session that reproduces it"
+    );
+
+    let mut again = harness(config.path());
+    again.state_mut().open_path(&session);
+    settle(&mut again);
+    again.get_by_label("Pair bench").click();
+    settle(&mut again);
+    let marks = again.state().marks().clone();
+    assert_eq!(
+        marks.excluded.keys().copied().collect::<Vec<_>>(),
+        vec![9, 14]
+    );
+    assert!(marks
+        .excluded
+        .values()
+        .all(|n| n.reason == "both read during lamp warm-up"));
+    assert_eq!(shown_r_squared(&again), shown);
+    assert_eq!(
+        shown,
+        cli_r_squared(&data, "absorbance", "standard_mg_l", "9,14")
+    );
+}
