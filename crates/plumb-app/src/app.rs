@@ -345,6 +345,16 @@ impl Workbench {
         }
     }
 
+    /// Sets the scatter's overlays and the column colouring its points.
+    pub fn set_overlays(&mut self, overlays: crate::derived::Overlays, colour_by: Option<String>) {
+        self.bench.overlays = overlays;
+        self.bench.group_by = colour_by;
+        if let Some(l) = &self.loaded {
+            self.bench.regroup(&l.dataset);
+        }
+        self.bench.touch();
+    }
+
     /// Puts pair `spec` on the bench (keeping the marks). False, with a message, if the
     /// columns cannot be fitted.
     pub fn open_pair(&mut self, spec: PairSpec) -> bool {

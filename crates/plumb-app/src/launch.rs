@@ -29,6 +29,10 @@ pub struct Launch {
     pub size: Option<(f32, f32)>,
     /// Colours (default: follow the system).
     pub theme: Option<egui::ThemePreference>,
+    /// Overlays on the scatter.
+    pub overlays: crate::derived::Overlays,
+    /// Text column colouring the points.
+    pub colour_by: Option<String>,
 }
 
 /// Longest wait for the data and diagnostics before a screenshot is taken anyway.
@@ -77,6 +81,7 @@ fn apply_after_load(wb: &mut Workbench, launch: Launch) {
             wb.set_screen(Screen::Bench);
         }
     }
+    wb.set_overlays(launch.overlays, launch.colour_by.clone());
     if !launch.exclude.is_empty() {
         wb.exclude_rows(&launch.exclude);
         wb.record_reason("excluded from the command line (--exclude)");

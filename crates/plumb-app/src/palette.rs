@@ -56,6 +56,15 @@ pub fn excluded(v: &Visuals) -> Color32 {
     }
 }
 
+/// The LOESS curve (a hue the group colours do not use).
+pub fn loess(v: &Visuals) -> Color32 {
+    if v.dark_mode {
+        Color32::from_rgb(0xC3, 0x9B, 0xF0)
+    } else {
+        Color32::from_rgb(0x6A, 0x3D, 0x9A)
+    }
+}
+
 /// Background of the hypothetical banner.
 pub const WHAT_IF: Color32 = Color32::from_rgb(0xF2, 0xC1, 0x4E);
 

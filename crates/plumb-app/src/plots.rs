@@ -36,18 +36,18 @@ struct Shown {
 
 /// Draws the 2×2 grid of views.
 pub fn show(wb: &mut Workbench, ui: &mut egui::Ui) {
+    // The scatter gets the larger share: it is where points are picked.
     let avail = ui.available_size();
-    let size = Vec2::new(
-        ((avail.x - 12.0) / 2.0).max(160.0),
-        ((avail.y - 52.0) / 2.0).max(140.0),
-    );
+    let (w, h) = ((avail.x - 12.0).max(320.0), (avail.y - 52.0).max(280.0));
+    let top = h * 0.56;
     ui.horizontal(|ui| {
-        ui.vertical(|ui| scatter(wb, ui, size));
-        ui.vertical(|ui| residuals(wb, ui, size));
+        ui.vertical(|ui| scatter(wb, ui, Vec2::new(w * 0.58, top)));
+        ui.vertical(|ui| residuals(wb, ui, Vec2::new(w * 0.42, top)));
     });
+    let bottom = Vec2::new(w / 2.0, h - top);
     ui.horizontal(|ui| {
-        ui.vertical(|ui| leverage(wb, ui, size));
-        ui.vertical(|ui| quantiles(wb, ui, size));
+        ui.vertical(|ui| leverage(wb, ui, bottom));
+        ui.vertical(|ui| quantiles(wb, ui, bottom));
     });
 }
 
@@ -83,8 +83,8 @@ fn plot(
 struct Layer<'a> {
     /// Included rows.
     cloud: &'a Cloud,
-    /// Colour of each entry (groups), if any.
-    colours: Option<&'a dyn Fn(usize) -> Color32>,
+    /// Group level of each entry and the levels' names, if the points are coloured.
+    groups: Option<(&'a [Option<usize>], &'a [String])>,
     /// Excluded rows (hollow rings).
     excluded: &'a Cloud,
     /// Entries of `cloud` not to draw (drawn elsewhere: excluded or moved).
@@ -107,7 +107,7 @@ fn points_layer(
 ) {
     let Layer {
         cloud,
-        colours,
+        groups,
         excluded,
         skip,
         extra,
@@ -132,19 +132,20 @@ fn points_layer(
                 .filled(true)
                 .allow_hover(false),
         );
-    } else if let Some(colour_of) = colours {
-        let mut by_colour: std::collections::BTreeMap<[u8; 4], Vec<[f64; 2]>> = Default::default();
+    } else if let Some((level_of, names)) = groups {
+        let mut by_level: std::collections::BTreeMap<Option<usize>, Vec<[f64; 2]>> =
+            Default::default();
         for (&(x, y), &e) in shown() {
-            by_colour
-                .entry(colour_of(e).to_array())
-                .or_default()
-                .push([x, y]);
+            by_level.entry(level_of[e]).or_default().push([x, y]);
         }
-        for (rgba, pts) in by_colour {
-            let c = Color32::from_rgba_premultiplied(rgba[0], rgba[1], rgba[2], rgba[3]);
+        for (level, pts) in by_level {
+            let (colour, name) = match level {
+                Some(l) => (palette::group(l), names.get(l).cloned().unwrap_or_default()),
+                None => (Color32::GRAY, "(no group)".to_string()),
+            };
             pu.points(
-                Points::new("rows", pts)
-                    .color(c)
+                Points::new(name, pts)
+                    .color(colour)
                     .radius(3.0)
                     .filled(true)
                     .allow_hover(false),
@@ -172,7 +173,7 @@ fn points_layer(
     }
     if let Some((x, y)) = focus {
         pu.points(
-            Points::new("focus", vec![[x, y]])
+            Points::new("", vec![[x, y]])
                 .color(palette::focus(visuals))
                 .radius(7.0)
                 .filled(false)
@@ -305,10 +306,7 @@ fn scatter(wb: &mut Workbench, ui: &mut egui::Ui, size: Vec2) {
     let focus_entry = wb.bench.hovered.or(wb.bench.selected);
     let focus = focus_entry.map(|e| pair.point(e, &marks));
     let groups = wb.bench.groups.clone();
-    let colour_of = groups.as_ref().map(|g| {
-        let g = g.clone();
-        move |e: usize| g[e].map_or(Color32::GRAY, palette::group)
-    });
+
     let summary = wb.bench.summary().and_then(Result::ok);
     let diag = wb.bench.diagnostics().cloned();
     let (x_lo, x_hi) = included.bounds.map_or((0.0, 0.0), |b| (b.x_min, b.x_max));
@@ -324,16 +322,16 @@ fn scatter(wb: &mut Workbench, ui: &mut egui::Ui, size: Vec2) {
         pointer == PointerMode::Exclude,
         included.is_dense().then_some(included.bounds).flatten(),
     )
+    .legend(egui_plot::Legend::default().position(egui_plot::Corner::RightTop))
     .show(ui, |pu| {
         if let Some(d) = &diag {
             bands(pu, d, &visuals);
             overlays(pu, d, &visuals, x_lo, x_hi, &levels);
         }
-        let colours: Option<&dyn Fn(usize) -> Color32> =
-            colour_of.as_ref().map(|f| f as &dyn Fn(usize) -> Color32);
+
         let layer = Layer {
             cloud: included,
-            colours,
+            groups: groups.as_deref().map(|g| (g, levels.as_slice())),
             excluded: &excluded,
             skip: &skip,
             extra: &moved,
@@ -367,7 +365,7 @@ fn scatter(wb: &mut Workbench, ui: &mut egui::Ui, size: Vec2) {
         }
         if lasso.len() > 1 {
             pu.line(
-                Line::new("lasso", PlotPoints::from(lasso.clone()))
+                Line::new("", PlotPoints::from(lasso.clone()))
                     .color(palette::focus(&visuals))
                     .style(LineStyle::dashed_dense())
                     .allow_hover(false),
@@ -508,7 +506,8 @@ fn bands(pu: &mut PlotUi<'_>, d: &crate::derived::Diagnostics, v: &egui::Visuals
             .fill_color(c.gamma_multiply(0.22))
             .allow_hover(false),
     );
-    for (name, f) in [("prediction band (low)", 0), ("prediction band (high)", 1)] {
+    for f in [0, 1] {
+        let name = "prediction band";
         let pts: PlotPoints = b
             .iter()
             .map(|p| {
@@ -555,7 +554,7 @@ fn overlays(
             let pts: PlotPoints = l.x.iter().zip(&l.fitted).map(|(&x, &y)| [x, y]).collect();
             pu.line(
                 Line::new("LOESS", pts)
-                    .color(palette::group(5))
+                    .color(palette::loess(v))
                     .width(1.5)
                     .allow_hover(false),
             );
@@ -722,7 +721,7 @@ fn diagnostic_view(
         guides(pu, cloud, &visuals);
         let layer = Layer {
             cloud,
-            colours: None,
+            groups: None,
             excluded,
             skip: &empty_set,
             extra: &empty,

@@ -43,6 +43,23 @@ pub struct WorkbenchArgs {
     /// Colours (default: follow the system).
     #[arg(long, value_enum)]
     pub theme: Option<ThemeArg>,
+    /// Overlay on the scatter (repeatable).
+    #[arg(long = "overlay", value_enum, value_name = "KIND")]
+    pub overlays: Vec<OverlayArg>,
+    /// Colour the points by this text column and fit a line per group.
+    #[arg(long, value_name = "COLUMN")]
+    pub colour_by: Option<String>,
+}
+
+/// Scatter overlays.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum OverlayArg {
+    /// Theil–Sen line.
+    TheilSen,
+    /// Deming line (equal error variances).
+    Deming,
+    /// LOESS curve (span 0.5).
+    Loess,
 }
 
 /// Colour themes.

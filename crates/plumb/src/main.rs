@@ -50,6 +50,13 @@ fn workbench(a: cli::WorkbenchArgs) -> anyhow::Result<String> {
         }),
         screenshot: a.screenshot.clone(),
         size: a.window_size,
+        overlays: plumb_app::derived::Overlays {
+            theil_sen: a.overlays.contains(&cli::OverlayArg::TheilSen),
+            deming: a.overlays.contains(&cli::OverlayArg::Deming),
+            loess: a.overlays.contains(&cli::OverlayArg::Loess),
+            ..Default::default()
+        },
+        colour_by: a.colour_by.clone(),
         theme: a.theme.map(|t| match t {
             cli::ThemeArg::Light => plumb_app::ThemePreference::Light,
             cli::ThemeArg::Dark => plumb_app::ThemePreference::Dark,
