@@ -196,8 +196,13 @@ impl Bench {
     /// Applies changed marks to the live fit (immediately) and queues the diagnostics.
     pub fn apply(&mut self, marks: &Marks) {
         if let Some(p) = &mut self.pair {
-            p.apply(marks);
-            self.touch();
+            if p.differs(marks) {
+                p.apply(marks);
+                self.touch();
+            } else {
+                // Only reasons changed: keep the numbers, note the new text.
+                p.apply(marks);
+            }
         }
     }
 

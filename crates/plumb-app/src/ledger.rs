@@ -75,12 +75,15 @@ impl Workbench {
         self.after_marks_changed(true);
     }
 
+    /// Rewrites the reason of an exclusion in place (part of that exclusion's undo step; the
+    /// recovery copy is updated on every edit).
     fn set_reason(&mut self, row: usize, reason: String) {
         let mut m = self.marks().clone();
         if let Some(n) = m.excluded.get_mut(&row) {
             if n.reason != reason {
                 n.reason = reason;
-                self.set_marks(m, true);
+                self.history.amend(m);
+                self.after_marks_changed(true);
             }
         }
     }
@@ -148,8 +151,6 @@ pub fn show(wb: &mut Workbench, ui: &mut egui::Ui) {
         ui.label(effect_line(all));
     }
     for (row, text) in reasons {
-        // A reason edit is amended in place while typing; the change is one undo step per
-        // edit session because `commit` only records a step when the state differs.
         wb.set_reason(row, text);
     }
     if let Some(r) = back {

@@ -175,6 +175,12 @@ impl Pair {
         self.live.summary()
     }
 
+    /// Whether `marks` would change the fit (a different set of excluded rows or moves;
+    /// reasons do not count).
+    pub fn differs(&self, marks: &Marks) -> bool {
+        !self.applied.excluded.keys().eq(marks.excluded.keys()) || self.applied.moved != marks.moved
+    }
+
     /// The numbers for the marks last applied.
     pub fn summary(&self) -> &Result<LiveSummary, plumb_core::CoreError> {
         self.live.summary()

@@ -22,13 +22,23 @@ pub(crate) fn load(
 ) -> Result<Table> {
     crate::budget::check_text(path, options.memory_limit)?;
     let bytes = read_all(path, progress)?;
+    from_bytes(path, &bytes, options, progress)
+}
+
+/// Delimited text already in memory; `path` names it in messages.
+pub(crate) fn from_bytes(
+    path: &Path,
+    bytes: &[u8],
+    options: &LoadOptions,
+    progress: Option<&Progress>,
+) -> Result<Table> {
     let stage = |s| {
         if let Some(p) = progress {
             p.enter(s);
         }
     };
     stage(Stage::Parsing);
-    let text = bytes.strip_prefix(BOM).unwrap_or(&bytes);
+    let text = bytes.strip_prefix(BOM).unwrap_or(bytes);
     check_utf8(path, text)?;
     let recs = sniff::records(text).map_err(|line| DataError::UnclosedQuote {
         path: path.to_path_buf(),

@@ -71,6 +71,20 @@ pub fn load_with_progress(
     load_tracked(path, options, Some(progress))
 }
 
+/// Reads a table from bytes already in memory (a paste, a download, a fuzzer's input):
+/// delimited text, or a spreadsheet when `spreadsheet` is true. `label` stands for the file in
+/// messages. Nothing is written.
+///
+/// # Errors
+/// As [`load`].
+pub fn load_bytes(label: &Path, bytes: &[u8], spreadsheet: bool, options: &LoadOptions) -> Result<Table> {
+    if spreadsheet {
+        sheet::from_bytes(label, bytes.to_vec(), options)
+    } else {
+        delimited::from_bytes(label, bytes, options, None)
+    }
+}
+
 fn load_tracked(path: &Path, options: &LoadOptions, progress: Option<&Progress>) -> Result<Table> {
     let extension = path
         .extension()

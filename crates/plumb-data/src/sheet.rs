@@ -2,7 +2,7 @@
 
 use std::path::Path;
 
-use calamine::{open_workbook_auto, Data, Reader};
+use calamine::{open_workbook_auto, open_workbook_auto_from_rs, Data, Reader};
 
 use crate::cell::{classify, Cell, DecimalMark};
 use crate::sniff::{self, HeaderMode};
@@ -10,11 +10,31 @@ use crate::table::{SourceFormat, Table};
 use crate::{DataError, LoadOptions, Result};
 
 pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
-    let parse_error = |e: &dyn std::fmt::Display| DataError::Parse {
+    let workbook = open_workbook_auto(path).map_err(|e| parse_error(path, &e))?;
+    from_workbook(path, workbook, options)
+}
+
+/// A workbook already in memory (any of the formats calamine detects); `label` names it in
+/// messages.
+pub(crate) fn from_bytes(label: &Path, bytes: Vec<u8>, options: &LoadOptions) -> Result<Table> {
+    let workbook = open_workbook_auto_from_rs(std::io::Cursor::new(bytes))
+        .map_err(|e| parse_error(label, &e))?;
+    from_workbook(label, workbook, options)
+}
+
+fn parse_error(path: &Path, e: &dyn std::fmt::Display) -> DataError {
+    DataError::Parse {
         path: path.to_path_buf(),
         message: format!("not a readable spreadsheet ({e})"),
-    };
-    let mut workbook = open_workbook_auto(path).map_err(|e| parse_error(&e))?;
+    }
+}
+
+fn from_workbook<RS: std::io::Read + std::io::Seek>(
+    path: &Path,
+    mut workbook: calamine::Sheets<RS>,
+    options: &LoadOptions,
+) -> Result<Table> {
+    let parse_error = |e: &dyn std::fmt::Display| parse_error(path, e);
     let names = workbook.sheet_names();
     let sheet = match &options.sheet {
         Some(s) if names.contains(s) => s.clone(),

@@ -199,11 +199,19 @@ impl Session {
             action: "reading the session",
             source,
         })?;
+        Self::from_json(path, &text)
+    }
+
+    /// Parses session text; `path` names it in messages. The same checks as [`Session::load`].
+    ///
+    /// # Errors
+    /// [`ReportError::FutureSession`] or [`ReportError::BadSession`].
+    pub fn from_json(path: &Path, text: &str) -> Result<Self> {
         let bad = |e: serde_json::Error| ReportError::BadSession {
             path: path.to_path_buf(),
             detail: e.to_string(),
         };
-        let value: serde_json::Value = serde_json::from_str(&text).map_err(bad)?;
+        let value: serde_json::Value = serde_json::from_str(text).map_err(bad)?;
         let version = value
             .get("plumbline_session")
             .and_then(serde_json::Value::as_u64);
