@@ -40,10 +40,18 @@ pub(crate) fn from_bytes(
     stage(Stage::Parsing);
     let text = bytes.strip_prefix(BOM).unwrap_or(bytes);
     check_utf8(path, text)?;
-    let recs = sniff::records(text).map_err(|line| DataError::UnclosedQuote {
+    let mut recs = sniff::records(text).map_err(|line| DataError::UnclosedQuote {
         path: path.to_path_buf(),
         line,
     })?;
+    // A byte-order mark after leading blank lines is still a byte-order mark (found by
+    // fuzzing: left in place, the CSV parser saw a first line with no fields and panicked).
+    if let Some(first) = recs.first_mut() {
+        if text[first.start..first.end].starts_with(BOM) {
+            first.start += BOM.len();
+        }
+    }
+    recs.retain(|r| r.start < r.end);
     if recs.is_empty() {
         return Err(DataError::Empty {
             path: path.to_path_buf(),
@@ -162,17 +170,27 @@ fn parse(path: &Path, text: &[u8], recs: &[Record], delimiter: u8) -> Result<Dat
         .with_separator(delimiter)
         .with_quote_char(Some(b'"'))
         .with_missing_is_null(true);
-    CsvReadOptions::default()
-        .with_has_header(false)
-        .with_infer_schema_length(Some(0))
-        .with_raise_if_empty(false)
-        .with_parse_options(parse_options)
-        .into_reader_with_file_handle(Cursor::new(clean))
-        .finish()
-        .map_err(|e| DataError::Parse {
-            path: path.to_path_buf(),
-            message: format!("the text could not be split into fields ({e})"),
-        })
+    let read = || {
+        CsvReadOptions::default()
+            .with_has_header(false)
+            .with_infer_schema_length(Some(0))
+            .with_raise_if_empty(false)
+            .with_parse_options(parse_options)
+            .into_reader_with_file_handle(Cursor::new(clean))
+            .finish()
+    };
+    let failed = |message: String| DataError::Parse {
+        path: path.to_path_buf(),
+        message,
+    };
+    // Defence in depth: a panic inside the CSV parser becomes a message, not a crash.
+    match std::panic::catch_unwind(std::panic::AssertUnwindSafe(read)) {
+        Ok(Ok(frame)) => Ok(frame),
+        Ok(Err(e)) => Err(failed(format!("the text could not be split into fields ({e})"))),
+        Err(_) => Err(failed(
+            "the CSV parser failed on this file (an internal error); check the file's line endings and quoting, or re-export it".into(),
+        )),
+    }
 }
 
 fn string_columns(path: &Path, frame: &DataFrame) -> Result<Vec<Vec<Option<String>>>> {

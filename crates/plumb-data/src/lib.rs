@@ -77,7 +77,12 @@ pub fn load_with_progress(
 ///
 /// # Errors
 /// As [`load`].
-pub fn load_bytes(label: &Path, bytes: &[u8], spreadsheet: bool, options: &LoadOptions) -> Result<Table> {
+pub fn load_bytes(
+    label: &Path,
+    bytes: &[u8],
+    spreadsheet: bool,
+    options: &LoadOptions,
+) -> Result<Table> {
     if spreadsheet {
         sheet::from_bytes(label, bytes.to_vec(), options)
     } else {
