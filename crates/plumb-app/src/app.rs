@@ -292,6 +292,21 @@ impl Workbench {
             let loading = self.loading.take();
             match (result, loading) {
                 (Ok(loaded), Some(l)) => self.install(loaded, l.then),
+                (
+                    Err(e),
+                    Some(Loading {
+                        then:
+                            AfterLoad {
+                                session: Some(s), ..
+                            },
+                        ..
+                    }),
+                ) => {
+                    self.fail(format!(
+                        "{}: the session's data file cannot be used: {e}",
+                        s.display()
+                    ));
+                }
                 (Err(e), _) => self.fail(e.to_string()),
                 (Ok(_), None) => {}
             }
@@ -315,7 +330,13 @@ impl Workbench {
 
     fn install(&mut self, loaded: Loaded, then: AfterLoad) {
         let path = loaded.dataset.path();
-        if let Err(e) = self.recent.remember(&path, self.config.as_deref()) {
+        // The recent list keeps absolute paths, so it works from any working directory.
+        let absolute = std::fs::canonicalize(&path).unwrap_or_else(|_| path.clone());
+        let remembered = match &then.session {
+            Some(s) => std::fs::canonicalize(s).unwrap_or_else(|_| s.clone()),
+            None => absolute,
+        };
+        if let Err(e) = self.recent.remember(&remembered, self.config.as_deref()) {
             self.fail(format!("the recent-files list could not be saved: {e}"));
         } else {
             self.say(format!(

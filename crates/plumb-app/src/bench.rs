@@ -265,12 +265,12 @@ pub fn show(wb: &mut Workbench, ui: &mut egui::Ui) {
     }
     egui::Panel::left("numbers")
         .resizable(true)
-        .default_size(330.0)
+        .default_size(385.0)
         .size_range(240.0..=520.0)
         .show(ui, |ui| crate::numbers::show(wb, ui));
     egui::Panel::right("ledger")
         .resizable(true)
-        .default_size(280.0)
+        .default_size(270.0)
         .size_range(220.0..=480.0)
         .show(ui, |ui| crate::ledger::show(wb, ui));
     egui::Panel::bottom("cautions").show(ui, |ui| {

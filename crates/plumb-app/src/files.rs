@@ -53,6 +53,13 @@ pub fn open_session(wb: &mut Workbench, path: &Path, allow_outside: bool) {
         Err(e) => return wb.fail(e.to_string()),
     };
     let data = session.data_path(path);
+    if !data.exists() {
+        return wb.fail(format!(
+            "{}: the session's data file {} does not exist; put the file back, or open the data file and redo the exclusions",
+            path.display(),
+            data.display()
+        ));
+    }
     if !allow_outside && !data_is_beside(path, &data) {
         wb.ask = Some(Ask::OutsidePath {
             session: path.to_path_buf(),
@@ -256,9 +263,14 @@ impl Workbench {
                 .request(session.exclusions.iter().map(|e| e.row).collect()),
             exclusions: session.exclusions.clone(),
             reproduce: format!(
-                "plumb report {} -o {}",
+                "plumb report {} -o {}{}",
                 plumb_report::text::shell_word(&session_file.display().to_string()),
-                plumb_report::text::shell_word(&out.display().to_string())
+                plumb_report::text::shell_word(&out.display().to_string()),
+                if data_is_beside(&session_file, &loaded.dataset.path()) {
+                    ""
+                } else {
+                    " --allow-outside-data"
+                }
             ),
         })
         .map_err(|e| WorkbenchError::Report(e.to_string()))?;

@@ -124,6 +124,15 @@ fn model(ui: &mut egui::Ui, wb: &Workbench, pair: &PairRows, s: &LiveSummary, hy
             .on_hover_text("Overall test that every non-intercept term is zero");
     }
     let level = (pair.spec.level * 100.0).round();
+    egui::ScrollArea::horizontal()
+        .id_salt("model-table-scroll")
+        .show(ui, |ui| {
+            model_grid(ui, pair, s, level);
+        });
+    copy_buttons(ui, pair, s, hypothetical);
+}
+
+fn model_grid(ui: &mut egui::Ui, pair: &PairRows, s: &LiveSummary, level: f64) {
     egui::Grid::new("model-table").striped(true).show(ui, |ui| {
         for h in ["term", "estimate", "SE", &format!("{level}% CI"), "p"] {
             ui.label(RichText::new(h).strong());
@@ -133,11 +142,15 @@ fn model(ui: &mut egui::Ui, wb: &Workbench, pair: &PairRows, s: &LiveSummary, hy
             ui.label(t);
             ui.label(num(s.estimates[j]));
             ui.label(num(s.std_errors[j]));
-            ui.label(format!("{} to {}", num(s.ci[j].0), num(s.ci[j].1)));
+            ui.label(format!("{} to {}", short(s.ci[j].0), short(s.ci[j].1)))
+                .on_hover_text(format!("{} to {}", num(s.ci[j].0), num(s.ci[j].1)));
             ui.label(p(s.p_values[j]));
             ui.end_row();
         }
     });
+}
+
+fn copy_buttons(ui: &mut egui::Ui, pair: &PairRows, s: &LiveSummary, hypothetical: bool) {
     ui.horizontal(|ui| {
         if ui
             .button("Copy as text")
@@ -308,4 +321,37 @@ fn flags(f: &[InfluenceFlag]) -> String {
         })
         .collect::<Vec<_>>()
         .join(" ")
+}
+
+/// Four significant digits, for the interval column (the tooltip and the copies have six or
+/// all of them).
+fn short(v: f64) -> String {
+    let a = v.abs();
+    if !v.is_finite() {
+        "—".into()
+    } else if a != 0.0 && !(1e-3..1e5).contains(&a) {
+        format!("{v:.3e}")
+    } else {
+        let digits = if a == 0.0 {
+            0
+        } else {
+            a.log10().floor() as i32
+        };
+        let decimals = (3 - digits).clamp(0, 6) as usize;
+        format!("{v:.decimals$}")
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::short;
+
+    #[test]
+    fn interval_ends_keep_four_significant_digits() {
+        assert_eq!(short(9.843_004), "9.843");
+        assert_eq!(short(11.8435), "11.84");
+        assert_eq!(short(-0.297_967), "-0.2980");
+        assert_eq!(short(123_456.0), "1.235e5");
+        assert_eq!(short(f64::NAN), "—");
+    }
 }

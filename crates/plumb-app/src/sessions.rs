@@ -125,17 +125,9 @@ pub fn clear_recovery(config: &Path) {
     let _ = std::fs::remove_file(recovery_path(config));
 }
 
-/// Whether `data` lies inside the folder of `session_path` (a session naming a file elsewhere
-/// is opened only after the analyst agrees).
+/// Whether `data` lies inside the folder of `session_path` (see [`Session::data_is_beside`]).
 pub fn data_is_beside(session_path: &Path, data: &Path) -> bool {
-    let folder = session_path
-        .parent()
-        .filter(|d| !d.as_os_str().is_empty())
-        .unwrap_or(Path::new("."));
-    match (std::fs::canonicalize(folder), std::fs::canonicalize(data)) {
-        (Ok(f), Ok(d)) => d.starts_with(f),
-        _ => false,
-    }
+    Session::data_is_beside(session_path, data)
 }
 
 #[cfg(test)]

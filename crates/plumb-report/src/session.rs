@@ -253,6 +253,21 @@ impl Session {
         }
     }
 
+    /// Whether `data` lies inside the folder of `session_path`. A session naming a file
+    /// elsewhere is followed only when the analyst agrees (the workbench asks; the command
+    /// line needs `--allow-outside-data`), so a session from someone else cannot make
+    /// Plumbline read an arbitrary file unannounced.
+    pub fn data_is_beside(session_path: &Path, data: &Path) -> bool {
+        let folder = session_path
+            .parent()
+            .filter(|d| !d.as_os_str().is_empty())
+            .unwrap_or(Path::new("."));
+        match (std::fs::canonicalize(folder), std::fs::canonicalize(data)) {
+            (Ok(f), Ok(d)) => d.starts_with(f),
+            _ => false,
+        }
+    }
+
     /// The data file's path, resolved against the session file's folder when relative.
     pub fn data_path(&self, session_path: &Path) -> PathBuf {
         let p = PathBuf::from(&self.data.path);

@@ -354,6 +354,9 @@ pub struct ReportArgs {
     /// Also save this analysis as a session file (data-file input).
     #[arg(long, value_name = "FILE.plumb")]
     pub save_session: Option<PathBuf>,
+    /// Read the data file a session names even when it lies outside the session's folder.
+    #[arg(long)]
+    pub allow_outside_data: bool,
 }
 
 fn parse_reason(s: &str) -> Result<(usize, String), String> {

@@ -21,7 +21,7 @@ pub fn run(args: &ReportArgs) -> anyhow::Result<String> {
         note,
         sha256,
     } = if is_session {
-        from_session(input, &args.output)?
+        from_session(input, &args.output, args.allow_outside_data)?
     } else {
         from_data(args)?
     };
@@ -58,9 +58,16 @@ struct Prepared {
     sha256: String,
 }
 
-fn from_session(path: &Path, output: &Path) -> anyhow::Result<Prepared> {
+fn from_session(path: &Path, output: &Path, allow_outside: bool) -> anyhow::Result<Prepared> {
     let session = Session::load(path)?;
     let data_path = session.data_path(path);
+    if data_path.exists() && !allow_outside && !Session::data_is_beside(path, &data_path) {
+        anyhow::bail!(
+            "{}: the session names the data file {}, outside the session's folder; check it is the file you mean, then add --allow-outside-data",
+            path.display(),
+            data_path.display()
+        );
+    }
     let options = session.data.load.to_options();
     let table = plumb_data::load(&data_path, &options).map_err(|e| {
         anyhow::anyhow!(
@@ -82,7 +89,16 @@ fn from_session(path: &Path, output: &Path) -> anyhow::Result<Prepared> {
         .first()
         .ok_or_else(|| anyhow::anyhow!("{}: the session names no model", path.display()))?;
     let request = model.request(session.exclusions.iter().map(|e| e.row).collect());
-    let reproduce = format!("plumb report {} -o {}", path.display(), output.display());
+    let reproduce = format!(
+        "plumb report {} -o {}{}",
+        path.display(),
+        output.display(),
+        if allow_outside {
+            " --allow-outside-data"
+        } else {
+            ""
+        }
+    );
     Ok(Prepared {
         table,
         request,

@@ -199,3 +199,70 @@ fn a_ten_megabyte_line_is_refused_with_a_short_message() {
         stderr.len()
     );
 }
+
+/// The workbench opens files through `Dataset::load` (the same loader): for every data file
+/// of the corpus it must either load, or fail with the very message the command line prints;
+/// where the command line refuses the default model, the bench must refuse it too.
+#[test]
+fn the_workbench_loader_answers_the_corpus_as_the_command_line_does() {
+    use plumb_app::dataset::Dataset;
+    use plumb_app::pair::{Pair, PairSpec};
+    let mut failures = Vec::new();
+    for (name, extra, code, _) in CASES {
+        let path = corpus(name);
+        let before = std::fs::read(&path).expect("read");
+        let p = path.to_string_lossy().into_owned();
+        let (cli_code, _, stderr) =
+            run(&[&["fit", p.as_str(), "--y", "y", "--x", "x"][..], extra].concat());
+        let loaded = std::panic::catch_unwind(|| Dataset::load(&path, &Default::default()));
+        match loaded {
+            Err(_) => failures.push(format!("{name}: the workbench loader panicked")),
+            Ok(Err(e)) => {
+                if !stderr.contains(&e.to_string()) {
+                    failures.push(format!(
+                        "{name}: workbench says '{e}', command line '{}'",
+                        stderr.trim()
+                    ));
+                }
+            }
+            Ok(Ok(data)) if extra.is_empty() && *code == 1 && cli_code == 1 => {
+                let bench = Pair::new(&data.table, PairSpec::line("y", "x"));
+                let refused = bench.as_ref().map_or(true, |p| p.summary().is_err());
+                if !refused {
+                    failures.push(format!(
+                        "{name}: the command line refuses the model, the bench fits it"
+                    ));
+                }
+                if let Err(e) = bench {
+                    if !e.to_string().contains(name) {
+                        failures.push(format!(
+                            "{name}: the bench's message does not name the file: {e}"
+                        ));
+                    }
+                }
+            }
+            Ok(Ok(_)) => {}
+        }
+        if std::fs::read(&path).expect("read") != before {
+            failures.push(format!("{name}: the input file was written"));
+        }
+    }
+    // Sessions go through the workbench itself: open, wait for the loader, read the status.
+    for (name, _) in SESSIONS {
+        let config = tempfile::tempdir().expect("config");
+        let mut wb = plumb_app::Workbench::new(Some(config.path().to_path_buf()));
+        wb.open_path(&corpus(name));
+        let start = std::time::Instant::now();
+        while wb.is_loading() && start.elapsed() < std::time::Duration::from_secs(30) {
+            wb.poll_background();
+            std::thread::sleep(std::time::Duration::from_millis(10));
+        }
+        match (wb.status(), wb.loaded()) {
+            (Some(s), None) if s.error && s.text.contains(name) => {}
+            // A session with no model still opens its data; the bench then waits for a pair.
+            (_, Some(_)) if *name == "no-model.plumb" => {}
+            (s, _) => failures.push(format!("{name}: workbench status {s:?}")),
+        }
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}

@@ -595,11 +595,29 @@ mod summary {
         ]);
         assert!(run.status.success(), "{}", stderr(&run));
         let out2 = tmp.path().join("second.html");
+        let refused = plumb(&[
+            "report",
+            &session.to_string_lossy(),
+            "-o",
+            &out2.to_string_lossy(),
+        ]);
+        assert_eq!(
+            refused.status.code(),
+            Some(1),
+            "the demo data lie outside the session's folder"
+        );
+        assert!(
+            stderr(&refused).contains("--allow-outside-data"),
+            "{}",
+            stderr(&refused)
+        );
+        assert!(!tmp.path().join("second.html").exists());
         let again = plumb(&[
             "report",
             &session.to_string_lossy(),
             "-o",
             &out2.to_string_lossy(),
+            "--allow-outside-data",
         ]);
         assert!(again.status.success(), "{}", stderr(&again));
         let read = |name: &str| std::fs::read(tmp.path().join(name)).expect(name);
