@@ -59,12 +59,12 @@ fn exact_beta(design: &Design, y: &[f64]) -> Vec<f64> {
         for v in a[col].iter_mut() {
             *v = &*v / &lead;
         }
-        for r in 0..p {
-            if r != col && !a[r][col].is_zero() {
-                let f = a[r][col].clone();
-                for c in col..=p {
-                    let sub = &f * &a[col][c];
-                    a[r][c] = &a[r][c] - sub;
+        let pivot_row = a[col].clone();
+        for (r, row) in a.iter_mut().enumerate() {
+            if r != col && !row[col].is_zero() {
+                let f = row[col].clone();
+                for (v, pv) in row.iter_mut().zip(&pivot_row).skip(col) {
+                    *v = &*v - &f * pv;
                 }
             }
         }
