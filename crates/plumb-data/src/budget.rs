@@ -9,6 +9,13 @@ use crate::{DataError, Result};
 /// demo sensor log peaks at 494 MB resident in `plumb columns` (13×); 16 leaves a margin.
 pub const TEXT_EXPANSION: u64 = 16;
 
+/// Bytes of memory a spreadsheet load needs per byte of its uncompressed XML (estimate: a cell
+/// is 30–60 bytes of XML and 80–100 bytes once read and typed; not measured).
+pub const SHEET_EXPANSION: u64 = 4;
+
+/// Bytes of memory per cell of a Parquet file once read and typed (estimate, not measured).
+pub const PARQUET_CELL_BYTES: u64 = 96;
+
 /// Memory the kernel reports as available (`MemAvailable` in `/proc/meminfo`), if known.
 pub fn available_memory() -> Option<u64> {
     let text = std::fs::read_to_string("/proc/meminfo").ok()?;
@@ -20,17 +27,52 @@ pub fn available_memory() -> Option<u64> {
 /// Refuses a text file whose load would need more than `limit` bytes (default: the memory
 /// available now). Without a known limit nothing is refused.
 pub(crate) fn check_text(path: &Path, limit: Option<u64>) -> Result<()> {
-    let Some(limit) = limit.or_else(available_memory) else {
-        return Ok(());
-    };
     let Ok(meta) = std::fs::metadata(path) else {
         return Ok(()); // the read reports the problem with its own message
     };
-    let need = meta.len().saturating_mul(TEXT_EXPANSION);
+    check(
+        path,
+        meta.len(),
+        meta.len().saturating_mul(TEXT_EXPANSION),
+        limit,
+    )
+}
+
+/// Refuses a zipped workbook (xlsx, xlsm, xlsb, ods) whose entries unpack to more than the
+/// budget allows — a zip bomb included — before anything is unpacked. Other files pass (the
+/// reader then says what is wrong with them).
+pub(crate) fn check_sheet(path: &Path, limit: Option<u64>) -> Result<()> {
+    let Ok(file) = std::fs::File::open(path) else {
+        return Ok(());
+    };
+    let Ok(mut archive) = zip::ZipArchive::new(file) else {
+        return Ok(());
+    };
+    let unpacked = (0..archive.len())
+        .filter_map(|i| archive.by_index_raw(i).ok().map(|e| e.size()))
+        .fold(0u64, u64::saturating_add);
+    check(
+        path,
+        unpacked,
+        unpacked.saturating_mul(SHEET_EXPANSION),
+        limit,
+    )
+}
+
+/// Refuses a Parquet file with more cells than the budget allows.
+pub(crate) fn check_cells(path: &Path, cells: u64, limit: Option<u64>) -> Result<()> {
+    let bytes = std::fs::metadata(path).map_or(0, |m| m.len());
+    check(path, bytes, cells.saturating_mul(PARQUET_CELL_BYTES), limit)
+}
+
+fn check(path: &Path, bytes: u64, need: u64, limit: Option<u64>) -> Result<()> {
+    let Some(limit) = limit.or_else(available_memory) else {
+        return Ok(());
+    };
     if need > limit {
         return Err(DataError::TooLarge {
             path: path.to_path_buf(),
-            bytes: meta.len(),
+            bytes,
             need,
             limit,
         });
@@ -60,5 +102,29 @@ mod tests {
             available_memory().is_some_and(|m| m > 0),
             "Linux reports MemAvailable"
         );
+    }
+
+    #[test]
+    fn a_workbook_that_unpacks_beyond_the_budget_is_refused_before_unpacking() {
+        let dir = tempfile::tempdir().expect("dir");
+        let path = dir.path().join("book.xlsx");
+        let mut book = rust_xlsxwriter::Workbook::new();
+        let sheet = book.add_worksheet();
+        for r in 0..2000u32 {
+            sheet.write_number(r, 0, f64::from(r)).expect("cell");
+        }
+        book.save(&path).expect("save");
+        assert!(check_sheet(&path, Some(1 << 30)).is_ok());
+        let err = check_sheet(&path, Some(50_000))
+            .expect_err("over budget")
+            .to_string();
+        assert!(
+            err.contains("book.xlsx") && err.contains("more than"),
+            "{err}"
+        );
+        // Not a zip: left to the reader, which names the problem itself.
+        std::fs::write(&path, b"not a workbook").expect("write");
+        assert!(check_sheet(&path, Some(1)).is_ok());
+        assert!(check_cells(&path, 1_000_000, Some(1_000)).is_err());
     }
 }

@@ -17,9 +17,15 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
         path: path.to_path_buf(),
         source,
     })?;
-    let frame = ParquetReader::new(file)
-        .finish()
-        .map_err(|e| parse_error(&e))?;
+    let mut reader = ParquetReader::new(file);
+    let rows = reader.num_rows().map_err(|e| parse_error(&e))?;
+    let columns = reader.schema().map_err(|e| parse_error(&e))?.len();
+    crate::budget::check_cells(
+        path,
+        (rows as u64).saturating_mul(columns as u64),
+        options.memory_limit,
+    )?;
+    let frame = reader.finish().map_err(|e| parse_error(&e))?;
     if frame.height() == 0 {
         return Err(DataError::NoDataRows {
             path: path.to_path_buf(),

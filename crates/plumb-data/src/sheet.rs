@@ -10,6 +10,7 @@ use crate::table::{SourceFormat, Table};
 use crate::{DataError, LoadOptions, Result};
 
 pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
+    crate::budget::check_sheet(path, options.memory_limit)?;
     let workbook = open_workbook_auto(path).map_err(|e| parse_error(path, &e))?;
     from_workbook(path, workbook, options)
 }
