@@ -78,6 +78,10 @@ pub struct LiveFit {
     options: FitOptions,
     changes: usize,
     always_refit: bool,
+    /// Whether `a_inv` is the inverse of `a` built from more rows than terms. After a state
+    /// with too few rows (a singular Gram matrix) it is not, and the next change must rebuild
+    /// from the rows instead of updating a meaningless inverse.
+    inverse_valid: bool,
     summary: Result<LiveSummary>,
 }
 
@@ -105,6 +109,7 @@ impl LiveFit {
             included: vec![true; y.len()],
             n_included: y.len(),
             always_refit: first.condition_number > CONDITION_LIMIT,
+            inverse_valid: false,
             design,
             values,
             y,
@@ -213,7 +218,7 @@ impl LiveFit {
 
     fn update(&mut self, i: usize, sign: f64) {
         self.changes += 1;
-        if self.always_refit || self.changes.is_multiple_of(REFRESH_EVERY) {
+        if self.always_refit || !self.inverse_valid || self.changes.is_multiple_of(REFRESH_EVERY) {
             self.refit();
             return;
         }
@@ -231,6 +236,10 @@ impl LiveFit {
         self.sum_y += sign * yi;
         self.sum_yy += sign * yi * yi;
         self.summary = self.summary_from_sums();
+        if self.n_included <= self.design.n_terms() {
+            // No longer a well-posed fit: the updated inverse is not to be trusted.
+            self.inverse_valid = false;
+        }
         if self
             .summary
             .as_ref()
@@ -254,12 +263,11 @@ impl LiveFit {
             self.sum_y += yi;
             self.sum_yy += yi * yi;
         }
-        // A singular Gram matrix (too few rows) leaves the inverse at zero; the summary then
-        // carries the error from the full fit.
-        self.a_inv = a
-            .clone()
-            .try_inverse()
-            .unwrap_or_else(|| DMatrix::zeros(p, p));
+        // A singular Gram matrix (too few rows) leaves the inverse at zero and marked invalid;
+        // the summary then carries the error from the full fit, and the next change rebuilds.
+        let inverse = a.clone().try_inverse();
+        self.inverse_valid = inverse.is_some() && self.n_included > p;
+        self.a_inv = inverse.unwrap_or_else(|| DMatrix::zeros(p, p));
         self.a = a;
     }
 
