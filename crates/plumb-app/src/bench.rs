@@ -225,29 +225,6 @@ impl Bench {
             }
         }
     }
-
-    /// Waits (up to `limit`) for the diagnostics of the current state (tests, screenshots).
-    pub fn settle(&mut self, data: &Dataset, marks: &Marks, limit: std::time::Duration) {
-        let start = std::time::Instant::now();
-        while self.is_busy() && start.elapsed() < limit {
-            if let Some(job) = &mut self.job {
-                if let Some(d) = job.wait(limit.saturating_sub(start.elapsed())) {
-                    self.job = None;
-                    self.diag = Some(Arc::new(d));
-                    self.diag_generation += 1;
-                }
-            } else if self.stale {
-                if let Some(pair) = &self.pair {
-                    self.stale = false;
-                    let input =
-                        Input::of(&data.table, pair, marks, self.overlays, self.groups.clone());
-                    self.job = Some(Job::spawn(move |_| compute(&input), || {}));
-                } else {
-                    self.stale = false;
-                }
-            }
-        }
-    }
 }
 
 /// Draws the bench.

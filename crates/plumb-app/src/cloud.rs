@@ -43,35 +43,34 @@ impl Cloud {
         &self,
         x: f64,
         y: f64,
-        (rx, ry): (f64, f64),
+        radius: (f64, f64),
         skip: &std::collections::HashSet<usize>,
     ) -> Option<usize> {
-        if skip.is_empty() {
-            return self.nearest(x, y, rx, ry);
-        }
-        // Rare: a skipped entry nearest. Fall back to a scan of the neighbourhood.
-        let hit = self.nearest(x, y, rx, ry)?;
-        if !skip.contains(&hit) {
-            return Some(hit);
-        }
-        self.points
-            .iter()
-            .zip(&self.entries)
-            .filter(|(_, e)| !skip.contains(e))
-            .map(|(&(px, py), &e)| (e, ((px - x) / rx).powi(2) + ((py - y) / ry).powi(2)))
-            .filter(|&(_, d)| d <= 1.0)
-            .min_by(|a, b| a.1.total_cmp(&b.1))
-            .map(|(e, _)| e)
+        self.nearest_by(x, y, radius, |e| !skip.contains(&e))
     }
 
     /// The entry nearest `(x, y)` within half-axes `(rx, ry)`.
     pub fn nearest(&self, x: f64, y: f64, rx: f64, ry: f64) -> Option<usize> {
+        self.nearest_by(x, y, (rx, ry), |_| true)
+    }
+
+    /// The nearest entry that `accept` lets through: the grid index when there is one, else a
+    /// scan of the (few) points.
+    fn nearest_by(
+        &self,
+        x: f64,
+        y: f64,
+        (rx, ry): (f64, f64),
+        accept: impl Fn(usize) -> bool,
+    ) -> Option<usize> {
+        let ok = |k: usize| accept(self.entries[k]);
         let k = match &self.index {
-            Some(ix) => ix.nearest(&self.points, x, y, rx, ry),
+            Some(ix) => ix.nearest_where(&self.points, (x, y), (rx, ry), ok),
             None => self
                 .points
                 .iter()
                 .enumerate()
+                .filter(|&(k, _)| ok(k))
                 .map(|(k, &(px, py))| (k, ((px - x) / rx).powi(2) + ((py - y) / ry).powi(2)))
                 .filter(|&(_, d)| d <= 1.0)
                 .min_by(|a, b| a.1.total_cmp(&b.1))

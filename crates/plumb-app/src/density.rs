@@ -169,6 +169,18 @@ impl PointIndex {
         rx: f64,
         ry: f64,
     ) -> Option<usize> {
+        self.nearest_where(points, (x, y), (rx, ry), |_| true)
+    }
+
+    /// [`PointIndex::nearest`] among the entries `accept` lets through (same cells visited, so
+    /// a filter costs nothing extra).
+    pub fn nearest_where(
+        &self,
+        points: &[(f64, f64)],
+        (x, y): (f64, f64),
+        (rx, ry): (f64, f64),
+        accept: impl Fn(usize) -> bool,
+    ) -> Option<usize> {
         if !(rx > 0.0 && ry > 0.0) {
             return None;
         }
@@ -187,7 +199,7 @@ impl PointIndex {
                 for &e in &self.entries[self.starts[c] as usize..self.starts[c + 1] as usize] {
                     let (px, py) = points[e as usize];
                     let d = ((px - x) / rx).powi(2) + ((py - y) / ry).powi(2);
-                    if d <= 1.0 && best.is_none_or(|(_, b)| d < b) {
+                    if d <= 1.0 && best.is_none_or(|(_, b)| d < b) && accept(e as usize) {
                         best = Some((e as usize, d));
                     }
                 }
@@ -262,6 +274,21 @@ mod tests {
                 .min_by(|a, b| a.1.total_cmp(&b.1))
                 .map(|(i, _)| i);
             assert_eq!(index.nearest(&pts, x, y, rx, ry), scan, "query {k}");
+            if let Some(hit) = scan {
+                // With the nearest filtered out, the index finds the next one, as a scan does.
+                let next = pts
+                    .iter()
+                    .enumerate()
+                    .filter(|&(i, _)| i != hit)
+                    .map(|(i, &(px, py))| (i, ((px - x) / rx).powi(2) + ((py - y) / ry).powi(2)))
+                    .filter(|&(_, d)| d <= 1.0)
+                    .min_by(|a, b| a.1.total_cmp(&b.1))
+                    .map(|(i, _)| i);
+                assert_eq!(
+                    index.nearest_where(&pts, (x, y), (rx, ry), |e| e != hit),
+                    next
+                );
+            }
         }
     }
 
