@@ -134,7 +134,8 @@ fn model(ui: &mut egui::Ui, wb: &Workbench, pair: &PairRows, s: &LiveSummary, hy
 
 fn model_grid(ui: &mut egui::Ui, pair: &PairRows, s: &LiveSummary, level: f64) {
     egui::Grid::new("model-table").striped(true).show(ui, |ui| {
-        for h in ["term", "estimate", "SE", &format!("{level}% CI"), "p"] {
+        // p before the interval: in a narrow panel the interval is what scrolls out of view.
+        for h in ["term", "estimate", "SE", "p", &format!("{level}% CI")] {
             ui.label(RichText::new(h).strong());
         }
         ui.end_row();
@@ -142,9 +143,9 @@ fn model_grid(ui: &mut egui::Ui, pair: &PairRows, s: &LiveSummary, level: f64) {
             ui.label(t);
             ui.label(num(s.estimates[j]));
             ui.label(num(s.std_errors[j]));
+            ui.label(p(s.p_values[j]));
             ui.label(format!("{} to {}", short(s.ci[j].0), short(s.ci[j].1)))
                 .on_hover_text(format!("{} to {}", num(s.ci[j].0), num(s.ci[j].1)));
-            ui.label(p(s.p_values[j]));
             ui.end_row();
         }
     });
