@@ -6,8 +6,10 @@
 use std::path::Path;
 use std::time::Instant;
 
-use plumb_core::association::{kendall_tau_b, pearson, spearman};
-use plumb_core::regression::{fit, influence, Design, FitOptions, LiveFit};
+use plumb_core::association::{
+    correlation_matrix, kendall_tau_b, pearson, spearman, Adjustment, Method,
+};
+use plumb_core::regression::{fit, influence, line_fit, Design, FitOptions, LiveFit};
 
 fn column(dir: &Path, name: &str) -> Vec<f64> {
     let bytes =
@@ -31,6 +33,86 @@ fn median(reps: usize, mut f: impl FnMut()) -> f64 {
     t[t.len() / 2]
 }
 
+/// The memory-bandwidth floor: one pass reading both columns, `Σx + Σy` with eight
+/// independent partial sums.
+fn plain_pass(x: &[f64], y: &[f64]) -> f64 {
+    let mut acc = [0.0; 8];
+    for (a, b) in x.chunks_exact(4).zip(y.chunks_exact(4)) {
+        for l in 0..4 {
+            acc[l] += a[l];
+            acc[4 + l] += b[l];
+        }
+    }
+    std::hint::black_box(acc.iter().sum())
+}
+
+/// The 10 M-row line (`xl`, `yl`), when the script wrote it.
+fn large(dir: &Path, o: &FitOptions, out: &mut Vec<(&'static str, f64)>) {
+    if !dir.join("xl.f64").exists() {
+        return;
+    }
+    let (x, y) = (column(dir, "xl"), column(dir, "yl"));
+    out.push((
+        "plain_pass_10m",
+        median(5, || {
+            plain_pass(&x, &y);
+        }),
+    ));
+    out.push((
+        "line_10m",
+        median(5, || {
+            std::hint::black_box(line_fit(&x, &y, 0.95).expect("fits"));
+        }),
+    ));
+    out.push((
+        "ols_simple_10m",
+        median(3, || {
+            let d = Design::linear(&[("x", &x)], true);
+            std::hint::black_box(fit(&d, &y, None, o).expect("fits"));
+        }),
+    ));
+}
+
+/// The 1 M × 64 Pearson matrix (`m0…m63`) and the 100 k × 32 Spearman matrix (first 100 k
+/// rows of `m0…m31`), when the script wrote them.
+fn matrices(dir: &Path, out: &mut Vec<(&'static str, f64)>) {
+    if !dir.join("m0.f64").exists() {
+        return;
+    }
+    let cols: Vec<Vec<Option<f64>>> = (0..64)
+        .map(|j| {
+            column(dir, &format!("m{j}"))
+                .into_iter()
+                .map(Some)
+                .collect()
+        })
+        .collect();
+    let refs: Vec<&[Option<f64>]> = cols.iter().map(Vec::as_slice).collect();
+    out.push((
+        "pearson_matrix_1m_64",
+        median(3, || {
+            std::hint::black_box(correlation_matrix(
+                &refs,
+                Method::Pearson,
+                Adjustment::Holm,
+                None,
+            ));
+        }),
+    ));
+    let small: Vec<&[Option<f64>]> = cols[..32].iter().map(|c| &c[..100_000]).collect();
+    out.push((
+        "spearman_matrix_100k_32",
+        median(3, || {
+            std::hint::black_box(correlation_matrix(
+                &small,
+                Method::Spearman,
+                Adjustment::Holm,
+                None,
+            ));
+        }),
+    ));
+}
+
 fn main() {
     let dir = std::env::args().nth(1).expect("usage: timings DATA_DIR");
     let dir = Path::new(&dir);
@@ -39,6 +121,20 @@ fn main() {
     let o = FitOptions::default();
     let mut out = Vec::new();
 
+    out.push((
+        "plain_pass_1m",
+        median(5, || {
+            plain_pass(&xs[0], &y);
+        }),
+    ));
+    out.push((
+        "line_1m",
+        median(5, || {
+            std::hint::black_box(line_fit(&xs[0], &y, 0.95).expect("fits"));
+        }),
+    ));
+    large(dir, &o, &mut out);
+    matrices(dir, &mut out);
     let simple = Design::linear(&[("x0", &xs[0])], true);
     out.push((
         "ols_simple_1m",

@@ -39,8 +39,21 @@ pub fn root_sum_sq_dev(x: &[f64], w: Option<&[f64]>) -> f64 {
         return if peak == 0.0 { 0.0 } else { f64::NAN };
     }
     let scale = accurate::power_of_two_near(peak);
-    let scaled: Vec<f64> = x.iter().map(|v| v / scale).collect();
-    scale * sum_sq_dev(&scaled, w).sqrt()
+    // Dividing by a power of two is exact, so the scaled values are formed on the fly.
+    let scaled = || x.iter().map(move |v| v / scale);
+    let ss = match w {
+        None => {
+            let n = x.len() as f64;
+            let m = accurate::sum(scaled()) / n;
+            let m = m + accurate::sum(scaled().map(|v| v - m)) / n;
+            accurate::sum(scaled().map(|v| (v - m) * (v - m)))
+        }
+        Some(w) => {
+            let scaled: Vec<f64> = scaled().collect();
+            sum_sq_dev(&scaled, Some(w))
+        }
+    };
+    scale * ss.sqrt()
 }
 
 /// Weighted sum of squares about zero `Σ wᵢ xᵢ²`.

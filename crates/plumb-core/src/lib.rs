@@ -16,6 +16,7 @@ pub mod cues;
 pub mod describe;
 pub mod distributions;
 mod error;
+pub mod moments;
 pub mod regression;
 
 pub use error::{CoreError, Result};

@@ -20,7 +20,7 @@ pub use distance::{
 pub use kendall::kendall_tau_b;
 pub use matrix::{correlation_matrix, CorrelationMatrix, Method};
 pub use order::similarity_order;
-pub use pearson::pearson;
+pub use pearson::{pearson, pearson_from_moments};
 pub use rank::average_ranks;
 pub use spearman::spearman;
 pub use trend::{trend_guard, TrendGuard};

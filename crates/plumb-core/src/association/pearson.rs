@@ -1,7 +1,8 @@
 //! Pearson's product-moment correlation.
 
-use super::{check_pairs, Association, Pairwise};
-use crate::{accurate, describe, distributions};
+use super::{check_pairs, Association, Pairwise, Undefined};
+use crate::distributions;
+use crate::moments::CoMoments;
 
 /// Pearson's `r = Σ(xᵢ − x̄)(yᵢ − ȳ) / √(Σ(xᵢ − x̄)² · Σ(yᵢ − ȳ)²)`.
 ///
@@ -12,13 +13,26 @@ use crate::{accurate, describe, distributions};
 /// Undefined for fewer than 3 pairs or a constant variable.
 pub fn pearson(x: &[f64], y: &[f64], level: f64) -> Pairwise {
     check_pairs(x, y, 3)?;
-    let n = x.len();
-    let (mx, my) = (describe::mean(x, None), describe::mean(y, None));
-    let dx: Vec<f64> = x.iter().map(|v| v - mx).collect();
-    let dy: Vec<f64> = y.iter().map(|v| v - my).collect();
-    let sxy = accurate::dot(&dx, &dy);
-    let (sxx, syy) = (accurate::dot(&dx, &dx), accurate::dot(&dy, &dy));
-    let r = (sxy / (sxx.sqrt() * syy.sqrt())).clamp(-1.0, 1.0);
+    pearson_from_moments(&CoMoments::of(&[x, y]), 0, 1, level)
+}
+
+/// Pearson's r of variables `i` and `j` from their co-moments (see [`CoMoments`]), with the
+/// same p-value and interval as [`pearson`]: `r = Cᵢⱼ/√(CᵢᵢCⱼⱼ)` over the moments' `n` rows.
+///
+/// # Errors
+/// [`Undefined::TooFewPairs`] below 3 rows, [`Undefined::Constant`] when either variable does
+/// not vary.
+pub fn pearson_from_moments(m: &CoMoments, i: usize, j: usize, level: f64) -> Pairwise {
+    let n = m.n() as usize;
+    if n < 3 {
+        return Err(Undefined::TooFewPairs { n, needed: 3 });
+    }
+    for (which, v) in [i, j].into_iter().enumerate() {
+        if m.comoment(v, v) <= 0.0 {
+            return Err(Undefined::Constant { which });
+        }
+    }
+    let r = m.correlation(i, j).unwrap_or(0.0);
     let df = (n - 2) as f64;
     let p_value = p_from_r(r, df);
     let ci = (n >= 4).then(|| fisher_interval(r, n, level));

@@ -10,6 +10,7 @@ mod compare;
 mod design;
 mod inference;
 mod influence;
+mod line;
 mod live;
 mod solve;
 mod standardized;
@@ -21,6 +22,9 @@ pub use inference::{Anova, Coefficient, LinearFit, RSquaredKind};
 pub use influence::{
     influence, normal_scores, CaseInfluence, InfluenceFlag, COOKS_FLAG_NUMERATOR,
     LEVERAGE_FLAG_FACTOR, STUDENTIZED_FLAG,
+};
+pub use line::{
+    line_fit, line_from_moments, residual_sum_of_squares, LineSummary, RESIDUAL_PASS_BELOW,
 };
 pub use live::{LiveFit, LiveSummary, CONDITION_LIMIT, PIVOT_FLOOR, REFRESH_EVERY, TIGHT_FIT};
 pub use standardized::StandardizedView;
