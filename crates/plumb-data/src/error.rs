@@ -143,5 +143,37 @@ pub enum DataError {
     },
 }
 
+impl DataError {
+    /// The same error for text that sat `before` line breaks into the file, parsed with a
+    /// copy of the header line in front (`header`) or without: line numbers become the file's.
+    pub(crate) fn shifted(mut self, before: usize, header: bool) -> Self {
+        let shift = |line: &mut usize| {
+            *line = if header {
+                before + *line - 1
+            } else {
+                before + *line
+            };
+        };
+        match &mut self {
+            Self::Ragged { line, .. }
+            | Self::UnclosedQuote { line, .. }
+            | Self::NotUtf8 { line, .. } => {
+                shift(line);
+            }
+            _ => {}
+        }
+        self
+    }
+
+    /// The same error for a piece of the file that starts after `rows` data rows.
+    pub(crate) fn with_row_offset(mut self, rows: usize) -> Self {
+        match &mut self {
+            Self::Ragged { row, .. } | Self::TextColumn { row, .. } if *row > 0 => *row += rows,
+            _ => {}
+        }
+        self
+    }
+}
+
 /// Result alias for this crate.
 pub type Result<T> = std::result::Result<T, DataError>;

@@ -18,6 +18,7 @@ mod progress;
 mod select;
 mod sheet;
 mod sniff;
+mod stream;
 mod table;
 
 pub use budget::{available_memory, TEXT_EXPANSION};
@@ -26,6 +27,7 @@ pub use error::{DataError, Result};
 pub use progress::{Progress, Stage};
 pub use select::{DropReason, Dropped, Selection};
 pub use sniff::HeaderMode;
+pub use stream::{stream_columns, Piece, StreamOptions, StreamSummary, LISTED_DROPS};
 pub use table::{Column, ColumnSummary, ColumnValues, SourceFormat, Table};
 
 use std::path::Path;

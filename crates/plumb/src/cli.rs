@@ -109,6 +109,9 @@ pub enum Command {
     Corr(CorrArgs),
     /// List the columns of a data file with their type, missing count and range.
     Columns(ColumnsArgs),
+    /// One pass over a delimited file of any size (never loaded whole): the least-squares line
+    /// of one column on another, and their Pearson r, in bounded memory.
+    Stream(StreamArgs),
 }
 
 /// Coefficient for `plumb corr`.
@@ -375,6 +378,29 @@ pub struct ColumnsArgs {
     /// How to read the file.
     #[command(flatten)]
     pub load: LoadArgs,
+}
+
+/// `plumb stream`.
+#[derive(Debug, ClapArgs)]
+pub struct StreamArgs {
+    /// How to read the file (a delimited text file).
+    #[command(flatten)]
+    pub load: LoadArgs,
+    /// Response column.
+    #[arg(long, value_name = "COLUMN")]
+    pub y: String,
+    /// Predictor column.
+    #[arg(long, value_name = "COLUMN")]
+    pub x: String,
+    /// Confidence level of the coefficient intervals.
+    #[arg(long, default_value_t = 0.95, value_parser = parse_level)]
+    pub level: f64,
+    /// Megabytes of text read at a time (memory use is a few times this per core).
+    #[arg(long, value_name = "MB", default_value_t = 8, value_parser = clap::value_parser!(u64).range(1..=1024))]
+    pub chunk_mb: u64,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    pub format: Format,
 }
 
 /// Row numbers given on the command line.

@@ -61,7 +61,7 @@ struct AnovaJson {
 }
 
 #[derive(Serialize)]
-struct CoefficientJson<'a> {
+pub(crate) struct CoefficientJson<'a> {
     term: &'a str,
     estimate: f64,
     std_error: f64,

@@ -10,6 +10,7 @@ mod fit_json;
 mod fit_text;
 mod influence_cmd;
 mod report_cmd;
+mod stream_cmd;
 
 use std::process::ExitCode;
 
@@ -23,6 +24,7 @@ fn main() -> ExitCode {
         Some(cli::Command::Report(a)) => report_cmd::run(&a),
         Some(cli::Command::Corr(a)) => corr_cmd::run(&a),
         Some(cli::Command::Columns(a)) => columns_cmd::run(&a),
+        Some(cli::Command::Stream(a)) => stream_cmd::run(&a),
         None => workbench(args.workbench),
     };
     match result {

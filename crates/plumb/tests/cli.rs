@@ -708,3 +708,82 @@ mod summary {
         );
     }
 }
+
+/// `plumb stream` reads a file in pieces and must report the same line as `plumb fit`, which
+/// loads it whole (reference: the in-memory QR solver, itself checked against NIST StRD).
+#[test]
+fn stream_reports_the_same_line_as_fit_on_a_file_read_in_many_pieces() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let mut text = String::from("when,dose,response\n");
+    for i in 0..120_000u32 {
+        let x = f64::from(i % 1000) / 7.0;
+        let noise = f64::from((i * 7919) % 613) / 61.3 - 5.0;
+        let y = if i % 5003 == 17 {
+            String::from("NA")
+        } else {
+            format!("{:.6}", 2.5 + 0.75 * x + noise)
+        };
+        text.push_str(&format!("{i},{x:.6},{y}\n"));
+    }
+    let path = write(dir.path(), "big.csv", &text);
+    assert!(text.len() > 3 << 20, "several 1 MB pieces");
+    let data = path.to_str().expect("utf-8 path");
+    let common = ["--y", "response", "--x", "dose", "--format", "json"];
+    let streamed = plumb(&[&["stream", data, "--chunk-mb", "1"][..], &common[..]].concat());
+    assert!(streamed.status.success(), "{}", stderr(&streamed));
+    let loaded = plumb(&[&["fit", data][..], &common[..]].concat());
+    assert!(loaded.status.success(), "{}", stderr(&loaded));
+    let (s, f) = (json(&streamed), json(&loaded));
+    assert_eq!(s["n"], f["n"]);
+    assert_eq!(s["n_dropped"], f["n_dropped"]);
+    assert_eq!(s["first_dropped_rows"][0], 18);
+    for key in [
+        "r_squared",
+        "adj_r_squared",
+        "residual_std_error",
+        "f_statistic",
+    ] {
+        let (a, b) = (s[key].as_f64().expect(key), f[key].as_f64().expect(key));
+        assert!(lre(a, b) >= 11.0, "{key}: stream {a} vs fit {b}");
+    }
+    for j in 0..2 {
+        for key in ["estimate", "std_error", "ci_low", "ci_high"] {
+            let a = s["coefficients"][j][key].as_f64().expect(key);
+            let b = f["coefficients"][j][key].as_f64().expect(key);
+            assert!(
+                lre(a, b) >= 11.0,
+                "coefficient {j} {key}: stream {a} vs fit {b}"
+            );
+        }
+    }
+}
+
+#[test]
+fn stream_names_the_file_and_row_of_a_word_in_a_number_column() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let mut text = String::from("x,y\n");
+    for i in 0..200_000u32 {
+        if i == 150_000 {
+            text.push_str("4,below-limit\n");
+        } else {
+            text.push_str(&format!("{i},{}\n", i % 17));
+        }
+    }
+    let path = write(dir.path(), "words.csv", &text);
+    let out = plumb(&[
+        "stream",
+        path.to_str().expect("utf-8"),
+        "--y",
+        "y",
+        "--x",
+        "x",
+        "--chunk-mb",
+        "1",
+    ]);
+    assert!(!out.status.success());
+    let msg = stderr(&out);
+    assert!(
+        msg.contains("words.csv") && msg.contains("row 150001") && msg.contains("below-limit"),
+        "{msg}"
+    );
+}

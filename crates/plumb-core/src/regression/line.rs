@@ -167,7 +167,7 @@ pub fn line_from_moments(m: &CoMoments, level: f64, rss: Option<f64>) -> Result<
     Ok(LineSummary {
         n,
         level,
-        intercept: coefficient("(intercept)", a, intercept_se, None),
+        intercept: coefficient("intercept", a, intercept_se, None),
         slope: coefficient("x", b, slope_se, Some(standardized)),
         r_squared,
         adj_r_squared: 1.0 - (1.0 - r_squared) * (nf - 1.0) / df,

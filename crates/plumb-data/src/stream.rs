@@ -1,0 +1,459 @@
+//! Delimited files too large to hold: read in pieces of whole records, typed by the same
+//! rules as [`crate::load`], and handed to the caller piece by piece.
+//!
+//! The file is read in chunks of about [`StreamOptions::chunk_bytes`], cut at the last line
+//! break outside quotes. The first chunk settles the delimiter, decimal mark and header; every
+//! later chunk is parsed (polars' CSV reader, then our cell typing) with those settings and the
+//! header line put in front, a few chunks at a time on rayon's threads. Memory stays at a few
+//! chunks whatever the file's size. Messages name the file's own line and data row.
+
+use std::fs::File;
+use std::io::Read;
+use std::path::Path;
+
+use rayon::prelude::*;
+
+use crate::select::{DropReason, Dropped};
+use crate::sniff::HeaderMode;
+use crate::table::{ColumnValues, SourceFormat, Table};
+use crate::{delimited, DataError, LoadOptions, Result};
+
+/// How many dropped rows a [`StreamSummary`] lists one by one (all are counted).
+pub const LISTED_DROPS: usize = 20;
+
+/// How to read a large file.
+#[derive(Debug, Clone, PartialEq)]
+pub struct StreamOptions {
+    /// Delimiter, decimal mark, header and missing tokens, as for [`crate::load`].
+    pub load: LoadOptions,
+    /// Bytes per chunk (default 8 MiB; at least 64 KiB is used).
+    pub chunk_bytes: usize,
+}
+
+impl Default for StreamOptions {
+    fn default() -> Self {
+        Self {
+            load: LoadOptions::default(),
+            chunk_bytes: 8 << 20,
+        }
+    }
+}
+
+/// What a pass over the file saw.
+#[derive(Debug, Clone, PartialEq)]
+pub struct StreamSummary {
+    /// Data rows in the file.
+    pub rows: usize,
+    /// Rows where every requested column holds a finite number.
+    pub used: usize,
+    /// Rows left out, counted.
+    pub dropped_count: usize,
+    /// The first [`LISTED_DROPS`] of them.
+    pub dropped: Vec<Dropped>,
+    /// Bytes read.
+    pub bytes: u64,
+    /// Delimiter, decimal mark and header, as settled by the first chunk.
+    pub format: SourceFormat,
+}
+
+/// The complete rows of one chunk: values of each requested column, in request order, and
+/// the 1-based data row of the chunk's first row.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Piece {
+    /// Values per requested column (complete rows only).
+    pub columns: Vec<Vec<f64>>,
+    /// 1-based data rows of those values.
+    pub rows: Vec<usize>,
+}
+
+/// Reads `path` once, handing `visit` the complete rows of the columns `names`, chunk by
+/// chunk in file order. Nothing is written.
+///
+/// # Errors
+/// What [`crate::load`] reports for the same file (with the file's own line and row
+/// numbers), and [`DataError::UnknownColumn`] for a name the header does not have.
+pub fn stream_columns(
+    path: &Path,
+    names: &[&str],
+    options: &StreamOptions,
+    mut visit: impl FnMut(&Piece),
+) -> Result<StreamSummary> {
+    let io = |source| DataError::Io {
+        path: path.to_path_buf(),
+        source,
+    };
+    let mut file = File::open(path).map_err(io)?;
+    let chunk = options.chunk_bytes.max(64 << 10);
+    let batch = 2 * rayon::current_num_threads().max(1);
+    let mut reader = Chunks::new(&mut file, chunk);
+    let first = reader.next_chunk().map_err(io)?.unwrap_or_default();
+    // The first chunk settles the format (and the header, when there is one).
+    let head = delimited::from_bytes(path, &first.text, &options.load, None)?;
+    let format = head.format().clone();
+    let SourceFormat::Delimited {
+        delimiter,
+        decimal,
+        header,
+    } = format
+    else {
+        unreachable!("delimited text");
+    };
+    for name in names {
+        head.numeric(name)?;
+    }
+    let fixed = LoadOptions {
+        delimiter: Some(delimiter),
+        decimal: Some(decimal),
+        header: if header {
+            HeaderMode::Yes
+        } else {
+            HeaderMode::No
+        },
+        ..options.load.clone()
+    };
+    let header_line = header.then(|| first_record(&first.text));
+    let mut summary = StreamSummary {
+        rows: 0,
+        used: 0,
+        dropped_count: 0,
+        dropped: Vec::new(),
+        bytes: first.text.len() as u64,
+        format: format.clone(),
+    };
+    let mut take = |table: &Table, offset: Offset, summary: &mut StreamSummary| -> Result<()> {
+        let piece = complete_piece(table, names, offset.rows, summary)?;
+        summary.rows += table.n_rows();
+        summary.used += piece.rows.len();
+        visit(&piece);
+        Ok(())
+    };
+    take(&head, Offset::default(), &mut summary)?;
+    let mut offset = Offset {
+        rows: head.n_rows(),
+        lines: first.lines,
+    };
+    drop(head);
+    loop {
+        let mut pending = Vec::with_capacity(batch);
+        while pending.len() < batch {
+            match reader.next_chunk().map_err(io)? {
+                Some(c) => pending.push(c),
+                None => break,
+            }
+        }
+        if pending.is_empty() {
+            break;
+        }
+        // Offsets of each chunk: lines are known before parsing, rows only after.
+        let mut line_offsets = Vec::with_capacity(pending.len());
+        let mut lines = offset.lines;
+        for c in &pending {
+            line_offsets.push(lines);
+            lines += c.lines;
+        }
+        let tables: Vec<Result<Table>> = pending
+            .par_iter()
+            .zip(&line_offsets)
+            .map(|(c, &at_line)| {
+                let mut text = header_line.clone().unwrap_or_default();
+                text.extend_from_slice(&c.text);
+                delimited::from_bytes(path, &text, &fixed, None)
+                    .map_err(|e| e.shifted(at_line, header_line.is_some()))
+            })
+            .collect();
+        for (table, c) in tables.into_iter().zip(&pending) {
+            let table = match table {
+                Ok(t) => t,
+                // A chunk of blank lines only.
+                Err(DataError::NoDataRows { .. } | DataError::Empty { .. }) => {
+                    offset.lines += c.lines;
+                    summary.bytes += c.text.len() as u64;
+                    continue;
+                }
+                Err(e) => return Err(e.with_row_offset(offset.rows)),
+            };
+            take(&table, offset, &mut summary)?;
+            offset.rows += table.n_rows();
+            offset.lines += c.lines;
+            summary.bytes += c.text.len() as u64;
+        }
+    }
+    Ok(summary)
+}
+
+/// Where a chunk starts: data rows and lines before it.
+#[derive(Debug, Clone, Copy, Default)]
+struct Offset {
+    rows: usize,
+    lines: usize,
+}
+
+/// The complete rows of `names` in one chunk's table, counting the others.
+fn complete_piece(
+    table: &Table,
+    names: &[&str],
+    row_offset: usize,
+    summary: &mut StreamSummary,
+) -> Result<Piece> {
+    let n = table.n_rows();
+    let mut columns: Vec<&[Option<f64>]> = Vec::with_capacity(names.len());
+    let all_missing = vec![None; n];
+    for name in names {
+        match table.column(name).map(|c| &c.values) {
+            Some(ColumnValues::Numeric(v)) if v.iter().all(Option::is_none) => {
+                columns.push(&all_missing);
+            }
+            Some(ColumnValues::Numeric(v)) => columns.push(v),
+            _ => {
+                return Err(table
+                    .numeric(name)
+                    .expect_err("not numeric")
+                    .with_row_offset(row_offset))
+            }
+        }
+    }
+    let mut piece = Piece {
+        columns: vec![Vec::with_capacity(n); names.len()],
+        rows: Vec::with_capacity(n),
+    };
+    for i in 0..n {
+        let fault = names
+            .iter()
+            .zip(&columns)
+            .find_map(|(name, col)| match col[i] {
+                None => Some((name, DropReason::Missing)),
+                Some(v) if !v.is_finite() => Some((name, DropReason::NonFinite)),
+                Some(_) => None,
+            });
+        match fault {
+            Some((name, reason)) => {
+                summary.dropped_count += 1;
+                if summary.dropped.len() < LISTED_DROPS {
+                    summary.dropped.push(Dropped {
+                        row: row_offset + i + 1,
+                        column: (*name).to_string(),
+                        reason,
+                    });
+                }
+            }
+            None => {
+                for (out, col) in piece.columns.iter_mut().zip(&columns) {
+                    out.push(col[i].unwrap_or(f64::NAN));
+                }
+                piece.rows.push(row_offset + i + 1);
+            }
+        }
+    }
+    Ok(piece)
+}
+
+/// The first record of the text (the header line), with its line break.
+fn first_record(text: &[u8]) -> Vec<u8> {
+    let start = text
+        .iter()
+        .position(|&b| b != b'\n' && b != b'\r')
+        .unwrap_or(0);
+    let end = record_end(&text[start..]).map_or(text.len(), |e| start + e);
+    let mut line = text[start..end].to_vec();
+    if line.last() != Some(&b'\n') {
+        line.push(b'\n');
+    }
+    line
+}
+
+/// One piece of whole records and the number of line breaks in it.
+#[derive(Debug, Default)]
+struct Chunk {
+    text: Vec<u8>,
+    lines: usize,
+}
+
+/// Reads whole records, about `size` bytes at a time.
+struct Chunks<'a> {
+    file: &'a mut File,
+    size: usize,
+    carry: Vec<u8>,
+    done: bool,
+}
+
+impl<'a> Chunks<'a> {
+    fn new(file: &'a mut File, size: usize) -> Self {
+        Self {
+            file,
+            size,
+            carry: Vec::new(),
+            done: false,
+        }
+    }
+
+    fn next_chunk(&mut self) -> std::io::Result<Option<Chunk>> {
+        let mut text = std::mem::take(&mut self.carry);
+        loop {
+            if self.done {
+                if text.is_empty() {
+                    return Ok(None);
+                }
+                let lines = count_lines(&text);
+                return Ok(Some(Chunk { text, lines }));
+            }
+            let have = text.len();
+            text.resize(have + self.size, 0);
+            let got = read_full(self.file, &mut text[have..])?;
+            text.truncate(have + got);
+            if got == 0 {
+                self.done = true;
+                continue;
+            }
+            // Cut after the last line break outside quotes; a record longer than the chunk
+            // makes the chunk grow.
+            if let Some(cut) = last_record_end(&text) {
+                self.carry = text.split_off(cut);
+                let lines = count_lines(&text);
+                return Ok(Some(Chunk { text, lines }));
+            }
+        }
+    }
+}
+
+fn read_full(file: &mut File, buf: &mut [u8]) -> std::io::Result<usize> {
+    let mut filled = 0;
+    while filled < buf.len() {
+        match file.read(&mut buf[filled..])? {
+            0 => break,
+            k => filled += k,
+        }
+    }
+    Ok(filled)
+}
+
+fn count_lines(text: &[u8]) -> usize {
+    text.iter().filter(|&&b| b == b'\n').count()
+}
+
+/// Position just after the last `\n` outside double quotes (the text starts outside quotes).
+fn last_record_end(text: &[u8]) -> Option<usize> {
+    let mut quoted = false;
+    let mut last = None;
+    for (i, &b) in text.iter().enumerate() {
+        match b {
+            b'"' => quoted = !quoted,
+            b'\n' if !quoted => last = Some(i + 1),
+            _ => {}
+        }
+    }
+    last
+}
+
+/// Position just after the first `\n` outside double quotes.
+fn record_end(text: &[u8]) -> Option<usize> {
+    let mut quoted = false;
+    for (i, &b) in text.iter().enumerate() {
+        match b {
+            b'"' => quoted = !quoted,
+            b'\n' if !quoted => return Some(i + 1),
+            _ => {}
+        }
+    }
+    None
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::io::Write;
+
+    fn file_with(text: &str) -> tempfile::NamedTempFile {
+        let mut f = tempfile::Builder::new()
+            .suffix(".csv")
+            .tempfile()
+            .expect("temp file");
+        f.write_all(text.as_bytes()).expect("write");
+        f
+    }
+
+    fn small_chunks() -> StreamOptions {
+        StreamOptions {
+            chunk_bytes: 0, // raised to the 64 KiB floor
+            ..StreamOptions::default()
+        }
+    }
+
+    #[test]
+    fn streaming_sees_the_same_complete_rows_as_loading() {
+        let mut text = String::from("id,x,y,note\n");
+        for i in 0..20_000 {
+            let y = if i % 997 == 0 {
+                String::new()
+            } else {
+                format!("{}", f64::from(i) * 0.5 + 1.0)
+            };
+            text.push_str(&format!(
+                "{i},{},{y},\"a, \"\"quoted\"\"\nnote\"\n",
+                f64::from(i) / 3.0
+            ));
+        }
+        let f = file_with(&text);
+        let mut rows = Vec::new();
+        let mut xs = Vec::new();
+        let summary = stream_columns(f.path(), &["x", "y"], &small_chunks(), |p| {
+            rows.extend_from_slice(&p.rows);
+            xs.extend_from_slice(&p.columns[0]);
+        })
+        .expect("streams");
+        let table = crate::load(f.path(), &LoadOptions::default()).expect("loads");
+        let whole = table.complete_rows(&["x", "y"], &[]).expect("complete");
+        assert_eq!(rows, whole.rows);
+        assert_eq!(xs, whole.columns[0]);
+        assert_eq!(summary.rows, 20_000);
+        assert_eq!(summary.dropped_count, whole.dropped.len());
+        assert_eq!(
+            summary.dropped[..],
+            whole.dropped[..LISTED_DROPS.min(whole.dropped.len())]
+        );
+        assert!(summary.bytes as usize == text.len());
+    }
+
+    #[test]
+    fn a_word_far_down_is_reported_at_its_own_row_and_line() {
+        let mut text = String::from("x,y\n");
+        for i in 0..30_000 {
+            if i == 25_000 {
+                text.push_str("12,n.d.\n");
+            } else {
+                text.push_str(&format!("{i},{}\n", 2 * i));
+            }
+        }
+        let f = file_with(&text);
+        let err = stream_columns(f.path(), &["x", "y"], &small_chunks(), |_| {})
+            .expect_err("a word in y");
+        let loaded = crate::load(f.path(), &LoadOptions::default())
+            .and_then(|t| t.complete_rows(&["x", "y"], &[]).map(|_| ()))
+            .expect_err("a word in y");
+        assert_eq!(err.to_string(), loaded.to_string());
+        assert!(err.to_string().contains("row 25001"), "{err}");
+    }
+
+    #[test]
+    fn a_ragged_line_far_down_names_the_files_line() {
+        let mut text = String::from("x,y\n");
+        for i in 0..30_000 {
+            if i == 20_000 {
+                text.push_str("1,2,3\n");
+            } else {
+                text.push_str(&format!("{i},{}\n", 2 * i));
+            }
+        }
+        let f = file_with(&text);
+        let err =
+            stream_columns(f.path(), &["x", "y"], &small_chunks(), |_| {}).expect_err("ragged");
+        let loaded = crate::load(f.path(), &LoadOptions::default()).expect_err("ragged");
+        assert_eq!(err.to_string(), loaded.to_string());
+    }
+
+    #[test]
+    fn an_unknown_column_is_named() {
+        let f = file_with("x,y\n1,2\n3,4\n");
+        let err = stream_columns(f.path(), &["x", "z"], &small_chunks(), |_| {}).expect_err("no z");
+        assert!(err.to_string().contains("'z'"), "{err}");
+    }
+}
