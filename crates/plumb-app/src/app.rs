@@ -24,6 +24,8 @@ pub enum Screen {
     Overview,
     /// One pair: scatter, residuals, leverage, quantiles, numbers and the exclusion ledger.
     Bench,
+    /// A file too large to load, read in passes: the line and a density image.
+    Sweep,
 }
 
 /// A loaded file with its fingerprint.
@@ -74,6 +76,13 @@ pub struct Status {
 pub enum Ask {
     /// A previous run left unsaved work.
     Recover(Box<Session>),
+    /// A data file would not fit in memory; it can be read in one pass instead.
+    TooLarge {
+        /// The file.
+        path: PathBuf,
+        /// The loader's message, with the sizes.
+        message: String,
+    },
     /// A session names a data file outside its own folder.
     OutsidePath {
         /// The session file.
@@ -105,6 +114,10 @@ pub struct Workbench {
     pub(crate) ctx: Option<egui::Context>,
     /// The load in progress restores a recovery copy (its work stays marked unsaved).
     pub(crate) restoring: bool,
+    /// The one-pass view of a file too large to load.
+    pub(crate) sweep: Option<crate::sweep::Sweep>,
+    /// Most memory a load may take (`None`: what the system reports available).
+    pub(crate) memory_limit: Option<u64>,
 }
 
 impl Default for Workbench {
@@ -141,6 +154,8 @@ impl Workbench {
             dialog: None,
             ctx: None,
             restoring: false,
+            sweep: None,
+            memory_limit: None,
         }
     }
 
@@ -200,7 +215,13 @@ impl Workbench {
 
     /// Whether background work (loading, diagnostics, the map) is still running.
     pub fn is_busy(&self) -> bool {
-        self.loading.is_some() || self.bench.is_busy() || self.overview.is_busy()
+        self.loading.is_some()
+            || self.bench.is_busy()
+            || self.overview.is_busy()
+            || self
+                .sweep
+                .as_ref()
+                .is_some_and(crate::sweep::Sweep::is_busy)
     }
 
     pub(crate) fn say(&mut self, text: impl Into<String>) {
@@ -278,6 +299,12 @@ impl Workbench {
             Screen::Columns => crate::columns::show(self, ui),
             Screen::Overview => crate::overview::show(self, ui),
             Screen::Bench => crate::bench::show(self, ui),
+            Screen::Sweep => match &mut self.sweep {
+                Some(s) => crate::sweep::show(s, ui, self.ctx.clone()),
+                None => {
+                    ui.label("No file is open in the one-pass view.");
+                }
+            },
         });
         crate::ledger::reason_prompt(self, &ctx);
         crate::chrome::questions(self, &ctx);
@@ -321,6 +348,9 @@ impl Workbench {
 
     fn poll(&mut self, ctx: &egui::Context) {
         self.poll_background();
+        if let Some(line) = self.sweep.as_mut().and_then(crate::sweep::Sweep::poll) {
+            self.say(line);
+        }
         let marks = self.history.current().clone();
         if let Some(loaded) = &self.loaded {
             self.bench.poll(&loaded.dataset, &marks, ctx);
@@ -450,6 +480,43 @@ impl Workbench {
         if t != self.title {
             ctx.send_viewport_cmd(egui::ViewportCommand::Title(t.clone()));
             self.title = t;
+        }
+    }
+
+    /// Opens `path` in the one-pass view (read in pieces, never held) for the pair (y, x), or
+    /// the first two numeric columns, and starts reading it.
+    pub fn open_one_pass(&mut self, path: &Path, pair: Option<(String, String)>) {
+        match crate::sweep::Sweep::open(path, pair) {
+            Ok(mut s) => {
+                s.start(self.ctx.clone());
+                self.say(format!(
+                    "reading {} in one pass ({} on {})",
+                    path.display(),
+                    s.y,
+                    s.x
+                ));
+                self.sweep = Some(s);
+                self.screen = Screen::Sweep;
+            }
+            Err(e) => self.fail(e),
+        }
+    }
+
+    /// Caps the memory a load may take (bytes); a data file that would need more is offered
+    /// the one-pass view instead. `None`: what the system reports available.
+    pub fn set_memory_limit(&mut self, limit: Option<u64>) {
+        self.memory_limit = limit;
+    }
+
+    /// The one-pass view, if a file is open in it.
+    pub fn sweep(&self) -> Option<&crate::sweep::Sweep> {
+        self.sweep.as_ref()
+    }
+
+    /// Waits for the one-pass view's reading to finish (tests and programs without a window).
+    pub fn settle_sweep(&mut self, limit: std::time::Duration) {
+        if let Some(line) = self.sweep.as_mut().and_then(|s| s.settle(limit)) {
+            self.say(line);
         }
     }
 

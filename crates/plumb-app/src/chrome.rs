@@ -54,8 +54,12 @@ pub fn top_bar(wb: &mut Workbench, ui: &mut egui::Ui) {
                 (Screen::Columns, "Columns", "The file's columns: type, missing cells, range"),
                 (Screen::Overview, "Co-movement map", "How every pair of numeric columns moves together, with adjusted p-values"),
                 (Screen::Bench, "Pair bench", "One pair: the fit, its residuals and leverage, live numbers and the exclusion ledger"),
+                (Screen::Sweep, "One-pass view", "A file too large to load: the line and a density image from passes over the file"),
             ] {
-                let enabled = screen == Screen::Columns || has_data;
+                if screen == Screen::Sweep && wb.sweep.is_none() {
+                    continue;
+                }
+                let enabled = screen == Screen::Columns || screen == Screen::Sweep || has_data;
                 if ui
                     .add_enabled(enabled, egui::Button::selectable(wb.screen == screen, name))
                     .on_hover_text(tip)
@@ -160,6 +164,26 @@ pub fn questions(wb: &mut Workbench, ctx: &egui::Context) {
                     }
                 });
             }
+            Ask::TooLarge { path, message } => {
+                ui.heading("Too large to load");
+                ui.label(message);
+                ui.label(format!(
+                    "{} can still be read in one pass, in pieces, without holding it: the least-squares line of one column on another, Pearson r and a density image of the points. Rows cannot be excluded in that view.",
+                    path.display()
+                ));
+                ui.horizontal(|ui| {
+                    if ui
+                        .button("Read it in one pass")
+                        .on_hover_text("Open the one-pass view (two passes over the file, bounded memory)")
+                        .clicked()
+                    {
+                        answer = Some(true);
+                    }
+                    if ui.button("Cancel").on_hover_text("Do not open the file").clicked() {
+                        answer = Some(false);
+                    }
+                });
+            }
             Ask::OutsidePath { session, data } => {
                 ui.heading("The session points outside its folder");
                 ui.label(format!(
@@ -197,6 +221,8 @@ pub fn questions(wb: &mut Workbench, ctx: &egui::Context) {
         }
         (Ask::OutsidePath { session, .. }, true) => crate::files::open_session(wb, &session, true),
         (Ask::OutsidePath { .. }, false) => wb.say("session not opened"),
+        (Ask::TooLarge { path, .. }, true) => wb.open_one_pass(&path, None),
+        (Ask::TooLarge { .. }, false) => wb.say("file not opened"),
     }
 }
 

@@ -31,15 +31,18 @@ impl Bounds {
             c.y_min = c.y_min.min(y);
             c.y_max = c.y_max.max(y);
         }
-        b.map(|mut c| {
-            if c.x_max <= c.x_min {
-                c.x_max = c.x_min + 1.0;
-            }
-            if c.y_max <= c.y_min {
-                c.y_max = c.y_min + 1.0;
-            }
-            c
-        })
+        b.map(Self::widened)
+    }
+
+    /// The same rectangle with a zero-width side widened to 1, so that cells have a size.
+    pub fn widened(mut self) -> Self {
+        if self.x_max <= self.x_min {
+            self.x_max = self.x_min + 1.0;
+        }
+        if self.y_max <= self.y_min {
+            self.y_max = self.y_min + 1.0;
+        }
+        self
     }
 
     fn width(&self) -> f64 {
@@ -98,20 +101,32 @@ pub fn bin(
     width: usize,
     height: usize,
 ) -> Density {
-    let mut d = Density {
-        width,
-        height,
-        counts: vec![0u32; width * height],
-        max: 0,
-        bounds,
-    };
-    for (x, y) in points {
-        if let Some(c) = d.cell(x, y) {
-            d.counts[c] += 1;
+    let mut d = Density::empty(bounds, width, height);
+    d.add(points);
+    d
+}
+
+impl Density {
+    /// No points yet.
+    pub fn empty(bounds: Bounds, width: usize, height: usize) -> Self {
+        Self {
+            width,
+            height,
+            counts: vec![0u32; width * height],
+            max: 0,
+            bounds,
         }
     }
-    d.max = d.counts.iter().copied().max().unwrap_or(0);
-    d
+
+    /// Bins more points (piece by piece, for data read in parts).
+    pub fn add(&mut self, points: impl Iterator<Item = (f64, f64)>) {
+        for (x, y) in points {
+            if let Some(c) = self.cell(x, y) {
+                self.counts[c] += 1;
+            }
+        }
+        self.max = self.counts.iter().copied().max().unwrap_or(0);
+    }
 }
 
 /// Cells per side of the hover index.

@@ -35,13 +35,28 @@ const DATA_EXTENSIONS: [&str; 10] = [
 pub fn open_path(wb: &mut Workbench, path: &Path) {
     if path.extension().is_some_and(|e| e == "plumb") {
         open_session(wb, path, false);
+    } else if let Err(e @ plumb_data::DataError::TooLarge { .. }) =
+        plumb_data::fits_in_memory(path, &load_options(wb))
+    {
+        if plumb_data::is_delimited_text(path) {
+            wb.ask = Some(Ask::TooLarge {
+                path: path.to_path_buf(),
+                message: e.to_string(),
+            });
+        } else {
+            wb.fail(e.to_string());
+        }
     } else {
-        start_load(
-            wb,
-            path,
-            plumb_data::LoadOptions::default(),
-            AfterLoad::default(),
-        );
+        let options = load_options(wb);
+        start_load(wb, path, options, AfterLoad::default());
+    }
+}
+
+/// Default reading options under the workbench's memory cap.
+fn load_options(wb: &Workbench) -> plumb_data::LoadOptions {
+    plumb_data::LoadOptions {
+        memory_limit: wb.memory_limit,
+        ..plumb_data::LoadOptions::default()
     }
 }
 

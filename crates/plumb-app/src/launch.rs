@@ -33,6 +33,8 @@ pub struct Launch {
     pub overlays: crate::derived::Overlays,
     /// Text column colouring the points.
     pub colour_by: Option<String>,
+    /// Read `data` in the one-pass view (for files too large to load) instead of loading it.
+    pub one_pass: bool,
 }
 
 /// Longest wait for the data and diagnostics before a screenshot is taken anyway.
@@ -168,13 +170,21 @@ pub fn run(launch: Launch) -> Result<(), WorkbenchError> {
             if let Some(t) = app_launch.theme {
                 cc.egui_ctx.set_theme(t);
             }
-            if let Some(d) = &app_launch.data {
-                wb.open_path(d);
-            }
+            let pending = match &app_launch.data {
+                Some(d) if app_launch.one_pass => {
+                    wb.open_one_pass(d, app_launch.pair.clone());
+                    None
+                }
+                Some(d) => {
+                    wb.open_path(d);
+                    Some(app_launch)
+                }
+                None => Some(app_launch),
+            };
             Ok(Box::new(Window {
                 wb,
                 shooter,
-                pending: Some(app_launch),
+                pending,
             }))
         }),
     )

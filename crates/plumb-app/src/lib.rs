@@ -25,6 +25,7 @@ pub mod palette;
 mod plots;
 pub mod sessions;
 pub mod settings;
+pub mod sweep;
 
 pub use app::{Ask, Loaded, Screen, Status, Workbench};
 pub use eframe::egui::ThemePreference;

@@ -27,7 +27,7 @@ pub use error::{DataError, Result};
 pub use progress::{Progress, Stage};
 pub use select::{DropReason, Dropped, Selection};
 pub use sniff::HeaderMode;
-pub use stream::{stream_columns, Piece, StreamOptions, StreamSummary, LISTED_DROPS};
+pub use stream::{head, stream_columns, Piece, StreamOptions, StreamSummary, LISTED_DROPS};
 pub use table::{Column, ColumnSummary, ColumnValues, SourceFormat, Table};
 
 use std::path::Path;
@@ -92,12 +92,35 @@ pub fn load_bytes(
     }
 }
 
-fn load_tracked(path: &Path, options: &LoadOptions, progress: Option<&Progress>) -> Result<Table> {
-    let extension = path
-        .extension()
+/// Whether [`load`] would accept `path` under its memory cap (see `LoadOptions::memory_limit`),
+/// checked from the file's size (and a workbook's directory) without reading the data.
+///
+/// # Errors
+/// [`DataError::TooLarge`] with the sizes and what to do, or [`DataError::Io`].
+pub fn fits_in_memory(path: &Path, options: &LoadOptions) -> Result<()> {
+    match extension_of(path).as_str() {
+        "parquet" | "pq" => Ok(()), // checked from the file's metadata when it is opened
+        "xlsx" | "xlsm" | "xlsb" | "xls" | "ods" => budget::check_sheet(path, options.memory_limit),
+        _ => budget::check_text(path, options.memory_limit),
+    }
+}
+
+/// Whether `path` is read as delimited text (the only kind [`stream_columns`] reads).
+pub fn is_delimited_text(path: &Path) -> bool {
+    !matches!(
+        extension_of(path).as_str(),
+        "parquet" | "pq" | "xlsx" | "xlsm" | "xlsb" | "xls" | "ods"
+    )
+}
+
+fn extension_of(path: &Path) -> String {
+    path.extension()
         .map(|e| e.to_string_lossy().to_ascii_lowercase())
-        .unwrap_or_default();
-    match extension.as_str() {
+        .unwrap_or_default()
+}
+
+fn load_tracked(path: &Path, options: &LoadOptions, progress: Option<&Progress>) -> Result<Table> {
+    match extension_of(path).as_str() {
         "parquet" | "pq" => parquet::load(path, options),
         "xlsx" | "xlsm" | "xlsb" | "xls" | "ods" => sheet::load(path, options),
         _ => delimited::load(path, options, progress),

@@ -9,6 +9,7 @@
 
 use std::fs::File;
 use std::io::Read;
+use std::ops::ControlFlow;
 use std::path::Path;
 
 use rayon::prelude::*;
@@ -54,6 +55,8 @@ pub struct StreamSummary {
     pub bytes: u64,
     /// Delimiter, decimal mark and header, as settled by the first chunk.
     pub format: SourceFormat,
+    /// Whether the caller stopped the pass early (the counts cover what was read).
+    pub stopped: bool,
 }
 
 /// The complete rows of one chunk: values of each requested column, in request order, and
@@ -64,10 +67,34 @@ pub struct Piece {
     pub columns: Vec<Vec<f64>>,
     /// 1-based data rows of those values.
     pub rows: Vec<usize>,
+    /// Bytes of the file read so far, this piece included (for a progress bar).
+    pub bytes_read: u64,
+}
+
+/// The table of the file's first chunk alone: its columns, their types as far as that part
+/// shows, and the settled format (a quick look before a full pass).
+///
+/// # Errors
+/// What [`crate::load`] reports for that part of the file.
+pub fn head(path: &Path, options: &StreamOptions) -> Result<Table> {
+    let mut file = File::open(path).map_err(|source| DataError::Io {
+        path: path.to_path_buf(),
+        source,
+    })?;
+    let mut reader = Chunks::new(&mut file, options.chunk_bytes.max(64 << 10));
+    let first = reader
+        .next_chunk()
+        .map_err(|source| DataError::Io {
+            path: path.to_path_buf(),
+            source,
+        })?
+        .unwrap_or_default();
+    delimited::from_bytes(path, &first.text, &options.load, None)
 }
 
 /// Reads `path` once, handing `visit` the complete rows of the columns `names`, chunk by
-/// chunk in file order. Nothing is written.
+/// chunk in file order; `visit` returns [`ControlFlow::Break`] to stop early (the summary
+/// then says so). Nothing is written.
 ///
 /// # Errors
 /// What [`crate::load`] reports for the same file (with the file's own line and row
@@ -76,7 +103,7 @@ pub fn stream_columns(
     path: &Path,
     names: &[&str],
     options: &StreamOptions,
-    mut visit: impl FnMut(&Piece),
+    mut visit: impl FnMut(&Piece) -> ControlFlow<()>,
 ) -> Result<StreamSummary> {
     let io = |source| DataError::Io {
         path: path.to_path_buf(),
@@ -119,15 +146,19 @@ pub fn stream_columns(
         dropped: Vec::new(),
         bytes: first.text.len() as u64,
         format: format.clone(),
+        stopped: false,
     };
-    let mut take = |table: &Table, offset: Offset, summary: &mut StreamSummary| -> Result<()> {
-        let piece = complete_piece(table, names, offset.rows, summary)?;
+    let mut take = |table: &Table, offset: Offset, summary: &mut StreamSummary| -> Result<bool> {
+        let mut piece = complete_piece(table, names, offset.rows, summary)?;
+        piece.bytes_read = summary.bytes;
         summary.rows += table.n_rows();
         summary.used += piece.rows.len();
-        visit(&piece);
-        Ok(())
+        Ok(visit(&piece).is_continue())
     };
-    take(&head, Offset::default(), &mut summary)?;
+    if !take(&head, Offset::default(), &mut summary)? {
+        summary.stopped = true;
+        return Ok(summary);
+    }
     let mut offset = Offset {
         rows: head.n_rows(),
         lines: first.lines,
@@ -172,10 +203,13 @@ pub fn stream_columns(
                 }
                 Err(e) => return Err(e.with_row_offset(offset.rows)),
             };
-            take(&table, offset, &mut summary)?;
+            summary.bytes += c.text.len() as u64;
+            if !take(&table, offset, &mut summary)? {
+                summary.stopped = true;
+                return Ok(summary);
+            }
             offset.rows += table.n_rows();
             offset.lines += c.lines;
-            summary.bytes += c.text.len() as u64;
         }
     }
     Ok(summary)
@@ -215,6 +249,7 @@ fn complete_piece(
     let mut piece = Piece {
         columns: vec![Vec::with_capacity(n); names.len()],
         rows: Vec::with_capacity(n),
+        bytes_read: 0,
     };
     for i in 0..n {
         let fault = names
@@ -398,6 +433,7 @@ mod tests {
         let summary = stream_columns(f.path(), &["x", "y"], &small_chunks(), |p| {
             rows.extend_from_slice(&p.rows);
             xs.extend_from_slice(&p.columns[0]);
+            ControlFlow::Continue(())
         })
         .expect("streams");
         let table = crate::load(f.path(), &LoadOptions::default()).expect("loads");
@@ -411,6 +447,28 @@ mod tests {
             whole.dropped[..LISTED_DROPS.min(whole.dropped.len())]
         );
         assert!(summary.bytes as usize == text.len());
+        assert!(!summary.stopped);
+    }
+
+    #[test]
+    fn the_caller_can_stop_a_pass_and_the_head_shows_the_columns() {
+        let mut text = String::from("a,b,label\n");
+        for i in 0..40_000 {
+            text.push_str(&format!("{i},{},x\n", i * 3));
+        }
+        let f = file_with(&text);
+        let mut pieces = 0;
+        let summary = stream_columns(f.path(), &["a", "b"], &small_chunks(), |p| {
+            pieces += 1;
+            assert!(p.bytes_read > 0);
+            ControlFlow::Break(())
+        })
+        .expect("streams");
+        assert_eq!(pieces, 1);
+        assert!(summary.stopped && summary.rows < 40_000);
+        let head = head(f.path(), &small_chunks()).expect("head");
+        assert_eq!(head.columns().len(), 3);
+        assert!(head.n_rows() < 40_000);
     }
 
     #[test]
@@ -424,8 +482,10 @@ mod tests {
             }
         }
         let f = file_with(&text);
-        let err = stream_columns(f.path(), &["x", "y"], &small_chunks(), |_| {})
-            .expect_err("a word in y");
+        let err = stream_columns(f.path(), &["x", "y"], &small_chunks(), |_| {
+            ControlFlow::Continue(())
+        })
+        .expect_err("a word in y");
         let loaded = crate::load(f.path(), &LoadOptions::default())
             .and_then(|t| t.complete_rows(&["x", "y"], &[]).map(|_| ()))
             .expect_err("a word in y");
@@ -444,8 +504,10 @@ mod tests {
             }
         }
         let f = file_with(&text);
-        let err =
-            stream_columns(f.path(), &["x", "y"], &small_chunks(), |_| {}).expect_err("ragged");
+        let err = stream_columns(f.path(), &["x", "y"], &small_chunks(), |_| {
+            ControlFlow::Continue(())
+        })
+        .expect_err("ragged");
         let loaded = crate::load(f.path(), &LoadOptions::default()).expect_err("ragged");
         assert_eq!(err.to_string(), loaded.to_string());
     }
@@ -453,7 +515,10 @@ mod tests {
     #[test]
     fn an_unknown_column_is_named() {
         let f = file_with("x,y\n1,2\n3,4\n");
-        let err = stream_columns(f.path(), &["x", "z"], &small_chunks(), |_| {}).expect_err("no z");
+        let err = stream_columns(f.path(), &["x", "z"], &small_chunks(), |_| {
+            ControlFlow::Continue(())
+        })
+        .expect_err("no z");
         assert!(err.to_string().contains("'z'"), "{err}");
     }
 }

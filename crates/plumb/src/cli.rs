@@ -49,6 +49,10 @@ pub struct WorkbenchArgs {
     /// Colour the points by this text column and fit a line per group.
     #[arg(long, value_name = "COLUMN")]
     pub colour_by: Option<String>,
+    /// Read DATA (delimited text) in the one-pass view instead of loading it: the line of --y
+    /// on --x and a density image, in bounded memory, for files too large to hold.
+    #[arg(long, requires = "data")]
+    pub one_pass: bool,
 }
 
 /// Scatter overlays.

@@ -59,6 +59,7 @@ fn workbench(a: cli::WorkbenchArgs) -> anyhow::Result<String> {
             ..Default::default()
         },
         colour_by: a.colour_by.clone(),
+        one_pass: a.one_pass,
         theme: a.theme.map(|t| match t {
             cli::ThemeArg::Light => plumb_app::ThemePreference::Light,
             cli::ThemeArg::Dark => plumb_app::ThemePreference::Dark,

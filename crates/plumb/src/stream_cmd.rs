@@ -5,6 +5,7 @@
 //! residuals directly, because `Syy − b·Sxy` would have cancelled digits.
 
 use std::fmt::Write;
+use std::ops::ControlFlow;
 
 use plumb_core::moments::CoMoments;
 use plumb_core::regression::{
@@ -27,6 +28,7 @@ pub fn run(args: &StreamArgs) -> anyhow::Result<String> {
     let mut moments = CoMoments::new(2);
     let summary = stream_columns(path, &names, &options, |piece| {
         moments.add(&[&piece.columns[0], &piece.columns[1]]);
+        ControlFlow::Continue(())
     })?;
     let mut line = line_from_moments(&moments, args.level, None)
         .map_err(|e| anyhow::anyhow!("{}: {e}", path.display()))?;
@@ -35,6 +37,7 @@ pub fn run(args: &StreamArgs) -> anyhow::Result<String> {
         let mut rss = 0.0;
         stream_columns(path, &names, &options, |piece| {
             rss += residual_sum_of_squares(&piece.columns[0], &piece.columns[1], a, b);
+            ControlFlow::Continue(())
         })?;
         line = line_from_moments(&moments, args.level, Some(rss))
             .map_err(|e| anyhow::anyhow!("{}: {e}", path.display()))?;

@@ -321,3 +321,72 @@ fn a_saved_session_reopens_with_the_same_exclusions_reasons_and_numbers() {
         cli_r_squared(&data, "absorbance", "standard_mg_l", "9,14")
     );
 }
+
+/// A file over the memory cap is offered the one-pass view; its R² must equal `plumb stream`
+/// (which is itself checked against `plumb fit` on a file read whole), the data file is left
+/// as it was, and the view never loads the table.
+#[test]
+fn a_file_over_the_memory_cap_opens_in_the_one_pass_view_with_the_command_lines_numbers() {
+    let config = tempfile::tempdir().expect("config dir");
+    let dir = tempfile::tempdir().expect("data dir");
+    let data = dir.path().join("long-log.csv");
+    let mut text = String::from("t,load_kw,temp_c\n");
+    for i in 0..60_000u32 {
+        let load = f64::from(i % 700) / 10.0;
+        let wobble = f64::from((i * 7919) % 211) / 21.1 - 5.0;
+        text.push_str(&format!(
+            "{i},{load:.2},{:.3}\n",
+            18.0 + 0.4 * load + wobble
+        ));
+    }
+    std::fs::write(&data, &text).expect("write");
+    let before = sha256(&data);
+    let mut h = harness(config.path());
+    h.state_mut().set_memory_limit(Some(1_000_000));
+    h.get_by_label("File:").click();
+    h.run_steps(1);
+    h.get_by_label("File:")
+        .type_text(&data.display().to_string());
+    h.run_steps(1);
+    h.get_by_label("Open").click();
+    h.run_steps(2);
+    assert!(
+        matches!(h.state().ask(), Some(plumb_app::Ask::TooLarge { .. })),
+        "asked about the size: {:?}",
+        h.state().ask()
+    );
+    h.get_by_label("Read it in one pass").click();
+    h.run_steps(2);
+    choose(&mut h, "y:", "temp_c");
+    choose(&mut h, "x:", "load_kw");
+    h.state_mut().settle_sweep(Duration::from_secs(60));
+    settle(&mut h);
+    assert!(h.state().loaded().is_none(), "the table was not loaded");
+    let shown = shown_r_squared(&h);
+    let out = Command::new(env!("CARGO_BIN_EXE_plumb"))
+        .args([
+            "stream",
+            &data.display().to_string(),
+            "--y",
+            "temp_c",
+            "--x",
+            "load_kw",
+            "--format",
+            "json",
+        ])
+        .output()
+        .expect("plumb runs");
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
+    let cli = format!(
+        "R² = {}",
+        plumb_report::text::num(v["r_squared"].as_f64().expect("r²"))
+    );
+    assert_eq!(shown, cli);
+    assert_eq!(v["n"], 60_000);
+    assert_eq!(sha256(&data), before, "the data file is never written");
+}
