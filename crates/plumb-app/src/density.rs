@@ -70,16 +70,45 @@ pub struct Density {
 }
 
 impl Density {
+    /// No points yet.
+    pub fn empty(bounds: Bounds, width: usize, height: usize) -> Self {
+        Self {
+            width,
+            height,
+            counts: vec![0u32; width * height],
+            max: 0,
+            bounds,
+        }
+    }
+
+    /// Bins more points (piece by piece, for data read in parts).
+    pub fn add(&mut self, points: impl Iterator<Item = (f64, f64)>) {
+        let grid = self.grid();
+        for (x, y) in points {
+            if let Some(c) = grid.cell(x, y) {
+                self.counts[c] += 1;
+            }
+        }
+        self.max = self.counts.iter().copied().max().unwrap_or(0);
+    }
+
     /// The cell of `(x, y)`, if it lies inside (NaN does not; a point on the right or bottom
     /// edge belongs to the last cell).
     fn cell(&self, x: f64, y: f64) -> Option<usize> {
-        let u = (x - self.bounds.x_min) * self.width as f64 / self.bounds.width();
-        let v = (self.bounds.y_max - y) * self.height as f64 / self.bounds.height();
-        let inside =
-            (0.0..=self.width as f64).contains(&u) && (0.0..=self.height as f64).contains(&v);
-        inside.then(|| {
-            (v as usize).min(self.height - 1) * self.width + (u as usize).min(self.width - 1)
-        })
+        self.grid().cell(x, y)
+    }
+
+    /// The cell arithmetic with its divisions done once (binning a million points must not
+    /// divide two million times).
+    fn grid(&self) -> Grid {
+        Grid {
+            x_min: self.bounds.x_min,
+            y_max: self.bounds.y_max,
+            sx: self.width as f64 / self.bounds.width(),
+            sy: self.height as f64 / self.bounds.height(),
+            width: self.width,
+            height: self.height,
+        }
     }
 
     /// Takes `points` (previously binned) out again: O(k) for k points, so a few excluded
@@ -94,6 +123,30 @@ impl Density {
     }
 }
 
+/// Cells per data unit and the grid's origin.
+#[derive(Debug, Clone, Copy)]
+struct Grid {
+    x_min: f64,
+    y_max: f64,
+    sx: f64,
+    sy: f64,
+    width: usize,
+    height: usize,
+}
+
+impl Grid {
+    #[inline]
+    fn cell(&self, x: f64, y: f64) -> Option<usize> {
+        let u = (x - self.x_min) * self.sx;
+        let v = (self.y_max - y) * self.sy;
+        let inside =
+            (0.0..=self.width as f64).contains(&u) && (0.0..=self.height as f64).contains(&v);
+        inside.then(|| {
+            (v as usize).min(self.height - 1) * self.width + (u as usize).min(self.width - 1)
+        })
+    }
+}
+
 /// Bins `points` (those outside `bounds` are skipped). One pass, no allocation per point.
 pub fn bin(
     points: impl Iterator<Item = (f64, f64)>,
@@ -104,29 +157,6 @@ pub fn bin(
     let mut d = Density::empty(bounds, width, height);
     d.add(points);
     d
-}
-
-impl Density {
-    /// No points yet.
-    pub fn empty(bounds: Bounds, width: usize, height: usize) -> Self {
-        Self {
-            width,
-            height,
-            counts: vec![0u32; width * height],
-            max: 0,
-            bounds,
-        }
-    }
-
-    /// Bins more points (piece by piece, for data read in parts).
-    pub fn add(&mut self, points: impl Iterator<Item = (f64, f64)>) {
-        for (x, y) in points {
-            if let Some(c) = self.cell(x, y) {
-                self.counts[c] += 1;
-            }
-        }
-        self.max = self.counts.iter().copied().max().unwrap_or(0);
-    }
 }
 
 /// Cells per side of the hover index.

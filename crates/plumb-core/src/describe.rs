@@ -38,6 +38,11 @@ pub fn root_sum_sq_dev(x: &[f64], w: Option<&[f64]>) -> f64 {
     if peak == 0.0 || !peak.is_finite() {
         return if peak == 0.0 { 0.0 } else { f64::NAN };
     }
+    if w.is_none() && (1e-140..1e140).contains(&peak) {
+        // In this range no square or sum of squares can overflow or underflow: one blocked
+        // pass of centred co-moments (as accurate as the compensated two-pass form).
+        return crate::moments::CoMoments::of(&[x]).comoment(0, 0).sqrt();
+    }
     let scale = accurate::power_of_two_near(peak);
     // Dividing by a power of two is exact, so the scaled values are formed on the fly.
     let scaled = || x.iter().map(move |v| v / scale);

@@ -10,7 +10,7 @@
 //!
 //! Drift guard: `A` itself is kept too (additive O(p²) updates) and `α = A⁻¹b` gets one step
 //! of refinement against it; every [`REFRESH_EVERY`] changes the sums are rebuilt from the
-//! rows (O(np²)).
+//! rows (O(np²), no refit).
 //! A full least-squares refit (the QR path of [`super::fit`]) replaces the update whenever the
 //! working basis is poorly conditioned (above [`CONDITION_LIMIT`]), an update would divide by
 //! `1 − hᵢᵢ` below [`PIVOT_FLOOR`], or the fit is so tight (`1 − R² <` [`TIGHT_FIT`]) that
@@ -218,8 +218,20 @@ impl LiveFit {
 
     fn update(&mut self, i: usize, sign: f64) {
         self.changes += 1;
-        if self.always_refit || !self.inverse_valid || self.changes.is_multiple_of(REFRESH_EVERY) {
+        if self.always_refit || !self.inverse_valid {
             self.refit();
+            return;
+        }
+        if self.changes.is_multiple_of(REFRESH_EVERY) {
+            // Drift guard: the sums again from the rows (O(np²), a few ms at a million rows),
+            // not a full refit; the refit guards below still apply.
+            self.rebuild();
+            if !self.inverse_valid {
+                self.refit();
+                return;
+            }
+            self.summary = self.summary_from_sums();
+            self.refit_if_tight();
             return;
         }
         let z = DVector::from_column_slice(&self.z[i]);
@@ -240,6 +252,10 @@ impl LiveFit {
             // No longer a well-posed fit: the updated inverse is not to be trusted.
             self.inverse_valid = false;
         }
+        self.refit_if_tight();
+    }
+
+    fn refit_if_tight(&mut self) {
         if self
             .summary
             .as_ref()
@@ -251,18 +267,24 @@ impl LiveFit {
 
     fn rebuild(&mut self) {
         let p = self.design.n_terms();
-        let mut a = DMatrix::zeros(p, p);
-        self.b = DVector::zeros(p);
+        // Plain accumulation into flat arrays: no allocation per row.
+        let mut lower = vec![0.0; p * p];
+        let mut b = vec![0.0; p];
         self.sum_y = 0.0;
         self.sum_yy = 0.0;
         for (i, z) in self.z.iter().enumerate().filter(|(i, _)| self.included[*i]) {
-            let z = DVector::from_column_slice(z);
-            a += &z * z.transpose();
             let yi = self.y[i] - self.y_shift;
-            self.b += &z * yi;
+            for j in 0..p {
+                b[j] += z[j] * yi;
+                for k in 0..=j {
+                    lower[j * p + k] += z[j] * z[k];
+                }
+            }
             self.sum_y += yi;
             self.sum_yy += yi * yi;
         }
+        let a = DMatrix::from_fn(p, p, |j, k| lower[j.max(k) * p + j.min(k)]);
+        self.b = DVector::from_vec(b);
         // A singular Gram matrix (too few rows) leaves the inverse at zero and marked invalid;
         // the summary then carries the error from the full fit, and the next change rebuilds.
         let inverse = a.clone().try_inverse();

@@ -139,18 +139,19 @@ pub(crate) fn least_squares(
     // dot products, Δβ = M·R⁻ᵀ·Pᵀg. Because Z is exact (or nearly so) the gradient g is
     // accurate even when the residual is large, which is where a second pass through Qᵀ
     // would stall at eps·‖r‖.
-    let weighted_z: Vec<Vec<f64>> = match weights {
+    let weighted_z: std::borrow::Cow<'_, [Vec<f64>]> = match weights {
         Some(w) => basis
             .columns
             .iter()
             .map(|c| c.iter().zip(w).map(|(a, b)| a * b).collect())
             .collect(),
-        None => basis.columns.clone(),
+        None => std::borrow::Cow::Borrowed(&basis.columns),
     };
+    let z_peaks: Vec<f64> = weighted_z.iter().map(|c| accurate::max_abs(c)).collect();
     let correction = |residual: &Residuals| -> Vec<f64> {
         let g: Vec<f64> = order
             .iter()
-            .map(|&col| residual.dot(&weighted_z[col]))
+            .map(|&col| residual.dot(&weighted_z[col], z_peaks[col]))
             .collect();
         let h: Vec<f64> = (0..p)
             .map(|k| accurate::dot(r_inv.column(k).as_slice(), &g))
@@ -165,9 +166,15 @@ pub(crate) fn least_squares(
         correction(&Residuals {
             hi: y.to_vec(),
             lo: vec![0.0; n],
+            peak: accurate::max_abs(y),
         })
     });
-    let mut residuals = Residuals::new(design, y, &beta);
+    let peaks: Vec<f64> = design
+        .columns()
+        .iter()
+        .map(|c| accurate::max_abs(c))
+        .collect();
+    let mut residuals = Residuals::new(design, y, &beta, &peaks);
     for _ in 0..REFINEMENT_STEPS {
         let delta = correction(&residuals);
         let mut changed = false;
@@ -181,7 +188,7 @@ pub(crate) fn least_squares(
         if !changed {
             break;
         }
-        residuals = Residuals::new(design, y, &beta);
+        residuals.refill(design, y, &beta, &peaks);
         // On the Gram route each step shrinks the error by about κ²ε ≤ 2e-10: after a step
         // this small, the next would change no digit, so it is not taken.
         if gram_route && largest_step < 1e-7 {
@@ -212,6 +219,9 @@ pub(crate) fn least_squares(
 /// about ten digits while the refinement restores the estimates to working accuracy.
 pub const GRAM_CONDITION_LIMIT: f64 = 1e3;
 
+/// Rows per block when the Gram matrix is formed.
+const GRAM_BLOCK: usize = 4096;
+
 /// The triangle of the weighted working basis without its `Q`.
 struct Triangle {
     basis: Basis,
@@ -231,11 +241,22 @@ fn gram_triangle(design: &Design, weights: Option<&[f64]>) -> Option<Triangle> {
         None => vec![1.0; n],
     };
     let basis = Basis::new(design, &root_w);
-    let mut z = Vec::with_capacity(n * p);
-    for column in &basis.columns {
-        z.extend(column.iter().zip(&root_w).map(|(v, w)| v * w));
+    // ZᵀWZ block by block (no n × p copy of the basis).
+    let mut gram = DMatrix::zeros(p, p);
+    let mut block = Vec::with_capacity(GRAM_BLOCK * p);
+    for start in (0..n).step_by(GRAM_BLOCK) {
+        let end = (start + GRAM_BLOCK).min(n);
+        block.clear();
+        for column in &basis.columns {
+            block.extend(
+                column[start..end]
+                    .iter()
+                    .zip(&root_w[start..end])
+                    .map(|(v, w)| v * w),
+            );
+        }
+        gram += crate::moments::gram(&block, end - start, p);
     }
-    let gram = crate::moments::gram(&z, n, p);
     let eigen = gram.clone().symmetric_eigenvalues();
     let (lo, hi) = (eigen.min(), eigen.max());
     if !(lo > 0.0 && (hi / lo).sqrt() <= GRAM_CONDITION_LIMIT) {
@@ -266,36 +287,83 @@ fn gram_triangle(design: &Design, weights: Option<&[f64]>) -> Option<Triangle> {
 struct Residuals {
     hi: Vec<f64>,
     lo: Vec<f64>,
+    /// `max |hiᵢ|`.
+    peak: f64,
 }
 
 impl Residuals {
-    fn new(design: &Design, y: &[f64], beta: &[f64]) -> Self {
-        let mut hi = y.to_vec();
-        let mut lo = vec![0.0; y.len()];
-        for (column, b) in design.columns().iter().zip(beta) {
-            for ((h, l), &x) in hi.iter_mut().zip(lo.iter_mut()).zip(column.iter()) {
-                let (p, ep) = accurate::two_prod(x, -b);
-                let (s, es) = accurate::two_sum(*h, p);
-                *h = s;
-                *l += ep + es;
+    /// `peaks[j]` is `max |xᵢⱼ|` of design column `j`: where it and `|βⱼ|` are below
+    /// [`accurate::SPLIT_SAFE`] the products use the split (vectorizing) form, which is
+    /// exact there; otherwise the fused one.
+    fn new(design: &Design, y: &[f64], beta: &[f64], peaks: &[f64]) -> Self {
+        let mut r = Self {
+            hi: Vec::new(),
+            lo: Vec::new(),
+            peak: 0.0,
+        };
+        r.refill(design, y, beta, peaks);
+        r
+    }
+
+    /// Recomputes the residuals for `beta` in place (the buffers are reused across passes).
+    fn refill(&mut self, design: &Design, y: &[f64], beta: &[f64], peaks: &[f64]) {
+        self.hi.clear();
+        self.hi.extend_from_slice(y);
+        self.lo.clear();
+        self.lo.resize(y.len(), 0.0);
+        for ((column, &b), &peak) in design.columns().iter().zip(beta).zip(peaks) {
+            if peak < accurate::SPLIT_SAFE && b.abs() < accurate::SPLIT_SAFE {
+                subtract_term(
+                    &mut self.hi,
+                    &mut self.lo,
+                    column,
+                    b,
+                    accurate::two_prod_split,
+                );
+            } else {
+                subtract_term(&mut self.hi, &mut self.lo, column, b, accurate::two_prod);
             }
         }
-        for (h, l) in hi.iter_mut().zip(lo.iter_mut()) {
+        for (h, l) in self.hi.iter_mut().zip(self.lo.iter_mut()) {
             (*h, *l) = accurate::two_sum(*h, *l);
         }
-        Self { hi, lo }
+        self.peak = accurate::max_abs(&self.hi);
     }
 
     /// `Σ zᵢ·(hiᵢ + loᵢ)`: compensated over `zᵢ·hiᵢ`, plain over `zᵢ·loᵢ` (each `|loᵢ|` is at
     /// most half an ulp of `hiᵢ`, so rounding those products costs only `ε²`-sized terms).
-    fn dot(&self, z: &[f64]) -> f64 {
-        let (hi, lo) = accurate::dot_split(z.iter().copied().zip(self.hi.iter().copied()));
+    /// `z_peak` is `max |zᵢ|`.
+    fn dot(&self, z: &[f64], z_peak: f64) -> f64 {
+        let safe = z_peak < accurate::SPLIT_SAFE && self.peak < accurate::SPLIT_SAFE;
+        let (hi, lo) = if safe {
+            accurate::dot_split_lanes(z, &self.hi)
+        } else {
+            accurate::dot_split(z.iter().copied().zip(self.hi.iter().copied()))
+        };
         let tail: f64 = z.iter().zip(&self.lo).map(|(a, b)| a * b).sum();
         hi + (lo + tail)
     }
 
     fn rounded(&self) -> Vec<f64> {
         self.hi.iter().zip(&self.lo).map(|(h, l)| h + l).collect()
+    }
+}
+
+/// `(hi, lo) −= x·b` element by element, with the error-free `product` (a generic parameter, so
+/// each choice is its own inlined, vectorizable loop).
+#[inline(always)]
+fn subtract_term(
+    hi: &mut [f64],
+    lo: &mut [f64],
+    column: &[f64],
+    b: f64,
+    product: impl Fn(f64, f64) -> (f64, f64),
+) {
+    for ((h, l), &x) in hi.iter_mut().zip(lo.iter_mut()).zip(column) {
+        let (p, ep) = product(x, -b);
+        let (s, es) = accurate::two_sum(*h, p);
+        *h = s;
+        *l += ep + es;
     }
 }
 
@@ -386,6 +454,38 @@ mod tests {
         assert!(err.to_string().contains("aliased"), "{err}");
         // Whichever of a, b, c is named, the other two appear in the combination.
         assert_eq!(combination.matches('·').count(), 2, "{combination}");
+    }
+
+    #[test]
+    fn the_gram_route_is_taken_when_well_conditioned_and_agrees_with_the_qr_route() {
+        let n = 2000usize;
+        let x1: Vec<f64> = (0..2000u32).map(|i| f64::from(i).sin()).collect();
+        let x2: Vec<f64> = (0..2000u32).map(|i| f64::from(i * 7 % 13)).collect();
+        let y: Vec<f64> = (0..n)
+            .map(|i| 2.0 + 3.0 * x1[i] - 0.5 * x2[i] + ((i * 31 % 17) as f64) / 17.0)
+            .collect();
+        let design = Design::linear(&[("a", &x1), ("b", &x2)], true);
+        assert!(
+            gram_triangle(&design, None).is_some(),
+            "well conditioned: Gram route"
+        );
+        let gram = least_squares(&design, &y, None, 1e-13).expect("solves");
+        // The QR route on the same problem, by hand: factor, solve, refine as the solver does.
+        let f = factor(&design, None, 1e-13).expect("factors");
+        let mut b = DVector::from_column_slice(&y);
+        f.qr.q_tr_mul(&mut b);
+        for j in 0..3 {
+            let qr_beta = accurate::dot(f.m.row(j).transpose().as_slice(), &b.as_slice()[..3]);
+            assert!(
+                (gram.beta[j] - qr_beta).abs() <= 1e-12 * qr_beta.abs().max(1.0),
+                "term {j}: {} vs {qr_beta}",
+                gram.beta[j]
+            );
+        }
+        // Nearly collinear columns: the Gram route declines.
+        let x3: Vec<f64> = x1.iter().map(|v| v + 1e-7 * v.cos()).collect();
+        let bad = Design::linear(&[("a", &x1), ("c", &x3)], true);
+        assert!(gram_triangle(&bad, None).is_none());
     }
 
     #[test]
