@@ -214,6 +214,20 @@ fn main() {
             live.include(k);
         }) / 2.0,
     ));
+    // The drift guard rebuilds the sums from the rows every REFRESH_EVERY changes: the
+    // slowest of 128 single changes shows what that costs.
+    let worst = (0..64)
+        .map(|_| {
+            k = (k + 7919) % y.len();
+            let start = Instant::now();
+            live.exclude(k);
+            let t = start.elapsed().as_secs_f64();
+            let start = Instant::now();
+            live.include(k);
+            t.max(start.elapsed().as_secs_f64())
+        })
+        .fold(0.0_f64, f64::max);
+    out.push(("live_toggle_1m_worst", worst));
     let body: Vec<String> = out.iter().map(|(k, v)| format!("\"{k}\": {v:e}")).collect();
     println!("{{{}}}", body.join(", "));
 }

@@ -17,6 +17,7 @@
 //! `Σy² − αᵀb` would cancel away the digits.
 
 use nalgebra::{DMatrix, DVector};
+use rayon::prelude::*;
 
 use super::basis::Basis;
 use super::design::{Design, TermKind};
@@ -68,7 +69,9 @@ pub struct LiveFit {
     included: Vec<bool>,
     n_included: usize,
     basis_recipe: Basis,
-    z: Vec<Vec<f64>>,
+    /// Working-basis rows, one after another (`p` values per row): contiguous, so that a
+    /// rebuild from the rows streams through memory.
+    z: Vec<f64>,
     y_shift: f64,
     a: DMatrix<f64>,
     a_inv: DMatrix<f64>,
@@ -97,7 +100,7 @@ impl LiveFit {
             Some(x) => x.iter().map(|&v| vec![v]).collect(),
             None => (0..y.len()).map(|i| design.row(i).collect()).collect(),
         };
-        let z = values.iter().map(|v| basis.z_row(v)).collect();
+        let z = values.iter().flat_map(|v| basis.z_row(v)).collect();
         basis.columns = Vec::new(); // the rows `z` hold the same numbers
         let y_shift = if design.has_intercept() {
             crate::describe::mean(&y, None)
@@ -200,7 +203,9 @@ impl LiveFit {
                 .collect()
         };
         self.y[i] = y;
-        self.z[i] = self.basis_recipe.z_row(&self.values[i]);
+        let p = self.design.n_terms();
+        let row = self.basis_recipe.z_row(&self.values[i]);
+        self.z[i * p..(i + 1) * p].copy_from_slice(&row);
         if was_in {
             self.included[i] = true;
             self.n_included += 1;
@@ -234,7 +239,8 @@ impl LiveFit {
             self.refit_if_tight();
             return;
         }
-        let z = DVector::from_column_slice(&self.z[i]);
+        let p = self.design.n_terms();
+        let z = DVector::from_column_slice(&self.z[i * p..(i + 1) * p]);
         let u = &self.a_inv * &z;
         let denom = 1.0 + sign * z.dot(&u);
         if denom.abs() < PIVOT_FLOOR || !denom.is_finite() {
@@ -267,22 +273,41 @@ impl LiveFit {
 
     fn rebuild(&mut self) {
         let p = self.design.n_terms();
-        // Plain accumulation into flat arrays: no allocation per row.
-        let mut lower = vec![0.0; p * p];
-        let mut b = vec![0.0; p];
-        self.sum_y = 0.0;
-        self.sum_yy = 0.0;
-        for (i, z) in self.z.iter().enumerate().filter(|(i, _)| self.included[*i]) {
-            let yi = self.y[i] - self.y_shift;
-            for j in 0..p {
-                b[j] += z[j] * yi;
-                for k in 0..=j {
-                    lower[j * p + k] += z[j] * z[k];
-                }
-            }
-            self.sum_y += yi;
-            self.sum_yy += yi * yi;
+        // Fixed-size accumulators for the usual small models (kept in registers), a flat
+        // array otherwise; no allocation per row either way.
+        // Chunks of rows on rayon's threads, added in row order (the same answer whatever
+        // the number of threads).
+        let shift = self.y_shift;
+        let parts: Vec<GramSums> = self
+            .z
+            .par_chunks(REBUILD_CHUNK * p)
+            .zip(self.y.par_chunks(REBUILD_CHUNK))
+            .zip(self.included.par_chunks(REBUILD_CHUNK))
+            .map(|((z, y), inc)| match p {
+                1 => gram_sums::<1>(z, y, inc, shift),
+                2 => gram_sums::<2>(z, y, inc, shift),
+                3 => gram_sums::<3>(z, y, inc, shift),
+                4 => gram_sums::<4>(z, y, inc, shift),
+                _ => gram_sums_any(p, z, y, inc, shift),
+            })
+            .collect();
+        let mut sums = GramSums {
+            lower: vec![0.0; p * p],
+            b: vec![0.0; p],
+            sum_y: 0.0,
+            sum_yy: 0.0,
+        };
+        for part in parts {
+            sums.add(&part);
         }
+        let GramSums {
+            lower,
+            b,
+            sum_y,
+            sum_yy,
+        } = sums;
+        self.sum_y = sum_y;
+        self.sum_yy = sum_yy;
         let a = DMatrix::from_fn(p, p, |j, k| lower[j.max(k) * p + j.min(k)]);
         self.b = DVector::from_vec(b);
         // A singular Gram matrix (too few rows) leaves the inverse at zero and marked invalid;
@@ -381,6 +406,87 @@ impl LiveFit {
             f_test,
             refitted: false,
         })
+    }
+}
+
+/// `Σzzᵀ` (lower triangle, row-major `p × p`), `Σz·y`, `Σy`, `Σy²` over the included rows, with
+/// `y` shifted.
+struct GramSums {
+    lower: Vec<f64>,
+    b: Vec<f64>,
+    sum_y: f64,
+    sum_yy: f64,
+}
+
+impl GramSums {
+    fn add(&mut self, other: &GramSums) {
+        for (a, b) in self.lower.iter_mut().zip(&other.lower) {
+            *a += b;
+        }
+        for (a, b) in self.b.iter_mut().zip(&other.b) {
+            *a += b;
+        }
+        self.sum_y += other.sum_y;
+        self.sum_yy += other.sum_yy;
+    }
+}
+
+/// Rows per parallel task when the sums are rebuilt.
+const REBUILD_CHUNK: usize = 1 << 16;
+
+fn gram_sums<const P: usize>(z: &[f64], y: &[f64], included: &[bool], shift: f64) -> GramSums {
+    let mut a = [[0.0; P]; P];
+    let mut b = [0.0; P];
+    let (mut sum_y, mut sum_yy) = (0.0, 0.0);
+    for ((row, &yv), _) in z
+        .chunks_exact(P)
+        .zip(y)
+        .zip(included)
+        .filter(|(_, &inc)| inc)
+    {
+        let yi = yv - shift;
+        for j in 0..P {
+            b[j] += row[j] * yi;
+            for k in 0..=j {
+                a[j][k] += row[j] * row[k];
+            }
+        }
+        sum_y += yi;
+        sum_yy += yi * yi;
+    }
+    GramSums {
+        lower: a.iter().flatten().copied().collect(),
+        b: b.to_vec(),
+        sum_y,
+        sum_yy,
+    }
+}
+
+fn gram_sums_any(p: usize, z: &[f64], y: &[f64], included: &[bool], shift: f64) -> GramSums {
+    let mut lower = vec![0.0; p * p];
+    let mut b = vec![0.0; p];
+    let (mut sum_y, mut sum_yy) = (0.0, 0.0);
+    for ((row, &yv), _) in z
+        .chunks_exact(p)
+        .zip(y)
+        .zip(included)
+        .filter(|(_, &inc)| inc)
+    {
+        let yi = yv - shift;
+        for j in 0..p {
+            b[j] += row[j] * yi;
+            for k in 0..=j {
+                lower[j * p + k] += row[j] * row[k];
+            }
+        }
+        sum_y += yi;
+        sum_yy += yi * yi;
+    }
+    GramSums {
+        lower,
+        b,
+        sum_y,
+        sum_yy,
     }
 }
 
