@@ -47,6 +47,22 @@ pub struct Selection {
     pub excluded: Vec<usize>,
 }
 
+/// The first needed column whose cell in row `i` (0-based) makes the row incomplete, and why.
+pub(crate) fn first_fault<'a>(
+    names: &[&'a str],
+    columns: &[&[Option<f64>]],
+    i: usize,
+) -> Option<(&'a str, DropReason)> {
+    names
+        .iter()
+        .zip(columns)
+        .find_map(|(name, col)| match col[i] {
+            None => Some((*name, DropReason::Missing)),
+            Some(v) if !v.is_finite() => Some((*name, DropReason::NonFinite)),
+            Some(_) => None,
+        })
+}
+
 impl Table {
     /// The numeric values of a column.
     ///
@@ -112,18 +128,11 @@ impl Table {
             if selection.excluded.binary_search(&row).is_ok() {
                 continue;
             }
-            let fault = names
-                .iter()
-                .zip(&columns)
-                .find_map(|(name, col)| match col[i] {
-                    None => Some((name, DropReason::Missing)),
-                    Some(v) if !v.is_finite() => Some((name, DropReason::NonFinite)),
-                    Some(_) => None,
-                });
+            let fault = first_fault(names, &columns, i);
             match fault {
                 Some((name, reason)) => selection.dropped.push(Dropped {
                     row,
-                    column: (*name).to_string(),
+                    column: name.to_string(),
                     reason,
                 }),
                 None => {

@@ -14,7 +14,7 @@ use std::path::Path;
 
 use rayon::prelude::*;
 
-use crate::select::{DropReason, Dropped};
+use crate::select::{first_fault, Dropped};
 use crate::sniff::HeaderMode;
 use crate::table::{ColumnValues, SourceFormat, Table};
 use crate::{delimited, DataError, LoadOptions, Result};
@@ -252,21 +252,14 @@ fn complete_piece(
         bytes_read: 0,
     };
     for i in 0..n {
-        let fault = names
-            .iter()
-            .zip(&columns)
-            .find_map(|(name, col)| match col[i] {
-                None => Some((name, DropReason::Missing)),
-                Some(v) if !v.is_finite() => Some((name, DropReason::NonFinite)),
-                Some(_) => None,
-            });
+        let fault = first_fault(names, &columns, i);
         match fault {
             Some((name, reason)) => {
                 summary.dropped_count += 1;
                 if summary.dropped.len() < LISTED_DROPS {
                     summary.dropped.push(Dropped {
                         row: row_offset + i + 1,
-                        column: (*name).to_string(),
+                        column: name.to_string(),
                         reason,
                     });
                 }

@@ -43,7 +43,7 @@ pub struct LineSummary {
     pub anova: Anova,
     /// Whether RSS came from a second pass over the rows (see the module notes).
     pub residual_pass: bool,
-    /// `(min, max)` of x and of y.
+    /// `(min, max)` of x.
     pub x_range: (f64, f64),
     /// `(min, max)` of y.
     pub y_range: (f64, f64),

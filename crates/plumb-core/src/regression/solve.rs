@@ -54,10 +54,7 @@ pub(crate) fn factor(
 ) -> Result<Factor> {
     let n = design.n_rows();
     let p = design.n_terms();
-    let root_w: Vec<f64> = match weights {
-        Some(w) => w.iter().map(|v| v.sqrt()).collect(),
-        None => vec![1.0; n],
-    };
+    let root_w = root_weights(weights, n);
     let basis = Basis::new(design, &root_w);
     let z = DMatrix::from_fn(n, p, |i, j| root_w[i] * basis.columns[j][i]);
     let qr = z.col_piv_qr();
@@ -219,6 +216,14 @@ pub(crate) fn least_squares(
 /// about ten digits while the refinement restores the estimates to working accuracy.
 pub const GRAM_CONDITION_LIMIT: f64 = 1e3;
 
+/// `√wᵢ` (ones without weights).
+fn root_weights(weights: Option<&[f64]>, n: usize) -> Vec<f64> {
+    match weights {
+        Some(w) => w.iter().map(|v| v.sqrt()).collect(),
+        None => vec![1.0; n],
+    }
+}
+
 /// Rows per block when the Gram matrix is formed.
 const GRAM_BLOCK: usize = 4096;
 
@@ -236,10 +241,7 @@ struct Triangle {
 fn gram_triangle(design: &Design, weights: Option<&[f64]>) -> Option<Triangle> {
     let n = design.n_rows();
     let p = design.n_terms();
-    let root_w: Vec<f64> = match weights {
-        Some(w) => w.iter().map(|v| v.sqrt()).collect(),
-        None => vec![1.0; n],
-    };
+    let root_w = root_weights(weights, n);
     let basis = Basis::new(design, &root_w);
     // ZᵀWZ block by block (no n × p copy of the basis).
     let mut gram = DMatrix::zeros(p, p);
