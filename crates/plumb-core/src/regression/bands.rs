@@ -1,7 +1,7 @@
 //! Confidence and prediction bands along the fitted curve of a one-predictor model.
 
-use super::{Design, LinearFit, TermKind};
-use crate::{accurate, distributions};
+use super::{Design, LinearFit, TInference, TermKind};
+use crate::accurate;
 
 /// The fit and its bands at one x.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -34,8 +34,7 @@ pub fn bands(design: &Design, fit: &LinearFit, grid: &[f64]) -> Option<Vec<BandP
         return None;
     }
     let beta: Vec<f64> = fit.coefficients.iter().map(|c| c.estimate).collect();
-    let df = fit.anova.df_residual as f64;
-    let q = distributions::t_upper_quantile(0.5 * (1.0 - fit.level), df);
+    let q = TInference::new(fit.level, fit.anova.df_residual as f64).q;
     let s2 = fit.residual_std_error.powi(2);
     Some(
         grid.iter()
@@ -67,6 +66,7 @@ pub fn bands(design: &Design, fit: &LinearFit, grid: &[f64]) -> Option<Vec<BandP
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::distributions;
     use crate::regression::{fit, FitOptions};
     use approx::assert_relative_eq;
 

@@ -27,6 +27,18 @@ impl TermKind {
     }
 }
 
+/// The value of a polynomial in one predictor, `ŷ(x) = Σⱼ βⱼ·x^{j+s}` with `s = 0` when the
+/// model has an intercept (so `β₀` is the constant) and `s = 1` through the origin; evaluated
+/// by Horner's rule, `x^s·(β₀ + x·(β₁ + x·(…)))`.
+pub fn polynomial_value(coefficients: &[f64], intercept: bool, x: f64) -> f64 {
+    let inner = coefficients.iter().rev().fold(0.0, |acc, &b| acc * x + b);
+    if intercept {
+        inner
+    } else {
+        inner * x
+    }
+}
+
 /// One named column of the design matrix.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Term {
@@ -172,6 +184,14 @@ impl Design {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn polynomial_values_with_and_without_an_intercept() {
+        // 1 + 2x + 3x² at x = 2 is 17; through the origin 2x + 3x² at x = 2 is 16 (by hand).
+        assert_eq!(polynomial_value(&[1.0, 2.0, 3.0], true, 2.0), 17.0);
+        assert_eq!(polynomial_value(&[2.0, 3.0], false, 2.0), 16.0);
+        assert_eq!(polynomial_value(&[], true, 5.0), 0.0);
+    }
 
     #[test]
     fn polynomial_terms_are_named_by_power() {

@@ -3,8 +3,9 @@
 use nalgebra::DMatrix;
 
 use super::design::{Design, TermKind};
+use super::quality::{FitQuality, TInference};
 use super::solve::Solution;
-use crate::{accurate, describe, distributions};
+use crate::{accurate, describe};
 
 /// Which total sum of squares R² is measured against.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -116,20 +117,13 @@ pub(crate) fn summarize(
     let n = y.len();
     let p = design.n_terms();
     let intercept = design.has_intercept();
-    let df_residual = n - p;
-    let df_model = p - usize::from(intercept);
-
     let rss = describe::sum_sq(&solution.residuals, weights);
     let (ss_total, kind) = if intercept {
         (describe::sum_sq_dev(y, weights), RSquaredKind::Centered)
     } else {
         (describe::sum_sq(y, weights), RSquaredKind::Uncentered)
     };
-    let sigma2 = rss / df_residual as f64;
-    let r_squared = 1.0 - rss / ss_total;
-    let adj_r_squared =
-        1.0 - (1.0 - r_squared) * (n - usize::from(intercept)) as f64 / df_residual as f64;
-    let anova = anova(ss_total, rss, df_model, df_residual);
+    let quality = FitQuality::from_sums(n, p, intercept, rss, ss_total);
 
     let sum_ln_w = weights.map_or(0.0, |w| accurate::sum(w.iter().map(|v| v.ln())));
     let nf = n as f64;
@@ -141,11 +135,10 @@ pub(crate) fn summarize(
         weights,
         &solution.beta,
         &solution.unit_std_errors,
-        sigma2.sqrt(),
-        df_residual,
-        level,
+        quality.residual_std_error,
+        TInference::new(level, (n - p) as f64),
     );
-    let covariance = solution.unscaled_covariance * sigma2;
+    let covariance = solution.unscaled_covariance * quality.residual_std_error.powi(2);
     let fitted = y
         .iter()
         .zip(&solution.residuals)
@@ -156,11 +149,11 @@ pub(crate) fn summarize(
         n,
         level,
         coefficients,
-        r_squared,
+        r_squared: quality.r_squared,
         r_squared_kind: kind,
-        adj_r_squared,
-        residual_std_error: sigma2.sqrt(),
-        anova,
+        adj_r_squared: quality.adj_r_squared,
+        residual_std_error: quality.residual_std_error,
+        anova: quality.anova,
         log_likelihood,
         aic: -2.0 * log_likelihood + 2.0 * p as f64,
         bic: -2.0 * log_likelihood + nf.ln() * p as f64,
@@ -199,31 +192,6 @@ pub(crate) fn rescale(fit: &mut LinearFit, s: f64) {
     fit.covariance *= s2;
 }
 
-fn anova(ss_total: f64, rss: f64, df_model: usize, df_residual: usize) -> Anova {
-    let ss_model = ss_total - rss;
-    let ms_residual = rss / df_residual as f64;
-    let (ms_model, f_statistic, f_p_value) = if df_model == 0 {
-        (None, None, None)
-    } else {
-        let ms = ss_model / df_model as f64;
-        let f = ms / ms_residual;
-        let p = distributions::f_upper_tail(f, df_model as f64, df_residual as f64);
-        (Some(ms), Some(f), Some(p))
-    };
-    Anova {
-        ss_model,
-        ss_residual: rss,
-        ss_total,
-        df_model,
-        df_residual,
-        ms_model,
-        ms_residual,
-        f_statistic,
-        f_p_value,
-    }
-}
-
-#[allow(clippy::too_many_arguments)] // one call site; the inputs are the fit's parts
 fn coefficient_table(
     design: &Design,
     y: &[f64],
@@ -231,11 +199,8 @@ fn coefficient_table(
     beta: &[f64],
     unit_se: &[f64],
     sigma: f64,
-    df_residual: usize,
-    level: f64,
+    inference: TInference,
 ) -> Vec<Coefficient> {
-    let df = df_residual as f64;
-    let q = distributions::t_upper_quantile(0.5 * (1.0 - level), df);
     let sd_y = describe::root_sum_sq_dev(y, weights);
     design
         .terms()
@@ -244,20 +209,9 @@ fn coefficient_table(
         .enumerate()
         .map(|(j, (term, column))| {
             let estimate = beta[j];
-            let std_error = sigma * unit_se[j];
-            let t = estimate / std_error;
             let standardized = (term.kind != TermKind::Intercept)
                 .then(|| estimate * describe::root_sum_sq_dev(column, weights) / sd_y);
-            Coefficient {
-                term: term.name.clone(),
-                estimate,
-                std_error,
-                t,
-                p_value: distributions::t_two_sided_p(t, df),
-                ci_low: estimate - q * std_error,
-                ci_high: estimate + q * std_error,
-                standardized,
-            }
+            inference.coefficient(&term.name, estimate, sigma * unit_se[j], standardized)
         })
         .collect()
 }

@@ -13,8 +13,9 @@
 //! [`line_fit`] takes a second pass and sums the squared residuals directly.
 
 use super::inference::{Anova, Coefficient};
+use super::quality::{FitQuality, TInference};
 use crate::moments::CoMoments;
-use crate::{distributions, CoreError, Result};
+use crate::{CoreError, Result};
 
 /// Below this `1 − R²` the residual sum of squares is recomputed from the rows (when they are
 /// available), because `Syy − b·Sxy` would keep fewer than about 12 digits.
@@ -136,54 +137,27 @@ pub fn line_from_moments(m: &CoMoments, level: f64, rss: Option<f64>) -> Result<
     if syy <= 0.0 {
         return Err(CoreError::ConstantResponse { value: m.mean(1) });
     }
-    let nf = n as f64;
-    let df = nf - 2.0;
     let b = sxy / sxx;
     let a = m.mean(1) - b * m.mean(0);
     let residual_pass = rss.is_some();
     let rss = rss.unwrap_or((syy - b * sxy).max(0.0));
-    let sigma = (rss / df).sqrt();
-    let r_squared = 1.0 - rss / syy;
-    let q = distributions::t_upper_quantile(0.5 * (1.0 - level), df);
-    let coefficient = |term: &str, estimate: f64, std_error: f64, standardized| {
-        let t = estimate / std_error;
-        Coefficient {
-            term: term.into(),
-            estimate,
-            std_error,
-            t,
-            p_value: distributions::t_two_sided_p(t, df),
-            ci_low: estimate - q * std_error,
-            ci_high: estimate + q * std_error,
-            standardized,
-        }
-    };
+    let n_rows = n as usize;
+    let quality = FitQuality::from_sums(n_rows, 2, true, rss, syy);
+    let sigma = quality.residual_std_error;
+    let inference = TInference::new(level, (n - 2) as f64);
     let slope_se = sigma / sxx.sqrt();
-    let intercept_se = sigma * (1.0 / nf + m.mean(0) * m.mean(0) / sxx).sqrt();
+    let intercept_se = sigma * (1.0 / n as f64 + m.mean(0) * m.mean(0) / sxx).sqrt();
     let standardized = b * sxx.sqrt() / syy.sqrt();
-    let ms_residual = rss / df;
-    let ss_model = syy - rss;
-    let f = ss_model / ms_residual;
     Ok(LineSummary {
         n,
         level,
-        intercept: coefficient("intercept", a, intercept_se, None),
-        slope: coefficient("x", b, slope_se, Some(standardized)),
-        r_squared,
-        adj_r_squared: 1.0 - (1.0 - r_squared) * (nf - 1.0) / df,
+        intercept: inference.coefficient("intercept", a, intercept_se, None),
+        slope: inference.coefficient("x", b, slope_se, Some(standardized)),
+        r_squared: quality.r_squared,
+        adj_r_squared: quality.adj_r_squared,
         residual_std_error: sigma,
         r: m.correlation(0, 1).unwrap_or(0.0),
-        anova: Anova {
-            ss_model,
-            ss_residual: rss,
-            ss_total: syy,
-            df_model: 1,
-            df_residual: (n - 2) as usize,
-            ms_model: Some(ss_model),
-            ms_residual,
-            f_statistic: Some(f),
-            f_p_value: Some(distributions::f_upper_tail(f, 1.0, df)),
-        },
+        anova: quality.anova,
         residual_pass,
         x_range: (m.min(0), m.max(0)),
         y_range: (m.min(1), m.max(1)),

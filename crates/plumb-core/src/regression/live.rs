@@ -21,8 +21,9 @@ use rayon::prelude::*;
 
 use super::basis::Basis;
 use super::design::{Design, TermKind};
+use super::quality::{FitQuality, TInference};
 use super::{fit, FitOptions, LinearFit};
-use crate::{distributions, CoreError, Result};
+use crate::{CoreError, Result};
 
 /// Changes between rebuilds of the sums from the rows.
 pub const REFRESH_EVERY: usize = 16;
@@ -374,36 +375,29 @@ impl LiveFit {
         } else {
             self.sum_yy
         };
-        let df = (n - p) as f64;
-        let s2 = rss / df;
+        let quality = FitQuality::from_sums(n, p, intercept, rss, tss);
+        let s2 = quality.residual_std_error.powi(2);
         let cov = t * &self.a_inv * t.transpose();
         let std_errors: Vec<f64> = (0..p).map(|j| (s2 * cov[(j, j)]).sqrt()).collect();
-        let r_squared = 1.0 - rss / tss;
-        let k0 = usize::from(intercept);
-        let df_model = p - k0;
-        let f_test = (df_model > 0).then(|| {
-            let f = ((tss - rss) / df_model as f64) / s2;
-            (f, distributions::f_upper_tail(f, df_model as f64, df))
-        });
-        let q = distributions::t_upper_quantile(0.5 * (1.0 - self.options.level), df);
+        let inference = TInference::new(self.options.level, (n - p) as f64);
         Ok(LiveSummary {
             n,
             p_values: beta
                 .iter()
                 .zip(&std_errors)
-                .map(|(b, s)| distributions::t_two_sided_p(b / s, df))
+                .map(|(b, s)| inference.p_value(b / s))
                 .collect(),
             ci: beta
                 .iter()
                 .zip(&std_errors)
-                .map(|(b, s)| (b - q * s, b + q * s))
+                .map(|(&b, &s)| inference.interval(b, s))
                 .collect(),
             estimates: beta,
             std_errors,
-            r_squared,
-            adj_r_squared: 1.0 - (1.0 - r_squared) * (n - k0) as f64 / df,
-            residual_std_error: s2.sqrt(),
-            f_test,
+            r_squared: quality.r_squared,
+            adj_r_squared: quality.adj_r_squared,
+            residual_std_error: quality.residual_std_error,
+            f_test: quality.f_test(),
             refitted: false,
         })
     }
