@@ -12,6 +12,7 @@ mod error;
 pub mod report;
 mod session;
 pub mod text;
+pub mod wording;
 
 pub use atomic::write_atomically;
 pub use effects::{exclusion_effects, Effect, Headline};

@@ -11,6 +11,7 @@ use crate::charts::{leverage_chart, pair_chart, residual_chart, Chart, Dot, Pair
 use crate::effects::{exclusion_effects, Effect};
 use crate::session::Exclusion;
 use crate::text::{csv, exact, html, num, p};
+use crate::wording;
 use crate::{write_atomically, Result};
 
 const STYLE: &str = include_str!("report.css");
@@ -326,33 +327,30 @@ fn page(
     }
     let _ = writeln!(out, "</section>");
 
-    let mut cues = Vec::new();
-    if let Some(c) = extras.and_then(|e| e.cues.as_ref()) {
-        if c.nonlinear {
-            cues.push("The pair has a strong pattern that is not a straight line; r and R² of a line understate it.".to_string());
-        }
-        if c.driven_by_one_point {
-            cues.push(format!(
-                "One point carries the association: r is {} with row {} and {} without it.",
-                num(c.r),
-                sel.rows[c.most_influential],
-                num(c.r_without_most_influential)
-            ));
-        }
-    }
+    let mut cues: Vec<String> = extras
+        .and_then(|e| e.cues.as_ref())
+        .map(|c| wording::pair_cues(c, |i| sel.rows.get(i).copied()))
+        .unwrap_or_default()
+        .into_iter()
+        .map(|c| c.text)
+        .collect();
     if effects
         .iter()
         .any(|e| e.rows.len() == 1 && reason_of(log, e.rows[0]).is_none())
     {
         cues.push("Some exclusions have no recorded reason; every exclusion needs one.".into());
     }
-    cues.push("One model is reported here; if it was chosen among many pairs or models, its p-values overstate the evidence.".into());
+    cues.push(wording::ONE_MODEL_OF_MANY.into());
     let _ = writeln!(out, "<section><h2>Cues</h2><ul>");
     for c in &cues {
         let _ = writeln!(out, "<li>{}</li>", html(c));
     }
     let _ = writeln!(out, "</ul></section>");
-    let _ = writeln!(out, "<section class=\"caution\"><h2>Cautions</h2><ul><li>Association is not causation.</li><li>An exclusion needs a documented reason; the log above lists each with its effect.</li><li>Where these results inform decisions about health or safety, follow your laboratory's validation protocol and local regulations.</li></ul></section>");
+    let _ = write!(out, "<section class=\"caution\"><h2>Cautions</h2><ul>");
+    for c in wording::FIT_CAUTIONS {
+        let _ = write!(out, "<li>{}</li>", html(c));
+    }
+    let _ = writeln!(out, "</ul></section>");
     let _ = writeln!(
         out,
         "<footer>Plumbline {} · reproduce with <code>{}</code></footer>\n</body>\n</html>",

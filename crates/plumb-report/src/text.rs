@@ -25,21 +25,40 @@ pub fn csv(s: &str) -> String {
     }
 }
 
-/// Six significant digits for people; "—" for undefined values.
+/// Six significant digits for people; "—" for undefined values (see [`sig`]).
 pub fn num(v: f64) -> String {
+    sig(v, 6)
+}
+
+/// `digits` significant digits for people (at least 1): fixed-point between 1e-4 and
+/// `10^(digits + 1)`, scientific (`1.235e5`) outside; "—" for undefined values.
+pub fn sig(v: f64, digits: u32) -> String {
     if !v.is_finite() {
         return "—".into();
     }
+    let digits = digits.max(1) as i32;
     let a = v.abs();
-    if a != 0.0 && !(1e-4..1e7).contains(&a) {
-        format!("{v:.4e}")
+    if a != 0.0 && !(1e-4..10f64.powi(digits + 1)).contains(&a) {
+        let mantissa = (digits - 1) as usize;
+        format!("{v:.mantissa$e}")
     } else {
-        let digits = if a == 0.0 {
+        let magnitude = if a == 0.0 {
             0
         } else {
             a.log10().floor() as i32
         };
-        let decimals = (5 - digits).clamp(0, 10) as usize;
+        let decimals = (digits - 1 - magnitude).clamp(0, 10) as usize;
+        format!("{v:.decimals$}")
+    }
+}
+
+/// `decimals` digits after the point, scientific (`3.000e9`) from 1e7 up; "—" when undefined.
+pub fn fixed(v: f64, decimals: usize) -> String {
+    if !v.is_finite() {
+        "—".into()
+    } else if v.abs() >= 1e7 {
+        format!("{v:.3e}")
+    } else {
         format!("{v:.decimals$}")
     }
 }
@@ -112,5 +131,18 @@ mod tests {
         assert_eq!(exact(f64::NAN), "");
         assert_eq!(shell_word("jar-tests.csv"), "jar-tests.csv");
         assert_eq!(shell_word("it's here"), "'it'\\''s here'");
+    }
+
+    #[test]
+    fn significant_digits_switch_to_exponents_outside_their_range() {
+        assert_eq!(num(0.802_402_3), "0.802402");
+        assert_eq!(num(12_345_678.0), "1.23457e7");
+        assert_eq!(sig(9.843_004, 4), "9.843");
+        assert_eq!(sig(11.8435, 4), "11.84");
+        assert_eq!(sig(-0.297_967, 4), "-0.2980");
+        assert_eq!(sig(123_456.0, 4), "1.235e5");
+        assert_eq!(sig(f64::NAN, 4), "—");
+        assert_eq!(fixed(2.5, 2), "2.50");
+        assert_eq!(fixed(3.0e9, 2), "3.000e9");
     }
 }

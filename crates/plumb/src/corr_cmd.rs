@@ -185,9 +185,9 @@ fn text(
             let fades = det[i][j].is_some_and(|r| r.abs() < TREND_FADES)
                 || diff[i][j].is_some_and(|r| r.abs() < TREND_FADES);
             if strong && fades {
-                cues.push(format!(
-                    "{} and {} move together mostly because both drift along the order",
-                    columns[i], columns[j]
+                cues.push(plumb_report::wording::shared_trend(
+                    &columns[i],
+                    &columns[j],
                 ));
             }
         }
@@ -199,6 +199,10 @@ fn text(
     for cue in cues {
         let _ = writeln!(out, "\n  cue: {cue}");
     }
-    let _ = writeln!(out, "\n  note: association is not causation; a coefficient summarizes one kind of pattern only.");
+    let _ = writeln!(
+        out,
+        "\n  note: {}",
+        plumb_report::wording::line(&plumb_report::wording::MAP_CAUTIONS)
+    );
     out
 }

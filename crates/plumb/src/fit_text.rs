@@ -5,7 +5,8 @@ use std::fmt::Write;
 
 use plumb_data::analysis::{FitOutcome, FitRequest, PairExtras, RobustFit};
 use plumb_data::Table;
-use plumb_report::text::{num, p as pval};
+use plumb_report::text::{fixed, num, p as pval};
+use plumb_report::wording;
 
 /// Condition number above which the text output warns that the terms nearly coincide.
 /// Common practice, no source: around 1e8 half of double precision's digits are at risk.
@@ -92,24 +93,8 @@ fn write_extras(out: &mut String, o: &FitOutcome, e: &PairExtras) -> std::fmt::R
         writeln!(out, "  adding powers        {}", steps.join("; "))?;
     }
     if let Some(c) = &e.cues {
-        let curve_gain = c.curve_r_squared.is_some_and(|v| {
-            v - c.linear_r_squared >= plumb_core::cues::CURVE_R2_GAIN
-                && v >= plumb_core::cues::CURVE_R2_STRONG
-        });
-        if c.nonlinear && curve_gain {
-            writeln!(out, "  cue: the pair follows a curve, not a straight line (line R² {:.3}, best curve R² {}); r understates it", c.linear_r_squared, c.curve_r_squared.map_or_else(|| "—".into(), |v| format!("{v:.3}")))?;
-        } else if c.nonlinear {
-            let dcor = c.distance_correlation.map_or_else(
-                || "—".into(),
-                |d| format!("{:.3} (permutation p {})", d.0, pval(d.1)),
-            );
-            let grid = c
-                .grid_independence
-                .map_or_else(|| "—".into(), |g| pval(g.2));
-            writeln!(out, "  cue: x and y depend on each other in a way r does not see (distance correlation {dcor}, quantile-grid test p {grid}); plot the pair")?;
-        }
-        if c.driven_by_one_point {
-            writeln!(out, "  cue: r is {:.3} with row {} and {:.3} without it; one point carries the association", c.r, rows[c.most_influential], c.r_without_most_influential)?;
+        for cue in wording::pair_cues(c, |i| rows.get(i).copied()) {
+            writeln!(out, "  cue: {}", cue.text)?;
         }
     }
     writeln!(out)
@@ -273,7 +258,7 @@ fn write_cautions(out: &mut String, table: &Table, o: &FitOutcome) -> std::fmt::
             "  note: rows were excluded by hand; record a reason for each with the results."
         )?;
     }
-    writeln!(out, "  note: association is not causation; follow your laboratory's validation protocol and local regulations.")?;
+    writeln!(out, "  note: {}", wording::line(&wording::FIT_CAUTIONS))?;
     for note in table.notes() {
         writeln!(out, "  note: {note}")?;
     }
@@ -285,23 +270,4 @@ fn join_rows(rows: &[usize]) -> String {
         .map(ToString::to_string)
         .collect::<Vec<_>>()
         .join(", ")
-}
-
-fn fixed(v: f64, decimals: usize) -> String {
-    if v.is_finite() && v.abs() >= 1e7 {
-        format!("{v:.3e}")
-    } else {
-        format!("{v:.decimals$}")
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn fixed_switches_to_exponents_for_huge_values() {
-        assert_eq!(fixed(2.5, 2), "2.50");
-        assert_eq!(fixed(3.0e9, 2), "3.000e9");
-    }
 }

@@ -13,6 +13,7 @@ use plumb_core::regression::{
 };
 use plumb_data::{stream_columns, StreamOptions, StreamSummary};
 use plumb_report::text::{num, p};
+use plumb_report::wording;
 use serde::Serialize;
 
 use crate::cli::{Format, StreamArgs};
@@ -120,7 +121,8 @@ fn text(args: &StreamArgs, s: &StreamSummary, line: &LineSummary) -> anyhow::Res
     )?;
     writeln!(out)?;
     writeln!(out, "  note: no rows were excluded and no per-row diagnostics were computed (the file is not held in memory); to inspect rows, open an extract in the workbench.")?;
-    writeln!(out, "  note: association is not causation; follow your laboratory's validation protocol and local regulations.")?;
+    let cautions = [wording::NOT_CAUSATION, wording::FOLLOW_PROTOCOL];
+    writeln!(out, "  note: {}", wording::line(&cautions))?;
     Ok(out)
 }
 

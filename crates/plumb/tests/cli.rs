@@ -135,7 +135,7 @@ mod contract {
         assert!(out.status.success(), "{}", stderr(&out));
         let text = String::from_utf8_lossy(&out.stdout);
         assert!(text.contains("R² (uncentered)"), "{text}");
-        assert!(text.contains("association is not causation"), "{text}");
+        assert!(text.contains("Association is not causation"), "{text}");
     }
 }
 
