@@ -2,7 +2,7 @@
 
 use std::path::Path;
 
-use plumb_data::analysis::{run_fit, FitRequest};
+use plumb_data::analysis::{analyze, FitRequest, Wanted};
 use plumb_data::{load, LoadOptions};
 
 fn demo(name: &str) -> std::path::PathBuf {
@@ -27,8 +27,8 @@ fn decimal_comma_export_fits_like_the_same_numbers_written_with_points() {
         exclude: vec![17, 38],
         ..FitRequest::default()
     };
-    let a = run_fit(&jar, &request).expect("fits");
-    let b = run_fit(&points, &request).expect("fits");
+    let a = analyze(&jar, &request, Wanted::default()).expect("fits");
+    let b = analyze(&points, &request, Wanted::default()).expect("fits");
     assert_eq!(a.fit, b.fit, "identical numbers give identical fits");
     assert_eq!(a.selection.rows.len(), 46);
 }
@@ -45,7 +45,7 @@ fn weights_column_with_a_zero_names_its_row() {
         weights: Some("w".into()),
         ..FitRequest::default()
     };
-    let err = run_fit(&table, &request).expect_err("zero weight");
+    let err = analyze(&table, &request, Wanted::default()).expect_err("zero weight");
     let message = err.to_string();
     assert!(
         message.contains("row 3") && message.contains("column 'w'"),

@@ -14,8 +14,7 @@
 use std::time::{Duration, Instant};
 
 use eframe::egui;
-use plumb_app::pair::PairSpec;
-use plumb_app::{Screen, Workbench};
+use plumb_app::{Action, PairSpec, Screen, Workbench};
 
 fn frame(ctx: &egui::Context, wb: &mut Workbench, events: Vec<egui::Event>) -> Duration {
     let input = egui::RawInput {
@@ -66,9 +65,9 @@ fn main() {
     let ctx = egui::Context::default();
     let mut wb = Workbench::new(None);
     let t0 = Instant::now();
-    wb.open_path(std::path::Path::new(data));
+    wb.apply(Action::Open(data.into()));
     while wb.is_loading() {
-        wb.poll_background();
+        wb.poll();
         std::thread::sleep(Duration::from_millis(20));
     }
     let Some(loaded) = wb.loaded() else {
@@ -78,8 +77,9 @@ fn main() {
     let rows = loaded.dataset.table.n_rows();
     println!("loaded {rows} rows in {:.2} s", t0.elapsed().as_secs_f64());
     let t1 = Instant::now();
-    assert!(wb.open_pair(PairSpec::line(y, x)), "pair opens");
-    wb.set_screen(Screen::Bench);
+    wb.apply(Action::OpenPair(PairSpec::line(y, x)));
+    assert!(wb.bench().pair().is_some(), "pair opens");
+    wb.apply(Action::Show(Screen::Bench));
     println!(
         "pair opened (live fit and hover index) in {:.3} s",
         t1.elapsed().as_secs_f64()
@@ -91,7 +91,7 @@ fn main() {
         t2.elapsed().as_secs_f64()
     );
 
-    let t = wb.bench().scatter_transform.expect("scatter drawn");
+    let t = wb.scatter_transform().expect("scatter drawn");
     let r = t.frame();
     let sweep: Vec<egui::Pos2> = (0..frames)
         .map(|k| {
@@ -115,8 +115,10 @@ fn main() {
 
     let first_row = wb.bench().pair().expect("pair").rows[0];
     let t3 = Instant::now();
-    wb.exclude_rows(&[first_row]);
-    wb.record_reason("benchmark");
+    wb.apply(Action::Exclude {
+        rows: vec![first_row],
+        reason: Some("benchmark".into()),
+    });
     let update = t3.elapsed();
     let after: Vec<Duration> = (0..30).map(|_| frame(&ctx, &mut wb, Vec::new())).collect();
     println!(

@@ -8,8 +8,10 @@ use std::time::{Duration, Instant};
 
 use eframe::egui;
 
-use crate::app::{Screen, Workbench};
-use crate::pair::PairSpec;
+use crate::action::Action;
+use crate::state::pair::PairSpec;
+use crate::state::Screen;
+use crate::workbench::Workbench;
 use crate::WorkbenchError;
 
 /// How the window starts.
@@ -30,7 +32,7 @@ pub struct Launch {
     /// Colours (default: follow the system).
     pub theme: Option<egui::ThemePreference>,
     /// Overlays on the scatter.
-    pub overlays: crate::derived::Overlays,
+    pub overlays: crate::state::diagnostics::Overlays,
     /// Text column colouring the points.
     pub colour_by: Option<String>,
     /// Read `data` in the one-pass view (for files too large to load) instead of loading it.
@@ -76,20 +78,25 @@ impl eframe::App for Window {
     }
 }
 
-/// Once the file is in: the pair, the exclusions and the screen asked for.
+/// Once the file is in: the pair, the exclusions and the screen asked for, as the actions an
+/// analyst would take.
 fn apply_after_load(wb: &mut Workbench, launch: Launch) {
     if let Some((y, x)) = &launch.pair {
-        if wb.open_pair(PairSpec::line(y, x)) {
-            wb.set_screen(Screen::Bench);
+        wb.apply(Action::OpenPair(PairSpec::line(y, x)));
+        if wb.bench().pair().is_some() {
+            wb.apply(Action::Show(Screen::Bench));
         }
     }
-    wb.set_overlays(launch.overlays, launch.colour_by.clone());
+    wb.apply(Action::SetOverlays(launch.overlays));
+    wb.apply(Action::ColourBy(launch.colour_by.clone()));
     if !launch.exclude.is_empty() {
-        wb.exclude_rows(&launch.exclude);
-        wb.record_reason("excluded from the command line (--exclude)");
+        wb.apply(Action::Exclude {
+            rows: launch.exclude.clone(),
+            reason: Some("excluded from the command line (--exclude)".into()),
+        });
     }
     if let Some(s) = launch.screen {
-        wb.set_screen(s);
+        wb.apply(Action::Show(s));
     }
 }
 
@@ -163,8 +170,7 @@ pub fn run(launch: Launch) -> Result<(), WorkbenchError> {
         Box::new(move |cc| {
             let mut wb = Workbench::default();
             if shooter.is_some() {
-                // A screenshot shows the file asked for, not last run's recovery question.
-                wb.ask = None;
+                wb.dismiss_question();
             }
             wb.set_context(cc.egui_ctx.clone());
             if let Some(t) = app_launch.theme {
@@ -172,11 +178,14 @@ pub fn run(launch: Launch) -> Result<(), WorkbenchError> {
             }
             let pending = match &app_launch.data {
                 Some(d) if app_launch.one_pass => {
-                    wb.open_one_pass(d, app_launch.pair.clone());
+                    wb.apply(Action::OpenOnePass {
+                        path: d.clone(),
+                        pair: app_launch.pair.clone(),
+                    });
                     None
                 }
                 Some(d) => {
-                    wb.open_path(d);
+                    wb.apply(Action::Open(d.clone()));
                     Some(app_launch)
                 }
                 None => Some(app_launch),

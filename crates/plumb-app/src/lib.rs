@@ -1,33 +1,31 @@
 //! Plumbline's desktop workbench: the columns of a file, a map of how they move together, and
 //! a bench for one pair where excluding or moving a point recomputes the fit live.
 //!
-//! The app holds state and draws it; every number comes from `plumb-core` (through
-//! `plumb-data`'s shared analysis path where the command line uses it too).
+//! The parts, each depending only on those before it:
+//!
+//! * [`state`]: everything the workbench knows (the file and its session, the marks and their
+//!   history, the pair with its live fit and diagnostics, the map, the one-pass view); every
+//!   number comes from `plumb-core` through `plumb-data`'s analysis route, as on the command line;
+//! * [`action`]: the vocabulary of changes ([`Action`]);
+//! * the panels (the screens and the bench), which draw from read-only state and return actions;
+//! * [`Workbench`]: the frame loop, which applies the actions in one place after drawing.
 
-mod app;
-pub mod bench;
-mod chrome;
-pub mod cloud;
-mod columns;
-pub mod dataset;
+pub mod action;
+mod axes;
+mod bench;
 pub mod density;
-pub mod derived;
 mod error;
-mod files;
-pub mod jobs;
 mod launch;
-mod ledger;
-pub mod marks;
-pub mod numbers;
-pub mod overview;
-pub mod pair;
 pub mod palette;
-mod plots;
-pub mod sessions;
-pub mod settings;
-pub mod sweep;
+mod screens;
+pub mod state;
+mod workbench;
 
-pub use app::{Ask, Loaded, Screen, Status, Workbench};
+pub use action::{Action, Actions};
 pub use eframe::egui::ThemePreference;
 pub use error::WorkbenchError;
 pub use launch::{run, Launch};
+pub use state::diagnostics::Overlays;
+pub use state::pair::PairSpec;
+pub use state::{Ask, DialogPurpose, Loaded, Screen, State, Status};
+pub use workbench::Workbench;

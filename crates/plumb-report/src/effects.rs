@@ -1,7 +1,7 @@
 //! What each exclusion does to the answer: the fit before and after, one exclusion at a time
 //! and all together.
 
-use plumb_data::analysis::{run_fit, FitRequest};
+use plumb_data::analysis::{analyze, FitRequest, Wanted};
 use plumb_data::Table;
 
 use crate::Result;
@@ -31,7 +31,7 @@ pub struct Effect {
 fn headline(table: &Table, request: &FitRequest, exclude: Vec<usize>) -> Result<Headline> {
     let mut r = request.clone();
     r.exclude = exclude;
-    let fit = run_fit(table, &r)?.fit;
+    let fit = analyze(table, &r, Wanted::default())?.fit;
     let slope = fit
         .coefficients
         .iter()

@@ -4,7 +4,7 @@ use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 
 use plumb_core::regression::LinearFit;
-use plumb_data::analysis::{pair_extras, run_influence, ExtrasRequest, FitOutcome, FitRequest};
+use plumb_data::analysis::{analyze, Analysis, ExtrasRequest, FitRequest, Wanted};
 use plumb_data::Table;
 
 use crate::charts::{leverage_chart, pair_chart, residual_chart, Chart, Dot, PairChart};
@@ -51,16 +51,20 @@ pub struct Report {
 pub fn build(input: &ReportInput<'_>) -> Result<Report> {
     let request = &input.request;
     // One fit serves the tables, the charts and the diagnostics.
-    let (outcome, cases) = run_influence(input.table, request)?;
-    let extras = pair_extras(&outcome, request, ExtrasRequest::default());
+    let wanted = Wanted {
+        influence: true,
+        extras: Some(ExtrasRequest::default()),
+    };
+    let outcome = analyze(input.table, request, wanted)?;
+    let (cases, extras) = (&outcome.cases, outcome.extras.as_ref());
     let effects = exclusion_effects(input.table, request)?;
-    let charts = draw_charts(input, &outcome, &cases, extras.as_ref())?;
+    let charts = draw_charts(input, &outcome, cases, extras)?;
     let mut out = String::new();
     page(
         &mut out,
         input,
         &outcome,
-        extras.as_ref(),
+        extras,
         &effects,
         &input.exclusions,
         &charts,
@@ -100,7 +104,7 @@ pub fn write(report: &Report, out: &Path) -> Result<Vec<PathBuf>> {
 
 fn draw_charts(
     input: &ReportInput<'_>,
-    outcome: &FitOutcome,
+    outcome: &Analysis,
     cases: &[plumb_core::regression::CaseInfluence],
     extras: Option<&plumb_data::analysis::PairExtras>,
 ) -> Result<Vec<Chart>> {
@@ -217,7 +221,7 @@ fn draw_charts(
 fn page(
     out: &mut String,
     input: &ReportInput<'_>,
-    outcome: &FitOutcome,
+    outcome: &Analysis,
     extras: Option<&plumb_data::analysis::PairExtras>,
     effects: &[Effect],
     log: &[Exclusion],
@@ -364,7 +368,7 @@ fn reason_of(log: &[Exclusion], row: usize) -> Option<&Exclusion> {
         .find(|e| e.row == row && !e.reason.trim().is_empty())
 }
 
-fn statistics_csv(fit: &LinearFit, outcome: &FitOutcome) -> String {
+fn statistics_csv(fit: &LinearFit, outcome: &Analysis) -> String {
     let mut out = String::from("section,name,term,value\n");
     let mut row = |section: &str, name: &str, term: &str, v: String| {
         let _ = writeln!(out, "{},{},{},{}", csv(section), csv(name), csv(term), v);

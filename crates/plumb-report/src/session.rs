@@ -127,6 +127,7 @@ impl ModelSpec {
             weights: self.weights.clone(),
             exclude,
             level: self.level,
+            what_if: Vec::new(),
         }
     }
 

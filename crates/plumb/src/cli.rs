@@ -282,6 +282,7 @@ impl ModelArgs {
                 .map(|r| r.0.clone())
                 .unwrap_or_default(),
             level: self.level,
+            what_if: Vec::new(),
         }
     }
 }

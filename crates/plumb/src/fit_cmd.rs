@@ -1,6 +1,6 @@
 //! `plumb fit`: load, fit, print.
 
-use plumb_data::analysis::{pair_extras, run_fit, ExtrasRequest};
+use plumb_data::analysis::{analyze, ExtrasRequest, Wanted};
 
 use crate::cli::{FitArgs, Format};
 use crate::{fit_json, fit_text};
@@ -14,15 +14,18 @@ pub fn run(args: &FitArgs) -> anyhow::Result<String> {
             request.x.len()
         );
     }
-    let outcome = run_fit(&table, &request)?;
-    let wanted = ExtrasRequest {
-        robust: args.robust,
-        loess_span: args.loess,
-        at: args.at,
+    let wanted = Wanted {
+        influence: false,
+        extras: Some(ExtrasRequest {
+            robust: args.robust,
+            loess_span: args.loess,
+            at: args.at,
+        }),
     };
-    let extras = pair_extras(&outcome, &request, wanted);
+    let outcome = analyze(&table, &request, wanted)?;
+    let extras = outcome.extras.as_ref();
     Ok(match args.format {
-        Format::Json => fit_json::render(&table, &request, &outcome, extras.as_ref())?,
-        Format::Text => fit_text::render(&table, &request, &outcome, extras.as_ref()),
+        Format::Json => fit_json::render(&table, &request, &outcome, extras)?,
+        Format::Text => fit_text::render(&table, &request, &outcome, extras),
     })
 }

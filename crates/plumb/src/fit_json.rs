@@ -4,7 +4,7 @@
 //! a value that is not finite (for example t when the fit is exact) is written as `null`.
 
 use plumb_core::regression::Coefficient;
-use plumb_data::analysis::{FitOutcome, FitRequest, PairExtras};
+use plumb_data::analysis::{Analysis, FitRequest, PairExtras};
 use plumb_data::Table;
 use serde::Serialize;
 
@@ -90,7 +90,7 @@ impl<'a> From<&'a Coefficient> for CoefficientJson<'a> {
 pub fn render(
     table: &Table,
     request: &FitRequest,
-    outcome: &FitOutcome,
+    outcome: &Analysis,
     extras: Option<&PairExtras>,
 ) -> serde_json::Result<String> {
     let fit = &outcome.fit;

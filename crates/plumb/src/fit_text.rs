@@ -3,7 +3,7 @@
 
 use std::fmt::Write;
 
-use plumb_data::analysis::{FitOutcome, FitRequest, PairExtras, RobustFit};
+use plumb_data::analysis::{Analysis, FitRequest, PairExtras, RobustFit};
 use plumb_data::Table;
 use plumb_report::text::{fixed, num, p as pval};
 use plumb_report::wording;
@@ -15,7 +15,7 @@ const CONDITION_WARNING: f64 = 1e8;
 pub fn render(
     table: &Table,
     request: &FitRequest,
-    outcome: &FitOutcome,
+    outcome: &Analysis,
     extras: Option<&PairExtras>,
 ) -> String {
     let mut out = String::new();
@@ -28,7 +28,7 @@ pub fn render(
     out
 }
 
-fn write_extras(out: &mut String, o: &FitOutcome, e: &PairExtras) -> std::fmt::Result {
+fn write_extras(out: &mut String, o: &Analysis, e: &PairExtras) -> std::fmt::Result {
     let rows = &o.selection.rows;
     if let Some(z) = &e.z_view {
         writeln!(out, "  in z-units           slope {} (= r), slope² {} (= R² of the line); a unit z SDs out on x is expected {}·z SDs out on y", fixed(z.slope, 4), fixed(z.slope_squared, 4), fixed(z.slope, 3))?;
@@ -104,7 +104,7 @@ fn write_all(
     out: &mut String,
     table: &Table,
     request: &FitRequest,
-    o: &FitOutcome,
+    o: &Analysis,
 ) -> std::fmt::Result {
     let fit = &o.fit;
     let sel = &o.selection;
@@ -247,7 +247,7 @@ fn write_all(
     Ok(())
 }
 
-fn write_cautions(out: &mut String, table: &Table, o: &FitOutcome) -> std::fmt::Result {
+fn write_cautions(out: &mut String, table: &Table, o: &Analysis) -> std::fmt::Result {
     let (fit, sel) = (&o.fit, &o.selection);
     if fit.condition_number > CONDITION_WARNING {
         writeln!(out, "  warning: the terms nearly coincide (condition number {:.2e}); estimates may be unstable", fit.condition_number)?;

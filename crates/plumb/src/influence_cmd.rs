@@ -5,7 +5,7 @@ use std::fmt::Write;
 use plumb_core::regression::{
     CaseInfluence, COOKS_FLAG_NUMERATOR, LEVERAGE_FLAG_FACTOR, STUDENTIZED_FLAG,
 };
-use plumb_data::analysis::run_influence;
+use plumb_data::analysis::{analyze, Wanted};
 use serde::Serialize;
 
 use crate::cli::{Format, InfluenceArgs};
@@ -47,7 +47,12 @@ struct RowJson<'a> {
 
 pub fn run(args: &InfluenceArgs) -> anyhow::Result<String> {
     let table = plumb_data::load(&args.load.data, &args.load.options())?;
-    let (outcome, cases) = run_influence(&table, &args.model.request())?;
+    let wanted = Wanted {
+        influence: true,
+        extras: None,
+    };
+    let outcome = analyze(&table, &args.model.request(), wanted)?;
+    let cases = &outcome.cases;
     let n = outcome.fit.n;
     let p = outcome.fit.coefficients.len();
     let thresholds = Thresholds {
@@ -60,7 +65,7 @@ pub fn run(args: &InfluenceArgs) -> anyhow::Result<String> {
         .selection
         .rows
         .iter()
-        .zip(&cases)
+        .zip(cases)
         .map(|(&row, c)| row_json(row, c))
         .collect();
     Ok(match args.format {

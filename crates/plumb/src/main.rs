@@ -47,12 +47,12 @@ fn workbench(a: cli::WorkbenchArgs) -> anyhow::Result<String> {
         exclude: a.exclude.map(|r| r.0).unwrap_or_default(),
         screen: a.screen.map(|s| match s {
             cli::ScreenArg::Columns => plumb_app::Screen::Columns,
-            cli::ScreenArg::Map => plumb_app::Screen::Overview,
+            cli::ScreenArg::Map => plumb_app::Screen::Map,
             cli::ScreenArg::Bench => plumb_app::Screen::Bench,
         }),
         screenshot: a.screenshot.clone(),
         size: a.window_size,
-        overlays: plumb_app::derived::Overlays {
+        overlays: plumb_app::Overlays {
             theil_sen: a.overlays.contains(&cli::OverlayArg::TheilSen),
             deming: a.overlays.contains(&cli::OverlayArg::Deming),
             loess: a.overlays.contains(&cli::OverlayArg::Loess),

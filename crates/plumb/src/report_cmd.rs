@@ -159,6 +159,7 @@ fn from_data(args: &ReportArgs) -> anyhow::Result<Prepared> {
         weights: args.weights.clone(),
         exclude,
         level: args.level,
+        what_if: Vec::new(),
     };
     let reproduce = std::iter::once("plumb".to_string())
         .chain(std::env::args().skip(1))

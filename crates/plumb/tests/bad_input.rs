@@ -205,8 +205,8 @@ fn a_ten_megabyte_line_is_refused_with_a_short_message() {
 /// where the command line refuses the default model, the bench must refuse it too.
 #[test]
 fn the_workbench_loader_answers_the_corpus_as_the_command_line_does() {
-    use plumb_app::dataset::Dataset;
-    use plumb_app::pair::{Pair, PairSpec};
+    use plumb_app::state::dataset::Dataset;
+    use plumb_app::state::pair::{Pair, PairSpec};
     let mut failures = Vec::new();
     for (name, extra, code, _) in CASES {
         let path = corpus(name);
@@ -251,10 +251,10 @@ fn the_workbench_loader_answers_the_corpus_as_the_command_line_does() {
     for (name, _) in SESSIONS {
         let config = tempfile::tempdir().expect("config");
         let mut wb = plumb_app::Workbench::new(Some(config.path().to_path_buf()));
-        wb.open_path(&corpus(name));
+        wb.apply(plumb_app::Action::Open(corpus(name)));
         let start = std::time::Instant::now();
         while wb.is_loading() && start.elapsed() < std::time::Duration::from_secs(30) {
-            wb.poll_background();
+            wb.poll();
             std::thread::sleep(std::time::Duration::from_millis(10));
         }
         match (wb.status(), wb.loaded()) {

@@ -146,14 +146,15 @@ fn after_a_kill_the_recovery_copy_reproduces_the_exclusions_and_reasons() {
     let Some(plumb_app::Ask::Recover(offer)) = wb.ask().cloned() else {
         panic!("the next start offers the recovery copy");
     };
-    wb.restore(&offer);
+    assert!(!offer.exclusions.is_empty());
+    wb.apply(plumb_app::Action::Answer(true));
     let start = Instant::now();
     while wb.loaded().is_none() {
         assert!(
             start.elapsed() < Duration::from_secs(30),
             "restore did not load"
         );
-        wb.poll_background();
+        wb.poll();
         std::thread::sleep(Duration::from_millis(20));
     }
     let restored: Vec<(usize, String)> = wb

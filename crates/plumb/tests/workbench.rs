@@ -10,7 +10,7 @@ use std::time::{Duration, Instant};
 use eframe::egui;
 use egui_kittest::kittest::{NodeT, Queryable};
 use egui_kittest::Harness;
-use plumb_app::Workbench;
+use plumb_app::{Action, Workbench};
 use sha2::{Digest, Sha256};
 
 fn demo(name: &str) -> PathBuf {
@@ -139,7 +139,8 @@ fn excluding_a_row_shows_the_same_r_squared_as_the_command_line_and_undo_restore
     h.run_steps(1);
     h.get_by_label("Exclude row:").type_text("14");
     h.get_by_label("Exclude").click();
-    h.run_steps(2);
+    // The click's action is applied after its frame; the prompt is laid out the frame after.
+    h.run_steps(3);
     let prompt = h.get_by_label("Why leave out row 14?");
     prompt.click();
     h.run_steps(1);
@@ -197,7 +198,7 @@ fn dragging_a_point_changes_the_numbers_as_a_what_if_and_leaves_the_data_alone()
         let wb = h.state();
         let pair = wb.bench().pair().expect("pair");
         let i = pair.index_of(5).expect("row 5 is in the pair");
-        let t = wb.bench().scatter_transform.expect("scatter drawn");
+        let t = wb.scatter_transform().expect("scatter drawn");
         let at = t.position_from_point(&egui_plot::PlotPoint::new(pair.x[i], pair.y[i]));
         (pair.rows[i], (at, pair.x[i], pair.y[i]))
     };
@@ -249,7 +250,7 @@ fn the_map_counts_the_pairs_tested_and_a_strong_pair_opens_on_the_bench() {
     let config = tempfile::tempdir().expect("config dir");
     let data = demo("field-survey.csv");
     let mut h = harness(config.path());
-    h.state_mut().open_path(&data);
+    h.state_mut().apply(Action::Open(data.clone()));
     settle(&mut h);
     h.get_by_label("Co-movement map").click();
     settle(&mut h);
@@ -277,12 +278,16 @@ fn a_saved_session_reopens_with_the_same_exclusions_reasons_and_numbers() {
     std::fs::copy(demo("calibration-run.csv"), &data).expect("copy");
     let mut h = harness(config.path());
     open_calibration(&mut h, &data);
-    h.state_mut().exclude_rows(&[9, 14]);
-    h.state_mut().record_reason("both read during lamp warm-up");
+    h.state_mut().apply(Action::Exclude {
+        rows: vec![9, 14],
+        reason: None,
+    });
+    h.state_mut()
+        .apply(Action::RecordReason("both read during lamp warm-up".into()));
     settle(&mut h);
     let shown = shown_r_squared(&h);
     let session = work.path().join("run.plumb");
-    h.state_mut().save_session_to(&session);
+    h.state_mut().apply(Action::SaveSessionTo(session.clone()));
     h.step();
     assert!(!h.state().has_unsaved_changes(), "{:?}", h.state().status());
     assert!(
@@ -290,7 +295,8 @@ fn a_saved_session_reopens_with_the_same_exclusions_reasons_and_numbers() {
         "a save clears the recovery copy"
     );
     let summary = work.path().join("summary.html");
-    h.state_mut().export_summary_to(&summary);
+    h.state_mut()
+        .apply(Action::ExportSummaryTo(summary.clone()));
     let html = std::fs::read_to_string(&summary).expect("summary written");
     assert!(
         html.contains("both read during lamp warm-up"),
@@ -302,7 +308,7 @@ fn a_saved_session_reopens_with_the_same_exclusions_reasons_and_numbers() {
     );
 
     let mut again = harness(config.path());
-    again.state_mut().open_path(&session);
+    again.state_mut().apply(Action::Open(session.clone()));
     settle(&mut again);
     again.get_by_label("Pair bench").click();
     settle(&mut again);
@@ -349,7 +355,7 @@ fn a_file_over_the_memory_cap_opens_in_the_one_pass_view_with_the_command_lines_
         .type_text(&data.display().to_string());
     h.run_steps(1);
     h.get_by_label("Open").click();
-    h.run_steps(2);
+    h.run_steps(3);
     assert!(
         matches!(h.state().ask(), Some(plumb_app::Ask::TooLarge { .. })),
         "asked about the size: {:?}",
@@ -359,7 +365,7 @@ fn a_file_over_the_memory_cap_opens_in_the_one_pass_view_with_the_command_lines_
     h.run_steps(2);
     choose(&mut h, "y:", "temp_c");
     choose(&mut h, "x:", "load_kw");
-    h.state_mut().settle_sweep(Duration::from_secs(60));
+    h.state_mut().settle(Duration::from_secs(60));
     settle(&mut h);
     assert!(h.state().loaded().is_none(), "the table was not loaded");
     let shown = shown_r_squared(&h);

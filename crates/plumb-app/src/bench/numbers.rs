@@ -3,11 +3,25 @@
 
 use eframe::egui::{self, RichText};
 use plumb_core::regression::{InfluenceFlag, LiveSummary};
-use plumb_report::text::{num, p};
+use plumb_report::text::{num, p, sig};
+use plumb_report::wording;
 
-use crate::app::Workbench;
-use crate::bench::SortKey;
-use crate::pair::PairRows;
+use super::{BenchUi, Scene};
+use crate::action::{Action, Actions};
+use crate::state::diagnostics::Diagnostics;
+use crate::state::pair::PairRows;
+
+/// How the influence table is sorted.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum SortKey {
+    /// Cook's distance, largest first.
+    #[default]
+    Cook,
+    /// Leverage, largest first.
+    Leverage,
+    /// |externally studentized residual|, largest first.
+    Residual,
+}
 
 /// Rows listed in the influence table.
 const INFLUENCE_ROWS: usize = 25;
@@ -76,47 +90,54 @@ pub fn model_text(pair: &PairRows, s: &LiveSummary, csv: bool, hypothetical: boo
     out
 }
 
-/// Draws the panel.
-pub fn show(wb: &mut Workbench, ui: &mut egui::Ui) {
-    let Some(pair) = wb.bench.pair().map(crate::pair::Pair::rows) else {
-        return;
-    };
-    let hypothetical = wb.marks().is_hypothetical();
-    egui::ScrollArea::vertical().show(ui, |ui| {
-        ui.heading("Numbers");
-        if hypothetical {
-            ui.colored_label(
-                ui.visuals().warn_fg_color,
-                RichText::new("hypothetical (what-if moves)").strong(),
-            );
-        }
-        match wb.bench.summary().unwrap_or_else(|| Err("no pair".into())) {
-            Ok(s) => {
-                model(ui, wb, &pair, &s, hypothetical);
+/// Draws the panel; returns the exclusions asked for from the influence table.
+pub fn numbers_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> Actions {
+    let pair = scene.pair;
+    let hypothetical = scene.marks.is_hypothetical();
+    egui::ScrollArea::vertical()
+        .show(ui, |ui| {
+            ui.heading("Numbers");
+            if hypothetical {
+                ui.colored_label(
+                    ui.visuals().warn_fg_color,
+                    RichText::new("hypothetical (what-if moves)").strong(),
+                );
             }
-            Err(e) => {
-                ui.colored_label(ui.visuals().error_fg_color, format!("no fit: {e}"));
+            match scene.bench.summary().unwrap_or_else(|| Err("no pair".into())) {
+                Ok(s) => model_ui(ui, scene, &s, hypothetical),
+                Err(e) => {
+                    ui.colored_label(ui.visuals().error_fg_color, format!("no fit: {e}"));
+                }
             }
-        }
-        ui.separator();
-        z_units(wb, ui, &pair);
-        ui.separator();
-        cues(wb, ui);
-        ui.separator();
-        influence_table(wb, ui, &pair);
-    });
+            ui.separator();
+            ui.checkbox(&mut own.z_units, "z-units view")
+                .on_hover_text("Both columns in standard deviations from their means: the slope is then Pearson's r, and its square is R² of the straight line");
+            let diag = scene.bench.diagnostics();
+            if let (true, Some(d)) = (own.z_units, diag) {
+                z_units_ui(ui, pair, d);
+            }
+            ui.separator();
+            cues_ui(ui, pair, diag);
+            ui.separator();
+            influence_table_ui(ui, scene, own)
+        })
+        .inner
 }
 
-fn model(ui: &mut egui::Ui, wb: &Workbench, pair: &PairRows, s: &LiveSummary, hypothetical: bool) {
-    let excluded = pair.excluded_rows(wb.marks()).len();
+fn model_ui(ui: &mut egui::Ui, scene: &Scene<'_>, s: &LiveSummary, hypothetical: bool) {
+    let pair = scene.pair;
+    let excluded = pair.excluded_rows(scene.marks).len();
     ui.label(format!(
         "n = {} rows used ({} excluded, {} incomplete in the file)",
         s.n, excluded, pair.incomplete
     ));
     ui.label(RichText::new(r_squared_line(pair, s)).size(18.0).strong())
         .on_hover_text("Share of the variation in y around its mean that the fit accounts for: 1 − RSS/TSS. Without an intercept it is measured around zero (uncentred) and is not comparable.");
+    let k = if pair.spec.intercept { "n − 1" } else { "n" };
     ui.label(format!("adjusted R² = {}", num(s.adj_r_squared)))
-        .on_hover_text("R² penalised for the number of terms: 1 − (1 − R²)(n − 1)/(n − p)");
+        .on_hover_text(format!(
+            "R² penalised for the number of terms p: 1 − (1 − R²)({k})/(n − p)"
+        ));
     ui.label(format!("residual SE = {}", num(s.residual_std_error)))
         .on_hover_text("Typical size of a residual, in y's units: √(RSS/(n − p))");
     if let Some((f, fp)) = s.f_test {
@@ -144,7 +165,7 @@ fn model_grid(ui: &mut egui::Ui, pair: &PairRows, s: &LiveSummary, level: f64) {
             ui.label(num(s.estimates[j]));
             ui.label(num(s.std_errors[j]));
             ui.label(p(s.p_values[j]));
-            ui.label(format!("{} to {}", short(s.ci[j].0), short(s.ci[j].1)))
+            ui.label(format!("{} to {}", sig(s.ci[j].0, 4), sig(s.ci[j].1, 4)))
                 .on_hover_text(format!("{} to {}", num(s.ci[j].0), num(s.ci[j].1)));
             ui.end_row();
         }
@@ -170,15 +191,7 @@ fn copy_buttons(ui: &mut egui::Ui, pair: &PairRows, s: &LiveSummary, hypothetica
     });
 }
 
-fn z_units(wb: &mut Workbench, ui: &mut egui::Ui, pair: &PairRows) {
-    ui.checkbox(&mut wb.bench.standardized, "z-units view")
-        .on_hover_text("Both columns in standard deviations from their means: the slope is then Pearson's r, and its square is R² of the straight line");
-    if !wb.bench.standardized {
-        return;
-    }
-    let Some(d) = wb.bench.diagnostics() else {
-        return;
-    };
+fn z_units_ui(ui: &mut egui::Ui, pair: &PairRows, d: &Diagnostics) {
     let Some(z) = d.extras.as_ref().and_then(|e| e.z_view) else {
         ui.weak("undefined (a constant column)");
         return;
@@ -200,25 +213,23 @@ fn z_units(wb: &mut Workbench, ui: &mut egui::Ui, pair: &PairRows) {
     ));
 }
 
-fn cues(wb: &Workbench, ui: &mut egui::Ui) {
+fn cues_ui(ui: &mut egui::Ui, pair: &PairRows, diag: Option<&std::sync::Arc<Diagnostics>>) {
     ui.label(RichText::new("Cues").strong());
-    let Some(d) = wb.bench.diagnostics() else {
+    let Some(d) = diag else {
         ui.spinner();
         return;
     };
-    let Some(c) = d.extras.as_ref().and_then(|e| e.cues.clone()) else {
+    let Some(c) = d.extras.as_ref().and_then(|e| e.cues.as_ref()) else {
         ui.weak("no cues for this model");
         return;
     };
+    let said = wording::pair_cues(c, |k| d.included.get(k).map(|&e| pair.rows[e]));
+    if said.is_empty() {
+        ui.label("No strong non-linear pattern and no single row carrying r.");
+    }
     let warn = ui.visuals().warn_fg_color;
-    if c.nonlinear {
-        let curve = c.curve_r_squared.map_or("—".into(), num);
-        ui.colored_label(warn, format!(
-            "Curved or non-linear: a quadratic reaches R² {curve} against {} for the line; r describes only the straight-line part.",
-            num(c.linear_r_squared)
-        ));
-    } else {
-        ui.label("No strong non-linear pattern found.");
+    for cue in said {
+        ui.colored_label(warn, cue.text);
     }
     if let Some((dc, dp)) = c.distance_correlation {
         ui.label(format!(
@@ -228,40 +239,24 @@ fn cues(wb: &Workbench, ui: &mut egui::Ui) {
         ))
         .on_hover_text("Detects any kind of dependence, not only linear");
     }
-    if c.driven_by_one_point {
-        let row = wb
-            .bench
-            .pair()
-            .and_then(|pr| d.included.get(c.most_influential).map(|&e| pr.rows[e]));
-        ui.colored_label(
-            warn,
-            format!(
-                "One row drives r: without row {} r = {} (with it {}).",
-                row.map_or("?".into(), |r| r.to_string()),
-                num(c.r_without_most_influential),
-                num(c.r)
-            ),
-        );
-    }
-    if let Some(extras) = &d.extras {
-        for step in extras.degrees.iter().skip(1) {
-            if let Some(cmp) = &step.versus_previous {
-                ui.label(format!(
-                    "degree {}: R² {} (adding the term: F p = {})",
-                    step.degree,
-                    num(step.fit.r_squared),
-                    p(cmp.p_value)
-                ));
-            }
+    for step in d.extras.iter().flat_map(|e| e.degrees.iter().skip(1)) {
+        if let Some(cmp) = &step.versus_previous {
+            ui.label(format!(
+                "degree {}: R² {} (adding the term: F p = {})",
+                step.degree,
+                num(step.fit.r_squared),
+                p(cmp.p_value)
+            ));
         }
     }
 }
 
-fn influence_table(wb: &mut Workbench, ui: &mut egui::Ui, pair: &PairRows) {
+fn influence_table_ui(ui: &mut egui::Ui, scene: &Scene<'_>, own: &mut BenchUi) -> Actions {
+    let mut out = Actions::none();
     ui.label(RichText::new("Most influential rows").strong());
     ui.horizontal(|ui| {
         ui.label("sort by:");
-        let s = &mut wb.bench.sort;
+        let s = &mut own.sort;
         ui.radio_value(s, SortKey::Cook, "Cook's D")
             .on_hover_text("How far the whole fit moves when the row is left out");
         ui.radio_value(s, SortKey::Leverage, "leverage")
@@ -269,16 +264,14 @@ fn influence_table(wb: &mut Workbench, ui: &mut egui::Ui, pair: &PairRows) {
         ui.radio_value(s, SortKey::Residual, "residual")
             .on_hover_text("|externally studentized residual|");
     });
-    let Some(d) = wb.bench.diagnostics().cloned() else {
-        return;
+    let Some(d) = scene.bench.diagnostics() else {
+        return out;
     };
-    let order = match wb.bench.sort {
+    let order = match own.sort {
         SortKey::Cook => &d.top[0],
         SortKey::Leverage => &d.top[1],
         SortKey::Residual => &d.top[2],
     };
-    let mut pick = None;
-    let mut exclude = None;
     egui::Grid::new("influence").striped(true).show(ui, |ui| {
         for h in ["row", "leverage", "stud. resid.", "Cook's D", "flags", ""] {
             ui.label(RichText::new(h).strong());
@@ -287,29 +280,24 @@ fn influence_table(wb: &mut Workbench, ui: &mut egui::Ui, pair: &PairRows) {
         for &k in order.iter().take(INFLUENCE_ROWS) {
             let c = &d.cases[k];
             let entry = d.included[k];
-            let row = pair.rows[entry];
-            if ui.selectable_label(wb.bench.selected == Some(entry), row.to_string())
+            let row = scene.pair.rows[entry];
+            if ui.selectable_label(own.pointer.selected == Some(entry), row.to_string())
                 .on_hover_text("Ring this row in every view")
                 .clicked()
             {
-                pick = Some(entry);
+                own.pointer.selected = Some(entry);
             }
             ui.label(num(c.leverage));
             ui.label(num(c.studentized_external));
             ui.label(num(c.cooks_distance));
             ui.label(flags(&c.flags)).on_hover_text("Rules of thumb (common practice, no source): x = leverage above 2p/n (unusual x), y = |studentized residual| above 3 (unusual y), D = Cook's D above 4/n (moves the fit)");
             if ui.small_button("exclude").on_hover_text(format!("Leave row {row} out (you will be asked why)")).clicked() {
-                exclude = Some(row);
+                out.push(Action::Exclude { rows: vec![row], reason: None });
             }
             ui.end_row();
         }
     });
-    if let Some(e) = pick {
-        wb.bench.selected = Some(e);
-    }
-    if let Some(r) = exclude {
-        wb.exclude_rows(&[r]);
-    }
+    out
 }
 
 /// Short flag names for the table (the tooltip spells out the rules).
@@ -322,37 +310,4 @@ fn flags(f: &[InfluenceFlag]) -> String {
         })
         .collect::<Vec<_>>()
         .join(" ")
-}
-
-/// Four significant digits, for the interval column (the tooltip and the copies have six or
-/// all of them).
-fn short(v: f64) -> String {
-    let a = v.abs();
-    if !v.is_finite() {
-        "—".into()
-    } else if a != 0.0 && !(1e-3..1e5).contains(&a) {
-        format!("{v:.3e}")
-    } else {
-        let digits = if a == 0.0 {
-            0
-        } else {
-            a.log10().floor() as i32
-        };
-        let decimals = (3 - digits).clamp(0, 6) as usize;
-        format!("{v:.decimals$}")
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::short;
-
-    #[test]
-    fn interval_ends_keep_four_significant_digits() {
-        assert_eq!(short(9.843_004), "9.843");
-        assert_eq!(short(11.8435), "11.84");
-        assert_eq!(short(-0.297_967), "-0.2980");
-        assert_eq!(short(123_456.0), "1.235e5");
-        assert_eq!(short(f64::NAN), "—");
-    }
 }

@@ -1,22 +1,20 @@
-//! Everything about a pair that costs more than a live update: the diagnostics of every row,
-//! bands, overlays, cues and the per-exclusion effects. Computed off the UI thread after each
-//! change, from the same core functions the command line uses; a newer change supersedes an
-//! older computation.
+//! The diagnostics: everything about a pair that costs more than a live update — the case
+//! diagnostics of every row, bands, overlays, cues, per-group lines and the per-exclusion
+//! effects. Computed off the UI thread after each change through the same analysis route as
+//! the command line (`plumb_data::analysis::analyze`); a newer change supersedes an older
+//! computation.
 
 use std::sync::Arc;
 
 use plumb_core::alternative::{deming, DemingFit};
-use plumb_core::regression::{
-    fit, influence, normal_scores, CaseInfluence, Design, FitOptions, LinearFit,
-};
-use plumb_data::analysis::{pair_extras, ExtrasRequest, FitOutcome, PairExtras, Robust};
-use plumb_data::Selection;
+use plumb_core::regression::{normal_scores, polynomial_value, CaseInfluence, LinearFit};
+use plumb_data::analysis::{analyze, ExtrasRequest, PairExtras, Robust, Wanted};
 use plumb_data::Table;
 use plumb_report::{exclusion_effects, Effect};
 
-use crate::cloud::Cloud;
-use crate::marks::Marks;
-use crate::pair::{Pair, PairSpec};
+use super::cloud::Cloud;
+use super::marks::Marks;
+use super::pair::{Pair, PairSpec};
 
 /// Optional overlays on the scatter.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -45,11 +43,11 @@ impl Default for Overlays {
 /// What a diagnostics job needs (cheap to clone: the columns are shared).
 #[derive(Debug, Clone)]
 pub struct Input {
-    /// The table (for the per-exclusion effects, which refit on the file's values).
+    /// The table (the analysis reads the pair's columns from it).
     pub table: Arc<Table>,
     /// The model.
     pub spec: PairSpec,
-    /// The pair's rows and values.
+    /// The pair's data rows, ascending (entry `i` is row `rows[i]`).
     pub rows: Arc<[usize]>,
     /// Predictor values in the file.
     pub x: Arc<[f64]>,
@@ -83,17 +81,20 @@ impl Input {
             groups,
         }
     }
-}
 
-/// One point of the normal quantile view.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct QuantilePoint {
-    /// Expected normal score.
-    pub expected: f64,
-    /// Externally studentized residual (sorted).
-    pub observed: f64,
-    /// Pair entry it belongs to.
-    pub entry: usize,
+    /// Current position of entry `i`: moved (what-if) or as in the file.
+    fn point(&self, i: usize) -> (f64, f64) {
+        self.marks
+            .moved
+            .get(&self.rows[i])
+            .copied()
+            .unwrap_or((self.x[i], self.y[i]))
+    }
+
+    /// The pair entry of data row `row`.
+    fn entry_of(&self, row: usize) -> Option<usize> {
+        self.rows.binary_search(&row).ok()
+    }
 }
 
 /// The results of one diagnostics job.
@@ -103,19 +104,17 @@ pub struct Diagnostics {
     pub marks: Marks,
     /// Pair entries included, ascending; `cases[k]` belongs to `included[k]`.
     pub included: Vec<usize>,
-    /// The QR fit of the included rows at their current (possibly moved) positions.
+    /// The least-squares fit of the included rows at their current (possibly moved) positions.
     pub fit: Result<LinearFit, String>,
     /// Case diagnostics of the included rows.
     pub cases: Vec<CaseInfluence>,
-    /// Normal quantile view, sorted by expected score.
-    pub quantiles: Vec<QuantilePoint>,
     /// Bands, overlays, cues and the z-units view.
     pub extras: Option<PairExtras>,
     /// Deming line, when asked for.
     pub deming: Option<Result<DemingFit, String>>,
     /// Before/after of each exclusion and of all together (on the file's values).
     pub effects: Result<Vec<Effect>, String>,
-    /// Straight line per group level: level, intercept, slope, R², n.
+    /// Straight line per group level.
     pub group_lines: Vec<GroupLine>,
     /// Points of the residual, leverage and quantile views.
     pub views: Views,
@@ -127,20 +126,6 @@ pub struct Diagnostics {
 /// Rows kept in each influence ranking.
 pub const TOP_ROWS: usize = 50;
 
-/// The `TOP_ROWS` largest `key`s, largest first (O(n) selection, then a small sort).
-fn top_by(cases: &[CaseInfluence], key: impl Fn(&CaseInfluence) -> f64) -> Vec<usize> {
-    let mut idx: Vec<usize> = (0..cases.len())
-        .filter(|&k| key(&cases[k]).is_finite())
-        .collect();
-    let by = |a: &usize, b: &usize| key(&cases[*b]).total_cmp(&key(&cases[*a]));
-    if idx.len() > TOP_ROWS {
-        idx.select_nth_unstable_by(TOP_ROWS, by);
-        idx.truncate(TOP_ROWS);
-    }
-    idx.sort_by(by);
-    idx
-}
-
 /// Points of the three diagnostic views (included rows), and where the excluded rows fall
 /// against the current fit.
 #[derive(Debug, Clone, Default)]
@@ -149,7 +134,8 @@ pub struct Views {
     pub residual: Cloud,
     /// (leverage, internally studentized residual).
     pub leverage: Cloud,
-    /// (expected normal score, externally studentized residual).
+    /// (expected normal score `Φ⁻¹((k − 3/8)/(n + 1/4))`, sorted externally studentized
+    /// residual).
     pub quantile: Cloud,
     /// Excluded rows as (prediction of the current fit, y − prediction).
     pub excluded_residuals: Cloud,
@@ -172,164 +158,113 @@ pub struct GroupLine {
 
 /// Runs the diagnostics for `input`.
 pub fn compute(input: &Input) -> Diagnostics {
-    let included: Vec<usize> = (0..input.rows.len())
-        .filter(|&i| !input.marks.excluded.contains_key(&input.rows[i]))
-        .collect();
-    let point = |i: usize| {
-        input
-            .marks
-            .moved
-            .get(&input.rows[i])
-            .copied()
-            .unwrap_or((input.x[i], input.y[i]))
+    let wanted = Wanted {
+        influence: true,
+        extras: Some(ExtrasRequest {
+            robust: input.overlays.theil_sen.then_some(Robust::TheilSen),
+            loess_span: input.overlays.loess.then_some(input.overlays.loess_span),
+            at: None,
+        }),
     };
-    let (x, y): (Vec<f64>, Vec<f64>) = included.iter().map(|&i| point(i)).unzip();
-    let options = FitOptions {
-        level: input.spec.level,
-        ..FitOptions::default()
-    };
-    let fitted = input
-        .spec
-        .design(&x)
-        .and_then(|d| fit(&d, &y, None, &options).map(|f| (d, f)));
-    let (fit_result, cases, extras) = match fitted {
-        Ok((design, f)) => {
-            let cases = influence(&design, None, &f, &options).unwrap_or_default();
-            let extras = extras_of(input, &included, &x, &y, &f);
-            (Ok(f), cases, extras)
+    let analysis = analyze(&input.table, &input.spec.with_marks(&input.marks), wanted);
+    let (fit, cases, extras, included) = match analysis {
+        Ok(a) => {
+            let included = a
+                .selection
+                .rows
+                .iter()
+                .filter_map(|&r| input.entry_of(r))
+                .collect();
+            (Ok(a.fit), a.cases, a.extras, included)
         }
-        Err(e) => (Err(e.to_string()), Vec::new(), None),
+        Err(e) => (Err(e.to_string()), Vec::new(), None, Vec::new()),
     };
-    let quantiles = quantiles_of(&cases, &included);
-    let views = views_of(
-        input,
-        &included,
-        &cases,
-        &quantiles,
-        fit_result.as_ref().ok(),
-    );
-    let excluded: Vec<usize> = input.marks.excluded.keys().copied().collect();
-    let effects =
-        exclusion_effects(&input.table, &input.spec.request(excluded)).map_err(|e| e.to_string());
-    let top = [
-        top_by(&cases, |c| c.cooks_distance),
-        top_by(&cases, |c| c.leverage),
-        top_by(&cases, |c| c.studentized_external.abs()),
-    ];
+    let views = views_of(input, &included, &cases, fit.as_ref().ok());
+    let effects = exclusion_effects(&input.table, &input.spec.on_file_rows(&input.marks))
+        .map_err(|e| e.to_string());
+    let (x, y): (Vec<f64>, Vec<f64>) = included.iter().map(|&i| input.point(i)).unzip();
     Diagnostics {
-        top,
+        top: rankings(&cases),
         marks: input.marks.clone(),
         deming: input
             .overlays
             .deming
             .then(|| deming(&x, &y, 1.0).map_err(|e| e.to_string())),
-        group_lines: group_lines(input, &included, &x, &y),
+        group_lines: group_lines(input, &included),
         views,
         included,
-        fit: fit_result,
+        fit,
         cases,
-        quantiles,
         extras,
         effects,
     }
 }
 
-fn extras_of(
-    input: &Input,
-    included: &[usize],
-    x: &[f64],
-    y: &[f64],
-    f: &LinearFit,
-) -> Option<PairExtras> {
-    let outcome = FitOutcome {
-        selection: Selection {
-            rows: included.iter().map(|&i| input.rows[i]).collect(),
-            columns: vec![y.to_vec(), x.to_vec()],
-            dropped: Vec::new(),
-            excluded: Vec::new(),
-        },
-        fit: f.clone(),
-        vif: None,
-    };
-    let request = input.spec.request(Vec::new());
-    pair_extras(
-        &outcome,
-        &request,
-        ExtrasRequest {
-            robust: input.overlays.theil_sen.then_some(Robust::TheilSen),
-            loess_span: input.overlays.loess.then_some(input.overlays.loess_span),
-            at: None,
-        },
-    )
+/// The most influential cases by Cook's distance, leverage and |externally studentized residual|.
+fn rankings(cases: &[CaseInfluence]) -> [Vec<usize>; 3] {
+    [
+        top_by(cases, |c| c.cooks_distance),
+        top_by(cases, |c| c.leverage),
+        top_by(cases, |c| c.studentized_external.abs()),
+    ]
 }
 
-/// `ŷ(x) = Σⱼ βⱼ·x^{kⱼ}` for the pair's polynomial terms (`k = 0` for the intercept).
+/// The `TOP_ROWS` largest `key`s, largest first (O(n) selection, then a small sort).
+fn top_by(cases: &[CaseInfluence], key: impl Fn(&CaseInfluence) -> f64) -> Vec<usize> {
+    let mut idx: Vec<usize> = (0..cases.len())
+        .filter(|&k| key(&cases[k]).is_finite())
+        .collect();
+    let by = |a: &usize, b: &usize| key(&cases[*b]).total_cmp(&key(&cases[*a]));
+    if idx.len() > TOP_ROWS {
+        idx.select_nth_unstable_by(TOP_ROWS, by);
+        idx.truncate(TOP_ROWS);
+    }
+    idx.sort_by(by);
+    idx
+}
+
+/// `ŷ(x)` of the pair's fit.
 pub fn predict(spec: &PairSpec, f: &LinearFit, x: f64) -> f64 {
-    let first_power = i32::from(!spec.intercept);
-    f.coefficients
-        .iter()
-        .enumerate()
-        .map(|(j, c)| c.estimate * x.powi(j as i32 + first_power))
-        .sum()
+    let beta: Vec<f64> = f.coefficients.iter().map(|c| c.estimate).collect();
+    polynomial_value(&beta, spec.intercept, x)
 }
 
 fn views_of(
     input: &Input,
     included: &[usize],
     cases: &[CaseInfluence],
-    quantiles: &[QuantilePoint],
     f: Option<&LinearFit>,
 ) -> Views {
     if cases.len() != included.len() {
         return Views::default();
     }
-    let residual = Cloud::new(
-        cases.iter().map(|c| (c.fitted, c.residual)).collect(),
-        included.to_vec(),
-    );
-    let leverage = Cloud::new(
-        cases
-            .iter()
-            .map(|c| (c.leverage, c.studentized_internal))
-            .collect(),
-        included.to_vec(),
-    );
-    let quantile = Cloud::new(
-        quantiles.iter().map(|q| (q.expected, q.observed)).collect(),
-        quantiles.iter().map(|q| q.entry).collect(),
-    );
-    let excluded: Vec<usize> = (0..input.rows.len())
-        .filter(|&i| input.marks.excluded.contains_key(&input.rows[i]))
-        .collect();
-    let excluded_residuals = match f {
-        Some(f) => Cloud::new(
-            excluded
-                .iter()
-                .map(|&i| {
-                    let (x, y) = input
-                        .marks
-                        .moved
-                        .get(&input.rows[i])
-                        .copied()
-                        .unwrap_or((input.x[i], input.y[i]));
-                    let yhat = predict(&input.spec, f, x);
-                    (yhat, y - yhat)
-                })
-                .collect(),
-            excluded,
-        ),
-        None => Cloud::default(),
+    let cloud = |pick: fn(&CaseInfluence) -> (f64, f64)| {
+        Cloud::new(cases.iter().map(pick).collect(), included.to_vec())
     };
+    let excluded: Vec<usize> = input
+        .marks
+        .excluded
+        .keys()
+        .filter_map(|&r| input.entry_of(r))
+        .collect();
+    let excluded_residuals = f.map_or_else(Cloud::default, |f| {
+        let at = |&i: &usize| {
+            let (x, y) = input.point(i);
+            let yhat = predict(&input.spec, f, x);
+            (yhat, y - yhat)
+        };
+        Cloud::new(excluded.iter().map(at).collect(), excluded)
+    });
     Views {
-        residual,
-        leverage,
-        quantile,
+        residual: cloud(|c| (c.fitted, c.residual)),
+        leverage: cloud(|c| (c.leverage, c.studentized_internal)),
+        quantile: quantile_cloud(cases, included),
         excluded_residuals,
     }
 }
 
 /// Sorted externally studentized residuals against normal scores `Φ⁻¹((k − 3/8)/(n + 1/4))`.
-fn quantiles_of(cases: &[CaseInfluence], included: &[usize]) -> Vec<QuantilePoint> {
+fn quantile_cloud(cases: &[CaseInfluence], included: &[usize]) -> Cloud {
     let mut order: Vec<usize> = (0..cases.len())
         .filter(|&k| cases[k].studentized_external.is_finite())
         .collect();
@@ -338,38 +273,44 @@ fn quantiles_of(cases: &[CaseInfluence], included: &[usize]) -> Vec<QuantilePoin
             .studentized_external
             .total_cmp(&cases[b].studentized_external)
     });
-    normal_scores(order.len())
+    let points = normal_scores(order.len())
         .into_iter()
-        .zip(order)
-        .map(|(expected, k)| QuantilePoint {
-            expected,
-            observed: cases[k].studentized_external,
-            entry: included[k],
-        })
-        .collect()
+        .zip(&order)
+        .map(|(expected, &k)| (expected, cases[k].studentized_external))
+        .collect();
+    Cloud::new(points, order.iter().map(|&k| included[k]).collect())
 }
 
-fn group_lines(input: &Input, included: &[usize], x: &[f64], y: &[f64]) -> Vec<GroupLine> {
+/// A line per group level, fitted through the analysis route with every other row left out.
+fn group_lines(input: &Input, included: &[usize]) -> Vec<GroupLine> {
     let Some(groups) = &input.groups else {
         return Vec::new();
     };
     let levels = groups.iter().flatten().copied().max().map_or(0, |m| m + 1);
+    let line = PairSpec {
+        degree: 1,
+        intercept: true,
+        ..input.spec.clone()
+    };
     (0..levels)
         .filter_map(|level| {
-            let (gx, gy): (Vec<f64>, Vec<f64>) = included
+            let mut request = line.with_marks(&input.marks);
+            request.exclude.extend(
+                (0..input.rows.len())
+                    .filter(|&i| groups[i] != Some(level))
+                    .map(|i| input.rows[i]),
+            );
+            let n = included
                 .iter()
-                .zip(x.iter().zip(y))
-                .filter(|(&i, _)| groups[i] == Some(level))
-                .map(|(_, (&a, &b))| (a, b))
-                .unzip();
-            let design = Design::linear(&[("x", &gx)], true);
-            let f = fit(&design, &gy, None, &FitOptions::default()).ok()?;
+                .filter(|&&i| groups[i] == Some(level))
+                .count();
+            let f = analyze(&input.table, &request, Wanted::default()).ok()?.fit;
             Some(GroupLine {
                 level,
                 intercept: f.coefficients[0].estimate,
                 slope: f.coefficients[1].estimate,
                 r_squared: f.r_squared,
-                n: gx.len(),
+                n,
             })
         })
         .collect()
@@ -378,7 +319,7 @@ fn group_lines(input: &Input, included: &[usize], x: &[f64], y: &[f64]) -> Vec<G
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::marks::Note;
+    use crate::state::marks::Note;
 
     #[test]
     fn diagnostics_follow_the_marks_and_effects_use_the_file_values() {
@@ -394,7 +335,7 @@ mod tests {
             ));
         }
         std::fs::write(&path, text).expect("write");
-        let data = crate::dataset::Dataset::load(&path, &Default::default()).expect("load");
+        let data = crate::state::dataset::Dataset::load(&path, &Default::default()).expect("load");
         let pair = Pair::new(&data.table, PairSpec::line("y", "x")).expect("pair");
         let mut marks = Marks::default();
         marks.excluded.insert(
@@ -415,11 +356,8 @@ mod tests {
         assert_eq!(d.included.len(), 29);
         assert!(!d.included.contains(&12), "entry 12 is data row 13");
         assert_eq!(d.cases.len(), 29);
-        assert_eq!(d.quantiles.len(), 29);
-        assert!(d
-            .quantiles
-            .windows(2)
-            .all(|w| w[0].observed <= w[1].observed));
+        assert_eq!(d.views.quantile.points.len(), 29);
+        assert!(d.views.quantile.points.windows(2).all(|w| w[0].1 <= w[1].1));
         let effects = d.effects.expect("effects");
         assert_eq!(
             effects.len(),
@@ -448,5 +386,41 @@ mod tests {
             .clone()
             .expect("live");
         assert!((fit.r_squared - live.r_squared).abs() < 1e-12);
+    }
+
+    #[test]
+    fn a_what_if_move_reaches_the_diagnostics_through_the_analysis_route() {
+        let dir = tempfile::tempdir().expect("dir");
+        let path = dir.path().join("d.csv");
+        let text: String = std::iter::once("x,y\n".to_string())
+            .chain(
+                (0..20).map(|i| format!("{i},{}\n", 3.0 + 0.5 * f64::from(i) + f64::from(i % 4))),
+            )
+            .collect();
+        std::fs::write(&path, text).expect("write");
+        let data = crate::state::dataset::Dataset::load(&path, &Default::default()).expect("load");
+        let mut pair = Pair::new(&data.table, PairSpec::line("y", "x")).expect("pair");
+        let mut marks = Marks::default();
+        marks.moved.insert(7, (6.0, 40.0));
+        let live = pair.apply(&marks).clone().expect("live");
+        let d = compute(&Input::of(
+            &data.table,
+            &pair,
+            &marks,
+            Overlays::default(),
+            None,
+        ));
+        let fit = d.fit.expect("fit");
+        assert!((fit.r_squared - live.r_squared).abs() < 1e-12);
+        assert_eq!(fit.n, 20);
+        let k = d
+            .included
+            .iter()
+            .position(|&i| pair.rows[i] == 7)
+            .expect("row 7");
+        assert!(
+            (fit.fitted[k] + fit.residuals[k] - 40.0).abs() < 1e-9,
+            "y is the moved value"
+        );
     }
 }

@@ -3,11 +3,12 @@
 
 use std::sync::Arc;
 
-use plumb_core::regression::{Design, FitOptions, LiveFit, LiveSummary};
-use plumb_data::analysis::FitRequest;
+use plumb_core::regression::{LiveFit, LiveSummary};
+use plumb_data::analysis::{model_rows, FitRequest, WhatIf};
 use plumb_data::Table;
 
-use crate::marks::Marks;
+use super::cloud::Cloud;
+use super::marks::Marks;
 use crate::WorkbenchError;
 
 /// Which model of which two columns.
@@ -37,25 +38,53 @@ impl PairSpec {
         }
     }
 
-    /// The same model as a request of the shared analysis path (what `plumb fit` runs).
-    pub fn request(&self, exclude: Vec<usize>) -> FitRequest {
+    /// The model on every complete row (what the live engine starts from).
+    pub fn model(&self) -> FitRequest {
         FitRequest {
             y: self.y.clone(),
             x: vec![self.x.clone()],
             intercept: self.intercept,
             degree: self.degree,
             weights: None,
-            exclude,
+            exclude: Vec::new(),
+            what_if: Vec::new(),
             level: self.level,
         }
     }
 
-    /// Term names as the fit reports them, e.g. `intercept`, `dose`, `dose^2`.
-    pub fn design(&self, x: &[f64]) -> Result<Design, plumb_core::CoreError> {
-        if self.degree > 1 {
-            Design::polynomial(&self.x, x, self.degree, self.intercept)
-        } else {
-            Ok(Design::linear(&[(self.x.as_str(), x)], self.intercept))
+    /// The model on the file's values without the rows `marks` exclude (what `plumb fit
+    /// --exclude` runs, and what the summary and the per-exclusion effects are built from).
+    pub fn on_file_rows(&self, marks: &Marks) -> FitRequest {
+        FitRequest {
+            exclude: marks.excluded.keys().copied().collect(),
+            ..self.model()
+        }
+    }
+
+    /// The model as the analyst sees it: the exclusions of `marks`, and its what-if moves in
+    /// place of the measured values.
+    pub fn with_marks(&self, marks: &Marks) -> FitRequest {
+        let what_if = marks
+            .moved
+            .iter()
+            .flat_map(|(&row, &(x, y))| {
+                [
+                    WhatIf {
+                        row,
+                        column: self.x.clone(),
+                        value: x,
+                    },
+                    WhatIf {
+                        row,
+                        column: self.y.clone(),
+                        value: y,
+                    },
+                ]
+            })
+            .collect();
+        FitRequest {
+            what_if,
+            ..self.on_file_rows(marks)
         }
     }
 }
@@ -76,6 +105,8 @@ pub struct PairRows {
     pub incomplete: usize,
     /// Term names of the fit, in order.
     pub terms: Arc<[String]>,
+    /// The points `(x, y)` at their file positions, indexed for hover.
+    pub points: Arc<Cloud>,
 }
 
 /// The complete rows of a pair and a live fit over them.
@@ -101,22 +132,20 @@ impl Pair {
     /// A column that is not numeric or unknown, or a model the rows cannot support; the
     /// message names the file and column.
     pub fn new(table: &Table, spec: PairSpec) -> Result<Self, WorkbenchError> {
-        let selection = table
-            .complete_rows(&[&spec.y, &spec.x], &[])
-            .map_err(|e| WorkbenchError::Model(e.to_string()))?;
-        let file = table.source().display().to_string();
-        let model_error = |e: plumb_core::CoreError| WorkbenchError::Model(format!("{file}: {e}"));
+        let rows =
+            model_rows(table, &spec.model()).map_err(|e| WorkbenchError::Model(e.to_string()))?;
+        let terms: Vec<String> = rows.design.terms().iter().map(|t| t.name.clone()).collect();
+        let live = LiveFit::new(rows.design.clone(), rows.y().to_vec(), rows.options.clone())
+            .map_err(|e| WorkbenchError::Model(format!("{}: {e}", table.source().display())))?;
+        let selection = rows.selection;
         let [y, x]: [Vec<f64>; 2] = selection
             .columns
             .try_into()
             .map_err(|_| WorkbenchError::Model("two columns expected".into()))?;
-        let design = spec.design(&x).map_err(model_error)?;
-        let terms: Vec<String> = design.terms().iter().map(|t| t.name.clone()).collect();
-        let options = FitOptions {
-            level: spec.level,
-            ..FitOptions::default()
-        };
-        let live = LiveFit::new(design, y.clone(), options).map_err(model_error)?;
+        let points = Cloud::new(
+            x.iter().copied().zip(y.iter().copied()).collect(),
+            (0..selection.rows.len()).collect(),
+        );
         Ok(Self {
             base: PairRows {
                 spec,
@@ -125,6 +154,7 @@ impl Pair {
                 y: y.into(),
                 incomplete: selection.dropped.len(),
                 terms: terms.into(),
+                points: Arc::new(points),
             },
             live,
             applied: Marks::default(),
@@ -221,8 +251,8 @@ impl PairRows {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::marks::Note;
-    use plumb_data::analysis::run_fit;
+    use crate::state::marks::Note;
+    use plumb_data::analysis::{analyze, Wanted};
 
     fn table() -> Table {
         let dir = tempfile::tempdir().expect("temp dir");
@@ -272,7 +302,10 @@ mod tests {
             assert_eq!(pair.index_of(6), None, "row 6 has no y");
             for rows in [vec![3], vec![3, 17, 40], vec![17], vec![], vec![1, 2, 39]] {
                 let live = pair.apply(&excluding(&rows)).clone().expect("fits");
-                let reference = run_fit(&t, &spec.request(rows.clone())).expect("fit").fit;
+                let marks = excluding(&rows);
+                let reference = analyze(&t, &spec.on_file_rows(&marks), Wanted::default())
+                    .expect("fit")
+                    .fit;
                 assert!((live.r_squared - reference.r_squared).abs() < 1e-12);
                 for (a, c) in live.estimates.iter().zip(&reference.coefficients) {
                     assert!((a - c.estimate).abs() <= 1e-10 * c.estimate.abs().max(1.0));

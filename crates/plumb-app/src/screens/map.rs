@@ -1,165 +1,94 @@
 //! The co-movement map: a coefficient for every pair of numeric columns, drawn as a grid of
 //! coloured cells, with the raw and adjusted p-values on hover, and the strongest pairs listed
-//! beside it. Computed off the UI thread.
+//! beside it. A click opens the pair on the bench.
 
 use eframe::egui::{self, Color32, Pos2, Rect, RichText, Sense, Vec2};
-use plumb_core::association::{
-    correlation_matrix, similarity_order, Adjustment, CorrelationMatrix, Method,
-};
+use plumb_core::association::{Adjustment, Method};
 use plumb_report::text::{num, p};
+use plumb_report::wording;
 
-use crate::app::{Screen, Workbench};
-use crate::dataset::Dataset;
-use crate::jobs::Job;
-use crate::pair::PairSpec;
+use crate::action::{Action, Actions};
 use crate::palette;
+use crate::state::map::{MapKey, MapResult};
+use crate::state::pair::PairSpec;
+use crate::state::{Screen, State};
 
-/// What the map is computed from.
-#[derive(Debug, Clone, PartialEq)]
-pub struct MapKey {
-    /// Coefficient.
-    pub method: Method,
-    /// p-value adjustment across the pairs.
-    pub adjust: Adjustment,
-    /// Column giving the order of the rows (adds the shared-trend guard).
-    pub order: Option<String>,
-}
-
-/// A computed map.
-#[derive(Debug, Clone)]
-pub struct MapResult {
-    /// Its inputs.
-    pub key: MapKey,
-    /// Columns, in file order.
-    pub columns: Vec<String>,
-    /// The matrix.
-    pub matrix: CorrelationMatrix,
-    /// Columns ordered so that those moving together sit together.
-    pub similarity: Vec<usize>,
-}
-
-/// State of the screen.
-pub struct Overview {
-    /// Asked-for inputs.
-    pub key: MapKey,
+/// What the screen keeps between frames.
+#[derive(Debug)]
+pub struct MapUi {
     /// Order cells by similarity (else by file order).
     pub by_similarity: bool,
-    job: Option<Job<MapResult>>,
-    result: Option<MapResult>,
 }
 
-impl Default for Overview {
+impl Default for MapUi {
     fn default() -> Self {
         Self {
-            key: MapKey {
-                method: Method::Pearson,
-                adjust: Adjustment::Holm,
-                order: None,
-            },
             by_similarity: true,
-            job: None,
-            result: None,
         }
-    }
-}
-
-impl Overview {
-    /// Whether the map is being computed.
-    pub fn is_busy(&self) -> bool {
-        self.job.is_some()
-    }
-
-    /// The map last computed.
-    pub fn result(&self) -> Option<&MapResult> {
-        self.result.as_ref()
-    }
-
-    /// Picks up a finished map; starts one when the inputs changed.
-    pub fn poll(&mut self, data: &Dataset, ctx: &egui::Context) {
-        if let Some(r) = self.job.as_mut().and_then(Job::poll) {
-            self.job = None;
-            self.result = Some(r);
-        }
-        let current = self.result.as_ref().map(|r| &r.key) == Some(&self.key);
-        if !current && self.job.is_none() && data.numeric.len() >= 2 {
-            let key = self.key.clone();
-            let table = std::sync::Arc::clone(&data.table);
-            let columns = data.numeric.clone();
-            let ctx = ctx.clone();
-            self.job = Some(Job::spawn(
-                move |_| compute(&table, columns, key),
-                move || ctx.request_repaint(),
-            ));
-        }
-    }
-}
-
-/// The map for `columns` of `table`.
-pub fn compute(table: &plumb_data::Table, columns: Vec<String>, key: MapKey) -> MapResult {
-    let values: Vec<&[Option<f64>]> = columns
-        .iter()
-        .filter_map(|c| table.numeric(c).ok())
-        .collect();
-    let order = key.order.as_deref().and_then(|c| table.numeric(c).ok());
-    let matrix = correlation_matrix(&values, key.method, key.adjust, order);
-    let similarity = similarity_order(&matrix.r);
-    MapResult {
-        key,
-        columns,
-        matrix,
-        similarity,
     }
 }
 
 /// Draws the screen.
-pub fn show(wb: &mut Workbench, ui: &mut egui::Ui) {
-    let Some(loaded) = &wb.loaded else { return };
-    let numeric = loaded.dataset.numeric.clone();
+pub fn map_ui(state: &State, own: &mut MapUi, ui: &mut egui::Ui) -> Actions {
+    let mut out = Actions::none();
+    let Some(loaded) = state.loaded() else {
+        return out;
+    };
+    let numeric = &loaded.dataset.numeric;
     if numeric.len() < 2 {
         ui.label("The map needs at least two numeric columns.");
-        return;
+        return out;
     }
-    controls(&mut wb.overview, &numeric, ui);
-    let Some(result) = wb.overview.result.clone() else {
+    let map = state.map();
+    out.push_some(controls_ui(map.key(), own, numeric, ui));
+    let Some(result) = map.result() else {
         ui.horizontal(|ui| {
             ui.spinner();
             ui.label("computing the map…");
         });
-        return;
+        return out;
     };
-    if wb.overview.is_busy() {
+    if map.is_busy() {
         ui.horizontal(|ui| {
             ui.spinner();
             ui.weak("updating…");
         });
     }
-    ui.label(testing_note(&result));
-    let order: Vec<usize> = if wb.overview.by_similarity {
+    ui.label(testing_note(result));
+    let order: Vec<usize> = if own.by_similarity {
         result.similarity.clone()
     } else {
         (0..result.columns.len()).collect()
     };
-    let mut chosen = None;
-    ui.horizontal_top(|ui| {
-        if let Some(c) = grid(ui, &result, &order) {
-            chosen = Some(c);
-        }
-        ui.vertical(|ui| {
-            if let Some(c) = strongest(ui, &result) {
-                chosen = Some(c);
-            }
-        });
-    });
-    ui.weak("Association is not causation. A coefficient measures one kind of association only: a strong curved or clustered relation can give r near 0. Open a pair to look at it.");
+    let chosen = ui
+        .horizontal_top(|ui| {
+            let clicked = grid_ui(ui, result, &order);
+            let listed = ui.vertical(|ui| strongest_ui(ui, result)).inner;
+            clicked.or(listed)
+        })
+        .inner;
+    ui.weak(format!(
+        "{} Open a pair to look at it.",
+        wording::line(&wording::MAP_CAUTIONS)
+    ));
     if let Some((i, j)) = chosen {
-        let spec = PairSpec::line(&result.columns[i], &result.columns[j]);
-        if wb.open_pair(spec) {
-            wb.screen = Screen::Bench;
-        }
+        out.push(Action::OpenPair(PairSpec::line(
+            &result.columns[i],
+            &result.columns[j],
+        )));
+        out.push(Action::Show(Screen::Bench));
     }
+    out
 }
 
-fn controls(o: &mut Overview, numeric: &[String], ui: &mut egui::Ui) {
+/// The coefficient, adjustment, grouping and row-order choices; a changed key is an action.
+fn controls_ui(
+    current: &MapKey,
+    own: &mut MapUi,
+    numeric: &[String],
+    ui: &mut egui::Ui,
+) -> Option<Action> {
+    let mut key = current.clone();
     ui.horizontal_wrapped(|ui| {
         ui.label("Coefficient:");
         for (m, name, tip) in [
@@ -167,7 +96,7 @@ fn controls(o: &mut Overview, numeric: &[String], ui: &mut egui::Ui) {
             (Method::Spearman, "Spearman ρ", "Monotone association (ranks)"),
             (Method::Kendall, "Kendall τ-b", "Rank concordance, tie-corrected"),
         ] {
-            ui.radio_value(&mut o.key.method, m, name).on_hover_text(tip);
+            ui.radio_value(&mut key.method, m, name).on_hover_text(tip);
         }
         ui.separator();
         ui.label("Adjust p for many pairs:");
@@ -176,24 +105,25 @@ fn controls(o: &mut Overview, numeric: &[String], ui: &mut egui::Ui) {
             (Adjustment::BenjaminiHochberg, "Benjamini–Hochberg", "Controls the expected share of false hits"),
             (Adjustment::None, "none", "Raw p-values: with many pairs some will be small by chance"),
         ] {
-            ui.radio_value(&mut o.key.adjust, a, name).on_hover_text(tip);
+            ui.radio_value(&mut key.adjust, a, name).on_hover_text(tip);
         }
         ui.separator();
-        ui.checkbox(&mut o.by_similarity, "group similar columns")
+        ui.checkbox(&mut own.by_similarity, "group similar columns")
             .on_hover_text("Order the columns so that those moving together sit together (average-linkage clustering on 1 − |r|); off: file order");
         ui.separator();
         ui.label("Row order:");
         egui::ComboBox::from_id_salt("order-column")
-            .selected_text(o.key.order.clone().unwrap_or_else(|| "none".into()))
+            .selected_text(key.order.clone().unwrap_or_else(|| "none".into()))
             .show_ui(ui, |ui| {
-                ui.selectable_value(&mut o.key.order, None, "none");
+                ui.selectable_value(&mut key.order, None, "none");
                 for c in numeric {
-                    ui.selectable_value(&mut o.key.order, Some(c.clone()), c);
+                    ui.selectable_value(&mut key.order, Some(c.clone()), c);
                 }
             })
             .response
             .on_hover_text("A time or run-order column: each pair is also correlated on first differences and after removing a linear trend, to expose drifts shared by both columns");
     });
+    (key != *current).then_some(Action::MapSettings(key))
 }
 
 fn testing_note(r: &MapResult) -> String {
@@ -256,7 +186,7 @@ fn cell_text(r: &MapResult, i: usize, j: usize) -> String {
 }
 
 /// The grid of cells; returns the clicked pair (row column, column column).
-fn grid(ui: &mut egui::Ui, r: &MapResult, order: &[usize]) -> Option<(usize, usize)> {
+fn grid_ui(ui: &mut egui::Ui, r: &MapResult, order: &[usize]) -> Option<(usize, usize)> {
     let k = order.len();
     let label_w = 120.0;
     let side = (ui.available_height() - label_w - 40.0)
@@ -335,7 +265,7 @@ fn grid(ui: &mut egui::Ui, r: &MapResult, order: &[usize]) -> Option<(usize, usi
 }
 
 /// The strongest pairs as buttons (readable by screen readers and tests too).
-fn strongest(ui: &mut egui::Ui, r: &MapResult) -> Option<(usize, usize)> {
+fn strongest_ui(ui: &mut egui::Ui, r: &MapResult) -> Option<(usize, usize)> {
     let m = &r.matrix;
     let k = r.columns.len();
     let mut pairs: Vec<(usize, usize, f64)> = (0..k)

@@ -5,9 +5,9 @@ use std::path::{Path, PathBuf};
 
 use plumb_report::{DataSource, Exclusion, LoadSpec, ModelSpec, Session, SCHEMA_VERSION};
 
-use crate::dataset::Dataset;
-use crate::marks::{Marks, Note};
-use crate::pair::PairSpec;
+use super::dataset::Dataset;
+use super::marks::{Marks, Note};
+use super::pair::PairSpec;
 
 /// Key in the session's `view` map naming the session file the recovery copy belongs to.
 const RECOVERY_OF: &str = "recovery_of";
@@ -29,7 +29,7 @@ pub fn session_of(
             load: LoadSpec::from_options(&data.options),
         },
         models: spec
-            .map(|s| ModelSpec::from_request(&s.request(Vec::new())))
+            .map(|s| ModelSpec::from_request(&s.model()))
             .into_iter()
             .collect(),
         exclusions: marks

@@ -7,6 +7,35 @@ use std::sync::mpsc::{self, Receiver};
 use std::sync::Arc;
 use std::time::{Duration, Instant};
 
+use eframe::egui;
+
+/// Wakes the frame loop when a job finishes (holds the window's context; empty without a
+/// window, in tests and programs that poll by themselves).
+#[derive(Debug, Clone, Default)]
+pub struct Waker(Option<egui::Context>);
+
+impl Waker {
+    /// A waker for the window with `ctx`.
+    pub fn new(ctx: egui::Context) -> Self {
+        Self(Some(ctx))
+    }
+
+    /// Whether it has a window to wake.
+    pub fn is_set(&self) -> bool {
+        self.0.is_some()
+    }
+
+    /// A closure for [`Job::spawn`] that requests a repaint.
+    pub fn hook(&self) -> impl Fn() + Send + 'static {
+        let ctx = self.0.clone();
+        move || {
+            if let Some(c) = &ctx {
+                c.request_repaint();
+            }
+        }
+    }
+}
+
 /// One background computation.
 #[derive(Debug)]
 pub struct Job<T> {

@@ -1,0 +1,172 @@
+//! Plot frames with readable axes: every axis gets three to five labelled ticks at round
+//! values (1, 2 or 5 times a power of ten), whatever the view's size, labelled with as many
+//! decimals as the step needs.
+
+use eframe::egui::{self, Vec2};
+use egui_plot::{AxisHints, GridInput, GridMark, Plot};
+
+/// Fewest and most labelled ticks on an axis.
+pub const TICKS: (usize, usize) = (3, 5);
+/// Room each label needs along the axis, in points (x: a number's width; y: its height).
+const LABEL_ROOM: (f64, f64) = (64.0, 28.0);
+
+/// Round tick values inside `[lo, hi]`: the largest step of 1, 2.5, 2 or 5 × 10ᵏ that gives
+/// between [`TICKS`]`.0` and `most` ticks (or, when none does, the largest giving at least
+/// three). Returns the ticks and the step.
+pub fn ticks(lo: f64, hi: f64, most: usize) -> (Vec<f64>, f64) {
+    if !(lo.is_finite() && hi.is_finite()) || hi <= lo {
+        return (Vec::new(), 1.0);
+    }
+    let most = most.max(TICKS.0) as i64;
+    let count = |s: f64| ((hi / s).floor() - (lo / s).ceil()) as i64 + 1;
+    let top = 10f64.powf((hi - lo).log10().ceil());
+    let steps = (0..8).flat_map(|k| {
+        let base = top / 10f64.powi(k);
+        [1.0, 0.5, 0.25, 0.2].map(|m| m * base)
+    });
+    let mut fallback = None;
+    for step in steps {
+        let n = count(step);
+        if n >= TICKS.0 as i64 {
+            if n <= most {
+                return (at_steps(lo, hi, step), step);
+            }
+            fallback.get_or_insert(step);
+        }
+    }
+    let step = fallback.unwrap_or(top / 1e8);
+    (at_steps(lo, hi, step), step)
+}
+
+fn at_steps(lo: f64, hi: f64, step: f64) -> Vec<f64> {
+    let first = (lo / step).ceil() as i64;
+    let last = (hi / step).floor() as i64;
+    (first..=last).map(|k| k as f64 * step).collect()
+}
+
+/// Decimals that show every multiple of `step` exactly (0.25 → 2, 0.5 → 1, 20 → 0).
+fn decimals_of(step: f64) -> usize {
+    (0..10)
+        .find(|&d| {
+            let scaled = step * 10f64.powi(d as i32);
+            (scaled - scaled.round()).abs() <= 1e-6 * scaled
+        })
+        .unwrap_or(10)
+}
+
+/// A tick's label: fixed-point with the decimals the step needs; scientific, with as many
+/// digits as tell neighbouring ticks apart, when the step is very large or very small. A value
+/// within rounding of zero is written as zero (never `-0`).
+pub fn label(value: f64, step: f64) -> String {
+    let value = if value.abs() < step.abs() * 1e-9 {
+        0.0
+    } else {
+        value
+    };
+    if !(1e-4..1e5).contains(&step) {
+        let order = |v: f64| v.abs().log10().floor();
+        let digits = (order(value.abs().max(step)) - order(step) + 1.0).max(2.0);
+        return plumb_report::text::sig(value, digits as u32);
+    }
+    let decimals = decimals_of(step);
+    format!("{value:.decimals$}")
+}
+
+/// The grid spacer of one axis: [`ticks`] for the axis' length in points.
+fn spacer(room: f64) -> impl Fn(GridInput) -> Vec<GridMark> {
+    move |input: GridInput| {
+        let (lo, hi) = input.bounds;
+        // `base_step_size` is the data span of 8 points (egui_plot's default grid spacing).
+        let points = (hi - lo) / input.base_step_size * 8.0;
+        let most = ((points / room).floor() as usize).clamp(TICKS.0, TICKS.1);
+        let (values, step) = ticks(lo, hi, most);
+        values
+            .into_iter()
+            .map(|value| GridMark {
+                value,
+                step_size: step,
+            })
+            .collect()
+    }
+}
+
+/// A plot of `size` with both axes labelled and ticked, no pointer read-out of its own, and
+/// the zoom reset by a double click. `id` keys its zoom memory.
+pub fn plot<'a>(id: impl egui::AsIdSalt, size: Vec2, (x, y): (&str, &str)) -> Plot<'a> {
+    let formatter =
+        |mark: GridMark, _: &std::ops::RangeInclusive<f64>| label(mark.value, mark.step_size);
+    Plot::new(id)
+        .width(size.x)
+        .height(size.y)
+        .custom_x_axes(vec![AxisHints::new_x()
+            .label(x.to_string())
+            .formatter(formatter)
+            .label_spacing(24.0..=32.0)])
+        .custom_y_axes(vec![AxisHints::new_y()
+            .label(y.to_string())
+            .formatter(formatter)
+            .label_spacing(12.0..=16.0)])
+        .x_grid_spacer(spacer(LABEL_ROOM.0))
+        .y_grid_spacer(spacer(LABEL_ROOM.1))
+        .show_x(false)
+        .show_y(false)
+        .allow_double_click_reset(true)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn every_range_gets_three_to_five_round_ticks() {
+        for (lo, hi) in [
+            (0.0, 1.0),
+            (-0.003, 0.117),
+            (0.032, 0.197),
+            (848.0, 852.0),
+            (-6.2, 14.9),
+            (1e6, 1.000_01e6),
+            (17.0, 81.0),
+            (0.0, 0.05),
+        ] {
+            let (t, step) = ticks(lo, hi, 5);
+            assert!(
+                (3..=5).contains(&t.len()),
+                "[{lo}, {hi}]: {t:?} (step {step})"
+            );
+            assert!(
+                t.iter().all(|v| (lo..=hi).contains(v)),
+                "[{lo}, {hi}]: {t:?}"
+            );
+            let m = step / 10f64.powf(step.log10().floor());
+            assert!(
+                [1.0, 2.0, 2.5, 5.0].iter().any(|r| (m - r).abs() < 1e-9),
+                "round step: {step}"
+            );
+            let labels: Vec<String> = t.iter().map(|&v| label(v, step)).collect();
+            let mut distinct = labels.clone();
+            distinct.dedup();
+            assert_eq!(distinct, labels, "labels tell the ticks apart");
+        }
+    }
+
+    #[test]
+    fn a_small_view_asks_for_three_and_gets_three() {
+        let (t, step) = ticks(0.0, 100.0, 3);
+        assert_eq!(t, vec![0.0, 50.0, 100.0], "step {step}");
+        assert!(ticks(1.0, 1.0, 5).0.is_empty());
+        assert!(ticks(f64::NAN, 1.0, 5).0.is_empty());
+    }
+
+    #[test]
+    fn labels_use_the_decimals_of_the_step() {
+        assert_eq!(label(0.5, 0.5), "0.5");
+        assert_eq!(label(1.0, 0.5), "1.0");
+        assert_eq!(label(20.0, 20.0), "20");
+        assert_eq!(label(0.05, 0.025), "0.050");
+        assert_eq!(label(0.75, 0.25), "0.75");
+        assert_eq!(label(-1e-17, 0.1), "0.0");
+        assert_eq!(label(2_000_000.0, 1_000_000.0), "2.0e6");
+        assert_eq!(label(1_000_002.5, 2.5), "1000002.5");
+    }
+}

@@ -1,0 +1,159 @@
+//! The bench's controls (the model, the overlays, the colouring, the pointer's mode) and the
+//! banner shown while what-if moves are in force.
+
+use eframe::egui::{self, RichText};
+use plumb_report::wording;
+
+use super::pointer::PointerMode;
+use crate::action::{Action, Actions};
+use crate::palette;
+use crate::state::dataset::Dataset;
+use crate::state::pair::PairSpec;
+use crate::state::BenchModel;
+
+/// The row of controls above the bench.
+pub fn controls_ui(
+    bench: &BenchModel,
+    data: &Dataset,
+    mode: &mut PointerMode,
+    ui: &mut egui::Ui,
+) -> Actions {
+    let mut out = Actions::none();
+    ui.horizontal_wrapped(|ui| {
+        out.push_some(model_ui(bench, data, ui));
+        ui.separator();
+        out.push_some(overlays_ui(bench, ui));
+        if !data.groups.is_empty() {
+            ui.separator();
+            out.push_some(colour_ui(bench, data, ui));
+        }
+        ui.separator();
+        pointer_ui(mode, ui);
+    });
+    out
+}
+
+/// y, x, degree and intercept; a changed model is an action.
+fn model_ui(bench: &BenchModel, data: &Dataset, ui: &mut egui::Ui) -> Option<Action> {
+    let current = bench.pair().map(|p| p.spec.clone()).or_else(|| {
+        (data.numeric.len() >= 2).then(|| PairSpec::line(&data.numeric[1], &data.numeric[0]))
+    })?;
+    let mut s = current.clone();
+    column_choice(
+        ui,
+        "response-y",
+        "y:",
+        &mut s.y,
+        &data.numeric,
+        "The response: the column to be explained",
+    );
+    column_choice(
+        ui,
+        "predictor-x",
+        "x:",
+        &mut s.x,
+        &data.numeric,
+        "The predictor",
+    );
+    ui.label("degree:");
+    ui.add(egui::DragValue::new(&mut s.degree).range(1..=plumb_core::regression::MAX_DEGREE))
+        .on_hover_text("1 = straight line; 2, 3, … = polynomial in x");
+    ui.checkbox(&mut s.intercept, "intercept")
+        .on_hover_text("Off: the line is forced through the origin (R² is then uncentred)");
+    let changed = bench.pair().is_none_or(|p| p.spec != s);
+    changed.then_some(Action::OpenPair(s))
+}
+
+fn overlays_ui(bench: &BenchModel, ui: &mut egui::Ui) -> Option<Action> {
+    let before = bench.overlays();
+    let mut o = before;
+    ui.checkbox(&mut o.theil_sen, "Theil–Sen")
+        .on_hover_text("Median of pairwise slopes: resists outliers in y");
+    ui.checkbox(&mut o.deming, "Deming")
+        .on_hover_text("Errors in both x and y (equal variances)");
+    ui.checkbox(&mut o.loess, "LOESS")
+        .on_hover_text("Local regression: shows the shape without assuming one");
+    if o.loess {
+        ui.add(egui::Slider::new(&mut o.loess_span, 0.1..=1.0).text("span"))
+            .on_hover_text("Share of the rows in each local fit");
+    }
+    (o != before).then_some(Action::SetOverlays(o))
+}
+
+fn colour_ui(bench: &BenchModel, data: &Dataset, ui: &mut egui::Ui) -> Option<Action> {
+    ui.label("colour by:");
+    let before = bench.colouring().column.clone();
+    let mut chosen = before.clone();
+    egui::ComboBox::from_id_salt("group-by")
+        .selected_text(chosen.clone().unwrap_or_else(|| "nothing".into()))
+        .show_ui(ui, |ui| {
+            ui.selectable_value(&mut chosen, None, "nothing");
+            for (g, _) in &data.groups {
+                ui.selectable_value(&mut chosen, Some(g.clone()), g);
+            }
+        })
+        .response
+        .on_hover_text("Colour the points by a text column and fit a line per group");
+    (chosen != before).then_some(Action::ColourBy(chosen))
+}
+
+fn pointer_ui(mode: &mut PointerMode, ui: &mut egui::Ui) {
+    ui.label("pointer:");
+    ui.radio_value(mode, PointerMode::Exclude, "click excludes")
+        .on_hover_text("Click a point to leave it out (click again to put it back); you are asked for a reason");
+    ui.radio_value(mode, PointerMode::Lasso, "lasso excludes")
+        .on_hover_text("Drag a loop around points in the scatter to leave them all out");
+    ui.radio_value(mode, PointerMode::Move, "drag moves (what-if)")
+        .on_hover_text("Drag a point to see what the numbers would be if it sat there; the data file is never changed");
+}
+
+fn column_choice(
+    ui: &mut egui::Ui,
+    id: &str,
+    label: &str,
+    value: &mut String,
+    names: &[String],
+    tip: &str,
+) {
+    let label = ui.label(label);
+    egui::ComboBox::from_id_salt(id)
+        .selected_text(value.clone())
+        .show_ui(ui, |ui| {
+            for n in names {
+                ui.selectable_value(value, n.clone(), n);
+            }
+        })
+        .response
+        .labelled_by(label.id)
+        .on_hover_text(tip);
+}
+
+/// The banner over the bench while points are moved.
+pub fn what_if_banner_ui(moved: usize, ui: &mut egui::Ui) -> Actions {
+    let clear = egui::Frame::new()
+        .fill(palette::WHAT_IF)
+        .inner_margin(6.0)
+        .show(ui, |ui| {
+            ui.horizontal(|ui| {
+                let what = if moved == 1 {
+                    "1 point moved".to_string()
+                } else {
+                    format!("{moved} points moved")
+                };
+                ui.label(
+                    RichText::new(format!(
+                        "WHAT-IF: {what}. The numbers below are hypothetical. {}",
+                        wording::WHAT_IF_ONLY
+                    ))
+                    .color(egui::Color32::BLACK)
+                    .strong(),
+                );
+                ui.button("Clear what-if moves")
+                    .on_hover_text("Put every moved point back where the data file has it")
+                    .clicked()
+            })
+            .inner
+        })
+        .inner;
+    Actions::from(clear.then_some(Action::ResetMoves(None)))
+}

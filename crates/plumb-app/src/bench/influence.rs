@@ -1,0 +1,101 @@
+//! The influence view: leverage against the internally studentized residual, with the curves
+//! of constant Cook's distance `D = r²·h/(p·(1 − h))` at 0.5 and 1 (beyond them one row moves
+//! the fit a lot).
+
+use eframe::egui::{self, Vec2};
+use egui_plot::{Line, LineStyle};
+
+use super::view::{diagnostic_ui, Diagnostic};
+use super::{BenchUi, Scene};
+use crate::action::Actions;
+use crate::state::cloud::Cloud;
+
+const VIEW: Diagnostic = Diagnostic {
+    id: "leverage",
+    title: "Leverage against studentized residual",
+    tip: "Far right: unusual x. Far up or down: unusual y for its x. Curves: Cook's distance 0.5 and 1 (beyond them one row moves the fit a lot).",
+    x_label: "leverage (hat value)",
+    y_label: "studentized residual (internal)",
+};
+
+/// Cook's distances drawn as curves.
+pub const COOK_CURVES: [f64; 2] = [0.5, 1.0];
+/// Curves are not drawn beyond this |studentized residual|.
+const CURVE_CLIP: f64 = 6.0;
+
+/// One branch (`sign` ±1) of the curve of Cook's distance `d` for `p` terms, over leverages up
+/// to a little past the largest shown: `r = ±√(d·p·(1 − h)/h)`.
+pub fn cook_curve(d: f64, p: usize, h_max: f64, sign: f64) -> Vec<[f64; 2]> {
+    let reach = h_max.max(0.05) * 1.05;
+    (1..=80)
+        .map(|k| {
+            let h = reach * f64::from(k) / 80.0;
+            [h, sign * (d * p as f64 * (1.0 - h) / h).sqrt()]
+        })
+        .filter(|q| q[1].abs() < CURVE_CLIP)
+        .collect()
+}
+
+/// Draws the view (a spinner until the first diagnostics arrive).
+pub fn influence_ui(
+    scene: &Scene<'_>,
+    own: &mut BenchUi,
+    ui: &mut egui::Ui,
+    size: Vec2,
+) -> Actions {
+    let Some(d) = scene.bench.diagnostics() else {
+        ui.add_sized(size, egui::Spinner::new());
+        return Actions::none();
+    };
+    let p = scene.pair.terms.len();
+    let none = Cloud::default();
+    diagnostic_ui(
+        scene,
+        own,
+        ui,
+        size,
+        &VIEW,
+        (&d.views.leverage, &none),
+        |pu, cloud, v| {
+            let ink = v.weak_text_color();
+            let h_max = cloud.points.iter().map(|q| q.0).fold(0.0_f64, f64::max);
+            for (d, style) in COOK_CURVES
+                .iter()
+                .zip([LineStyle::dashed_loose(), LineStyle::dashed_dense()])
+            {
+                for sign in [1.0, -1.0] {
+                    pu.line(
+                        Line::new(format!("Cook's D = {d}"), cook_curve(*d, p, h_max, sign))
+                            .color(ink)
+                            .style(style)
+                            .allow_hover(false),
+                    );
+                }
+            }
+        },
+    )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn every_point_of_a_curve_has_that_cooks_distance() {
+        // Cook's D = r²·h/(p(1 − h)) (its definition with internally studentized r).
+        for (d, p) in [(0.5, 2), (1.0, 3)] {
+            let curve = cook_curve(d, p, 0.4, -1.0);
+            assert!(!curve.is_empty());
+            for [h, r] in curve {
+                assert!(r < 0.0 && r.abs() < CURVE_CLIP);
+                let cook = r * r * h / (p as f64 * (1.0 - h));
+                assert!((cook - d).abs() < 1e-12, "h {h}: D {cook}");
+            }
+        }
+        let far = cook_curve(0.5, 2, 0.01, 1.0);
+        assert!(
+            far.last().expect("points")[0] >= 0.05,
+            "reaches at least h = 0.05"
+        );
+    }
+}

@@ -1,0 +1,187 @@
+//! The pair bench: the controls, the four linked views (scatter, residuals, influence,
+//! quantiles), the numbers and the exclusion ledger. Every panel reads the workbench's state
+//! and returns actions; what the pointer is doing, the text being typed and the density images
+//! are the bench's own UI state ([`BenchUi`]).
+
+mod controls;
+mod influence;
+mod ledger;
+mod numbers;
+mod pointer;
+mod points;
+mod quantiles;
+mod reason;
+mod residuals;
+mod scatter;
+mod view;
+
+use eframe::egui::{self, Vec2};
+use egui_plot::{Plot, PlotTransform};
+use plumb_report::wording;
+
+use crate::action::Actions;
+use crate::density::{Bounds, DensityTextures};
+use crate::state::marks::Marks;
+use crate::state::pair::PairRows;
+use crate::state::{BenchModel, State};
+
+pub use reason::reason_prompt_ui;
+
+use numbers::SortKey;
+use pointer::Pointer;
+
+/// Below this window width the numbers and the ledger share one side panel (as tabs), so the
+/// views keep their room.
+const THREE_COLUMNS_FROM: f32 = 1400.0;
+
+/// What the bench keeps between frames apart from the workbench's state.
+#[derive(Default)]
+pub struct BenchUi {
+    /// The pointer: its mode, hover, pick, drag and lasso.
+    pub pointer: Pointer,
+    /// Density images of the views.
+    pub textures: DensityTextures,
+    /// Rows typed into the ledger's field.
+    pub row_field: String,
+    /// Influence table order.
+    pub sort: SortKey,
+    /// Show the z-units view in the numbers.
+    pub z_units: bool,
+    /// The side panel's tab when the numbers and the ledger share it.
+    pub ledger_tab: bool,
+    scatter_transform: Option<PlotTransform>,
+}
+
+impl BenchUi {
+    /// Screen transform of the scatter in the last frame.
+    pub fn scatter_transform(&self) -> Option<PlotTransform> {
+        self.scatter_transform
+    }
+}
+
+/// What every panel of the bench reads.
+pub struct Scene<'a> {
+    /// The pair's rows and values.
+    pub pair: &'a PairRows,
+    /// The analyst's marks.
+    pub marks: &'a Marks,
+    /// The bench's model (live numbers, diagnostics, colouring).
+    pub bench: &'a BenchModel,
+}
+
+/// Draws the bench.
+pub fn bench_ui(state: &State, own: &mut BenchUi, ui: &mut egui::Ui) -> Actions {
+    let Some(loaded) = state.loaded() else {
+        return Actions::none();
+    };
+    let bench = state.bench();
+    let mut out = controls::controls_ui(bench, &loaded.dataset, &mut own.pointer.mode, ui);
+    let Some(pair) = bench.pair() else {
+        ui.label("Choose a response (y) and a predictor (x) above, or click a cell of the co-movement map.");
+        return out;
+    };
+    own.pointer.follow(bench.serial());
+    let scene = Scene {
+        pair,
+        marks: state.marks(),
+        bench,
+    };
+    if scene.marks.is_hypothetical() {
+        out.extend(controls::what_if_banner_ui(scene.marks.moved.len(), ui));
+    }
+    out.extend(side_panels_ui(
+        &scene,
+        own,
+        loaded.dataset.table.n_rows(),
+        ui,
+    ));
+    egui::Panel::bottom("cautions").show(ui, |ui| {
+        ui.weak(wording::line(&wording::FIT_CAUTIONS));
+    });
+    let views = egui::CentralPanel::default().show(ui, |ui| views_ui(&scene, own, ui));
+    out.extend(views.inner);
+    own.pointer.end_frame();
+    out
+}
+
+/// The numbers (left) and the ledger (right); in a narrow window, one panel with two tabs.
+fn side_panels_ui(
+    scene: &Scene<'_>,
+    own: &mut BenchUi,
+    n_rows: usize,
+    ui: &mut egui::Ui,
+) -> Actions {
+    let wide = ui.ctx().content_rect().width() >= THREE_COLUMNS_FROM;
+    if wide {
+        let numbers = egui::Panel::left("numbers")
+            .resizable(true)
+            .default_size(360.0)
+            .size_range(240.0..=520.0)
+            .show(ui, |ui| numbers::numbers_ui(scene, own, ui));
+        let ledger = egui::Panel::right("ledger")
+            .resizable(true)
+            .default_size(270.0)
+            .size_range(220.0..=480.0)
+            .show(ui, |ui| ledger::ledger_ui(scene, own, n_rows, ui));
+        let mut out = numbers.inner;
+        out.extend(ledger.inner);
+        return out;
+    }
+    egui::Panel::left("numbers-and-ledger")
+        .resizable(true)
+        .default_size(330.0)
+        .size_range(240.0..=480.0)
+        .show(ui, |ui| {
+            ui.horizontal(|ui| {
+                ui.selectable_value(&mut own.ledger_tab, false, "Numbers");
+                let n = scene.marks.excluded.len();
+                ui.selectable_value(&mut own.ledger_tab, true, format!("Ledger ({n})"));
+            });
+            ui.separator();
+            if own.ledger_tab {
+                ledger::ledger_ui(scene, own, n_rows, ui)
+            } else {
+                numbers::numbers_ui(scene, own, ui)
+            }
+        })
+        .inner
+}
+
+/// The four views: the scatter with the larger share (it is where points are picked) beside
+/// the residuals; the influence view and the quantiles below.
+fn views_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> Actions {
+    let avail = ui.available_size();
+    let (w, h) = ((avail.x - 12.0).max(320.0), (avail.y - 52.0).max(280.0));
+    let top = h * 0.56;
+    let mut out = Actions::none();
+    ui.horizontal(|ui| {
+        out.extend(
+            ui.vertical(|ui| scatter::scatter_ui(scene, own, ui, Vec2::new(w * 0.58, top)))
+                .inner,
+        );
+        out.extend(
+            ui.vertical(|ui| residuals::residuals_ui(scene, own, ui, Vec2::new(w * 0.42, top)))
+                .inner,
+        );
+    });
+    let bottom = Vec2::new(w / 2.0, h - top);
+    ui.horizontal(|ui| {
+        out.extend(
+            ui.vertical(|ui| influence::influence_ui(scene, own, ui, bottom))
+                .inner,
+        );
+        out.extend(
+            ui.vertical(|ui| quantiles::quantiles_ui(scene, own, ui, bottom))
+                .inner,
+        );
+    });
+    out
+}
+
+/// A dense view starts at its data's extent (plus a margin): its density image would
+/// otherwise feed back into the automatic bounds.
+fn dense_bounds(plot: Plot<'_>, b: Bounds) -> Plot<'_> {
+    let (mx, my) = ((b.x_max - b.x_min) * 0.04, (b.y_max - b.y_min) * 0.04);
+    plot.default_x_bounds(b.x_min - mx, b.x_max + mx)
+        .default_y_bounds(b.y_min - my, b.y_max + my)
+}

@@ -1,0 +1,336 @@
+//! The scatter: the pair's rows with the fitted line or curve (from the live numbers), its
+//! confidence band (shaded) and prediction band (dashed), the overlays and per-group lines, and
+//! the pointer's work — click to exclude, lasso, or drag a point as a what-if.
+
+use eframe::egui::{self, Vec2};
+use egui_plot::{FilledArea, Line, LineStyle, PlotPoints, PlotUi};
+use plumb_core::regression::{polynomial_value, BandPoint, LiveSummary};
+use plumb_data::analysis::RobustFit;
+
+use super::pointer::PointerMode;
+use super::points::{
+    hovered_entry, nearest_at, points_layer, radius, title_ui, toggle, tooltip_ui, Layer, Marked,
+    Shown,
+};
+use super::{BenchUi, Scene};
+use crate::action::{Action, Actions};
+use crate::axes;
+use crate::density::inside;
+use crate::palette;
+use crate::state::diagnostics::Diagnostics;
+use crate::state::marks::Marks;
+use crate::state::pair::{PairRows, PairSpec};
+
+/// Points along the drawn curve.
+const CURVE_POINTS: u32 = 120;
+
+/// The fitted line or polynomial `ŷ(x)` from the live coefficients, over `[lo, hi]`.
+pub fn curve(spec: &PairSpec, s: &LiveSummary, (lo, hi): (f64, f64)) -> Vec<[f64; 2]> {
+    if hi.partial_cmp(&lo) != Some(std::cmp::Ordering::Greater) {
+        return Vec::new();
+    }
+    (0..=CURVE_POINTS)
+        .map(|k| {
+            let x = lo + (hi - lo) * f64::from(k) / f64::from(CURVE_POINTS);
+            [x, polynomial_value(&s.estimates, spec.intercept, x)]
+        })
+        .collect()
+}
+
+/// Data rows of the included entries (at their current positions) inside the lasso `ring`.
+pub fn lasso_rows(pair: &PairRows, marks: &Marks, ring: &[[f64; 2]]) -> Vec<usize> {
+    if ring.len() < 3 {
+        return Vec::new();
+    }
+    (0..pair.rows.len())
+        .filter(|&i| !pair.is_excluded(i, marks))
+        .filter(|&i| {
+            let (x, y) = pair.point(i, marks);
+            inside(ring, x, y)
+        })
+        .map(|i| pair.rows[i])
+        .collect()
+}
+
+/// Draws the scatter and returns what the pointer asked for.
+pub fn scatter_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui, size: Vec2) -> Actions {
+    let pair = scene.pair;
+    title_ui(
+        ui,
+        &format!("{} against {}", pair.spec.y, pair.spec.x),
+        "The rows with the fitted line or curve, its confidence band (shaded) and prediction band (dashed). Hollow rings are excluded rows.",
+    );
+    let marked = Marked::of(pair, scene.marks);
+    let included = pair.points.as_ref();
+    let focus = own.pointer.focus().map(|e| pair.point(e, scene.marks));
+    let colouring = scene.bench.colouring();
+    let x_range = included.bounds.map_or((0.0, 0.0), |b| (b.x_min, b.x_max));
+    let summary = scene.bench.summary().and_then(Result::ok);
+    let diag = scene.bench.diagnostics();
+    let mut plot = axes::plot(
+        ("scatter", scene.bench.serial()),
+        size,
+        (&pair.spec.x, &pair.spec.y),
+    )
+    .allow_drag(own.pointer.mode == PointerMode::Exclude)
+    .legend(egui_plot::Legend::default().position(egui_plot::Corner::RightTop));
+    if included.is_dense() {
+        if let Some(b) = included.bounds {
+            plot = super::dense_bounds(plot, b);
+        }
+    }
+    let lasso = own.pointer.lasso.clone();
+    let textures = &mut own.textures;
+    let visuals = ui.visuals().clone();
+    let resp = plot.show(ui, |pu| {
+        if let Some(d) = diag {
+            bands(pu, d, &visuals);
+            overlays(pu, d, &visuals, x_range, &colouring.levels);
+        }
+        let layer = Layer {
+            view: "scatter",
+            cloud: included,
+            groups: colouring
+                .of_entry
+                .as_deref()
+                .map(|g| (g, colouring.levels.as_slice())),
+            excluded: &marked.excluded,
+            skip: &marked.skip,
+            extra: &marked.moved,
+            focus,
+            generation: scene.bench.marks_generation(),
+        };
+        points_layer(pu, &layer, textures, &visuals);
+        if let Some(s) = &summary {
+            pu.line(
+                Line::new("least squares", curve(&pair.spec, s, x_range))
+                    .color(palette::fit(&visuals))
+                    .width(2.0)
+                    .allow_hover(false),
+            );
+        }
+        if lasso.len() > 1 {
+            pu.line(
+                Line::new("", PlotPoints::from(lasso.clone()))
+                    .color(palette::focus(&visuals))
+                    .style(LineStyle::dashed_dense())
+                    .allow_hover(false),
+            );
+        }
+    });
+    let hovered = hovered_entry(
+        &resp.response,
+        &resp.transform,
+        &[&marked.excluded, &marked.moved],
+    )
+    .or_else(|| {
+        let pos = resp.response.hover_pos()?;
+        let v = resp.transform.value_from_position(pos);
+        included.nearest_except(v.x, v.y, radius(&resp.transform), &marked.skip)
+    });
+    let shown = Shown {
+        hovered,
+        transform: resp.transform,
+        response: resp.response,
+    };
+    own.scatter_transform = Some(shown.transform);
+    let out = interaction(scene, own, &shown);
+    tooltip_ui(scene, &mut own.pointer, &shown);
+    out
+}
+
+/// Click, lasso or drag, as the pointer's mode says.
+fn interaction(scene: &Scene<'_>, own: &mut BenchUi, shown: &Shown) -> Actions {
+    let r = &shown.response;
+    match own.pointer.mode {
+        PointerMode::Exclude => Actions::from(
+            shown
+                .hovered
+                .filter(|_| r.clicked())
+                .map(|e| toggle(scene, e)),
+        ),
+        PointerMode::Move => drag(scene, own, shown),
+        PointerMode::Lasso => lasso(scene, own, shown),
+    }
+}
+
+fn drag(scene: &Scene<'_>, own: &mut BenchUi, shown: &Shown) -> Actions {
+    let r = &shown.response;
+    let mut out = Actions::none();
+    if r.drag_started() {
+        let origin = r.ctx.input(|i| i.pointer.press_origin());
+        own.pointer.drag = origin
+            .and_then(|o| nearest_at(&shown.transform, o, scene.pair, scene.marks))
+            .or(shown.hovered);
+    }
+    if let (Some(e), Some(pos)) = (own.pointer.drag, r.interact_pointer_pos()) {
+        if r.dragged() {
+            let v = shown.transform.value_from_position(pos);
+            out.push(Action::MoveTo {
+                row: scene.pair.rows[e],
+                x: v.x,
+                y: v.y,
+            });
+        }
+    }
+    // The button's release ends the drag wherever the pointer is (it may have left the view,
+    // or the release may come with the pointer leaving the window).
+    let released = r.drag_stopped() || !r.ctx.input(|i| i.pointer.primary_down());
+    if released && own.pointer.drag.take().is_some() {
+        out.push(Action::EndMove);
+    }
+    out
+}
+
+fn lasso(scene: &Scene<'_>, own: &mut BenchUi, shown: &Shown) -> Actions {
+    let r = &shown.response;
+    if let Some(pos) = r.interact_pointer_pos() {
+        if r.drag_started() {
+            own.pointer.lasso.clear();
+        }
+        if r.dragged() {
+            let v = shown.transform.value_from_position(pos);
+            own.pointer.lasso.push([v.x, v.y]);
+        }
+    }
+    if !r.drag_stopped() {
+        return Actions::none();
+    }
+    let ring = std::mem::take(&mut own.pointer.lasso);
+    let rows = lasso_rows(scene.pair, scene.marks, &ring);
+    Actions::from((!rows.is_empty()).then_some(Action::Exclude { rows, reason: None }))
+}
+
+fn bands(pu: &mut PlotUi<'_>, d: &Diagnostics, v: &egui::Visuals) {
+    let Some(extras) = &d.extras else { return };
+    let b = &extras.bands;
+    if b.len() < 2 {
+        return;
+    }
+    let xs: Vec<f64> = b.iter().map(|p| p.x).collect();
+    let lo: Vec<f64> = b.iter().map(|p| p.mean_low).collect();
+    let hi: Vec<f64> = b.iter().map(|p| p.mean_high).collect();
+    let c = palette::fit(v);
+    pu.add(
+        FilledArea::new("confidence band", &xs, &lo, &hi)
+            .fill_color(c.gamma_multiply(0.22))
+            .allow_hover(false),
+    );
+    let edges: [fn(&BandPoint) -> f64; 2] = [|p| p.predict_low, |p| p.predict_high];
+    for edge in edges {
+        let pts: PlotPoints = b.iter().map(|p| [p.x, edge(p)]).collect();
+        pu.line(
+            Line::new("prediction band", pts)
+                .color(c.gamma_multiply(0.7))
+                .style(LineStyle::dashed_loose())
+                .allow_hover(false),
+        );
+    }
+}
+
+fn overlays(
+    pu: &mut PlotUi<'_>,
+    d: &Diagnostics,
+    v: &egui::Visuals,
+    (x_lo, x_hi): (f64, f64),
+    levels: &[String],
+) {
+    let straight =
+        |a: f64, b: f64| -> PlotPoints { vec![[x_lo, a + b * x_lo], [x_hi, a + b * x_hi]].into() };
+    let ink = v.text_color();
+    if let Some(extras) = &d.extras {
+        if let Some(Ok(RobustFit::TheilSen(t))) = &extras.robust {
+            pu.line(
+                Line::new("Theil–Sen", straight(t.intercept, t.slope))
+                    .color(ink)
+                    .style(LineStyle::dashed_dense())
+                    .allow_hover(false),
+            );
+        }
+        if let Some(Ok(l)) = &extras.loess {
+            let pts: PlotPoints = l.x.iter().zip(&l.fitted).map(|(&x, &y)| [x, y]).collect();
+            pu.line(
+                Line::new("LOESS", pts)
+                    .color(palette::loess(v))
+                    .width(1.5)
+                    .allow_hover(false),
+            );
+        }
+    }
+    if let Some(Ok(dm)) = &d.deming {
+        pu.line(
+            Line::new("Deming", straight(dm.intercept, dm.slope))
+                .color(ink)
+                .style(LineStyle::dotted_dense())
+                .allow_hover(false),
+        );
+    }
+    for g in &d.group_lines {
+        let name = levels.get(g.level).cloned().unwrap_or_default();
+        pu.line(
+            Line::new(name, straight(g.intercept, g.slope))
+                .color(palette::group(g.level))
+                .width(1.2)
+                .allow_hover(false),
+        );
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::state::marks::Note;
+
+    fn summary(estimates: Vec<f64>) -> LiveSummary {
+        LiveSummary {
+            n: 10,
+            std_errors: vec![0.0; estimates.len()],
+            p_values: vec![0.0; estimates.len()],
+            ci: vec![(0.0, 0.0); estimates.len()],
+            estimates,
+            r_squared: 0.5,
+            adj_r_squared: 0.4,
+            residual_std_error: 1.0,
+            f_test: None,
+            refitted: false,
+        }
+    }
+
+    #[test]
+    fn the_curve_spans_the_x_range_and_follows_the_live_coefficients() {
+        let spec = PairSpec {
+            degree: 2,
+            ..PairSpec::line("y", "x")
+        };
+        let c = curve(&spec, &summary(vec![1.0, 0.0, 2.0]), (-1.0, 3.0));
+        assert_eq!(c.len(), CURVE_POINTS as usize + 1);
+        assert_eq!(c[0], [-1.0, 3.0], "1 + 2x² at x = −1");
+        assert_eq!(c[c.len() - 1], [3.0, 19.0], "1 + 2x² at x = 3");
+        assert!(curve(&spec, &summary(vec![1.0]), (2.0, 2.0)).is_empty());
+    }
+
+    #[test]
+    fn the_lasso_takes_the_included_rows_inside_it_at_their_current_positions() {
+        let dir = tempfile::tempdir().expect("dir");
+        let path = dir.path().join("d.csv");
+        std::fs::write(&path, "x,y\n1,1\n2,2\n3,3\n4,4\n5,5\n6,6.5\n").expect("write");
+        let t = plumb_data::load(&path, &Default::default()).expect("load");
+        let pair = crate::state::pair::Pair::new(&t, PairSpec::line("y", "x")).expect("pair");
+        let mut marks = Marks::default();
+        marks.excluded.insert(
+            2,
+            Note {
+                reason: "r".into(),
+                at: String::new(),
+            },
+        );
+        marks.moved.insert(5, (10.0, 10.0));
+        let ring = [[0.0, 0.0], [4.5, 0.0], [4.5, 4.5], [0.0, 4.5]];
+        assert_eq!(
+            lasso_rows(&pair, &marks, &ring),
+            vec![1, 3, 4],
+            "row 2 is out, row 5 moved away"
+        );
+        assert!(lasso_rows(&pair, &marks, &ring[..2]).is_empty());
+    }
+}

@@ -1,0 +1,88 @@
+//! The frame the three diagnostic views share: a titled plot of the diagnostics' points with
+//! the excluded rows as rings, the view's own guides underneath, hover linked to the other
+//! views, and a click that picks (and, in exclude mode, excludes or puts back) the row.
+
+use eframe::egui::{self, Vec2};
+use egui_plot::PlotUi;
+
+use super::pointer::PointerMode;
+use super::points::{hovered_entry, points_layer, title_ui, toggle, tooltip_ui, Layer, Shown};
+use super::{BenchUi, Scene};
+use crate::action::Actions;
+use crate::axes;
+use crate::state::cloud::Cloud;
+
+/// What a diagnostic view is called and what its axes show.
+pub struct Diagnostic {
+    /// Keys the view's zoom memory and density image.
+    pub id: &'static str,
+    /// Title above the view.
+    pub title: &'static str,
+    /// What the view shows, on hover of the title.
+    pub tip: &'static str,
+    /// Horizontal axis.
+    pub x_label: &'static str,
+    /// Vertical axis.
+    pub y_label: &'static str,
+}
+
+/// Draws one diagnostic view of `points` (included rows) and `excluded` (rings), with
+/// `guides` drawn first. A spinner while the first diagnostics compute.
+pub fn diagnostic_ui(
+    scene: &Scene<'_>,
+    own: &mut BenchUi,
+    ui: &mut egui::Ui,
+    size: Vec2,
+    view: &Diagnostic,
+    (points, excluded): (&Cloud, &Cloud),
+    guides: impl FnOnce(&mut PlotUi<'_>, &Cloud, &egui::Visuals),
+) -> Actions {
+    title_ui(ui, view.title, view.tip);
+    let focus = own
+        .pointer
+        .focus()
+        .and_then(|e| points.position_of(e).or_else(|| excluded.position_of(e)));
+    let mut plot = axes::plot(
+        (view.id, scene.bench.serial()),
+        size,
+        (view.x_label, view.y_label),
+    )
+    .allow_drag(true);
+    if points.is_dense() {
+        if let Some(b) = points.bounds {
+            plot = super::dense_bounds(plot, b);
+        }
+    }
+    let skip = std::collections::HashSet::new();
+    let none = Cloud::default();
+    let textures = &mut own.textures;
+    let visuals = ui.visuals().clone();
+    let resp = plot.show(ui, |pu| {
+        guides(pu, points, &visuals);
+        let layer = Layer {
+            view: view.id,
+            cloud: points,
+            groups: None,
+            excluded,
+            skip: &skip,
+            extra: &none,
+            focus,
+            generation: scene.bench.diag_generation(),
+        };
+        points_layer(pu, &layer, textures, &visuals);
+    });
+    let shown = Shown {
+        hovered: hovered_entry(&resp.response, &resp.transform, &[points, excluded]),
+        transform: resp.transform,
+        response: resp.response,
+    };
+    let mut out = Actions::none();
+    if let Some(e) = shown.hovered.filter(|_| shown.response.clicked()) {
+        own.pointer.selected = Some(e);
+        if own.pointer.mode == PointerMode::Exclude {
+            out.push(toggle(scene, e));
+        }
+    }
+    tooltip_ui(scene, &mut own.pointer, &shown);
+    out
+}

@@ -1,0 +1,146 @@
+//! The Columns screen: open a file (path, dialog, drop, recent list) and see its columns.
+
+use std::path::PathBuf;
+
+use eframe::egui::{self, RichText};
+use plumb_report::text::num;
+
+use crate::action::{Action, Actions};
+use crate::state::pair::PairSpec;
+use crate::state::{DialogPurpose, Loaded, Screen, State};
+
+/// What the screen keeps between frames.
+#[derive(Debug, Default)]
+pub struct ColumnsUi {
+    /// The path being typed.
+    pub path_field: String,
+}
+
+/// Draws the screen.
+pub fn columns_ui(state: &State, own: &mut ColumnsUi, ui: &mut egui::Ui) -> Actions {
+    let mut out = open_row_ui(own, ui);
+    ui.weak("Or drop a file onto this window.");
+    out.extend(recent_ui(state.doc.recent(), ui));
+    ui.separator();
+    let Some(loaded) = state.loaded() else {
+        ui.label("No file open yet.");
+        return out;
+    };
+    file_facts_ui(loaded, ui);
+    egui::ScrollArea::vertical().show(ui, |ui| {
+        column_table_ui(loaded, ui);
+        out.extend(next_steps_ui(loaded, ui));
+    });
+    out
+}
+
+fn open_row_ui(own: &mut ColumnsUi, ui: &mut egui::Ui) -> Actions {
+    let mut out = Actions::none();
+    ui.horizontal(|ui| {
+        let label = ui.label("File:");
+        let field = ui
+            .add(
+                egui::TextEdit::singleline(&mut own.path_field)
+                    .hint_text("path to a CSV, TSV, Parquet, spreadsheet or .plumb session")
+                    .desired_width(420.0),
+            )
+            .labelled_by(label.id)
+            .on_hover_text("Type or paste a path and press Enter");
+        let enter = field.lost_focus() && ui.input(|i| i.key_pressed(egui::Key::Enter));
+        let open = ui
+            .button("Open")
+            .on_hover_text("Read the file named in the field")
+            .clicked();
+        let path = PathBuf::from(own.path_field.trim());
+        if (open || enter) && !path.as_os_str().is_empty() {
+            out.push(Action::Open(path));
+        }
+        if ui
+            .button("Browse…")
+            .on_hover_text("Choose a file with the system's dialog (Ctrl+O)")
+            .clicked()
+        {
+            out.push(Action::PickFile(DialogPurpose::Open));
+        }
+    });
+    out
+}
+
+fn recent_ui(recent: &[PathBuf], ui: &mut egui::Ui) -> Actions {
+    let mut out = Actions::none();
+    if recent.is_empty() {
+        return out;
+    }
+    ui.add_space(6.0);
+    ui.label(RichText::new("Recent").strong());
+    for f in recent {
+        if ui
+            .link(f.display().to_string())
+            .on_hover_text("Open this file again")
+            .clicked()
+        {
+            out.push(Action::Open(f.clone()));
+        }
+    }
+    out
+}
+
+fn file_facts_ui(loaded: &Loaded, ui: &mut egui::Ui) {
+    let d = &loaded.dataset;
+    ui.heading(d.file_name());
+    ui.label(format!(
+        "{} data rows, {} columns ({} numeric). SHA-256 {}…",
+        d.table.n_rows(),
+        d.summaries.len(),
+        d.numeric.len(),
+        &loaded.sha256[..12.min(loaded.sha256.len())]
+    ));
+    for note in d.table.notes() {
+        ui.label(format!("note: {note}"));
+    }
+}
+
+fn column_table_ui(loaded: &Loaded, ui: &mut egui::Ui) {
+    egui::Grid::new("column-summary")
+        .striped(true)
+        .num_columns(5)
+        .show(ui, |ui| {
+            for h in ["column", "type", "missing", "min", "max"] {
+                ui.label(RichText::new(h).strong());
+            }
+            ui.end_row();
+            for s in &loaded.dataset.summaries {
+                ui.label(&s.name);
+                ui.label(s.kind);
+                ui.label(s.missing.to_string());
+                ui.label(s.min.map_or("—".into(), num));
+                ui.label(s.max.map_or("—".into(), num));
+                ui.end_row();
+            }
+        });
+}
+
+fn next_steps_ui(loaded: &Loaded, ui: &mut egui::Ui) -> Actions {
+    let mut out = Actions::none();
+    let numeric = &loaded.dataset.numeric;
+    if numeric.len() < 2 {
+        return out;
+    }
+    ui.add_space(8.0);
+    if ui
+        .button("Map how the columns move together")
+        .on_hover_text("The co-movement map of every numeric pair")
+        .clicked()
+    {
+        out.push(Action::Show(Screen::Map));
+    }
+    if ui
+        .button(format!("Fit {} on {}", numeric[1], numeric[0]))
+        .on_hover_text("Open the first two numeric columns on the pair bench")
+        .clicked()
+    {
+        out.push(Action::OpenPair(PairSpec::line(&numeric[1], &numeric[0])));
+        out.push(Action::Show(Screen::Bench));
+    }
+    out
+}

@@ -1,0 +1,193 @@
+//! The model behind the pair bench: the pair with its live fit, the overlays and colouring
+//! asked for, the diagnostics job and its latest result, and the rows waiting for a reason.
+
+use std::sync::Arc;
+
+use super::dataset::Dataset;
+use super::diagnostics::{compute, Diagnostics, Input, Overlays};
+use super::jobs::{Job, Waker};
+use super::marks::Marks;
+use super::pair::{Pair, PairSpec};
+use crate::WorkbenchError;
+
+/// Rows just excluded that wait for their reason.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Prompt {
+    /// Data rows.
+    pub rows: Vec<usize>,
+}
+
+/// A text column colouring the points: its name, levels and each pair entry's level.
+#[derive(Debug, Clone, Default)]
+pub struct Colouring {
+    /// The column (`None`: no colouring).
+    pub column: Option<String>,
+    /// Its levels, in order.
+    pub levels: Vec<String>,
+    /// Level of each pair entry (`None` where the cell is missing).
+    pub of_entry: Option<Arc<[Option<usize>]>>,
+}
+
+/// State of the bench.
+#[derive(Default)]
+pub struct BenchModel {
+    pair: Option<Pair>,
+    overlays: Overlays,
+    colouring: Colouring,
+    diag: Option<Arc<Diagnostics>>,
+    job: Option<Job<Diagnostics>>,
+    stale: bool,
+    /// Changes with the marks (keys the scatter's density image).
+    marks_generation: u64,
+    /// Changes with each new set of diagnostics (keys the other views' density images).
+    diag_generation: u64,
+    /// Counts pairs opened (keys the views' zoom memory).
+    serial: u64,
+    pub(crate) prompt: Option<Prompt>,
+}
+
+impl BenchModel {
+    /// The pair on the bench.
+    pub fn pair(&self) -> Option<&Pair> {
+        self.pair.as_ref()
+    }
+
+    /// The latest diagnostics (possibly for an earlier state while a newer one computes).
+    pub fn diagnostics(&self) -> Option<&Arc<Diagnostics>> {
+        self.diag.as_ref()
+    }
+
+    /// The live numbers of the pair on the bench.
+    pub fn summary(&self) -> Option<Result<plumb_core::regression::LiveSummary, String>> {
+        self.pair
+            .as_ref()
+            .map(|p| p.summary().clone().map_err(|e| e.to_string()))
+    }
+
+    /// The overlays asked for.
+    pub fn overlays(&self) -> Overlays {
+        self.overlays
+    }
+
+    /// The colouring of the points.
+    pub fn colouring(&self) -> &Colouring {
+        &self.colouring
+    }
+
+    /// Whether diagnostics are being computed or are out of date.
+    pub fn is_busy(&self) -> bool {
+        self.job.is_some() || self.stale
+    }
+
+    /// The reason prompt, if open.
+    pub fn prompt(&self) -> Option<&Prompt> {
+        self.prompt.as_ref()
+    }
+
+    /// Counts the pairs opened (a new pair starts its views afresh).
+    pub fn serial(&self) -> u64 {
+        self.serial
+    }
+
+    /// Changes whenever the marks applied to the pair do.
+    pub fn marks_generation(&self) -> u64 {
+        self.marks_generation
+    }
+
+    /// Changes with every new set of diagnostics.
+    pub fn diag_generation(&self) -> u64 {
+        self.diag_generation
+    }
+
+    /// Puts `spec` on the bench under `marks`.
+    ///
+    /// # Errors
+    /// Columns that cannot be fitted.
+    pub fn open(
+        &mut self,
+        data: &Dataset,
+        spec: PairSpec,
+        marks: &Marks,
+    ) -> Result<(), WorkbenchError> {
+        let mut pair = Pair::new(&data.table, spec)?;
+        pair.apply(marks);
+        self.pair = Some(pair);
+        self.serial += 1;
+        self.diag = None;
+        let column = self.colouring.column.take();
+        self.colour_by(data, column);
+        self.touch();
+        Ok(())
+    }
+
+    /// Colours the points by `column` (a text column with few levels) or by nothing.
+    pub fn colour_by(&mut self, data: &Dataset, column: Option<String>) {
+        self.colouring = match (&self.pair, column) {
+            (Some(pair), Some(name)) => Colouring {
+                levels: data
+                    .groups
+                    .iter()
+                    .find(|(n, _)| *n == name)
+                    .map(|(_, l)| l.clone())
+                    .unwrap_or_default(),
+                of_entry: data
+                    .group_of_rows(&name)
+                    .map(|g| pair.rows.iter().map(|&r| g[r - 1]).collect()),
+                column: Some(name),
+            },
+            (None, column) => Colouring {
+                column,
+                ..Colouring::default()
+            },
+            (_, None) => Colouring::default(),
+        };
+        self.touch();
+    }
+
+    /// Sets the overlays (and recomputes the diagnostics when they changed).
+    pub fn set_overlays(&mut self, overlays: Overlays) {
+        if overlays != self.overlays {
+            self.overlays = overlays;
+            self.touch();
+        }
+    }
+
+    /// Marks the diagnostics out of date.
+    fn touch(&mut self) {
+        self.stale = true;
+        self.marks_generation += 1;
+    }
+
+    /// Applies changed marks to the live fit (immediately) and queues the diagnostics.
+    pub fn apply(&mut self, marks: &Marks) {
+        if let Some(p) = &mut self.pair {
+            let changed = p.differs(marks);
+            p.apply(marks);
+            if changed {
+                self.touch();
+            }
+        }
+    }
+
+    /// Picks up finished diagnostics and starts a new computation when needed.
+    pub fn poll(&mut self, data: &Dataset, marks: &Marks, waker: &Waker) {
+        if let Some(d) = self.job.as_mut().and_then(Job::poll) {
+            self.job = None;
+            self.diag = Some(Arc::new(d));
+            self.diag_generation += 1;
+        }
+        if self.stale && self.job.is_none() {
+            if let Some(pair) = &self.pair {
+                self.stale = false;
+                let input = Input::of(
+                    &data.table,
+                    pair,
+                    marks,
+                    self.overlays,
+                    self.colouring.of_entry.clone(),
+                );
+                self.job = Some(Job::spawn(move |_| compute(&input), waker.hook()));
+            }
+        }
+    }
+}

@@ -1,0 +1,170 @@
+//! What goes with a one-predictor fit: an overlay line, a LOESS smooth, the cues, the pair in
+//! z-units, the fit read at one x, the polynomial ladder and the bands along the curve.
+
+use plumb_core::alternative::{
+    deming, loess, theil_sen, AlternativeError, DemingFit, LoessFit, TheilSenFit,
+};
+use plumb_core::cues::{pair_cues, PairCues};
+use plumb_core::regression::{
+    bands, compare_nested, fit, BandPoint, FitOptions, LinearFit, NestedComparison,
+    StandardizedView,
+};
+
+use super::{one_predictor_design, FitRequest, ModelRows};
+
+/// An overlay line for the same pair.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Robust {
+    /// Theil–Sen median of slopes.
+    TheilSen,
+    /// Deming regression with this error-variance ratio.
+    Deming(f64),
+}
+
+/// A fitted overlay line.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum RobustFit {
+    /// Theil–Sen.
+    TheilSen(TheilSenFit),
+    /// Deming.
+    Deming(DemingFit),
+}
+
+/// What is computed beside the least-squares fit when there is a single predictor.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PairExtras {
+    /// The requested overlay line, or why it is undefined.
+    pub robust: Option<Result<RobustFit, AlternativeError>>,
+    /// The requested LOESS smooth (degree 2), or why it is undefined.
+    pub loess: Option<Result<LoessFit, AlternativeError>>,
+    /// Non-linearity and single-point cues.
+    pub cues: Option<PairCues>,
+    /// The pair in z-units.
+    pub z_view: Option<StandardizedView>,
+    /// The fit read at the requested predictor value.
+    pub read_at: Option<ReadAt>,
+    /// Polynomials of degree 1, 2 and 3 on the same rows, each tested against the one below.
+    pub degrees: Vec<DegreeStep>,
+    /// The fitted curve with its confidence and prediction bands on an even grid over the x range.
+    pub bands: Vec<BandPoint>,
+}
+
+/// One rung of the polynomial ladder.
+#[derive(Debug, Clone, PartialEq)]
+pub struct DegreeStep {
+    /// Degree.
+    pub degree: u32,
+    /// Its fit.
+    pub fit: LinearFit,
+    /// Against the degree below (None for degree 1).
+    pub versus_previous: Option<NestedComparison>,
+}
+
+/// Points in the band grid.
+pub const BAND_POINTS: usize = 41;
+
+/// What to add beside a one-predictor fit.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct ExtrasRequest {
+    /// Overlay line.
+    pub robust: Option<Robust>,
+    /// LOESS span.
+    pub loess_span: Option<f64>,
+    /// A predictor value to read the fit at.
+    pub at: Option<f64>,
+}
+
+/// The fit read at one predictor value.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ReadAt {
+    /// The value, its fit and its bands.
+    pub point: BandPoint,
+    /// `z_x = (x − x̄)/s_x`.
+    pub z_x: f64,
+    /// Expected `z_y = r·z_x`: the unit is expected `(1 − |r|)·|z_x|` SDs nearer the mean on y.
+    pub expected_z_y: f64,
+}
+
+/// Overlays and cues for a one-predictor request (`None` with several predictors).
+pub(super) fn pair_extras(
+    rows: &ModelRows,
+    fitted: &LinearFit,
+    request: &FitRequest,
+    extras: ExtrasRequest,
+) -> Option<PairExtras> {
+    if request.x.len() != 1 {
+        return None;
+    }
+    let ExtrasRequest {
+        robust,
+        loess_span,
+        at,
+    } = extras;
+    let (y, x) = (rows.y(), rows.selection.columns[1].as_slice());
+    let z_view = StandardizedView::of(x, y);
+    let read_at = at.and_then(|a| {
+        let point = *bands(&rows.design, fitted, &[a])?.first()?;
+        let z = z_view?;
+        let z_x = (a - z.mean_x) / z.sd_x;
+        Some(ReadAt {
+            point,
+            z_x,
+            expected_z_y: z.slope * z_x,
+        })
+    });
+    Some(PairExtras {
+        read_at,
+        robust: robust.map(|r| match r {
+            Robust::TheilSen => theil_sen(x, y, request.level).map(RobustFit::TheilSen),
+            Robust::Deming(lambda) => deming(x, y, lambda).map(RobustFit::Deming),
+        }),
+        loess: loess_span.map(|span| loess(x, y, span, 2)),
+        cues: pair_cues(x, y),
+        z_view,
+        degrees: if request.weights.is_none() {
+            degree_ladder(x, y, request)
+        } else {
+            Vec::new()
+        },
+        bands: band_grid(x, rows, fitted),
+    })
+}
+
+fn degree_ladder(x: &[f64], y: &[f64], request: &FitRequest) -> Vec<DegreeStep> {
+    let options = FitOptions {
+        level: request.level,
+        ..FitOptions::default()
+    };
+    let mut steps: Vec<DegreeStep> = Vec::new();
+    for degree in 1..=3 {
+        let rung = FitRequest {
+            degree,
+            ..request.clone()
+        };
+        let Some(f) = one_predictor_design(&rung, x)
+            .ok()
+            .and_then(|d| fit(&d, y, None, &options).ok())
+        else {
+            break;
+        };
+        let versus_previous = steps.last().map(|prev| compare_nested(&prev.fit, &f));
+        steps.push(DegreeStep {
+            degree,
+            fit: f,
+            versus_previous,
+        });
+    }
+    steps
+}
+
+fn band_grid(x: &[f64], rows: &ModelRows, fitted: &LinearFit) -> Vec<BandPoint> {
+    let (lo, hi) = x
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| {
+            (a.min(v), b.max(v))
+        });
+    let grid: Vec<f64> = (0..BAND_POINTS)
+        .map(|k| lo + (hi - lo) * k as f64 / (BAND_POINTS - 1) as f64)
+        .collect();
+    bands(&rows.design, fitted, &grid).unwrap_or_default()
+}
