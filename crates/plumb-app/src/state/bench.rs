@@ -114,6 +114,10 @@ impl BenchModel {
         self.pair = Some(pair);
         self.serial += 1;
         self.diag = None;
+        // The diagnostics of the pair that was on the bench must not arrive for this one.
+        if let Some(job) = self.job.take() {
+            job.cancel();
+        }
         let column = self.colouring.column.take();
         self.colour_by(data, column);
         self.touch();
@@ -173,8 +177,10 @@ impl BenchModel {
     pub fn poll(&mut self, data: &Dataset, marks: &Marks, waker: &Waker) {
         if let Some(d) = self.job.as_mut().and_then(Job::poll) {
             self.job = None;
-            self.diag = Some(Arc::new(d));
-            self.diag_generation += 1;
+            if self.pair.as_ref().is_some_and(|p| p.spec == d.spec) {
+                self.diag = Some(Arc::new(d));
+                self.diag_generation += 1;
+            }
         }
         if self.stale && self.job.is_none() {
             if let Some(pair) = &self.pair {
@@ -189,5 +195,38 @@ impl BenchModel {
                 self.job = Some(Job::spawn(move |_| compute(&input), waker.hook()));
             }
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn diagnostics_of_the_pair_that_was_on_the_bench_never_arrive_for_the_next() {
+        let dir = tempfile::tempdir().expect("dir");
+        let path = dir.path().join("d.csv");
+        let mut text = String::from("t,a,b\n");
+        for i in 0..400 {
+            let t = f64::from(i);
+            text.push_str(&format!("{t},{},{}\n", 50.0 + (t * 0.7).sin(), 3.0 + 0.2 * t));
+        }
+        std::fs::write(&path, text).expect("write");
+        let data = Dataset::load(&path, &Default::default()).expect("load");
+        let marks = Marks::default();
+        let waker = Waker::default();
+        let mut bench = BenchModel::default();
+        bench.open(&data, PairSpec::line("a", "t"), &marks).expect("first pair");
+        bench.poll(&data, &marks, &waker);
+        let second = PairSpec::line("b", "a");
+        bench.open(&data, second.clone(), &marks).expect("second pair");
+        let start = std::time::Instant::now();
+        while bench.diagnostics().is_none() {
+            assert!(start.elapsed().as_secs() < 60, "no diagnostics");
+            bench.poll(&data, &marks, &waker);
+            std::thread::sleep(std::time::Duration::from_millis(2));
+        }
+        let d = bench.diagnostics().expect("diagnostics");
+        assert_eq!(d.spec, second, "the first diagnostics shown are the new pair's");
     }
 }

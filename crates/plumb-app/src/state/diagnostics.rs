@@ -100,6 +100,8 @@ impl Input {
 /// The results of one diagnostics job.
 #[derive(Debug, Clone)]
 pub struct Diagnostics {
+    /// The model these results are for.
+    pub spec: PairSpec,
     /// The marks these results are for.
     pub marks: Marks,
     /// Pair entries included, ascending; `cases[k]` belongs to `included[k]`.
@@ -185,6 +187,7 @@ pub fn compute(input: &Input) -> Diagnostics {
     let (x, y): (Vec<f64>, Vec<f64>) = included.iter().map(|&i| input.point(i)).unzip();
     Diagnostics {
         top: rankings(&cases),
+        spec: input.spec.clone(),
         marks: input.marks.clone(),
         deming: input
             .overlays
