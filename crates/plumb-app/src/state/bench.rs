@@ -209,17 +209,25 @@ mod tests {
         let mut text = String::from("t,a,b\n");
         for i in 0..400 {
             let t = f64::from(i);
-            text.push_str(&format!("{t},{},{}\n", 50.0 + (t * 0.7).sin(), 3.0 + 0.2 * t));
+            text.push_str(&format!(
+                "{t},{},{}\n",
+                50.0 + (t * 0.7).sin(),
+                3.0 + 0.2 * t
+            ));
         }
         std::fs::write(&path, text).expect("write");
         let data = Dataset::load(&path, &Default::default()).expect("load");
         let marks = Marks::default();
         let waker = Waker::default();
         let mut bench = BenchModel::default();
-        bench.open(&data, PairSpec::line("a", "t"), &marks).expect("first pair");
+        bench
+            .open(&data, PairSpec::line("a", "t"), &marks)
+            .expect("first pair");
         bench.poll(&data, &marks, &waker);
         let second = PairSpec::line("b", "a");
-        bench.open(&data, second.clone(), &marks).expect("second pair");
+        bench
+            .open(&data, second.clone(), &marks)
+            .expect("second pair");
         let start = std::time::Instant::now();
         while bench.diagnostics().is_none() {
             assert!(start.elapsed().as_secs() < 60, "no diagnostics");
@@ -227,6 +235,9 @@ mod tests {
             std::thread::sleep(std::time::Duration::from_millis(2));
         }
         let d = bench.diagnostics().expect("diagnostics");
-        assert_eq!(d.spec, second, "the first diagnostics shown are the new pair's");
+        assert_eq!(
+            d.spec, second,
+            "the first diagnostics shown are the new pair's"
+        );
     }
 }

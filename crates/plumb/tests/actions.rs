@@ -1,0 +1,309 @@
+//! The workbench driven by its actions alone, without pixels: exclude, undo, redo, a what-if
+//! move, save and reopen, the reason prompt and the questions. Every number the bench shows is
+//! checked against `plumb fit` on the same rows — for a what-if move, against `plumb fit` on a
+//! copy of the file with the moved values written in, an independent route to the same fit.
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+use std::time::Duration;
+
+use plumb_app::{Action, Ask, PairSpec, Screen, Workbench};
+use plumb_core::regression::LiveSummary;
+
+fn demo(name: &str) -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("../../demo-scenarios/data")
+        .join(name)
+}
+
+/// `plumb fit DATA --y Y --x X [--exclude ROWS] --format json`.
+fn cli_fit(data: &Path, y: &str, x: &str, exclude: &str) -> serde_json::Value {
+    let mut args = vec![
+        "fit".to_string(),
+        data.display().to_string(),
+        "--y".into(),
+        y.into(),
+        "--x".into(),
+        x.into(),
+        "--format".into(),
+        "json".into(),
+    ];
+    if !exclude.is_empty() {
+        args.extend(["--exclude".into(), exclude.into()]);
+    }
+    let out = Command::new(env!("CARGO_BIN_EXE_plumb"))
+        .args(&args)
+        .output()
+        .expect("plumb runs");
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    serde_json::from_slice(&out.stdout).expect("json")
+}
+
+fn close(a: f64, b: f64) -> bool {
+    (a - b).abs() <= 1e-9 * a.abs().max(b.abs()).max(1e-300)
+}
+
+/// The live numbers equal the command line's: R², adjusted R², σ̂, and every coefficient's
+/// estimate, SE, p and interval.
+fn assert_same_numbers(live: &LiveSummary, cli: &serde_json::Value) {
+    let f = |k: &str| cli[k].as_f64().unwrap_or_else(|| panic!("{k} in {cli}"));
+    assert_eq!(live.n as u64, cli["n"].as_u64().expect("n"));
+    for (ours, key) in [
+        (live.r_squared, "r_squared"),
+        (live.adj_r_squared, "adj_r_squared"),
+        (live.residual_std_error, "residual_std_error"),
+    ] {
+        assert!(
+            close(ours, f(key)),
+            "{key}: live {ours}, plumb fit {}",
+            f(key)
+        );
+    }
+    let coefficients = cli["coefficients"].as_array().expect("coefficients");
+    assert_eq!(coefficients.len(), live.estimates.len());
+    for (j, c) in coefficients.iter().enumerate() {
+        let g = |k: &str| c[k].as_f64().expect("number");
+        let pairs = [
+            (live.estimates[j], g("estimate")),
+            (live.std_errors[j], g("std_error")),
+            (live.p_values[j], g("p_value")),
+            (live.ci[j].0, g("ci_low")),
+            (live.ci[j].1, g("ci_high")),
+        ];
+        for (ours, theirs) in pairs {
+            assert!(
+                close(ours, theirs),
+                "term {j}: live {ours}, plumb fit {theirs}"
+            );
+        }
+    }
+}
+
+fn settle(wb: &mut Workbench) {
+    assert!(
+        wb.settle(Duration::from_secs(60)),
+        "background work did not finish"
+    );
+}
+
+fn live(wb: &Workbench) -> LiveSummary {
+    wb.bench().summary().expect("a pair").expect("a fit")
+}
+
+fn calibration(config: &Path, data: &Path) -> Workbench {
+    let mut wb = Workbench::new(Some(config.to_path_buf()));
+    wb.apply(Action::Open(data.to_path_buf()));
+    settle(&mut wb);
+    assert!(wb.loaded().is_some(), "{:?}", wb.status());
+    wb.apply(Action::OpenPair(PairSpec::line(
+        "absorbance",
+        "standard_mg_l",
+    )));
+    wb.apply(Action::Show(Screen::Bench));
+    settle(&mut wb);
+    wb
+}
+
+#[test]
+fn exclude_undo_and_redo_keep_the_command_lines_numbers() {
+    let config = tempfile::tempdir().expect("config");
+    let data = demo("calibration-run.csv");
+    let mut wb = calibration(config.path(), &data);
+    let all = cli_fit(&data, "absorbance", "standard_mg_l", "");
+    let without = cli_fit(&data, "absorbance", "standard_mg_l", "9,14");
+    assert_same_numbers(&live(&wb), &all);
+
+    wb.apply(Action::Exclude {
+        rows: vec![9, 14],
+        reason: Some("read during lamp warm-up".into()),
+    });
+    assert!(
+        wb.bench().prompt().is_none(),
+        "a reason was given: no prompt"
+    );
+    settle(&mut wb);
+    assert_same_numbers(&live(&wb), &without);
+    let d = wb.bench().diagnostics().expect("diagnostics");
+    let full = d.fit.as_ref().expect("the diagnostics' fit");
+    assert!(close(
+        full.r_squared,
+        without["r_squared"].as_f64().expect("r²")
+    ));
+    assert_eq!(d.cases.len(), 25, "27 rows, 2 out");
+
+    wb.apply(Action::Undo);
+    settle(&mut wb);
+    assert!(wb.marks().excluded.is_empty());
+    assert_same_numbers(&live(&wb), &all);
+    wb.apply(Action::Redo);
+    settle(&mut wb);
+    assert_same_numbers(&live(&wb), &without);
+    assert!(wb
+        .marks()
+        .excluded
+        .values()
+        .all(|n| n.reason == "read during lamp warm-up"));
+    wb.apply(Action::PutBack(vec![9]));
+    settle(&mut wb);
+    assert_same_numbers(
+        &live(&wb),
+        &cli_fit(&data, "absorbance", "standard_mg_l", "14"),
+    );
+}
+
+#[test]
+fn an_exclusion_without_a_reason_asks_for_one_and_the_reason_joins_its_step() {
+    let config = tempfile::tempdir().expect("config");
+    let data = demo("calibration-run.csv");
+    let mut wb = calibration(config.path(), &data);
+    wb.apply(Action::Exclude {
+        rows: vec![14],
+        reason: None,
+    });
+    assert_eq!(wb.bench().prompt().map(|p| p.rows.clone()), Some(vec![14]));
+    wb.apply(Action::RecordReason("  standard drifted  ".into()));
+    assert!(wb.bench().prompt().is_none());
+    assert_eq!(wb.marks().excluded[&14].reason, "standard drifted");
+    let recovery =
+        plumb_report::Session::load(&config.path().join("recovery.plumb")).expect("recovery copy");
+    assert_eq!(recovery.exclusions[0].reason, "standard drifted");
+    // One undo takes back the exclusion and its reason together.
+    wb.apply(Action::Undo);
+    assert!(wb.marks().excluded.is_empty());
+    assert!(!wb.can_undo());
+    // A row beyond the table is refused with the range.
+    wb.apply(Action::Exclude {
+        rows: vec![99],
+        reason: None,
+    });
+    let status = wb.status().expect("a message");
+    assert!(
+        status.error && status.text.contains("1 to 27"),
+        "{status:?}"
+    );
+    assert!(wb.marks().excluded.is_empty());
+}
+
+#[test]
+fn a_committed_what_if_move_equals_a_fit_of_the_file_with_the_moved_values() {
+    let config = tempfile::tempdir().expect("config");
+    let work = tempfile::tempdir().expect("work");
+    let data = demo("calibration-run.csv");
+    let before = std::fs::read(&data).expect("read");
+    let mut wb = calibration(config.path(), &data);
+    let start = live(&wb);
+    // A drag: several positions, then the release.
+    for y in [0.5, 0.6, 0.71] {
+        wb.apply(Action::MoveTo { row: 5, x: 10.0, y });
+    }
+    wb.apply(Action::EndMove);
+    settle(&mut wb);
+    assert!(wb.marks().is_hypothetical());
+
+    // The same fit by another route: the file with row 5's cells replaced, read afresh.
+    let moved = work.path().join("moved.csv");
+    let text = String::from_utf8(before.clone()).expect("utf-8");
+    let header: Vec<&str> = text.lines().next().expect("header").split(',').collect();
+    let (xi, yi) = (
+        header
+            .iter()
+            .position(|h| *h == "standard_mg_l")
+            .expect("x"),
+        header.iter().position(|h| *h == "absorbance").expect("y"),
+    );
+    let rewritten: Vec<String> = text
+        .lines()
+        .enumerate()
+        .map(|(k, line)| {
+            if k != 5 {
+                return line.to_string();
+            }
+            let mut cells: Vec<String> = line.split(',').map(str::to_string).collect();
+            cells[xi] = "10".into();
+            cells[yi] = "0.71".into();
+            cells.join(",")
+        })
+        .collect();
+    std::fs::write(&moved, rewritten.join("\n") + "\n").expect("write");
+    let reference = cli_fit(&moved, "absorbance", "standard_mg_l", "");
+    assert_same_numbers(&live(&wb), &reference);
+    let d = wb.bench().diagnostics().expect("diagnostics");
+    let full = d.fit.as_ref().expect("fit");
+    assert!(close(
+        full.r_squared,
+        reference["r_squared"].as_f64().expect("r²")
+    ));
+
+    // One undo takes back the whole drag; the data file was never written.
+    wb.apply(Action::Undo);
+    settle(&mut wb);
+    assert!(!wb.marks().is_hypothetical());
+    assert!(close(live(&wb).r_squared, start.r_squared));
+    assert_eq!(std::fs::read(&data).expect("read"), before);
+}
+
+#[test]
+fn a_saved_session_reopens_with_the_same_rows_reasons_and_numbers() {
+    let config = tempfile::tempdir().expect("config");
+    let work = tempfile::tempdir().expect("work");
+    let data = work.path().join("calibration-run.csv");
+    std::fs::copy(demo("calibration-run.csv"), &data).expect("copy");
+    let mut wb = calibration(config.path(), &data);
+    wb.apply(Action::Exclude {
+        rows: vec![9, 14],
+        reason: Some("both read during lamp warm-up".into()),
+    });
+    settle(&mut wb);
+    let session = work.path().join("run");
+    wb.apply(Action::SaveSessionTo(session.clone()));
+    let saved = work.path().join("run.plumb");
+    assert!(saved.exists(), "the extension is added: {:?}", wb.status());
+    assert!(!wb.has_unsaved_changes());
+
+    let mut again = Workbench::new(Some(config.path().to_path_buf()));
+    again.apply(Action::Open(saved));
+    settle(&mut again);
+    assert_eq!(again.screen(), Screen::Bench, "a session opens on its pair");
+    let rows: Vec<usize> = again.marks().excluded.keys().copied().collect();
+    assert_eq!(rows, vec![9, 14]);
+    assert!(!again.has_unsaved_changes());
+    assert_same_numbers(
+        &live(&again),
+        &cli_fit(&data, "absorbance", "standard_mg_l", "9,14"),
+    );
+}
+
+#[test]
+fn questions_are_answered_by_actions() {
+    let config = tempfile::tempdir().expect("config");
+    let dir = tempfile::tempdir().expect("data");
+    let big = dir.path().join("log.csv");
+    let text: String = std::iter::once("t,a,b\n".to_string())
+        .chain((0..5000).map(|i| format!("{i},{},{}\n", i % 17, (i * 7) % 23)))
+        .collect();
+    std::fs::write(&big, text).expect("write");
+    let mut wb = Workbench::new(Some(config.path().to_path_buf()));
+    wb.set_memory_limit(Some(10_000));
+    wb.apply(Action::Open(big.clone()));
+    assert!(
+        matches!(wb.ask(), Some(Ask::TooLarge { .. })),
+        "{:?}",
+        wb.ask()
+    );
+    wb.apply(Action::Answer(false));
+    assert!(wb.ask().is_none());
+    assert_eq!(
+        wb.status().map(|s| s.text.as_str()),
+        Some("file not opened")
+    );
+    wb.apply(Action::Open(big));
+    wb.apply(Action::Answer(true));
+    settle(&mut wb);
+    assert_eq!(wb.screen(), Screen::OnePass);
+    assert!(wb.one_pass().and_then(|o| o.r_squared_line()).is_some());
+    assert!(wb.loaded().is_none(), "the table was not loaded");
+}
