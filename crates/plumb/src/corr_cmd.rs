@@ -4,6 +4,8 @@ use std::fmt::Write;
 
 use plumb_core::association::{correlation_matrix, Adjustment, CorrelationMatrix, Method};
 use plumb_data::ColumnValues;
+use plumb_report::text::p;
+use plumb_report::wording;
 use serde::Serialize;
 
 use crate::cli::{AdjustArg, CorrArgs, Format, MethodArg};
@@ -35,26 +37,7 @@ struct CorrJson<'a> {
 
 pub fn run(args: &CorrArgs) -> anyhow::Result<String> {
     let table = plumb_data::load(&args.load.data, &args.load.options())?;
-    let columns: Vec<String> = if args.columns.is_empty() {
-        table
-            .columns()
-            .iter()
-            .filter(
-                |c| matches!(&c.values, ColumnValues::Numeric(v) if v.iter().any(Option::is_some)),
-            )
-            .map(|c| c.name.clone())
-            .filter(|n| Some(n) != args.order.as_ref())
-            .collect()
-    } else {
-        args.columns.clone()
-    };
-    if columns.len() < 2 {
-        anyhow::bail!(
-            "{}: at least two numeric columns are needed, found {}; name them with --columns",
-            table.source().display(),
-            columns.len()
-        );
-    }
+    let columns = columns_of(args, &table)?;
     let values: Vec<&[Option<f64>]> = columns
         .iter()
         .map(|c| table.numeric(c))
@@ -81,36 +64,65 @@ pub fn run(args: &CorrArgs) -> anyhow::Result<String> {
     } else {
         Adjustment::None
     };
+    let file = table.source().display().to_string();
     Ok(match args.format {
-        Format::Json => {
-            let json = CorrJson {
-                data: table.source().display().to_string(),
-                method: method.as_str(),
-                adjust: applied.as_str(),
-                n_tests: m.n_tests,
-                columns: &columns,
-                order: args.order.as_deref(),
-                r: &m.r,
-                p_value: &m.p_value,
-                p_adjusted: &m.p_adjusted,
-                n: &m.n,
-                ci_level: (method == Method::Pearson).then_some(0.95),
-                ci_low: (method == Method::Pearson).then(|| ends(&m, |c| c.0)),
-                ci_high: (method == Method::Pearson).then(|| ends(&m, |c| c.1)),
-                reason: &m.reason,
-                r_differenced: m.r_differenced.as_deref(),
-                r_detrended: m.r_detrended.as_deref(),
-            };
-            serde_json::to_string_pretty(&json)? + "\n"
-        }
-        Format::Text => text(
-            &table.source().display().to_string(),
-            &columns,
-            method,
-            applied,
-            &m,
-        ),
+        Format::Json => json(file, args, &columns, (method, applied), &m)?,
+        Format::Text => text(&file, &columns, method, applied, &m),
     })
+}
+
+/// The columns asked for, or every numeric column but the order column.
+fn columns_of(args: &CorrArgs, table: &plumb_data::Table) -> anyhow::Result<Vec<String>> {
+    let columns: Vec<String> = if args.columns.is_empty() {
+        table
+            .columns()
+            .iter()
+            .filter(
+                |c| matches!(&c.values, ColumnValues::Numeric(v) if v.iter().any(Option::is_some)),
+            )
+            .map(|c| c.name.clone())
+            .filter(|n| Some(n) != args.order.as_ref())
+            .collect()
+    } else {
+        args.columns.clone()
+    };
+    if columns.len() < 2 {
+        anyhow::bail!(
+            "{}: at least two numeric columns are needed, found {}; name them with --columns",
+            table.source().display(),
+            columns.len()
+        );
+    }
+    Ok(columns)
+}
+
+fn json(
+    data: String,
+    args: &CorrArgs,
+    columns: &[String],
+    (method, applied): (Method, Adjustment),
+    m: &CorrelationMatrix,
+) -> anyhow::Result<String> {
+    let pearson = method == Method::Pearson;
+    let json = CorrJson {
+        data,
+        method: method.as_str(),
+        adjust: applied.as_str(),
+        n_tests: m.n_tests,
+        columns,
+        order: args.order.as_deref(),
+        r: &m.r,
+        p_value: &m.p_value,
+        p_adjusted: &m.p_adjusted,
+        n: &m.n,
+        ci_level: pearson.then_some(0.95),
+        ci_low: pearson.then(|| ends(m, |c| c.0)),
+        ci_high: pearson.then(|| ends(m, |c| c.1)),
+        reason: &m.reason,
+        r_differenced: m.r_differenced.as_deref(),
+        r_detrended: m.r_detrended.as_deref(),
+    };
+    Ok(serde_json::to_string_pretty(&json)? + "\n")
 }
 
 fn ends(m: &CorrelationMatrix, pick: fn(&(f64, f64)) -> f64) -> Vec<Vec<Option<f64>>> {
@@ -133,7 +145,6 @@ fn text(
         let key = |(i, j): (usize, usize)| m.r[i][j].map_or(-1.0, f64::abs);
         key(*b).total_cmp(&key(*a))
     });
-    let guarded = m.r_detrended.is_some();
     let mut out = String::new();
     let _ = writeln!(out, "{file}");
     let _ = writeln!(
@@ -150,59 +161,55 @@ fn text(
         "  {:<20} {:<20} {:>8} {:>10} {:>10} {:>6}",
         "column", "with", "coef", "p", "p adj.", "n"
     );
-    if guarded {
+    if m.r_detrended.is_some() {
         let _ = write!(out, " {:>9} {:>9}", "Δ-series", "detrended");
     }
     out.push('\n');
-    let cell = |v: Option<f64>, d: usize| v.map_or_else(|| "—".to_string(), |x| format!("{x:.d$}"));
-    let p = |v: Option<f64>| {
-        v.map_or_else(
-            || "—".to_string(),
-            |x| {
-                if x < 1e-4 {
-                    format!("{x:.1e}")
-                } else {
-                    format!("{x:.4}")
-                }
-            },
-        )
-    };
     let mut cues = Vec::new();
     for (i, j) in pairs {
-        let _ = write!(
-            out,
-            "  {:<20} {:<20} {:>8} {:>10} {:>10} {:>6}",
-            columns[i],
-            columns[j],
-            cell(m.r[i][j], 3),
-            p(m.p_value[i][j]),
-            p(m.p_adjusted[i][j]),
-            m.n[i][j]
-        );
-        if let (Some(diff), Some(det)) = (&m.r_differenced, &m.r_detrended) {
-            let _ = write!(out, " {:>9} {:>9}", cell(diff[i][j], 3), cell(det[i][j], 3));
-            let strong = m.r[i][j].is_some_and(|r| r.abs() >= STRONG);
-            let fades = det[i][j].is_some_and(|r| r.abs() < TREND_FADES)
-                || diff[i][j].is_some_and(|r| r.abs() < TREND_FADES);
-            if strong && fades {
-                cues.push(plumb_report::wording::shared_trend(
-                    &columns[i],
-                    &columns[j],
-                ));
-            }
+        out.push_str(&pair_line(columns, m, i, j));
+        if drifts_together(m, i, j) {
+            cues.push(wording::shared_trend(&columns[i], &columns[j]));
         }
-        if let Some(why) = &m.reason[i][j] {
-            let _ = write!(out, "  ({why})");
-        }
-        out.push('\n');
     }
     for cue in cues {
         let _ = writeln!(out, "\n  cue: {cue}");
     }
-    let _ = writeln!(
-        out,
-        "\n  note: {}",
-        plumb_report::wording::line(&plumb_report::wording::MAP_CAUTIONS)
-    );
+    let _ = writeln!(out, "\n  note: {}", wording::line(&wording::MAP_CAUTIONS));
     out
+}
+
+/// One pair's line: coefficient, p, adjusted p, n, and with a row order the coefficients of
+/// first differences and after removing the trend.
+fn pair_line(columns: &[String], m: &CorrelationMatrix, i: usize, j: usize) -> String {
+    let cell = |v: Option<f64>| v.map_or_else(|| "—".to_string(), |x| format!("{x:.3}"));
+    let pv = |v: Option<f64>| v.map_or_else(|| "—".to_string(), p);
+    let mut line = format!(
+        "  {:<20} {:<20} {:>8} {:>10} {:>10} {:>6}",
+        columns[i],
+        columns[j],
+        cell(m.r[i][j]),
+        pv(m.p_value[i][j]),
+        pv(m.p_adjusted[i][j]),
+        m.n[i][j]
+    );
+    if let (Some(diff), Some(det)) = (&m.r_differenced, &m.r_detrended) {
+        let _ = write!(line, " {:>9} {:>9}", cell(diff[i][j]), cell(det[i][j]));
+    }
+    if let Some(why) = &m.reason[i][j] {
+        let _ = write!(line, "  ({why})");
+    }
+    line.push('\n');
+    line
+}
+
+/// A strong pair whose association fades once the shared trend is removed.
+fn drifts_together(m: &CorrelationMatrix, i: usize, j: usize) -> bool {
+    let (Some(diff), Some(det)) = (&m.r_differenced, &m.r_detrended) else {
+        return false;
+    };
+    let strong = m.r[i][j].is_some_and(|r| r.abs() >= STRONG);
+    let fades = det[i][j].is_some_and(|r| r.abs() < TREND_FADES)
+        || diff[i][j].is_some_and(|r| r.abs() < TREND_FADES);
+    strong && fades
 }

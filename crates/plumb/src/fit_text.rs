@@ -3,6 +3,7 @@
 
 use std::fmt::Write;
 
+use plumb_core::regression::LinearFit;
 use plumb_data::analysis::{Analysis, FitRequest, PairExtras, RobustFit};
 use plumb_data::Table;
 use plumb_report::text::{fixed, num, p as pval};
@@ -20,7 +21,11 @@ pub fn render(
 ) -> String {
     let mut out = String::new();
     // Writing to a String cannot fail.
-    let _ = write_all(&mut out, table, request, outcome);
+    let _ = write_header(&mut out, table, request, outcome);
+    let _ = write_coefficients(&mut out, &outcome.fit);
+    let _ = write_quality(&mut out, &outcome.fit);
+    let _ = write_variance_split(&mut out, &outcome.fit);
+    let _ = write_rows_and_inflation(&mut out, outcome);
     if let Some(e) = extras {
         let _ = write_extras(&mut out, outcome, e);
     }
@@ -29,7 +34,14 @@ pub fn render(
 }
 
 fn write_extras(out: &mut String, o: &Analysis, e: &PairExtras) -> std::fmt::Result {
-    let rows = &o.selection.rows;
+    write_z_units(out, e)?;
+    write_overlays(out, e)?;
+    write_ladder_and_cues(out, o, e)?;
+    writeln!(out)
+}
+
+/// The pair in z-units and the fit read at one x.
+fn write_z_units(out: &mut String, e: &PairExtras) -> std::fmt::Result {
     if let Some(z) = &e.z_view {
         writeln!(out, "  in z-units           slope {} (= r), slope² {} (= R² of the line); a unit z SDs out on x is expected {}·z SDs out on y", fixed(z.slope, 4), fixed(z.slope_squared, 4), fixed(z.slope, 3))?;
     }
@@ -47,6 +59,11 @@ fn write_extras(out: &mut String, o: &Analysis, e: &PairExtras) -> std::fmt::Res
         )?;
         writeln!(out, "                       x is {} SDs from its mean; expected {} SDs on y (toward the mean by {})", fixed(a.z_x, 3), fixed(a.expected_z_y, 3), fixed(a.z_x - a.expected_z_y, 3))?;
     }
+    Ok(())
+}
+
+/// The overlay line and the LOESS smooth.
+fn write_overlays(out: &mut String, e: &PairExtras) -> std::fmt::Result {
     match &e.robust {
         Some(Ok(RobustFit::TheilSen(t))) => writeln!(
             out,
@@ -73,6 +90,11 @@ fn write_extras(out: &mut String, o: &Analysis, e: &PairExtras) -> std::fmt::Res
         Some(Err(why)) => writeln!(out, "  LOESS                {why}")?,
         None => {}
     }
+    Ok(())
+}
+
+/// The polynomial ladder and the cues.
+fn write_ladder_and_cues(out: &mut String, o: &Analysis, e: &PairExtras) -> std::fmt::Result {
     if e.degrees.len() > 1 {
         let steps: Vec<String> = e
             .degrees
@@ -93,14 +115,16 @@ fn write_extras(out: &mut String, o: &Analysis, e: &PairExtras) -> std::fmt::Res
         writeln!(out, "  adding powers        {}", steps.join("; "))?;
     }
     if let Some(c) = &e.cues {
+        let rows = &o.selection.rows;
         for cue in wording::pair_cues(c, |i| rows.get(i).copied()) {
             writeln!(out, "  cue: {}", cue.text)?;
         }
     }
-    writeln!(out)
+    Ok(())
 }
 
-fn write_all(
+/// The model line and the row account.
+fn write_header(
     out: &mut String,
     table: &Table,
     request: &FitRequest,
@@ -134,7 +158,11 @@ fn write_all(
             format!(" ({})", join_rows(&sel.excluded))
         }
     )?;
-    writeln!(out)?;
+    writeln!(out)
+}
+
+/// The coefficient table.
+fn write_coefficients(out: &mut String, fit: &LinearFit) -> std::fmt::Result {
     let pct = format!("{}% interval", fit.level * 100.0);
     writeln!(
         out,
@@ -155,7 +183,11 @@ fn write_all(
             c.standardized.map_or_else(|| "—".into(), |v| fixed(v, 4)),
         )?;
     }
-    writeln!(out)?;
+    writeln!(out)
+}
+
+/// R², adjusted R², σ̂, the overall F and the information criteria.
+fn write_quality(out: &mut String, fit: &LinearFit) -> std::fmt::Result {
     writeln!(out, "  how well it fits")?;
     writeln!(
         out,
@@ -187,7 +219,11 @@ fn write_all(
         fixed(fit.bic, 3),
         fixed(fit.log_likelihood, 3)
     )?;
-    writeln!(out)?;
+    writeln!(out)
+}
+
+/// The split of the total sum of squares.
+fn write_variance_split(out: &mut String, fit: &LinearFit) -> std::fmt::Result {
     writeln!(
         out,
         "  variance split          sum of squares    df      mean square"
@@ -213,7 +249,12 @@ fn write_all(
         "    {total:<20}{:>16}  {:>4}",
         num(a.ss_total),
         a.df_model + a.df_residual
-    )?;
+    )
+}
+
+/// The rows dropped for gaps and the variance inflation of each predictor.
+fn write_rows_and_inflation(out: &mut String, o: &Analysis) -> std::fmt::Result {
+    let sel = &o.selection;
     if !sel.dropped.is_empty() {
         writeln!(out)?;
         let listed: Vec<String> = sel
@@ -235,7 +276,8 @@ fn write_all(
         )?;
     }
     if let Some(vif) = &o.vif {
-        let parts: Vec<String> = fit
+        let parts: Vec<String> = o
+            .fit
             .coefficients
             .iter()
             .zip(vif)
@@ -243,8 +285,7 @@ fn write_all(
             .collect();
         writeln!(out, "\n  variance inflation    {}", parts.join(", "))?;
     }
-    writeln!(out)?;
-    Ok(())
+    writeln!(out)
 }
 
 fn write_cautions(out: &mut String, table: &Table, o: &Analysis) -> std::fmt::Result {

@@ -1,0 +1,97 @@
+//! The summary for a colleague: HTML with inline charts, charts as SVG and PNG, and CSVs.
+
+mod figures;
+mod page;
+mod tables;
+
+use std::path::{Path, PathBuf};
+
+use plumb_data::analysis::{analyze, ExtrasRequest, FitRequest, Wanted};
+use plumb_data::Table;
+
+use crate::charts::Chart;
+use crate::effects::exclusion_effects;
+use crate::session::Exclusion;
+use crate::{write_atomically, Result};
+
+/// Everything a summary is made from.
+#[derive(Debug, Clone)]
+pub struct ReportInput<'a> {
+    /// The loaded table.
+    pub table: &'a Table,
+    /// SHA-256 of the data file.
+    pub sha256: String,
+    /// The model, with `exclude` listing the excluded rows.
+    pub request: FitRequest,
+    /// The reason (and time, where recorded) of each excluded row.
+    pub exclusions: Vec<Exclusion>,
+    /// The command that reproduces this summary.
+    pub reproduce: String,
+}
+
+/// A built summary, not yet written.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Report {
+    /// The self-contained HTML page.
+    pub html: String,
+    /// Every statistic, one per line: `section,name,term,value`.
+    pub statistics_csv: String,
+    /// The exclusion log with before/after numbers.
+    pub exclusions_csv: String,
+    /// The charts.
+    pub charts: Vec<Chart>,
+}
+
+/// Builds the summary.
+///
+/// # Errors
+/// Loading, fitting or drawing failures, each naming what failed.
+pub fn build(input: &ReportInput<'_>) -> Result<Report> {
+    let request = &input.request;
+    // One fit serves the tables, the charts and the diagnostics.
+    let wanted = Wanted {
+        influence: true,
+        extras: Some(ExtrasRequest::default()),
+    };
+    let outcome = analyze(input.table, request, wanted)?;
+    let effects = exclusion_effects(input.table, request)?;
+    let charts = figures::draw(input, &outcome)?;
+    let html = page::Page {
+        input,
+        outcome: &outcome,
+        effects: &effects,
+        charts: &charts,
+    }
+    .render();
+    Ok(Report {
+        html,
+        statistics_csv: tables::statistics_csv(&outcome),
+        exclusions_csv: tables::exclusions_csv(&effects, &input.exclusions),
+        charts,
+    })
+}
+
+/// Writes the summary: `out` (HTML) and, beside it, `STEM-statistics.csv`,
+/// `STEM-exclusions.csv`, `STEM-CHART.svg` and `STEM-CHART.png`. Every file is written atomically.
+///
+/// # Errors
+/// [`crate::ReportError::Io`] for the first file that could not be written.
+pub fn write(report: &Report, out: &Path) -> Result<Vec<PathBuf>> {
+    let stem = out
+        .file_stem()
+        .map_or_else(|| "summary".into(), |s| s.to_string_lossy().into_owned());
+    let beside = |suffix: &str| out.with_file_name(format!("{stem}-{suffix}"));
+    let mut files: Vec<(PathBuf, &[u8])> = vec![
+        (out.to_path_buf(), report.html.as_bytes()),
+        (beside("statistics.csv"), report.statistics_csv.as_bytes()),
+        (beside("exclusions.csv"), report.exclusions_csv.as_bytes()),
+    ];
+    for c in &report.charts {
+        files.push((beside(&format!("{}.svg", c.name)), c.svg.as_bytes()));
+        files.push((beside(&format!("{}.png", c.name)), &c.png));
+    }
+    for (path, bytes) in &files {
+        write_atomically(path, bytes)?;
+    }
+    Ok(files.into_iter().map(|f| f.0).collect())
+}

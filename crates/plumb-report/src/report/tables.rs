@@ -1,0 +1,107 @@
+//! The summary's CSVs: every statistic at full precision, and the exclusion log.
+
+use std::fmt::Write as _;
+
+use plumb_data::analysis::Analysis;
+
+use super::page::reason_of;
+use crate::effects::Effect;
+use crate::session::Exclusion;
+use crate::text::{csv, exact};
+
+/// Every statistic of the fit, one per line: `section,name,term,value` (full precision).
+pub fn statistics_csv(outcome: &Analysis) -> String {
+    let fit = &outcome.fit;
+    let mut out = String::from("section,name,term,value\n");
+    let mut row = |section: &str, name: &str, term: &str, v: String| {
+        let _ = writeln!(out, "{},{},{},{}", csv(section), csv(name), csv(term), v);
+    };
+    row("rows", "used", "", fit.n.to_string());
+    row(
+        "rows",
+        "dropped",
+        "",
+        outcome.selection.dropped.len().to_string(),
+    );
+    row(
+        "rows",
+        "excluded",
+        "",
+        outcome.selection.excluded.len().to_string(),
+    );
+    row(
+        "fit",
+        "r_squared",
+        fit.r_squared_kind.as_str(),
+        exact(fit.r_squared),
+    );
+    row("fit", "adj_r_squared", "", exact(fit.adj_r_squared));
+    row(
+        "fit",
+        "residual_std_error",
+        "",
+        exact(fit.residual_std_error),
+    );
+    row("fit", "df_residual", "", fit.anova.df_residual.to_string());
+    row(
+        "fit",
+        "f_statistic",
+        "",
+        fit.anova.f_statistic.map_or_else(String::new, exact),
+    );
+    row(
+        "fit",
+        "f_p_value",
+        "",
+        fit.anova.f_p_value.map_or_else(String::new, exact),
+    );
+    row("fit", "aic", "", exact(fit.aic));
+    row("fit", "bic", "", exact(fit.bic));
+    for c in &fit.coefficients {
+        for (name, v) in [
+            ("estimate", c.estimate),
+            ("std_error", c.std_error),
+            ("t", c.t),
+            ("p_value", c.p_value),
+            ("ci_low", c.ci_low),
+            ("ci_high", c.ci_high),
+        ] {
+            row("coefficient", name, &c.term, exact(v));
+        }
+        row(
+            "coefficient",
+            "standardized",
+            &c.term,
+            c.standardized.map_or_else(String::new, exact),
+        );
+    }
+    out
+}
+
+/// The exclusion log with the before/after numbers of each exclusion and of all together.
+pub fn exclusions_csv(effects: &[Effect], log: &[Exclusion]) -> String {
+    let mut out = String::from("rows,reason,recorded_at,r_squared_before,r_squared_after,slope_before,slope_after,slope_p_before,slope_p_after\n");
+    for e in effects {
+        let rows: Vec<String> = e.rows.iter().map(ToString::to_string).collect();
+        let (reason, at) = match e.rows.as_slice() {
+            [row] => reason_of(log, *row).map_or((String::new(), String::new()), |x| {
+                (x.reason.clone(), x.at.clone().unwrap_or_default())
+            }),
+            _ => ("all exclusions together".to_string(), String::new()),
+        };
+        let _ = writeln!(
+            out,
+            "{},{},{},{},{},{},{},{},{}",
+            csv(&rows.join(" ")),
+            csv(&reason),
+            csv(&at),
+            exact(e.before.r_squared),
+            exact(e.after.r_squared),
+            exact(e.before.slope),
+            exact(e.after.slope),
+            exact(e.before.slope_p),
+            exact(e.after.slope_p)
+        );
+    }
+    out
+}
