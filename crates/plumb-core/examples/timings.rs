@@ -47,7 +47,7 @@ fn plain_pass(x: &[f64], y: &[f64]) -> f64 {
 }
 
 /// The 10 M-row line (`xl`, `yl`), when the script wrote it.
-fn large(dir: &Path, o: &FitOptions, out: &mut Vec<(&'static str, f64)>) {
+fn large(dir: &Path, o: &FitOptions, out: &mut Timings) {
     if !dir.join("xl.f64").exists() {
         return;
     }
@@ -75,7 +75,7 @@ fn large(dir: &Path, o: &FitOptions, out: &mut Vec<(&'static str, f64)>) {
 
 /// The 1 M × 64 Pearson matrix (`m0…m63`) and the 100 k × 32 Spearman matrix (first 100 k
 /// rows of `m0…m31`), when the script wrote them.
-fn matrices(dir: &Path, out: &mut Vec<(&'static str, f64)>) {
+fn matrices(dir: &Path, out: &mut Timings) {
     if !dir.join("m0.f64").exists() {
         return;
     }
@@ -120,27 +120,40 @@ fn main() {
     let xs: Vec<Vec<f64>> = (0..8).map(|j| column(dir, &format!("x{j}"))).collect();
     let o = FitOptions::default();
     let mut out = Vec::new();
+    lines(&xs, &y, &mut out);
+    large(dir, &o, &mut out);
+    matrices(dir, &mut out);
+    least_squares(&xs, &y, &o, &mut out);
+    influences(&xs, &y, &o, &mut out);
+    pairs(&xs, &y, &mut out);
+    live_changes(&xs, &y, &o, &mut out);
+    let body: Vec<String> = out.iter().map(|(k, v)| format!("\"{k}\": {v:e}")).collect();
+    println!("{{{}}}", body.join(", "));
+}
 
+type Timings = Vec<(&'static str, f64)>;
+
+fn lines(xs: &[Vec<f64>], y: &[f64], out: &mut Timings) {
     out.push((
         "plain_pass_1m",
         median(5, || {
-            plain_pass(&xs[0], &y);
+            plain_pass(&xs[0], y);
         }),
     ));
     out.push((
         "line_1m",
         median(5, || {
-            std::hint::black_box(line_fit(&xs[0], &y, 0.95).expect("fits"));
+            std::hint::black_box(line_fit(&xs[0], y, 0.95).expect("fits"));
         }),
     ));
-    large(dir, &o, &mut out);
-    matrices(dir, &mut out);
-    let simple = Design::linear(&[("x0", &xs[0])], true);
+}
+
+fn least_squares(xs: &[Vec<f64>], y: &[f64], o: &FitOptions, out: &mut Timings) {
     out.push((
         "ols_simple_1m",
         median(5, || {
             let d = Design::linear(&[("x0", &xs[0])], true);
-            std::hint::black_box(fit(&d, &y, None, &o).expect("fits"));
+            std::hint::black_box(fit(&d, y, None, o).expect("fits"));
         }),
     ));
     out.push((
@@ -152,38 +165,41 @@ fn main() {
                 .map(|(j, c)| (format!("x{j}"), c.as_slice()))
                 .collect();
             let cols: Vec<(&str, &[f64])> = named.iter().map(|(n, c)| (n.as_str(), *c)).collect();
-            std::hint::black_box(fit(&Design::linear(&cols, true), &y, None, &o).expect("fits"));
+            std::hint::black_box(fit(&Design::linear(&cols, true), y, None, o).expect("fits"));
         }),
     ));
-    let five: Vec<(&str, &[f64])> = (0..4)
-        .map(|j| (["x0", "x1", "x2", "x3"][j], xs[j].as_slice()))
-        .collect();
+}
+
+fn influences(xs: &[Vec<f64>], y: &[f64], o: &FitOptions, out: &mut Timings) {
+    let names = ["x0", "x1", "x2", "x3"];
+    let five: Vec<(&str, &[f64])> = (0..4).map(|j| (names[j], xs[j].as_slice())).collect();
     let d5 = Design::linear(&five, true);
-    let f5 = fit(&d5, &y, None, &o).expect("fits");
+    let f5 = fit(&d5, y, None, o).expect("fits");
     out.push((
         "influence_1m_p5",
         median(3, || {
-            std::hint::black_box(influence(&d5, None, &f5, &o).expect("influence"));
+            std::hint::black_box(influence(&d5, None, &f5, o).expect("influence"));
         }),
     ));
     // statsmodels forms DFBETAS from n leave-one-out refits, so its side is timed on 20 k rows.
     let m = 20_000;
-    let five_m: Vec<(&str, &[f64])> = (0..4)
-        .map(|j| (["x0", "x1", "x2", "x3"][j], &xs[j][..m]))
-        .collect();
+    let five_m: Vec<(&str, &[f64])> = (0..4).map(|j| (names[j], &xs[j][..m])).collect();
     let d5m = Design::linear(&five_m, true);
-    let f5m = fit(&d5m, &y[..m], None, &o).expect("fits");
+    let f5m = fit(&d5m, &y[..m], None, o).expect("fits");
     out.push((
         "influence_20k_p5",
         median(5, || {
-            std::hint::black_box(influence(&d5m, None, &f5m, &o).expect("influence"));
+            std::hint::black_box(influence(&d5m, None, &f5m, o).expect("influence"));
         }),
     ));
+}
+
+fn pairs(xs: &[Vec<f64>], y: &[f64], out: &mut Timings) {
     let small = 100_000;
     out.push((
         "pearson_pair_1m",
         median(5, || {
-            std::hint::black_box(pearson(&xs[0], &y, 0.95).expect("defined"));
+            std::hint::black_box(pearson(&xs[0], y, 0.95).expect("defined"));
         }),
     ));
     out.push((
@@ -201,10 +217,14 @@ fn main() {
     out.push((
         "kendall_pair_1m",
         median(3, || {
-            std::hint::black_box(kendall_tau_b(&xs[0], &y).expect("defined"));
+            std::hint::black_box(kendall_tau_b(&xs[0], y).expect("defined"));
         }),
     ));
-    let mut live = LiveFit::new(simple, y.clone(), o.clone()).expect("fits");
+}
+
+fn live_changes(xs: &[Vec<f64>], y: &[f64], o: &FitOptions, out: &mut Timings) {
+    let simple = Design::linear(&[("x0", &xs[0])], true);
+    let mut live = LiveFit::new(simple, y.to_vec(), o.clone()).expect("fits");
     let mut k = 0usize;
     out.push((
         "live_toggle_1m",
@@ -228,6 +248,4 @@ fn main() {
         })
         .fold(0.0_f64, f64::max);
     out.push(("live_toggle_1m_worst", worst));
-    let body: Vec<String> = out.iter().map(|(k, v)| format!("\"{k}\": {v:e}")).collect();
-    println!("{{{}}}", body.join(", "));
 }

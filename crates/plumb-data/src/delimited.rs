@@ -5,7 +5,7 @@ use std::path::Path;
 
 use polars::prelude::{CsvParseOptions, CsvReadOptions, DataFrame, SerReader};
 
-use crate::cell::{classify, Cell};
+use crate::cell::{classify, Cell, DecimalMark};
 use crate::progress::{read_all, Progress, Stage};
 use crate::sniff::{self, HeaderMode, Record};
 use crate::table::{SourceFormat, Table};
@@ -40,39 +40,8 @@ pub(crate) fn from_bytes(
     stage(Stage::Parsing);
     let text = bytes.strip_prefix(BOM).unwrap_or(bytes);
     check_utf8(path, text)?;
-    let mut recs = sniff::records(text).map_err(|line| DataError::UnclosedQuote {
-        path: path.to_path_buf(),
-        line,
-    })?;
-    // A byte-order mark after leading blank lines is still a byte-order mark (found by
-    // fuzzing: left in place, the CSV parser saw a first line with no fields and panicked).
-    if let Some(first) = recs.first_mut() {
-        if text[first.start..first.end].starts_with(BOM) {
-            first.start += BOM.len();
-        }
-    }
-    recs.retain(|r| r.start < r.end);
-    if recs.is_empty() {
-        return Err(DataError::Empty {
-            path: path.to_path_buf(),
-        });
-    }
-    let delimiter = options
-        .delimiter
-        .unwrap_or_else(|| sniff::delimiter(text, &recs));
-    let sample: Vec<Vec<String>> = recs
-        .iter()
-        .take(200)
-        .map(|r| sniff::fields(&text[r.start..r.end], delimiter))
-        .collect();
-    let decimal = options
-        .decimal
-        .unwrap_or_else(|| sniff::decimal_mark(&sample, delimiter));
-    let header = match options.header {
-        HeaderMode::Yes => true,
-        HeaderMode::No => false,
-        HeaderMode::Auto => sniff::has_header(&sample, decimal, &options.missing_tokens),
-    };
+    let recs = records_of(path, text)?;
+    let (delimiter, decimal, header) = layout(text, &recs, options);
     check_field_counts(path, text, &recs, delimiter, header)?;
     let frame = parse(path, text, &recs, delimiter)?;
     stage(Stage::Typing);
@@ -90,23 +59,76 @@ pub(crate) fn from_bytes(
             path: path.to_path_buf(),
         });
     }
-    let cells: Vec<Vec<Cell>> = columns
-        .into_iter()
-        .map(|col| {
-            col.into_iter()
-                .map(|v| match v {
-                    None => Cell::Missing,
-                    Some(s) => classify(&s, decimal, &options.missing_tokens),
-                })
-                .collect()
-        })
-        .collect();
+    let cells = typed(columns, decimal, &options.missing_tokens);
     let format = SourceFormat::Delimited {
         delimiter,
         decimal,
         header,
     };
     Ok(Table::new(path, format, names, cells, Vec::new()))
+}
+
+/// The non-empty records of `text`, split outside quotes.
+fn records_of(path: &Path, text: &[u8]) -> Result<Vec<Record>> {
+    let mut recs = sniff::records(text).map_err(|line| DataError::UnclosedQuote {
+        path: path.to_path_buf(),
+        line,
+    })?;
+    // A byte-order mark after leading blank lines is still a byte-order mark (found by
+    // fuzzing: left in place, the CSV parser saw a first line with no fields and panicked).
+    if let Some(first) = recs.first_mut() {
+        if text[first.start..first.end].starts_with(BOM) {
+            first.start += BOM.len();
+        }
+    }
+    recs.retain(|r| r.start < r.end);
+    if recs.is_empty() {
+        return Err(DataError::Empty {
+            path: path.to_path_buf(),
+        });
+    }
+    Ok(recs)
+}
+
+/// The delimiter, decimal mark and whether there is a header, as asked or sniffed from the
+/// first 200 records.
+fn layout(text: &[u8], recs: &[Record], options: &LoadOptions) -> (u8, DecimalMark, bool) {
+    let delimiter = options
+        .delimiter
+        .unwrap_or_else(|| sniff::delimiter(text, recs));
+    let sample: Vec<Vec<String>> = recs
+        .iter()
+        .take(200)
+        .map(|r| sniff::fields(&text[r.start..r.end], delimiter))
+        .collect();
+    let decimal = options
+        .decimal
+        .unwrap_or_else(|| sniff::decimal_mark(&sample, delimiter));
+    let header = match options.header {
+        HeaderMode::Yes => true,
+        HeaderMode::No => false,
+        HeaderMode::Auto => sniff::has_header(&sample, decimal, &options.missing_tokens),
+    };
+    (delimiter, decimal, header)
+}
+
+/// Every cell classified: missing, a number, or text.
+fn typed(
+    columns: Vec<Vec<Option<String>>>,
+    decimal: DecimalMark,
+    tokens: &[String],
+) -> Vec<Vec<Cell>> {
+    columns
+        .into_iter()
+        .map(|col| {
+            col.into_iter()
+                .map(|v| match v {
+                    None => Cell::Missing,
+                    Some(s) => classify(&s, decimal, tokens),
+                })
+                .collect()
+        })
+        .collect()
 }
 
 fn check_utf8(path: &Path, text: &[u8]) -> Result<()> {

@@ -35,24 +35,11 @@ fn from_workbook<RS: std::io::Read + std::io::Seek>(
     mut workbook: calamine::Sheets<RS>,
     options: &LoadOptions,
 ) -> Result<Table> {
-    let parse_error = |e: &dyn std::fmt::Display| parse_error(path, e);
     let names = workbook.sheet_names();
-    let sheet = match &options.sheet {
-        Some(s) if names.contains(s) => s.clone(),
-        Some(s) => {
-            return Err(DataError::NoSuchSheet {
-                path: path.to_path_buf(),
-                sheet: s.clone(),
-                available: names.join(", "),
-            })
-        }
-        None => names.first().cloned().ok_or_else(|| DataError::Empty {
-            path: path.to_path_buf(),
-        })?,
-    };
+    let sheet = chosen_sheet(path, &names, options)?;
     let range = workbook
         .worksheet_range(&sheet)
-        .map_err(|e| parse_error(&e))?;
+        .map_err(|e| parse_error(path, &e))?;
     let mut error_cells = 0usize;
     let rows: Vec<Vec<Cell>> = range
         .rows()
@@ -71,44 +58,11 @@ fn from_workbook<RS: std::io::Read + std::io::Seek>(
     if rows.is_empty() {
         return Err(empty_sheet());
     }
-    let raw_rows: Vec<Vec<String>> = range
-        .rows()
-        .take(200)
-        .map(|r| r.iter().map(ToString::to_string).collect())
-        .collect();
-    let header = match options.header {
-        HeaderMode::Yes => true,
-        HeaderMode::No => false,
-        HeaderMode::Auto => {
-            sniff::has_header(&raw_rows, DecimalMark::Point, &options.missing_tokens)
-        }
-    };
-    let width = rows.iter().map(Vec::len).max().unwrap_or(0);
-    let (names, body) = if header {
-        let names = (0..width)
-            .map(|j| match rows[0].get(j) {
-                Some(Cell::Text(s)) => s.clone(),
-                Some(Cell::Number(v)) => v.to_string(),
-                _ => String::new(),
-            })
-            .collect();
-        (names, &rows[1..])
-    } else {
-        (
-            (1..=width).map(|j| format!("column{j}")).collect(),
-            &rows[..],
-        )
-    };
-    if body.is_empty() {
+    let header = has_header(&range, options);
+    let (column_names, cells) = columns_of(&rows, header);
+    if cells.first().is_none_or(Vec::is_empty) {
         return Err(empty_sheet());
     }
-    let cells = (0..width)
-        .map(|j| {
-            body.iter()
-                .map(|r| r.get(j).cloned().unwrap_or(Cell::Missing))
-                .collect()
-        })
-        .collect();
     let mut notes = Vec::new();
     if error_cells > 0 {
         notes.push(format!(
@@ -121,10 +75,66 @@ fn from_workbook<RS: std::io::Read + std::io::Seek>(
             name: sheet,
             header,
         },
-        names,
+        column_names,
         cells,
         notes,
     ))
+}
+
+/// The sheet asked for, or the first.
+fn chosen_sheet(path: &Path, names: &[String], options: &LoadOptions) -> Result<String> {
+    match &options.sheet {
+        Some(s) if names.contains(s) => Ok(s.clone()),
+        Some(s) => Err(DataError::NoSuchSheet {
+            path: path.to_path_buf(),
+            sheet: s.clone(),
+            available: names.join(", "),
+        }),
+        None => names.first().cloned().ok_or_else(|| DataError::Empty {
+            path: path.to_path_buf(),
+        }),
+    }
+}
+
+/// Whether the first row names the columns (asked, or sniffed from the first 200 rows).
+fn has_header(range: &calamine::Range<Data>, options: &LoadOptions) -> bool {
+    match options.header {
+        HeaderMode::Yes => true,
+        HeaderMode::No => false,
+        HeaderMode::Auto => {
+            let raw_rows: Vec<Vec<String>> = range
+                .rows()
+                .take(200)
+                .map(|r| r.iter().map(ToString::to_string).collect())
+                .collect();
+            sniff::has_header(&raw_rows, DecimalMark::Point, &options.missing_tokens)
+        }
+    }
+}
+
+/// Column names (from the header row, or `column1`, `column2`, …) and the cells by column.
+fn columns_of(rows: &[Vec<Cell>], header: bool) -> (Vec<String>, Vec<Vec<Cell>>) {
+    let width = rows.iter().map(Vec::len).max().unwrap_or(0);
+    let (names, body) = if header {
+        let names = (0..width)
+            .map(|j| match rows[0].get(j) {
+                Some(Cell::Text(s)) => s.clone(),
+                Some(Cell::Number(v)) => v.to_string(),
+                _ => String::new(),
+            })
+            .collect();
+        (names, &rows[1..])
+    } else {
+        ((1..=width).map(|j| format!("column{j}")).collect(), rows)
+    };
+    let cells = (0..width)
+        .map(|j| {
+            body.iter()
+                .map(|r| r.get(j).cloned().unwrap_or(Cell::Missing))
+                .collect()
+        })
+        .collect();
+    (names, cells)
 }
 
 fn to_cell(d: &Data, options: &LoadOptions, error_cells: &mut usize) -> Cell {

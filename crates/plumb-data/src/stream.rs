@@ -116,53 +116,14 @@ pub fn stream_columns(
     let first = reader.next_chunk().map_err(io)?.unwrap_or_default();
     // The first chunk settles the format (and the header, when there is one).
     let head = delimited::from_bytes(path, &first.text, &options.load, None)?;
-    let format = head.format().clone();
-    let SourceFormat::Delimited {
-        delimiter,
-        decimal,
-        header,
-    } = format
-    else {
-        unreachable!("delimited text");
-    };
     for name in names {
         head.numeric(name)?;
     }
-    let fixed = LoadOptions {
-        delimiter: Some(delimiter),
-        decimal: Some(decimal),
-        header: if header {
-            HeaderMode::Yes
-        } else {
-            HeaderMode::No
-        },
-        ..options.load.clone()
-    };
-    let header_line = header.then(|| first_record(&first.text));
-    let mut summary = StreamSummary {
-        rows: 0,
-        used: 0,
-        dropped_count: 0,
-        dropped: Vec::new(),
-        bytes: first.text.len() as u64,
-        format: format.clone(),
-        stopped: false,
-    };
-    let mut take = |table: &Table, offset: Offset, summary: &mut StreamSummary| -> Result<bool> {
-        let mut piece = complete_piece(table, names, offset.rows, summary)?;
-        piece.bytes_read = summary.bytes;
-        summary.rows += table.n_rows();
-        summary.used += piece.rows.len();
-        Ok(visit(&piece).is_continue())
-    };
-    if !take(&head, Offset::default(), &mut summary)? {
-        summary.stopped = true;
-        return Ok(summary);
+    let mut pass = Pass::new(path, names, &head, &first, options);
+    if !pass.take(&head, &mut visit)? {
+        return Ok(pass.stopped());
     }
-    let mut offset = Offset {
-        rows: head.n_rows(),
-        lines: first.lines,
-    };
+    pass.offset.lines = first.lines;
     drop(head);
     loop {
         let mut pending = Vec::with_capacity(batch);
@@ -175,44 +136,124 @@ pub fn stream_columns(
         if pending.is_empty() {
             break;
         }
-        // Offsets of each chunk: lines are known before parsing, rows only after.
-        let mut line_offsets = Vec::with_capacity(pending.len());
-        let mut lines = offset.lines;
-        for c in &pending {
-            line_offsets.push(lines);
-            lines += c.lines;
-        }
-        let tables: Vec<Result<Table>> = pending
-            .par_iter()
-            .zip(&line_offsets)
-            .map(|(c, &at_line)| {
-                let mut text = header_line.clone().unwrap_or_default();
-                text.extend_from_slice(&c.text);
-                delimited::from_bytes(path, &text, &fixed, None)
-                    .map_err(|e| e.shifted(at_line, header_line.is_some()))
-            })
-            .collect();
-        for (table, c) in tables.into_iter().zip(&pending) {
+        for (table, c) in pass.parse(&pending).into_iter().zip(&pending) {
             let table = match table {
                 Ok(t) => t,
                 // A chunk of blank lines only.
                 Err(DataError::NoDataRows { .. } | DataError::Empty { .. }) => {
-                    offset.lines += c.lines;
-                    summary.bytes += c.text.len() as u64;
+                    pass.offset.lines += c.lines;
+                    pass.summary.bytes += c.text.len() as u64;
                     continue;
                 }
-                Err(e) => return Err(e.with_row_offset(offset.rows)),
+                Err(e) => return Err(e.with_row_offset(pass.offset.rows)),
             };
-            summary.bytes += c.text.len() as u64;
-            if !take(&table, offset, &mut summary)? {
-                summary.stopped = true;
-                return Ok(summary);
+            pass.summary.bytes += c.text.len() as u64;
+            if !pass.take(&table, &mut visit)? {
+                return Ok(pass.stopped());
             }
-            offset.rows += table.n_rows();
-            offset.lines += c.lines;
+            pass.offset.lines += c.lines;
         }
     }
-    Ok(summary)
+    Ok(pass.summary)
+}
+
+/// One pass over the file: the settled format, where the next chunk starts, and the account.
+struct Pass<'a> {
+    path: &'a Path,
+    names: &'a [&'a str],
+    /// The first chunk's settings, fixed for every later chunk.
+    fixed: LoadOptions,
+    /// The header line put in front of every later chunk (when the file has one).
+    header_line: Option<Vec<u8>>,
+    offset: Offset,
+    summary: StreamSummary,
+}
+
+impl<'a> Pass<'a> {
+    fn new(
+        path: &'a Path,
+        names: &'a [&'a str],
+        head: &Table,
+        first: &Chunk,
+        options: &StreamOptions,
+    ) -> Self {
+        let format = head.format().clone();
+        let SourceFormat::Delimited {
+            delimiter,
+            decimal,
+            header,
+        } = format
+        else {
+            unreachable!("delimited text");
+        };
+        let fixed = LoadOptions {
+            delimiter: Some(delimiter),
+            decimal: Some(decimal),
+            header: if header {
+                HeaderMode::Yes
+            } else {
+                HeaderMode::No
+            },
+            ..options.load.clone()
+        };
+        Self {
+            path,
+            names,
+            fixed,
+            header_line: header.then(|| first_record(&first.text)),
+            offset: Offset::default(),
+            summary: StreamSummary {
+                rows: 0,
+                used: 0,
+                dropped_count: 0,
+                dropped: Vec::new(),
+                bytes: first.text.len() as u64,
+                format,
+                stopped: false,
+            },
+        }
+    }
+
+    /// Hands `visit` the complete rows of one chunk's table; false when it asks to stop.
+    fn take(
+        &mut self,
+        table: &Table,
+        visit: &mut impl FnMut(&Piece) -> ControlFlow<()>,
+    ) -> Result<bool> {
+        let mut piece = complete_piece(table, self.names, self.offset.rows, &mut self.summary)?;
+        piece.bytes_read = self.summary.bytes;
+        self.summary.rows += table.n_rows();
+        self.summary.used += piece.rows.len();
+        self.offset.rows += table.n_rows();
+        Ok(visit(&piece).is_continue())
+    }
+
+    fn stopped(mut self) -> StreamSummary {
+        self.summary.stopped = true;
+        self.summary
+    }
+
+    /// Parses a batch of chunks on rayon's threads, each with the header line in front;
+    /// messages carry the file's own line numbers (lines are known before parsing, rows
+    /// only after).
+    fn parse(&self, pending: &[Chunk]) -> Vec<Result<Table>> {
+        let mut line_offsets = Vec::with_capacity(pending.len());
+        let mut lines = self.offset.lines;
+        for c in pending {
+            line_offsets.push(lines);
+            lines += c.lines;
+        }
+        pending
+            .par_iter()
+            .zip(&line_offsets)
+            .map(|(c, &at_line)| {
+                let mut text = self.header_line.clone().unwrap_or_default();
+                text.extend_from_slice(&c.text);
+                delimited::from_bytes(self.path, &text, &self.fixed, None)
+                    .map_err(|e| e.shifted(at_line, self.header_line.is_some()))
+            })
+            .collect()
+    }
 }
 
 /// Where a chunk starts: data rows and lines before it.

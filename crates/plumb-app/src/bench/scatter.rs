@@ -62,11 +62,6 @@ pub fn scatter_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui, size:
     );
     let marked = Marked::of(pair, scene.marks);
     let included = pair.points.as_ref();
-    let focus = own.pointer.focus().map(|e| pair.point(e, scene.marks));
-    let colouring = scene.bench.colouring();
-    let x_range = included.bounds.map_or((0.0, 0.0), |b| (b.x_min, b.x_max));
-    let summary = scene.bench.summary().and_then(Result::ok);
-    let diag = scene.bench.diagnostics();
     let mut plot = axes::plot(
         ("scatter", scene.bench.serial()),
         size,
@@ -79,45 +74,8 @@ pub fn scatter_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui, size:
             plot = super::dense_bounds(plot, b);
         }
     }
-    let lasso = own.pointer.lasso.clone();
-    let textures = &mut own.textures;
     let visuals = ui.visuals().clone();
-    let resp = plot.show(ui, |pu| {
-        if let Some(d) = diag {
-            bands(pu, d, &visuals);
-            overlays(pu, d, &visuals, x_range, &colouring.levels);
-        }
-        let layer = Layer {
-            view: "scatter",
-            cloud: included,
-            groups: colouring
-                .of_entry
-                .as_deref()
-                .map(|g| (g, colouring.levels.as_slice())),
-            excluded: &marked.excluded,
-            skip: &marked.skip,
-            extra: &marked.moved,
-            focus,
-            generation: scene.bench.marks_generation(),
-        };
-        points_layer(pu, &layer, textures, &visuals);
-        if let Some(s) = &summary {
-            pu.line(
-                Line::new("least squares", curve(&pair.spec, s, x_range))
-                    .color(palette::fit(&visuals))
-                    .width(2.0)
-                    .allow_hover(false),
-            );
-        }
-        if lasso.len() > 1 {
-            pu.line(
-                Line::new("", PlotPoints::from(lasso.clone()))
-                    .color(palette::focus(&visuals))
-                    .style(LineStyle::dashed_dense())
-                    .allow_hover(false),
-            );
-        }
-    });
+    let resp = plot.show(ui, |pu| draw(pu, scene, own, &marked, &visuals));
     let hovered = hovered_entry(
         &resp.response,
         &resp.transform,
@@ -137,6 +95,55 @@ pub fn scatter_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui, size:
     let out = interaction(scene, own, &shown);
     tooltip_ui(scene, &mut own.pointer, &shown);
     out
+}
+
+/// The scatter's content: bands and overlays under the points, the fitted curve and the
+/// lasso over them.
+fn draw(
+    pu: &mut PlotUi<'_>,
+    scene: &Scene<'_>,
+    own: &mut BenchUi,
+    marked: &Marked,
+    visuals: &egui::Visuals,
+) {
+    let pair = scene.pair;
+    let included = pair.points.as_ref();
+    let colouring = scene.bench.colouring();
+    let x_range = included.bounds.map_or((0.0, 0.0), |b| (b.x_min, b.x_max));
+    if let Some(d) = scene.bench.diagnostics() {
+        bands(pu, d, visuals);
+        overlays(pu, d, visuals, x_range, &colouring.levels);
+    }
+    let layer = Layer {
+        view: "scatter",
+        cloud: included,
+        groups: colouring
+            .of_entry
+            .as_deref()
+            .map(|g| (g, colouring.levels.as_slice())),
+        excluded: &marked.excluded,
+        skip: &marked.skip,
+        extra: &marked.moved,
+        focus: own.pointer.focus().map(|e| pair.point(e, scene.marks)),
+        generation: scene.bench.marks_generation(),
+    };
+    points_layer(pu, &layer, &mut own.textures, visuals);
+    if let Some(Ok(s)) = scene.bench.summary() {
+        pu.line(
+            Line::new("least squares", curve(&pair.spec, &s, x_range))
+                .color(palette::fit(visuals))
+                .width(2.0)
+                .allow_hover(false),
+        );
+    }
+    if own.pointer.lasso.len() > 1 {
+        pu.line(
+            Line::new("", PlotPoints::from(own.pointer.lasso.clone()))
+                .color(palette::focus(visuals))
+                .style(LineStyle::dashed_dense())
+                .allow_hover(false),
+        );
+    }
 }
 
 /// Click, lasso or drag, as the pointer's mode says.

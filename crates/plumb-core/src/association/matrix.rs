@@ -92,17 +92,7 @@ pub fn correlation_matrix(
         r_differenced: order.and(guard_cells()),
         r_detrended: order.and(guard_cells()),
     };
-    // Complete columns under Pearson or Spearman: every cell from one blocked pass of
-    // co-moments (of the values, or of each column's ranks, ranked once).
-    let moments = match method {
-        Method::Pearson => CoMoments::of_complete(columns),
-        Method::Spearman => complete_values(columns).map(|mut values| {
-            values.par_iter_mut().for_each(|v| *v = average_ranks(v));
-            let refs: Vec<&[f64]> = values.iter().map(Vec::as_slice).collect();
-            CoMoments::of(&refs)
-        }),
-        _ => None,
-    };
+    let moments = complete_moments(columns, method);
     let mut tested = Vec::new();
     for i in 0..k {
         m.n[i][i] = columns[i]
@@ -115,20 +105,7 @@ pub fn correlation_matrix(
             if let Some(t) = order {
                 fill_guards(&mut m, i, j, columns[i], columns[j], t);
             }
-            let (n, result) = match &moments {
-                Some(mo) => (
-                    mo.n() as usize,
-                    // Spearman's p is Pearson's t approximation on the ranks, with no interval.
-                    pearson_from_moments(mo, i, j, 0.95).map(|a| match method {
-                        Method::Spearman => Association { ci: None, ..a },
-                        _ => a,
-                    }),
-                ),
-                None => {
-                    let (x, y) = complete_pairs(columns[i], columns[j]);
-                    (x.len(), method.compute(&x, &y))
-                }
-            };
+            let (n, result) = pair_cell(columns, method, moments.as_ref(), i, j);
             m.n[i][j] = n;
             m.n[j][i] = n;
             match result {
@@ -147,6 +124,51 @@ pub fn correlation_matrix(
             }
         }
     }
+    adjust_all(&mut m, &tested, adjust);
+    m
+}
+
+/// Complete columns under Pearson or Spearman: the co-moments of every column at once (of the
+/// values, or of each column's ranks, ranked once), from one blocked pass.
+fn complete_moments(columns: &[&[Option<f64>]], method: Method) -> Option<CoMoments> {
+    match method {
+        Method::Pearson => CoMoments::of_complete(columns),
+        Method::Spearman => complete_values(columns).map(|mut values| {
+            values.par_iter_mut().for_each(|v| *v = average_ranks(v));
+            let refs: Vec<&[f64]> = values.iter().map(Vec::as_slice).collect();
+            CoMoments::of(&refs)
+        }),
+        _ => None,
+    }
+}
+
+/// The rows used and the coefficient of columns `i` and `j`: from the shared co-moments when
+/// there are any, else from the pair's complete rows.
+fn pair_cell(
+    columns: &[&[Option<f64>]],
+    method: Method,
+    moments: Option<&CoMoments>,
+    i: usize,
+    j: usize,
+) -> (usize, Pairwise) {
+    match moments {
+        Some(mo) => (
+            mo.n() as usize,
+            // Spearman's p is Pearson's t approximation on the ranks, with no interval.
+            pearson_from_moments(mo, i, j, 0.95).map(|a| match method {
+                Method::Spearman => Association { ci: None, ..a },
+                _ => a,
+            }),
+        ),
+        None => {
+            let (x, y) = complete_pairs(columns[i], columns[j]);
+            (x.len(), method.compute(&x, &y))
+        }
+    }
+}
+
+/// Adjusts the p-values of every tested pair together (when more than one was tested).
+fn adjust_all(m: &mut CorrelationMatrix, tested: &[(usize, usize, f64)], adjust: Adjustment) {
     m.n_tests = tested.len();
     let raw: Vec<f64> = tested.iter().map(|t| t.2).collect();
     let method = if tested.len() > 1 {
@@ -158,7 +180,6 @@ pub fn correlation_matrix(
         m.p_adjusted[*i][*j] = Some(p);
         m.p_adjusted[*j][*i] = Some(p);
     }
-    m
 }
 
 fn fill_guards(

@@ -94,61 +94,113 @@ pub(crate) fn least_squares(
     weights: Option<&[f64]>,
     rank_tolerance: f64,
 ) -> Result<Solution> {
-    let n = y.len();
+    let (tri, qr_solution) = first_solve(design, y, weights, rank_tolerance)?;
+    let refiner = Refiner::new(&tri, weights);
+    let gram_route = qr_solution.is_none();
+    let beta = qr_solution.unwrap_or_else(|| {
+        // The semi-normal solution: the first correction, from β = 0 (residuals = y).
+        refiner.correction(&Residuals {
+            hi: y.to_vec(),
+            lo: vec![0.0; y.len()],
+            peak: accurate::max_abs(y),
+        })
+    });
+    let (beta, residuals) = refine(design, y, beta, &refiner, gram_route);
     let p = design.n_terms();
-    let (tri, qr_solution) = match gram_triangle(design, weights) {
-        Some(tri) => (tri, None),
-        None => {
-            let Factor {
-                root_w,
-                basis,
-                qr,
-                r,
-                order,
-                r_inv,
-                m,
-            } = factor(design, weights, rank_tolerance)?;
-            let mut b = DVector::from_iterator(n, y.iter().zip(&root_w).map(|(v, w)| v * w));
-            qr.q_tr_mul(&mut b);
-            let top = &b.as_slice()[..p];
-            let beta: Vec<f64> = (0..p)
-                .map(|j| accurate::dot(m.row(j).transpose().as_slice(), top))
-                .collect();
-            let tri = Triangle {
-                basis,
-                r,
-                order,
-                r_inv,
-                m,
-            };
-            (tri, Some(beta))
-        }
-    };
-    let Triangle {
+    let m = &tri.m;
+    let unscaled_covariance = DMatrix::from_fn(p, p, |a, b| {
+        accurate::dot(
+            m.row(a).transpose().as_slice(),
+            m.row(b).transpose().as_slice(),
+        )
+    });
+    let singular = tri.r.singular_values();
+    Ok(Solution {
+        beta,
+        residuals: residuals.rounded(),
+        unscaled_covariance,
+        unit_std_errors: (0..p)
+            .map(|j| accurate::scaled_norm(m.row(j).iter().copied()))
+            .collect(),
+        condition_number: singular.max() / singular.min(),
+    })
+}
+
+/// The triangle from the Gram route when it is safe, else from the pivoted QR (which also
+/// gives a first solution).
+fn first_solve(
+    design: &Design,
+    y: &[f64],
+    weights: Option<&[f64]>,
+    rank_tolerance: f64,
+) -> Result<(Triangle, Option<Vec<f64>>)> {
+    if let Some(tri) = gram_triangle(design, weights) {
+        return Ok((tri, None));
+    }
+    let (n, p) = (y.len(), design.n_terms());
+    let Factor {
+        root_w,
+        basis,
+        qr,
+        r,
+        order,
+        r_inv,
+        m,
+    } = factor(design, weights, rank_tolerance)?;
+    let mut b = DVector::from_iterator(n, y.iter().zip(&root_w).map(|(v, w)| v * w));
+    qr.q_tr_mul(&mut b);
+    let top = &b.as_slice()[..p];
+    let beta: Vec<f64> = (0..p)
+        .map(|j| accurate::dot(m.row(j).transpose().as_slice(), top))
+        .collect();
+    let tri = Triangle {
         basis,
         r,
         order,
         r_inv,
         m,
-    } = tri;
-
-    // Refinement by corrected semi-normal equations: with g = ZᵀW r computed by compensated
-    // dot products, Δβ = M·R⁻ᵀ·Pᵀg. Because Z is exact (or nearly so) the gradient g is
-    // accurate even when the residual is large, which is where a second pass through Qᵀ
-    // would stall at eps·‖r‖.
-    let weighted_z: std::borrow::Cow<'_, [Vec<f64>]> = match weights {
-        Some(w) => basis
-            .columns
-            .iter()
-            .map(|c| c.iter().zip(w).map(|(a, b)| a * b).collect())
-            .collect(),
-        None => std::borrow::Cow::Borrowed(&basis.columns),
     };
-    let z_peaks: Vec<f64> = weighted_z.iter().map(|c| accurate::max_abs(c)).collect();
-    let correction = |residual: &Residuals| -> Vec<f64> {
+    Ok((tri, Some(beta)))
+}
+
+/// Refinement by corrected semi-normal equations: with `g = ZᵀW r` computed by compensated
+/// dot products, `Δβ = M·R⁻ᵀ·Pᵀg`. Because `Z` is exact (or nearly so) the gradient `g` is
+/// accurate even when the residual is large, which is where a second pass through `Qᵀ` would
+/// stall at `ε‖r‖`.
+struct Refiner<'a> {
+    tri: &'a Triangle,
+    weighted_z: std::borrow::Cow<'a, [Vec<f64>]>,
+    z_peaks: Vec<f64>,
+}
+
+impl<'a> Refiner<'a> {
+    fn new(tri: &'a Triangle, weights: Option<&[f64]>) -> Self {
+        let weighted_z: std::borrow::Cow<'a, [Vec<f64>]> = match weights {
+            Some(w) => tri
+                .basis
+                .columns
+                .iter()
+                .map(|c| c.iter().zip(w).map(|(a, b)| a * b).collect())
+                .collect(),
+            None => std::borrow::Cow::Borrowed(&tri.basis.columns),
+        };
+        let z_peaks = weighted_z.iter().map(|c| accurate::max_abs(c)).collect();
+        Self {
+            tri,
+            weighted_z,
+            z_peaks,
+        }
+    }
+
+    /// `Δβ` for the current residuals.
+    fn correction(&self, residual: &Residuals) -> Vec<f64> {
+        let Triangle {
+            order, r_inv, m, ..
+        } = self.tri;
+        let p = m.nrows();
         let g: Vec<f64> = order
             .iter()
-            .map(|&col| residual.dot(&weighted_z[col], z_peaks[col]))
+            .map(|&col| residual.dot(&self.weighted_z[col], self.z_peaks[col]))
             .collect();
         let h: Vec<f64> = (0..p)
             .map(|k| accurate::dot(r_inv.column(k).as_slice(), &g))
@@ -156,16 +208,18 @@ pub(crate) fn least_squares(
         (0..p)
             .map(|j| accurate::dot(m.row(j).transpose().as_slice(), &h))
             .collect()
-    };
-    let gram_route = qr_solution.is_none();
-    let mut beta = qr_solution.unwrap_or_else(|| {
-        // The semi-normal solution: the first correction, from β = 0 (residuals = y).
-        correction(&Residuals {
-            hi: y.to_vec(),
-            lo: vec![0.0; n],
-            peak: accurate::max_abs(y),
-        })
-    });
+    }
+}
+
+/// Up to [`REFINEMENT_STEPS`] corrections of `beta`; the refined estimates and their
+/// residuals.
+fn refine(
+    design: &Design,
+    y: &[f64],
+    mut beta: Vec<f64>,
+    refiner: &Refiner<'_>,
+    gram_route: bool,
+) -> (Vec<f64>, Residuals) {
     let peaks: Vec<f64> = design
         .columns()
         .iter()
@@ -173,7 +227,7 @@ pub(crate) fn least_squares(
         .collect();
     let mut residuals = Residuals::new(design, y, &beta, &peaks);
     for _ in 0..REFINEMENT_STEPS {
-        let delta = correction(&residuals);
+        let delta = refiner.correction(&residuals);
         let mut changed = false;
         let mut largest_step = 0.0_f64;
         for (b, d) in beta.iter_mut().zip(&delta) {
@@ -192,23 +246,7 @@ pub(crate) fn least_squares(
             break;
         }
     }
-
-    let unscaled_covariance = DMatrix::from_fn(p, p, |a, b| {
-        accurate::dot(
-            m.row(a).transpose().as_slice(),
-            m.row(b).transpose().as_slice(),
-        )
-    });
-    let singular = r.singular_values();
-    Ok(Solution {
-        beta,
-        residuals: residuals.rounded(),
-        unscaled_covariance,
-        unit_std_errors: (0..p)
-            .map(|j| accurate::scaled_norm(m.row(j).iter().copied()))
-            .collect(),
-        condition_number: singular.max() / singular.min(),
-    })
+    (beta, residuals)
 }
 
 /// Largest 2-norm condition number of the working basis for which the Gram route is taken:
