@@ -3,45 +3,15 @@
 //! checked against `plumb fit` on the same rows — for a what-if move, against `plumb fit` on a
 //! copy of the file with the moved values written in, an independent route to the same fit.
 
-use std::path::{Path, PathBuf};
-use std::process::Command;
+mod common;
+
+use std::path::Path;
 use std::time::Duration;
+
+use common::{cli_fit, demo};
 
 use plumb_app::{Action, Ask, PairSpec, Screen, Workbench};
 use plumb_core::regression::LiveSummary;
-
-fn demo(name: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("../../demo-scenarios/data")
-        .join(name)
-}
-
-/// `plumb fit DATA --y Y --x X [--exclude ROWS] --format json`.
-fn cli_fit(data: &Path, y: &str, x: &str, exclude: &str) -> serde_json::Value {
-    let mut args = vec![
-        "fit".to_string(),
-        data.display().to_string(),
-        "--y".into(),
-        y.into(),
-        "--x".into(),
-        x.into(),
-        "--format".into(),
-        "json".into(),
-    ];
-    if !exclude.is_empty() {
-        args.extend(["--exclude".into(), exclude.into()]);
-    }
-    let out = Command::new(env!("CARGO_BIN_EXE_plumb"))
-        .args(&args)
-        .output()
-        .expect("plumb runs");
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    serde_json::from_slice(&out.stdout).expect("json")
-}
 
 fn close(a: f64, b: f64) -> bool {
     (a - b).abs() <= 1e-9 * a.abs().max(b.abs()).max(1e-300)

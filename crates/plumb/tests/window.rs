@@ -5,15 +5,13 @@
 //! Needs `xvfb-run` (Debian's xvfb package). Without it these tests say so and pass, unless
 //! `PLUMB_REQUIRE_DISPLAY=1` (set by CI), which makes a missing Xvfb a failure.
 
-use std::path::{Path, PathBuf};
+mod common;
+
+use std::path::Path;
+
+use common::demo;
 use std::process::{Child, Command, Stdio};
 use std::time::{Duration, Instant};
-
-fn demo(name: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("../../demo-scenarios/data")
-        .join(name)
-}
 
 fn have_xvfb() -> bool {
     let found = Command::new("sh")

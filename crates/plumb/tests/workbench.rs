@@ -3,7 +3,9 @@
 //! checked against `plumb fit --exclude` for the same rows, so the live engine and the
 //! command line are held to one answer.
 
-use std::path::{Path, PathBuf};
+mod common;
+
+use std::path::Path;
 use std::process::Command;
 use std::time::{Duration, Instant};
 
@@ -11,46 +13,16 @@ use eframe::egui;
 use egui_kittest::kittest::{NodeT, Queryable};
 use egui_kittest::Harness;
 use plumb_app::{Action, Workbench};
-use sha2::{Digest, Sha256};
 
-fn demo(name: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("../../demo-scenarios/data")
-        .join(name)
-}
+use common::{cli_fit, demo, sha256};
 
 /// `R² = …` as the workbench prints it, for `plumb fit` on the same request.
 fn cli_r_squared(data: &Path, y: &str, x: &str, exclude: &str) -> String {
-    let mut args = vec![
-        "fit".to_string(),
-        data.display().to_string(),
-        "--y".into(),
-        y.into(),
-        "--x".into(),
-        x.into(),
-        "--format".into(),
-        "json".into(),
-    ];
-    if !exclude.is_empty() {
-        args.extend(["--exclude".into(), exclude.into()]);
-    }
-    let out = Command::new(env!("CARGO_BIN_EXE_plumb"))
-        .args(&args)
-        .output()
-        .expect("plumb runs");
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let v: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
-    let r2 = v["r_squared"].as_f64().expect("r_squared");
-    format!("R² = {}", plumb_report::text::num(r2))
-}
-
-fn sha256(path: &Path) -> String {
-    let bytes = std::fs::read(path).expect("read");
-    format!("{:x}", Sha256::digest(bytes))
+    let v = cli_fit(data, y, x, exclude);
+    format!(
+        "R² = {}",
+        plumb_report::text::num(v["r_squared"].as_f64().expect("r²"))
+    )
 }
 
 fn harness(config: &Path) -> Harness<'static, Workbench> {

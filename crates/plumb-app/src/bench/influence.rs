@@ -3,12 +3,11 @@
 //! the fit a lot).
 
 use eframe::egui::{self, Vec2};
-use egui_plot::{Line, LineStyle};
+use egui_plot::LineStyle;
 
-use super::view::{diagnostic_ui, Diagnostic};
+use super::view::{diagnostic_ui, guide, Diagnostic};
 use super::{BenchUi, Scene};
 use crate::action::Actions;
-use crate::state::cloud::Cloud;
 
 const VIEW: Diagnostic = Diagnostic {
     id: "leverage",
@@ -43,33 +42,21 @@ pub fn influence_ui(
     ui: &mut egui::Ui,
     size: Vec2,
 ) -> Actions {
-    let Some(d) = scene.bench.diagnostics() else {
-        ui.add_sized(size, egui::Spinner::new());
-        return Actions::none();
-    };
     let p = scene.pair.terms.len();
-    let none = Cloud::default();
     diagnostic_ui(
         scene,
         own,
         ui,
         size,
         &VIEW,
-        (&d.views.leverage, &none),
+        |d| (&d.views.leverage, None),
         |pu, cloud, v| {
-            let ink = v.weak_text_color();
             let h_max = cloud.points.iter().map(|q| q.0).fold(0.0_f64, f64::max);
-            for (d, style) in COOK_CURVES
-                .iter()
-                .zip([LineStyle::dashed_loose(), LineStyle::dashed_dense()])
-            {
+            let styles = [LineStyle::dashed_loose(), LineStyle::dashed_dense()];
+            for (d, style) in COOK_CURVES.iter().zip(styles) {
                 for sign in [1.0, -1.0] {
-                    pu.line(
-                        Line::new(format!("Cook's D = {d}"), cook_curve(*d, p, h_max, sign))
-                            .color(ink)
-                            .style(style)
-                            .allow_hover(false),
-                    );
+                    let name = format!("Cook's D = {d}");
+                    pu.line(guide(&name, cook_curve(*d, p, h_max, sign), v).style(style));
                 }
             }
         },

@@ -2,9 +2,8 @@
 //! mean heavy or light tails; a lone point off the line is an outlier.
 
 use eframe::egui::{self, Vec2};
-use egui_plot::Line;
 
-use super::view::{diagnostic_ui, Diagnostic};
+use super::view::{diagnostic_ui, guide, Diagnostic};
 use super::{BenchUi, Scene};
 use crate::action::Actions;
 use crate::state::cloud::Cloud;
@@ -34,25 +33,15 @@ pub fn quantiles_ui(
     ui: &mut egui::Ui,
     size: Vec2,
 ) -> Actions {
-    let Some(d) = scene.bench.diagnostics() else {
-        ui.add_sized(size, egui::Spinner::new());
-        return Actions::none();
-    };
-    let none = Cloud::default();
     diagnostic_ui(
         scene,
         own,
         ui,
         size,
         &VIEW,
-        (&d.views.quantile, &none),
+        |d| (&d.views.quantile, None),
         |pu, cloud, v| {
-            let ink = v.weak_text_color();
-            pu.line(
-                Line::new("y = x", diagonal(cloud).to_vec())
-                    .color(ink)
-                    .allow_hover(false),
-            );
+            pu.line(guide("y = x", diagonal(cloud).to_vec(), v));
         },
     )
 }

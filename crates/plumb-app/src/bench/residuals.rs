@@ -7,7 +7,7 @@ use super::view::{diagnostic_ui, Diagnostic};
 use super::{BenchUi, Scene};
 use crate::action::Actions;
 use crate::state::cloud::Cloud;
-use crate::state::diagnostics::Views;
+use crate::state::diagnostics::{Diagnostics, Views};
 
 const VIEW: Diagnostic = Diagnostic {
     id: "residuals",
@@ -23,6 +23,11 @@ pub fn residual_points(v: &Views) -> (&Cloud, &Cloud) {
     (&v.residual, &v.excluded_residuals)
 }
 
+fn pick(d: &Diagnostics) -> (&Cloud, Option<&Cloud>) {
+    let (points, rings) = residual_points(&d.views);
+    (points, Some(rings))
+}
+
 /// Draws the view (a spinner until the first diagnostics arrive).
 pub fn residuals_ui(
     scene: &Scene<'_>,
@@ -30,26 +35,13 @@ pub fn residuals_ui(
     ui: &mut egui::Ui,
     size: Vec2,
 ) -> Actions {
-    let Some(d) = scene.bench.diagnostics() else {
-        ui.add_sized(size, egui::Spinner::new());
-        return Actions::none();
-    };
-    diagnostic_ui(
-        scene,
-        own,
-        ui,
-        size,
-        &VIEW,
-        residual_points(&d.views),
-        |pu, _, v| {
-            let ink = v.weak_text_color();
-            pu.hline(
-                egui_plot::HLine::new("zero", 0.0)
-                    .color(ink)
-                    .allow_hover(false),
-            );
-        },
-    )
+    diagnostic_ui(scene, own, ui, size, &VIEW, pick, |pu, _, v| {
+        pu.hline(
+            egui_plot::HLine::new("zero", 0.0)
+                .color(v.weak_text_color())
+                .allow_hover(false),
+        );
+    })
 }
 
 #[cfg(test)]

@@ -11,6 +11,14 @@ use super::{BenchUi, Scene};
 use crate::action::Actions;
 use crate::axes;
 use crate::state::cloud::Cloud;
+use crate::state::diagnostics::Diagnostics;
+
+/// A thin line in the view's weak ink, under the points (a diagonal, a contour).
+pub fn guide(name: &str, points: Vec<[f64; 2]>, v: &egui::Visuals) -> egui_plot::Line<'static> {
+    egui_plot::Line::new(name.to_string(), points)
+        .color(v.weak_text_color())
+        .allow_hover(false)
+}
 
 /// What a diagnostic view is called and what its axes show.
 pub struct Diagnostic {
@@ -26,18 +34,26 @@ pub struct Diagnostic {
     pub y_label: &'static str,
 }
 
-/// Draws one diagnostic view of `points` (included rows) and `excluded` (rings), with
-/// `guides` drawn first. A spinner while the first diagnostics compute.
+/// Draws one diagnostic view: the points `pick` takes from the diagnostics (included rows, and
+/// excluded rows drawn as rings), with `guides` drawn first. A spinner while the first
+/// diagnostics compute.
 pub fn diagnostic_ui(
     scene: &Scene<'_>,
     own: &mut BenchUi,
     ui: &mut egui::Ui,
     size: Vec2,
     view: &Diagnostic,
-    (points, excluded): (&Cloud, &Cloud),
+    pick: fn(&Diagnostics) -> (&Cloud, Option<&Cloud>),
     guides: impl FnOnce(&mut PlotUi<'_>, &Cloud, &egui::Visuals),
 ) -> Actions {
     title_ui(ui, view.title, view.tip);
+    let Some(d) = scene.bench.diagnostics() else {
+        ui.add_sized(size, egui::Spinner::new());
+        return Actions::none();
+    };
+    let none = Cloud::default();
+    let (points, excluded) = pick(d);
+    let excluded = excluded.unwrap_or(&none);
     let focus = own
         .pointer
         .focus()
@@ -54,7 +70,6 @@ pub fn diagnostic_ui(
         }
     }
     let skip = std::collections::HashSet::new();
-    let none = Cloud::default();
     let textures = &mut own.textures;
     let visuals = ui.visuals().clone();
     let resp = plot.show(ui, |pu| {
