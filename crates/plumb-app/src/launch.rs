@@ -12,7 +12,7 @@ use crate::action::Action;
 use crate::state::pair::PairSpec;
 use crate::state::Screen;
 use crate::workbench::Workbench;
-use crate::WorkbenchError;
+use crate::error::WorkbenchError;
 
 /// How the window starts.
 #[derive(Debug, Clone, Default)]

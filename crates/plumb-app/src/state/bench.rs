@@ -8,7 +8,7 @@ use super::diagnostics::{compute, Diagnostics, Input, Overlays};
 use super::jobs::{Job, Waker};
 use super::marks::Marks;
 use super::pair::{Pair, PairSpec};
-use crate::WorkbenchError;
+use crate::error::WorkbenchError;
 
 /// Rows just excluded that wait for their reason.
 #[derive(Debug, Clone, PartialEq)]

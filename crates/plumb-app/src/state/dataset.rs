@@ -6,7 +6,7 @@ use std::sync::Arc;
 
 use plumb_data::{ColumnSummary, ColumnValues, LoadOptions, Table};
 
-use crate::WorkbenchError;
+use crate::error::WorkbenchError;
 
 /// A text column with at most this many distinct values can colour the points.
 pub const MAX_GROUPS: usize = 12;

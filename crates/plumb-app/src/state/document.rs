@@ -12,7 +12,7 @@ use super::jobs::{Job, Waker};
 use super::marks::Marks;
 use super::pair::PairSpec;
 use super::settings::Recent;
-use crate::WorkbenchError;
+use crate::error::WorkbenchError;
 
 /// A loaded file with its fingerprint.
 #[derive(Debug, Clone)]

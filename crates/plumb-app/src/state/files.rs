@@ -14,7 +14,7 @@ use super::sessions::{
     write_recovery,
 };
 use super::{AfterLoad, Ask, BenchModel, DialogPurpose, Loaded, Loading, Screen, State};
-use crate::WorkbenchError;
+use crate::error::WorkbenchError;
 
 impl State {
     /// Opens a data file or a session (by extension) in the background; a delimited file too

@@ -9,7 +9,7 @@ use plumb_data::Table;
 
 use super::cloud::Cloud;
 use super::marks::Marks;
-use crate::WorkbenchError;
+use crate::error::WorkbenchError;
 
 /// Which model of which two columns.
 #[derive(Debug, Clone, PartialEq)]

@@ -3,7 +3,7 @@
 use nalgebra::DMatrix;
 
 use super::design::{Design, TermKind};
-use super::quality::{FitQuality, TInference};
+use super::quality::{Anova, Coefficient, FitQuality, TInference};
 use super::solve::Solution;
 use crate::{accurate, describe};
 
@@ -24,51 +24,6 @@ impl RSquaredKind {
             Self::Uncentered => "uncentered",
         }
     }
-}
-
-/// One row of the coefficient table.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Coefficient {
-    /// Term name.
-    pub term: String,
-    /// Estimate `β̂ⱼ`.
-    pub estimate: f64,
-    /// Standard error `SEⱼ = σ̂ √[(XᵀWX)⁻¹]ⱼⱼ`.
-    pub std_error: f64,
-    /// `tⱼ = β̂ⱼ / SEⱼ`.
-    pub t: f64,
-    /// Two-sided `P(|T_{n−p}| ≥ |tⱼ|)`.
-    pub p_value: f64,
-    /// `β̂ⱼ − q·SEⱼ` with `q` the upper `(1−level)/2` quantile of `t_{n−p}`.
-    pub ci_low: f64,
-    /// `β̂ⱼ + q·SEⱼ`.
-    pub ci_high: f64,
-    /// Standardized (beta) coefficient `β̂ⱼ · s_{xⱼ} / s_y` (weighted standard deviations when
-    /// weights are given); `None` for the intercept, which has no standardized counterpart.
-    pub standardized: Option<f64>,
-}
-
-/// Analysis-of-variance decomposition `TSS = SS_model + RSS`.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Anova {
-    /// `SS_model = TSS − RSS`.
-    pub ss_model: f64,
-    /// `RSS = Σ wᵢ eᵢ²`.
-    pub ss_residual: f64,
-    /// TSS of the kind given by [`LinearFit::r_squared_kind`].
-    pub ss_total: f64,
-    /// `p − 1` with an intercept, `p` without.
-    pub df_model: usize,
-    /// `n − p`.
-    pub df_residual: usize,
-    /// `SS_model / df_model` (`None` when `df_model = 0`).
-    pub ms_model: Option<f64>,
-    /// `RSS / df_residual` = `σ̂²`.
-    pub ms_residual: f64,
-    /// `F = MS_model / MS_residual` (`None` when `df_model = 0`).
-    pub f_statistic: Option<f64>,
-    /// `P(F_{df_model, df_residual} ≥ F)`.
-    pub f_p_value: Option<f64>,
 }
 
 /// Everything reported about one least-squares fit.

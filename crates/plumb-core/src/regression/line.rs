@@ -12,8 +12,7 @@
 //! about `ε/(1 − R²)`. When `1 − R²` is below [`RESIDUAL_PASS_BELOW`] and the rows are at hand,
 //! [`line_fit`] takes a second pass and sums the squared residuals directly.
 
-use super::inference::{Anova, Coefficient};
-use super::quality::{FitQuality, TInference};
+use super::quality::{Anova, Coefficient, FitQuality, TInference};
 use crate::moments::CoMoments;
 use crate::{CoreError, Result};
 

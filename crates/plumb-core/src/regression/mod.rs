@@ -19,7 +19,7 @@ mod standardized;
 pub use bands::{bands, BandPoint};
 pub use compare::{compare_nested, variance_inflation, NestedComparison};
 pub use design::{polynomial_value, Design, Term, TermKind, MAX_DEGREE};
-pub use inference::{Anova, Coefficient, LinearFit, RSquaredKind};
+pub use inference::{LinearFit, RSquaredKind};
 pub use influence::{
     influence, normal_scores, CaseInfluence, InfluenceFlag, COOKS_FLAG_NUMERATOR,
     LEVERAGE_FLAG_FACTOR, STUDENTIZED_FLAG,
@@ -28,7 +28,7 @@ pub use line::{
     line_fit, line_from_moments, residual_sum_of_squares, LineSummary, RESIDUAL_PASS_BELOW,
 };
 pub use live::{LiveFit, LiveSummary, CONDITION_LIMIT, PIVOT_FLOOR, REFRESH_EVERY, TIGHT_FIT};
-pub use quality::{FitQuality, TInference};
+pub use quality::{Anova, Coefficient, FitQuality, TInference};
 pub use standardized::StandardizedView;
 
 use crate::{CoreError, Result};
