@@ -9,10 +9,10 @@ use std::time::{Duration, Instant};
 use eframe::egui;
 
 use crate::action::Action;
+use crate::error::WorkbenchError;
 use crate::state::pair::PairSpec;
 use crate::state::Screen;
 use crate::workbench::Workbench;
-use crate::error::WorkbenchError;
 
 /// How the window starts.
 #[derive(Debug, Clone, Default)]

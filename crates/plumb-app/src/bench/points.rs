@@ -316,3 +316,90 @@ pub fn tooltip_text(scene: &Scene<'_>, mode: PointerMode, e: usize) -> String {
     });
     text
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::state::cloud::DENSITY_FROM;
+    use crate::state::marks::Note;
+    use crate::state::pair::{Pair, PairSpec};
+
+    fn pair(n: usize) -> (tempfile::TempDir, Pair) {
+        let dir = tempfile::tempdir().expect("dir");
+        let path = dir.path().join("d.csv");
+        let text: String = std::iter::once("x,y\n".to_string())
+            .chain((0..n).map(|i| format!("{i},{}\n", (i * 37 % 101) as f64 * 0.1 + i as f64)))
+            .collect();
+        std::fs::write(&path, text).expect("write");
+        let t = plumb_data::load(&path, &Default::default()).expect("load");
+        (dir, Pair::new(&t, PairSpec::line("y", "x")).expect("pair"))
+    }
+
+    fn marks() -> Marks {
+        let mut m = Marks::default();
+        m.excluded.insert(
+            3,
+            Note {
+                reason: "r".into(),
+                at: String::new(),
+            },
+        );
+        m.moved.insert(5, (100.0, -7.0));
+        m.moved.insert(3, (50.0, 50.0));
+        m
+    }
+
+    #[test]
+    fn excluded_rows_are_rings_moved_rows_are_drawn_where_they_were_moved() {
+        let (_dir, pair) = pair(12);
+        let m = marks();
+        let marked = Marked::of(&pair, &m);
+        assert_eq!(marked.excluded.entries, vec![2], "data row 3 is entry 2");
+        assert_eq!(
+            marked.excluded.points,
+            vec![(50.0, 50.0)],
+            "at its moved place"
+        );
+        assert_eq!(marked.moved.entries, vec![4], "row 5 moved and still in");
+        let layer = Layer {
+            view: "test",
+            cloud: &pair.points,
+            groups: None,
+            excluded: &marked.excluded,
+            skip: &marked.skip,
+            extra: &marked.moved,
+            focus: None,
+            generation: 0,
+        };
+        let drawn = layer.markers();
+        assert_eq!(drawn.len(), 11, "12 rows, one excluded");
+        assert!(drawn.iter().all(|(e, _)| *e != 2));
+        assert_eq!(
+            drawn.iter().filter(|(e, _)| *e == 4).count(),
+            1,
+            "drawn once"
+        );
+        assert!(drawn.contains(&(4, (100.0, -7.0))));
+    }
+
+    #[test]
+    fn a_dense_view_draws_only_the_moved_rows_as_markers() {
+        let (_dir, pair) = pair(DENSITY_FROM + 10);
+        assert!(pair.points.is_dense());
+        let m = marks();
+        let marked = Marked::of(&pair, &m);
+        let layer = Layer {
+            view: "test",
+            cloud: &pair.points,
+            groups: None,
+            excluded: &marked.excluded,
+            skip: &marked.skip,
+            extra: &marked.moved,
+            focus: None,
+            generation: 0,
+        };
+        assert_eq!(layer.markers(), vec![(4, (100.0, -7.0))]);
+        let b = pair.points.bounds.expect("bounds");
+        assert_eq!((b.x_min, b.x_max), (0.0, (DENSITY_FROM + 9) as f64));
+    }
+}
