@@ -17,6 +17,7 @@ pub mod describe;
 pub mod distributions;
 mod error;
 pub mod moments;
+pub mod optimize;
 pub mod regression;
 
 pub use error::{CoreError, Result};

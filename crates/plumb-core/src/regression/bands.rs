@@ -33,34 +33,48 @@ pub fn bands(design: &Design, fit: &LinearFit, grid: &[f64]) -> Option<Vec<BandP
     if !one_predictor {
         return None;
     }
+    let rows: Vec<(f64, Vec<f64>)> = grid
+        .iter()
+        .map(|&x| {
+            let row = design
+                .terms()
+                .iter()
+                .map(|t| x.powi(t.kind.power() as i32))
+                .collect();
+            (x, row)
+        })
+        .collect();
+    Some(bands_at(fit, &rows))
+}
+
+/// The fit and its bands at design rows of any model: each `(x, row)` gives the place to
+/// report (`x`) and the design row `x₀` there (one value per term, as the design builds it).
+///
+/// # Panics
+/// If a row's length is not the number of terms (a caller bug).
+pub fn bands_at(fit: &LinearFit, rows: &[(f64, Vec<f64>)]) -> Vec<BandPoint> {
     let beta: Vec<f64> = fit.coefficients.iter().map(|c| c.estimate).collect();
     let q = TInference::new(fit.level, fit.anova.df_residual as f64).q;
     let s2 = fit.residual_std_error.powi(2);
-    Some(
-        grid.iter()
-            .map(|&x| {
-                let row: Vec<f64> = design
-                    .terms()
-                    .iter()
-                    .map(|t| x.powi(t.kind.power() as i32))
-                    .collect();
-                let fitted = accurate::dot(&row, &beta);
-                let sigma_row: Vec<f64> = (0..row.len())
-                    .map(|j| accurate::dot(fit.covariance.row(j).transpose().as_slice(), &row))
-                    .collect();
-                let var_mean = accurate::dot(&row, &sigma_row).max(0.0);
-                let (m, p) = (q * var_mean.sqrt(), q * (s2 + var_mean).sqrt());
-                BandPoint {
-                    x,
-                    fitted,
-                    mean_low: fitted - m,
-                    mean_high: fitted + m,
-                    predict_low: fitted - p,
-                    predict_high: fitted + p,
-                }
-            })
-            .collect(),
-    )
+    rows.iter()
+        .map(|(x, row)| {
+            assert_eq!(row.len(), beta.len(), "a design row has one value per term");
+            let fitted = accurate::dot(row, &beta);
+            let sigma_row: Vec<f64> = (0..row.len())
+                .map(|j| accurate::dot(fit.covariance.row(j).transpose().as_slice(), row))
+                .collect();
+            let var_mean = accurate::dot(row, &sigma_row).max(0.0);
+            let (m, p) = (q * var_mean.sqrt(), q * (s2 + var_mean).sqrt());
+            BandPoint {
+                x: *x,
+                fitted,
+                mean_low: fitted - m,
+                mean_high: fitted + m,
+                predict_low: fitted - p,
+                predict_high: fitted + p,
+            }
+        })
+        .collect()
 }
 
 #[cfg(test)]

@@ -82,10 +82,107 @@ pub fn variance_inflation(design: &Design, weights: Option<&[f64]>) -> Result<Ve
         .collect()
 }
 
+/// Whether the model with terms `reduced` is nested in the one with terms `full`: every term
+/// of the smaller is a term of the larger (by name), and the larger has more.
+pub fn is_nested(reduced: &[String], full: &[String]) -> bool {
+    full.len() > reduced.len() && reduced.iter().all(|t| full.contains(t))
+}
+
+/// The added-variable (partial regression) view of term `j`: the response and that term, each
+/// with the other terms regressed out, `e_y = y − ŷ₍₋ⱼ₎` and `e_x = xⱼ − x̂ⱼ₍₋ⱼ₎` (scaled by `√wᵢ`
+/// under weights). The slope of `e_y` on `e_x` through the origin,
+/// `Σ e_x e_y / Σ e_x²`, equals the multiple-regression coefficient `β̂ⱼ`
+/// (Frisch–Waugh–Lovell theorem).
+#[derive(Debug, Clone, PartialEq)]
+pub struct AddedVariable {
+    /// The term.
+    pub term: String,
+    /// `e_x`, one per row.
+    pub x: Vec<f64>,
+    /// `e_y`, one per row.
+    pub y: Vec<f64>,
+    /// `Σ e_x e_y / Σ e_x²`.
+    pub slope: f64,
+}
+
+/// The added-variable view of term `j` of `design` on `y`.
+///
+/// # Errors
+/// What the solver raises for the auxiliary fits (the main fit would have raised it first).
+///
+/// # Panics
+/// If `j` is not a term of the design (a caller bug).
+pub fn added_variable(
+    design: &Design,
+    y: &[f64],
+    weights: Option<&[f64]>,
+    j: usize,
+) -> Result<AddedVariable> {
+    assert!(j < design.n_terms(), "term {j} is not in the design");
+    let terms = design.terms();
+    let mut others = Design::new(design.n_rows(), design.has_intercept());
+    for (k, (t, c)) in terms.iter().zip(design.columns()).enumerate() {
+        if k != j && t.kind != TermKind::Intercept {
+            others.push(t.clone(), c.clone());
+        }
+    }
+    let root_w: Vec<f64> = weights.map_or_else(
+        || vec![1.0; y.len()],
+        |w| w.iter().map(|v| v.sqrt()).collect(),
+    );
+    let residual = |v: &[f64]| -> Result<Vec<f64>> {
+        let e = if others.n_terms() == 0 {
+            v.to_vec()
+        } else {
+            fit(&others, v, weights, &FitOptions::default())?.residuals
+        };
+        Ok(e.iter().zip(&root_w).map(|(a, w)| a * w).collect())
+    };
+    let ex = residual(&design.columns()[j])?;
+    let ey = residual(y)?;
+    let slope = crate::accurate::dot(&ex, &ey) / crate::accurate::dot(&ex, &ex);
+    Ok(AddedVariable {
+        term: terms[j].name.clone(),
+        x: ex,
+        y: ey,
+        slope,
+    })
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
     use approx::assert_relative_eq;
+
+    #[test]
+    fn the_added_variable_slope_is_the_multiple_regression_coefficient() {
+        // Frisch–Waugh–Lovell: the slope of e_y on e_x equals β̂ⱼ of the full fit.
+        let a: Vec<f64> = (0..40).map(|i| f64::from(i) * 0.25).collect();
+        let b: Vec<f64> = (0..40)
+            .map(|i| f64::from((i * 17) % 11) + 0.1 * f64::from(i))
+            .collect();
+        let y: Vec<f64> = a
+            .iter()
+            .zip(&b)
+            .enumerate()
+            .map(|(i, (x1, x2))| 2.0 + 0.7 * x1 - 1.3 * x2 + ((i * 7) % 5) as f64 * 0.2)
+            .collect();
+        let w: Vec<f64> = (0..40).map(|i| 1.0 + f64::from(i % 3)).collect();
+        let d = Design::linear(&[("a", &a), ("b", &b)], true);
+        for weights in [None, Some(w.as_slice())] {
+            let full = fit(&d, &y, weights, &FitOptions::default()).expect("fits");
+            for j in [1, 2] {
+                let av = added_variable(&d, &y, weights, j).expect("defined");
+                let beta = full.coefficients[j].estimate;
+                assert_relative_eq!(av.slope, beta, max_relative = 1e-10);
+            }
+        }
+        assert!(is_nested(
+            &["intercept".into()],
+            &["intercept".into(), "a".into()]
+        ));
+        assert!(!is_nested(&["a".into()], &["intercept".into(), "b".into()]));
+    }
 
     #[test]
     fn uncorrelated_predictors_have_no_inflation() {

@@ -61,6 +61,30 @@ pub struct LinearFit {
     pub condition_number: f64,
 }
 
+impl LinearFit {
+    /// The linear combination `cᵀβ̂` of the coefficients, with `SE = √(cᵀΣc)` (`Σ` the
+    /// coefficients' covariance), its t, two-sided p and interval at the fit's level: e.g. a
+    /// group's own slope, the common slope plus that group's difference.
+    ///
+    /// # Panics
+    /// If `c` does not have one weight per coefficient (a caller bug).
+    pub fn combination(&self, name: &str, c: &[f64]) -> Coefficient {
+        assert_eq!(
+            c.len(),
+            self.coefficients.len(),
+            "one weight per coefficient"
+        );
+        let beta: Vec<f64> = self.coefficients.iter().map(|k| k.estimate).collect();
+        let estimate = accurate::dot(c, &beta);
+        let sigma_c: Vec<f64> = (0..c.len())
+            .map(|j| accurate::dot(self.covariance.row(j).transpose().as_slice(), c))
+            .collect();
+        let se = accurate::dot(c, &sigma_c).max(0.0).sqrt();
+        TInference::new(self.level, self.anova.df_residual as f64)
+            .coefficient(name, estimate, se, None)
+    }
+}
+
 /// Builds the full report from the solver's output.
 pub(crate) fn summarize(
     design: &Design,

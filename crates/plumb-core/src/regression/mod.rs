@@ -6,6 +6,7 @@
 
 mod bands;
 mod basis;
+mod boxcox;
 mod compare;
 mod design;
 mod inference;
@@ -15,9 +16,13 @@ mod live;
 mod quality;
 mod solve;
 mod standardized;
+mod transform;
 
-pub use bands::{bands, BandPoint};
-pub use compare::{compare_nested, variance_inflation, NestedComparison};
+pub use bands::{bands, bands_at, BandPoint};
+pub use boxcox::{boxcox, boxcox_log_likelihood, BoxCox, LAMBDA_REACH};
+pub use compare::{
+    added_variable, compare_nested, is_nested, variance_inflation, AddedVariable, NestedComparison,
+};
 pub use design::{polynomial_value, Design, Term, TermKind, MAX_DEGREE};
 pub use inference::{LinearFit, RSquaredKind};
 pub use influence::{
@@ -30,6 +35,7 @@ pub use line::{
 pub use live::{LiveFit, LiveSummary, CONDITION_LIMIT, PIVOT_FLOOR, REFRESH_EVERY, TIGHT_FIT};
 pub use quality::{Anova, Coefficient, FitQuality, TInference};
 pub use standardized::StandardizedView;
+pub use transform::Transform;
 
 use crate::{CoreError, Result};
 
