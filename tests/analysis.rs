@@ -30,7 +30,7 @@ fn decimal_comma_export_fits_like_the_same_numbers_written_with_points() {
     let a = analyze(&jar, &request, Wanted::default()).expect("fits");
     let b = analyze(&points, &request, Wanted::default()).expect("fits");
     assert_eq!(a.fit, b.fit, "identical numbers give identical fits");
-    assert_eq!(a.selection.rows.len(), 46);
+    assert_eq!(a.rows.selection.rows.len(), 46);
 }
 
 #[test]

@@ -128,6 +128,7 @@ impl ModelSpec {
             exclude,
             level: self.level,
             what_if: Vec::new(),
+            ..FitRequest::default()
         }
     }
 

@@ -283,6 +283,7 @@ impl ModelArgs {
                 .unwrap_or_default(),
             level: self.level,
             what_if: Vec::new(),
+            ..plumb_data::analysis::FitRequest::default()
         }
     }
 }

@@ -21,6 +21,7 @@ pub fn run(args: &FitArgs) -> anyhow::Result<String> {
             loess_span: args.loess,
             at: args.at,
         }),
+        ..Wanted::default()
     };
     let outcome = analyze(&table, &request, wanted)?;
     let extras = outcome.extras.as_ref();

@@ -82,10 +82,10 @@ fn ladder(extras: &PairExtras) -> Option<Value> {
 }
 
 fn bands(extras: &PairExtras) -> Option<Value> {
-    if extras.bands.is_empty() {
+    if extras.bands().is_empty() {
         return None;
     }
-    let pick = |f: fn(&BandPoint) -> f64| extras.bands.iter().map(f).collect::<Vec<f64>>();
+    let pick = |f: fn(&BandPoint) -> f64| extras.bands().iter().map(f).collect::<Vec<f64>>();
     Some(json!({
         "x": pick(|b| b.x), "fitted": pick(|b| b.fitted),
         "mean_low": pick(|b| b.mean_low), "mean_high": pick(|b| b.mean_high),

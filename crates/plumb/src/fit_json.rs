@@ -94,7 +94,7 @@ pub fn render(
     extras: Option<&PairExtras>,
 ) -> serde_json::Result<String> {
     let fit = &outcome.fit;
-    let sel = &outcome.selection;
+    let sel = &outcome.rows.selection;
     let data = table.source().to_str().unwrap_or("(path is not UTF-8)");
     let json = FitJson {
         data,

@@ -115,7 +115,7 @@ fn write_ladder_and_cues(out: &mut String, o: &Analysis, e: &PairExtras) -> std:
         writeln!(out, "  adding powers        {}", steps.join("; "))?;
     }
     if let Some(c) = &e.cues {
-        let rows = &o.selection.rows;
+        let rows = &o.rows.selection.rows;
         for cue in wording::pair_cues(c, |i| rows.get(i).copied()) {
             writeln!(out, "  cue: {}", cue.text)?;
         }
@@ -131,7 +131,7 @@ fn write_header(
     o: &Analysis,
 ) -> std::fmt::Result {
     let fit = &o.fit;
-    let sel = &o.selection;
+    let sel = &o.rows.selection;
     let terms = plumb_report::text::equation_terms(fit);
     let method = if request.weights.is_some() {
         "weighted least squares"
@@ -254,7 +254,7 @@ fn write_variance_split(out: &mut String, fit: &LinearFit) -> std::fmt::Result {
 
 /// The rows dropped for gaps and the variance inflation of each predictor.
 fn write_rows_and_inflation(out: &mut String, o: &Analysis) -> std::fmt::Result {
-    let sel = &o.selection;
+    let sel = &o.rows.selection;
     if !sel.dropped.is_empty() {
         writeln!(out)?;
         let listed: Vec<String> = sel
@@ -289,7 +289,7 @@ fn write_rows_and_inflation(out: &mut String, o: &Analysis) -> std::fmt::Result 
 }
 
 fn write_cautions(out: &mut String, table: &Table, o: &Analysis) -> std::fmt::Result {
-    let (fit, sel) = (&o.fit, &o.selection);
+    let (fit, sel) = (&o.fit, &o.rows.selection);
     if fit.condition_number > CONDITION_WARNING {
         writeln!(out, "  warning: the terms nearly coincide (condition number {:.2e}); estimates may be unstable", fit.condition_number)?;
     }

@@ -50,6 +50,7 @@ pub fn run(args: &InfluenceArgs) -> anyhow::Result<String> {
     let wanted = Wanted {
         influence: true,
         extras: None,
+        ..Wanted::default()
     };
     let outcome = analyze(&table, &args.model.request(), wanted)?;
     let cases = &outcome.cases;
@@ -62,6 +63,7 @@ pub fn run(args: &InfluenceArgs) -> anyhow::Result<String> {
         source: "common practice, no source",
     };
     let rows: Vec<RowJson> = outcome
+        .rows
         .selection
         .rows
         .iter()
@@ -80,7 +82,7 @@ pub fn run(args: &InfluenceArgs) -> anyhow::Result<String> {
                     .map(|c| c.term.as_str())
                     .collect(),
                 thresholds,
-                excluded_rows: &outcome.selection.excluded,
+                excluded_rows: &outcome.rows.selection.excluded,
                 rows,
             };
             serde_json::to_string_pretty(&json)? + "\n"

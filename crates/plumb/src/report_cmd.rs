@@ -160,6 +160,7 @@ fn from_data(args: &ReportArgs) -> anyhow::Result<Prepared> {
         exclude,
         level: args.level,
         what_if: Vec::new(),
+        ..FitRequest::default()
     };
     let reproduce = std::iter::once("plumb".to_string())
         .chain(std::env::args().skip(1))

@@ -210,7 +210,7 @@ fn lasso(scene: &Scene<'_>, own: &mut BenchUi, shown: &Shown) -> Actions {
 
 fn bands(pu: &mut PlotUi<'_>, d: &Diagnostics, v: &egui::Visuals) {
     let Some(extras) = &d.extras else { return };
-    let b = &extras.bands;
+    let b = extras.bands();
     if b.len() < 2 {
         return;
     }

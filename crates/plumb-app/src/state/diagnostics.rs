@@ -167,11 +167,13 @@ pub fn compute(input: &Input) -> Diagnostics {
             loess_span: input.overlays.loess.then_some(input.overlays.loess_span),
             at: None,
         }),
+        ..Wanted::default()
     };
     let analysis = analyze(&input.table, &input.spec.with_marks(&input.marks), wanted);
     let (fit, cases, extras, included) = match analysis {
         Ok(a) => {
             let included = a
+                .rows
                 .selection
                 .rows
                 .iter()

@@ -49,6 +49,7 @@ impl PairSpec {
             exclude: Vec::new(),
             what_if: Vec::new(),
             level: self.level,
+            ..FitRequest::default()
         }
     }
 

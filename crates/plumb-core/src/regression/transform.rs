@@ -68,6 +68,17 @@ impl Transform {
         v.is_finite().then_some(v)
     }
 
+    /// [`Transform::inverse`], with a value beyond the transform's range taken to the edge of
+    /// the data's domain where that edge is finite (a negative square root to 0): for band
+    /// ends that reach past what the transform can produce.
+    pub fn inverse_clamped(self, t: f64) -> Option<f64> {
+        match self {
+            Self::Sqrt if t < 0.0 => Some(0.0),
+            Self::BoxCox(l) if l > BOX_COX_ZERO && l * t + 1.0 <= 0.0 => Some(0.0),
+            _ => self.inverse(t),
+        }
+    }
+
     /// What the transform needs of a value, for messages: "positive", "zero or positive",
     /// "non-zero", or "finite".
     pub fn domain(self) -> &'static str {
@@ -135,6 +146,8 @@ mod tests {
         assert_eq!(Transform::Reciprocal.apply(0.0), None);
         assert_eq!(Transform::BoxCox(2.0).apply(0.0), None);
         assert_eq!(Transform::Sqrt.inverse(-1.0), None);
+        assert_eq!(Transform::Sqrt.inverse_clamped(-1.0), Some(0.0));
+        assert_eq!(Transform::BoxCox(0.5).inverse_clamped(-3.0), Some(0.0));
         // (v^λ − 1)/λ at λ = 1 is v − 1 (by hand), and λ → 0 gives ln v.
         assert_eq!(Transform::BoxCox(1.0).apply(5.0), Some(4.0));
         assert_eq!(Transform::BoxCox(0.0).apply(1.0), Some(0.0));

@@ -6,11 +6,11 @@ use plumb_core::alternative::{
 };
 use plumb_core::cues::{pair_cues, PairCues};
 use plumb_core::regression::{
-    bands, compare_nested, fit, BandPoint, FitOptions, LinearFit, NestedComparison,
+    bands_at, compare_nested, fit, BandPoint, Design, FitOptions, LinearFit, NestedComparison,
     StandardizedView,
 };
 
-use super::{one_predictor_design, FitRequest, ModelRows};
+use super::{FitRequest, ModelRows};
 
 /// An overlay line for the same pair.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -43,10 +43,31 @@ pub struct PairExtras {
     pub z_view: Option<StandardizedView>,
     /// The fit read at the requested predictor value.
     pub read_at: Option<ReadAt>,
-    /// Polynomials of degree 1, 2 and 3 on the same rows, each tested against the one below.
+    /// Polynomials of degree 1, 2 and 3 on the same rows, each tested against the one below
+    /// (without a grouping factor).
     pub degrees: Vec<DegreeStep>,
-    /// The fitted curve with its confidence and prediction bands on an even grid over the x range.
-    pub bands: Vec<BandPoint>,
+    /// The fitted curve with its confidence and prediction bands on an even grid over the x
+    /// range, in the data's units; one per level of a grouping factor.
+    pub curves: Vec<Curve>,
+}
+
+/// A fitted curve and its bands, in the data's units (the response transform undone).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Curve {
+    /// The factor's level it belongs to (`None` without a factor).
+    pub level: Option<String>,
+    /// Points along the x range.
+    pub points: Vec<BandPoint>,
+}
+
+impl PairExtras {
+    /// The single curve of a model without a grouping factor.
+    pub fn bands(&self) -> &[BandPoint] {
+        match self.curves.as_slice() {
+            [c] if c.level.is_none() => &c.points,
+            _ => &[],
+        }
+    }
 }
 
 /// One rung of the polynomial ladder.
@@ -85,7 +106,9 @@ pub struct ReadAt {
     pub expected_z_y: f64,
 }
 
-/// Overlays and cues for a one-predictor request (`None` with several predictors).
+/// Overlays and cues for a one-predictor request (`None` with several predictors). Cues, the
+/// z-units view, the overlays and the ladder work on the model's scale; the curves are drawn
+/// back in the data's units.
 pub(super) fn pair_extras(
     rows: &ModelRows,
     fitted: &LinearFit,
@@ -100,18 +123,9 @@ pub(super) fn pair_extras(
         loess_span,
         at,
     } = extras;
-    let (y, x) = (rows.y(), rows.selection.columns[1].as_slice());
+    let (y, x) = (rows.y(), rows.predictors[0].as_slice());
     let z_view = StandardizedView::of(x, y);
-    let read_at = at.and_then(|a| {
-        let point = *bands(&rows.design, fitted, &[a])?.first()?;
-        let z = z_view?;
-        let z_x = (a - z.mean_x) / z.sd_x;
-        Some(ReadAt {
-            point,
-            z_x,
-            expected_z_y: z.slope * z_x,
-        })
-    });
+    let read_at = at.and_then(|a| read_at(rows, fitted, z_view, a));
     Some(PairExtras {
         read_at,
         robust: robust.map(|r| match r {
@@ -121,12 +135,31 @@ pub(super) fn pair_extras(
         loess: loess_span.map(|span| loess(x, y, span, 2)),
         cues: pair_cues(x, y),
         z_view,
-        degrees: if request.weights.is_none() {
+        degrees: if request.weights.is_none() && rows.levels.is_none() {
             degree_ladder(x, y, request)
         } else {
             Vec::new()
         },
-        bands: band_grid(x, rows, fitted),
+        curves: curves(rows, fitted),
+    })
+}
+
+/// The fit read at `a` (in the data's units) for the reference level.
+fn read_at(
+    rows: &ModelRows,
+    fitted: &LinearFit,
+    z_view: Option<StandardizedView>,
+    a: f64,
+) -> Option<ReadAt> {
+    let row = rows.row_at(&[a], None)?;
+    let point = back_transformed(rows, bands_at(fitted, &[(a, row)]).pop()?)?;
+    let z = z_view?;
+    let xt = rows.x_transforms[0].apply(a)?;
+    let z_x = (xt - z.mean_x) / z.sd_x;
+    Some(ReadAt {
+        point,
+        z_x,
+        expected_z_y: z.slope * z_x,
     })
 }
 
@@ -135,16 +168,15 @@ fn degree_ladder(x: &[f64], y: &[f64], request: &FitRequest) -> Vec<DegreeStep> 
         level: request.level,
         ..FitOptions::default()
     };
+    let name = request.x_term_names().remove(0);
     let mut steps: Vec<DegreeStep> = Vec::new();
     for degree in 1..=3 {
-        let rung = FitRequest {
-            degree,
-            ..request.clone()
+        let design = if degree == 1 {
+            Ok(Design::linear(&[(name.as_str(), x)], request.intercept))
+        } else {
+            Design::polynomial(&name, x, degree, request.intercept)
         };
-        let Some(f) = one_predictor_design(&rung, x)
-            .ok()
-            .and_then(|d| fit(&d, y, None, &options).ok())
-        else {
+        let Some(f) = design.ok().and_then(|d| fit(&d, y, None, &options).ok()) else {
             break;
         };
         let versus_previous = steps.last().map(|prev| compare_nested(&prev.fit, &f));
@@ -157,7 +189,9 @@ fn degree_ladder(x: &[f64], y: &[f64], request: &FitRequest) -> Vec<DegreeStep> 
     steps
 }
 
-fn band_grid(x: &[f64], rows: &ModelRows, fitted: &LinearFit) -> Vec<BandPoint> {
+/// The curve and bands over the data's x range (one per level), back in the data's units.
+fn curves(rows: &ModelRows, fitted: &LinearFit) -> Vec<Curve> {
+    let x = &rows.selection.columns[1];
     let (lo, hi) = x
         .iter()
         .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| {
@@ -166,5 +200,47 @@ fn band_grid(x: &[f64], rows: &ModelRows, fitted: &LinearFit) -> Vec<BandPoint> 
     let grid: Vec<f64> = (0..BAND_POINTS)
         .map(|k| lo + (hi - lo) * k as f64 / (BAND_POINTS - 1) as f64)
         .collect();
-    bands(&rows.design, fitted, &grid).unwrap_or_default()
+    let levels: Vec<(Option<usize>, Option<String>)> = match &rows.levels {
+        None => vec![(None, None)],
+        Some(l) => l
+            .names
+            .iter()
+            .enumerate()
+            .map(|(k, n)| (Some(k), Some(n.clone())))
+            .collect(),
+    };
+    levels
+        .into_iter()
+        .map(|(k, name)| {
+            let at: Vec<(f64, Vec<f64>)> = grid
+                .iter()
+                .filter_map(|&g| Some((g, rows.row_at(&[g], k)?)))
+                .collect();
+            let points = bands_at(fitted, &at)
+                .into_iter()
+                .filter_map(|p| back_transformed(rows, p))
+                .collect();
+            Curve {
+                level: name,
+                points,
+            }
+        })
+        .collect()
+}
+
+/// A band point on the model's scale in the data's units: each value through the inverse
+/// transform, the ends reordered when the transform reverses order (a reciprocal).
+fn back_transformed(rows: &ModelRows, p: BandPoint) -> Option<BandPoint> {
+    let b = |v: f64| rows.response_back(v);
+    let order = |a: f64, c: f64| (a.min(c), a.max(c));
+    let (mean_low, mean_high) = order(b(p.mean_low)?, b(p.mean_high)?);
+    let (predict_low, predict_high) = order(b(p.predict_low)?, b(p.predict_high)?);
+    Some(BandPoint {
+        x: p.x,
+        fitted: b(p.fitted)?,
+        mean_low,
+        mean_high,
+        predict_low,
+        predict_high,
+    })
 }

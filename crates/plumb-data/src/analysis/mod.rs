@@ -6,10 +6,16 @@
 //! each shows the same numbers for the same request. [`model_rows`] is its first step (the
 //! rows and the design), which the workbench's live engine starts from.
 
+mod compare;
 mod extras;
+mod groups;
 mod prepare;
+mod terms;
 
-use plumb_core::regression::{influence, variance_inflation, CaseInfluence, Design, LinearFit};
+use plumb_core::regression::{
+    added_variable, influence, variance_inflation, AddedVariable, CaseInfluence, LinearFit,
+    Transform,
+};
 use plumb_core::CoreError;
 use thiserror::Error;
 
@@ -17,8 +23,13 @@ use crate::select::Selection;
 use crate::table::Table;
 use crate::DataError;
 
-pub use extras::{DegreeStep, ExtrasRequest, PairExtras, ReadAt, Robust, RobustFit, BAND_POINTS};
-pub use prepare::{model_rows, ModelRows};
+pub use compare::{compare, Comparison, FitFigures};
+pub use extras::{
+    Curve, DegreeStep, ExtrasRequest, PairExtras, ReadAt, Robust, RobustFit, BAND_POINTS,
+};
+pub use groups::{GroupRow, GroupTests};
+pub use prepare::{model_rows, FactorTerms, ModelRows};
+pub use terms::{level_term, Factor, Levels, ResponseScale, MAX_LEVELS};
 
 /// What to fit, on which rows.
 #[derive(Debug, Clone, PartialEq)]
@@ -39,6 +50,30 @@ pub struct FitRequest {
     pub what_if: Vec<WhatIf>,
     /// Confidence level of the intervals.
     pub level: f64,
+    /// A grouping column entering as indicator terms (and, optionally, slopes per level).
+    pub factor: Option<Factor>,
+    /// The scale of the response.
+    pub response: ResponseScale,
+    /// Transforms of predictors, by column (the others enter as they are).
+    pub x_transforms: Vec<(String, Transform)>,
+}
+
+impl FitRequest {
+    /// The transform of predictor `x`.
+    pub fn x_transform(&self, x: &str) -> Transform {
+        self.x_transforms
+            .iter()
+            .find(|(c, _)| c == x)
+            .map_or(Transform::Identity, |(_, t)| *t)
+    }
+
+    /// The term name of each predictor: its column, with its transform written around it.
+    pub fn x_term_names(&self) -> Vec<String> {
+        self.x
+            .iter()
+            .map(|x| self.x_transform(x).label(x))
+            .collect()
+    }
 }
 
 impl Default for FitRequest {
@@ -52,6 +87,9 @@ impl Default for FitRequest {
             exclude: Vec::new(),
             what_if: Vec::new(),
             level: 0.95,
+            factor: None,
+            response: ResponseScale::Identity,
+            x_transforms: Vec::new(),
         }
     }
 }
@@ -74,13 +112,17 @@ pub struct Wanted {
     pub influence: bool,
     /// Overlays, cues, bands and the degree ladder of a one-predictor model.
     pub extras: Option<ExtrasRequest>,
+    /// The added-variable view of every predictor term (not the intercept or the factor's
+    /// terms).
+    pub added_variables: bool,
 }
 
 /// A fit with the account of which rows it used and whatever else was asked for.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Analysis {
-    /// The rows used (with what-if values in place), dropped and excluded.
-    pub selection: Selection,
+    /// The rows used (with what-if values in place), dropped and excluded, and the model's
+    /// design and scales on them.
+    pub rows: ModelRows,
     /// The fit on the rows used.
     pub fit: LinearFit,
     /// Variance inflation factor per term (`None` for the intercept), with two or more predictors.
@@ -89,6 +131,24 @@ pub struct Analysis {
     pub cases: Vec<CaseInfluence>,
     /// The extras of a one-predictor model (when asked for and defined).
     pub extras: Option<PairExtras>,
+    /// With a grouping factor and a numeric predictor: the equal-slopes and common-line tests
+    /// and the table of the groups.
+    pub groups: Option<GroupTests>,
+    /// The added-variable views (when asked for), by predictor term.
+    pub added: Vec<AddedVariable>,
+}
+
+impl Analysis {
+    /// The rows used, dropped and excluded.
+    pub fn selection(&self) -> &Selection {
+        &self.rows.selection
+    }
+
+    /// The response as the model sees it, e.g. `absorbance` or `ln(conc)`: the scale R²,
+    /// σ̂ and the residuals refer to.
+    pub fn response_label(&self, y: &str) -> String {
+        self.rows.response_transform.label(y)
+    }
 }
 
 /// Why an analysis could not run, with the file named.
@@ -126,7 +186,7 @@ pub fn analyze(
         file: table.source().display().to_string(),
         source,
     };
-    let vif = (request.x.len() > 1)
+    let vif = (request.x.len() > 1 || request.factor.is_some())
         .then(|| variance_inflation(&rows.design, rows.weights()))
         .transpose()
         .map_err(model_error)?;
@@ -138,23 +198,32 @@ pub fn analyze(
     let extras = wanted
         .extras
         .and_then(|e| extras::pair_extras(&rows, &fit, request, e));
+    let groups = groups::group_tests(table, &rows, &fit, request)?;
+    let added = if wanted.added_variables {
+        predictor_terms(&rows)
+            .map(|j| added_variable(&rows.design, rows.y(), rows.weights(), j))
+            .collect::<Result<_, _>>()
+            .map_err(model_error)?
+    } else {
+        Vec::new()
+    };
     Ok(Analysis {
-        selection: rows.selection,
+        rows,
         fit,
         vif,
         cases,
         extras,
+        groups,
+        added,
     })
 }
 
-/// The design of `request` for predictor values `x` (one predictor: a line or a polynomial).
-fn one_predictor_design(request: &FitRequest, x: &[f64]) -> Result<Design, CoreError> {
-    if request.degree > 1 {
-        Design::polynomial(&request.x[0], x, request.degree, request.intercept)
-    } else {
-        Ok(Design::linear(
-            &[(request.x[0].as_str(), x)],
-            request.intercept,
-        ))
-    }
+/// Positions of the design's predictor terms: not the intercept, not a factor's terms (which
+/// come last).
+fn predictor_terms(rows: &ModelRows) -> std::ops::Range<usize> {
+    let design = &rows.design;
+    let factor_terms = rows.levels.as_ref().map_or(0, |l| {
+        (l.names.len() - 1) * (1 + usize::from(l.separate_slopes))
+    });
+    usize::from(design.has_intercept())..design.n_terms() - factor_terms
 }

@@ -1,30 +1,57 @@
 //! The first step of every analysis: the complete rows of the columns a request needs, its
-//! what-if values put in place, and the design matrix built from them.
+//! what-if values put in place, the transforms applied, the grouping factor's levels read, and
+//! the design matrix built from them.
 
-use plumb_core::regression::{fit, Design, FitOptions, LinearFit};
+use plumb_core::regression::{boxcox, fit, BoxCox, Design, FitOptions, LinearFit, Transform};
 use plumb_core::CoreError;
 
-use super::{one_predictor_design, AnalysisError, FitRequest};
+use super::terms::{self, Levels, ResponseScale};
+use super::{AnalysisError, FitRequest};
 use crate::select::Selection;
 use crate::table::Table;
+
+/// Which of the factor's terms a design carries.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum FactorTerms {
+    /// None: one line (or curve) for every group.
+    None,
+    /// The indicators: parallel lines.
+    Parallel,
+    /// The indicators and a slope per level.
+    Separate,
+}
 
 /// The rows of a request and its design, ready to fit.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ModelRows {
-    /// The rows used (what-if values in place): column 0 is the response, then the predictors
-    /// in request order, then the weights when there are any.
+    /// The rows used, in the data's own units (what-if values in place): column 0 is the
+    /// response, then the predictors in request order, then the weights when there are any.
     pub selection: Selection,
-    /// The design matrix on those rows.
+    /// The design matrix on those rows (predictors transformed, factor terms added).
     pub design: Design,
     /// Fit options (the confidence level).
     pub options: FitOptions,
+    /// The response on the scale the model is fitted on.
+    pub y: Vec<f64>,
+    /// That scale: the response's transform (Box–Cox at λ̂ when estimated).
+    pub response_transform: Transform,
+    /// The Box–Cox estimate, when λ was estimated.
+    pub boxcox: Option<BoxCox>,
+    /// Each predictor's transform, in request order.
+    pub x_transforms: Vec<Transform>,
+    /// Each predictor on the model's scale, in request order.
+    pub predictors: Vec<Vec<f64>>,
+    /// The grouping factor's levels on the rows used.
+    pub levels: Option<Levels>,
+    /// The polynomial degree of the single predictor.
+    pub degree: u32,
     has_weights: bool,
 }
 
 impl ModelRows {
-    /// The response on the rows used.
+    /// The response on the model's scale.
     pub fn y(&self) -> &[f64] {
-        &self.selection.columns[0]
+        &self.y
     }
 
     /// The weights on the rows used, when the request names a weights column.
@@ -43,8 +70,18 @@ impl ModelRows {
     /// # Errors
     /// A weight that is not positive (named by row), or what the solver refuses.
     pub fn fit(&self, table: &Table, request: &FitRequest) -> Result<LinearFit, AnalysisError> {
+        self.fit_design(table, request, &self.design)
+    }
+
+    /// The fit of `design` (built on these rows) to this response.
+    pub(super) fn fit_design(
+        &self,
+        table: &Table,
+        request: &FitRequest,
+        design: &Design,
+    ) -> Result<LinearFit, AnalysisError> {
         let file = table.source().display().to_string();
-        fit(&self.design, self.y(), self.weights(), &self.options).map_err(|e| match e {
+        fit(design, self.y(), self.weights(), &self.options).map_err(|e| match e {
             CoreError::BadWeight { index, value } => AnalysisError::Request(format!(
                 "{file}, column '{}', row {}: weight {value} is not positive; weights must be positive and finite",
                 request.weights.as_deref().unwrap_or_default(),
@@ -53,17 +90,99 @@ impl ModelRows {
             source => AnalysisError::Model { file, source },
         })
     }
+
+    /// The design on these rows with `which` of the factor's terms.
+    ///
+    /// # Errors
+    /// A polynomial degree the design refuses.
+    pub fn design_with(
+        &self,
+        names: &[String],
+        intercept: bool,
+        which: FactorTerms,
+    ) -> Result<Design, CoreError> {
+        let mut design = if self.degree > 1 {
+            Design::polynomial(&names[0], &self.predictors[0], self.degree, intercept)?
+        } else {
+            let cols: Vec<(&str, &[f64])> = names
+                .iter()
+                .zip(&self.predictors)
+                .map(|(n, c)| (n.as_str(), c.as_slice()))
+                .collect();
+            Design::linear(&cols, intercept)
+        };
+        if let (Some(levels), true) = (&self.levels, which != FactorTerms::None) {
+            let mut levels = levels.clone();
+            levels.separate_slopes = which == FactorTerms::Separate;
+            if self.degree > 1 {
+                // Factor terms enter the general design (the polynomial basis is for one
+                // predictor alone).
+                design = Design::linear(
+                    &design
+                        .terms()
+                        .iter()
+                        .zip(design.columns())
+                        .filter(|(t, _)| t.name != "intercept")
+                        .map(|(t, c)| (t.name.as_str(), c.as_slice()))
+                        .collect::<Vec<_>>(),
+                    intercept,
+                );
+            }
+            let first = names
+                .first()
+                .map(|n| (n.as_str(), self.predictors[0].as_slice()));
+            terms::push_factor_terms(&mut design, &levels, first);
+        }
+        Ok(design)
+    }
+
+    /// The design row at predictor values `x` (in the data's units, one per predictor) for
+    /// level `level` of the factor: what the design would hold for such a row. `None` where
+    /// a transform is undefined at `x`.
+    pub fn row_at(&self, x: &[f64], level: Option<usize>) -> Option<Vec<f64>> {
+        let xt: Vec<f64> = x
+            .iter()
+            .zip(&self.x_transforms)
+            .map(|(&v, t)| t.apply(v))
+            .collect::<Option<_>>()?;
+        let mut row = Vec::with_capacity(self.design.n_terms());
+        if self.design.has_intercept() {
+            row.push(1.0);
+        }
+        if self.degree > 1 {
+            row.extend((1..=self.degree).map(|k| xt[0].powi(k as i32)));
+        } else {
+            row.extend(&xt);
+        }
+        if let Some(levels) = &self.levels {
+            let level = level.unwrap_or(0);
+            let at = |k: usize| f64::from(u8::from(level == k));
+            row.extend((1..levels.names.len()).map(at));
+            if levels.separate_slopes {
+                row.extend((1..levels.names.len()).map(|k| at(k) * xt[0]));
+            }
+        }
+        (row.len() == self.design.n_terms()).then_some(row)
+    }
+
+    /// A response on the model's scale back in the data's units (a band end beyond the
+    /// transform's range is taken to the edge of the data's domain).
+    pub fn response_back(&self, t: f64) -> Option<f64> {
+        self.response_transform.inverse_clamped(t)
+    }
 }
 
 /// The complete rows of `request`'s columns (minus its exclusions, with its what-if values in
-/// place) and the design built on them.
+/// place, the grouping factor's missing cells dropped), transformed, and the design on them.
 ///
 /// # Errors
 /// A request that does not make sense (no predictor, a polynomial in several predictors, the
-/// response used as a predictor, a what-if on a column the model does not use), or what
+/// response used as a predictor, a what-if on a column the model does not use), values a
+/// transform cannot take (named by row), a grouping with too few rows in a level, or what
 /// [`Table::complete_rows`] and the design refuse; every message names the file.
 pub fn model_rows(table: &Table, request: &FitRequest) -> Result<ModelRows, AnalysisError> {
     check(request)?;
+    let file = table.source().display().to_string();
     let mut names: Vec<&str> = vec![request.y.as_str()];
     names.extend(request.x.iter().map(String::as_str));
     if let Some(w) = &request.weights {
@@ -71,31 +190,79 @@ pub fn model_rows(table: &Table, request: &FitRequest) -> Result<ModelRows, Anal
     }
     let mut selection = table.complete_rows(&names, &request.exclude)?;
     put_what_ifs(&mut selection, &names, request)?;
-    let design = if request.degree > 1 {
-        one_predictor_design(request, &selection.columns[1]).map_err(|source| {
-            AnalysisError::Model {
-                file: table.source().display().to_string(),
-                source,
-            }
-        })?
-    } else {
-        let predictors: Vec<(&str, &[f64])> = request
-            .x
-            .iter()
-            .zip(&selection.columns[1..])
-            .map(|(n, c)| (n.as_str(), c.as_slice()))
-            .collect();
-        Design::linear(&predictors, request.intercept)
-    };
-    Ok(ModelRows {
-        selection,
-        design,
+    let levels = request
+        .factor
+        .as_ref()
+        .map(|f| terms::levels(table, f, &mut selection))
+        .transpose()?;
+    let x_transforms: Vec<Transform> = request.x.iter().map(|x| request.x_transform(x)).collect();
+    let predictors = request
+        .x
+        .iter()
+        .zip(&x_transforms)
+        .zip(&selection.columns[1..])
+        .map(|((name, &t), values)| terms::transformed(&file, name, t, values, &selection.rows))
+        .collect::<Result<Vec<_>, _>>()?;
+    let mut rows = ModelRows {
+        design: Design::new(0, false),
         options: FitOptions {
             level: request.level,
             ..FitOptions::default()
         },
+        y: Vec::new(),
+        response_transform: Transform::Identity,
+        boxcox: None,
+        x_transforms,
+        predictors,
+        levels,
+        degree: request.degree,
         has_weights: request.weights.is_some(),
-    })
+        selection,
+    };
+    let model_error = |source| AnalysisError::Model {
+        file: file.clone(),
+        source,
+    };
+    let term_names = request.x_term_names();
+    let which = match &request.factor {
+        None => FactorTerms::None,
+        Some(f) if f.separate_slopes => FactorTerms::Separate,
+        Some(_) => FactorTerms::Parallel,
+    };
+    rows.design = rows
+        .design_with(&term_names, request.intercept, which)
+        .map_err(model_error)?;
+    put_response(&mut rows, &file, request).map_err(|e| match e {
+        Prepared::Request(e) => e,
+        Prepared::Core(source) => model_error(source),
+    })?;
+    Ok(rows)
+}
+
+enum Prepared {
+    Request(AnalysisError),
+    Core(CoreError),
+}
+
+/// The response on the model's scale (Box–Cox λ estimated on the design when asked).
+fn put_response(rows: &mut ModelRows, file: &str, request: &FitRequest) -> Result<(), Prepared> {
+    let raw = &rows.selection.columns[0];
+    let t = match request.response {
+        ResponseScale::Identity => Transform::Identity,
+        ResponseScale::Fixed(t) => t,
+        ResponseScale::BoxCox => {
+            // Positivity is checked (by row) before λ is sought.
+            terms::transformed(file, &request.y, Transform::Ln, raw, &rows.selection.rows)
+                .map_err(Prepared::Request)?;
+            let b = boxcox(&rows.design, raw, rows.options.level).map_err(Prepared::Core)?;
+            rows.boxcox = Some(b);
+            b.transform()
+        }
+    };
+    rows.y = terms::transformed(file, &request.y, t, raw, &rows.selection.rows)
+        .map_err(Prepared::Request)?;
+    rows.response_transform = t;
+    Ok(())
 }
 
 fn check(request: &FitRequest) -> Result<(), AnalysisError> {
@@ -115,6 +282,14 @@ fn check(request: &FitRequest) -> Result<(), AnalysisError> {
         return Err(AnalysisError::Request(format!(
             "column '{dup}' is both the response and a predictor; choose different columns"
         )));
+    }
+    if let Some(f) = &request.factor {
+        if f.column == request.y || request.x.contains(&f.column) {
+            return Err(AnalysisError::Request(format!(
+                "column '{}' cannot both group the rows and be a variable of the model",
+                f.column
+            )));
+        }
     }
     Ok(())
 }

@@ -54,6 +54,7 @@ fn excluded_dots(input: &ReportInput<'_>, outcome: &Analysis, x: &str) -> Vec<Do
         return Vec::new();
     };
     outcome
+        .rows
         .selection
         .excluded
         .iter()
@@ -69,11 +70,11 @@ fn excluded_dots(input: &ReportInput<'_>, outcome: &Analysis, x: &str) -> Vec<Do
 
 fn pair_figure(input: &ReportInput<'_>, outcome: &Analysis, e: &PairExtras) -> Result<Chart> {
     let request = &input.request;
-    let sel = &outcome.selection;
+    let sel = &outcome.rows.selection;
     let mut all = dots(sel.columns[1].iter().zip(&sel.columns[0]));
     all.extend(excluded_dots(input, outcome, &request.x[0]));
     let curve = e
-        .bands
+        .bands()
         .iter()
         .map(|b| {
             [
@@ -106,7 +107,13 @@ fn fitted_figure(input: &ReportInput<'_>, outcome: &Analysis) -> Result<Chart> {
     let data = PairChart {
         x_label: "fitted value",
         y_label: y,
-        dots: dots(outcome.fit.fitted.iter().zip(&outcome.selection.columns[0])),
+        dots: dots(
+            outcome
+                .fit
+                .fitted
+                .iter()
+                .zip(&outcome.rows.selection.columns[0]),
+        ),
         curve: Vec::new(),
     };
     pair_chart(&data, format!("{y} against its fitted value"))

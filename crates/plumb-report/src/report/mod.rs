@@ -52,6 +52,7 @@ pub fn build(input: &ReportInput<'_>) -> Result<Report> {
     let wanted = Wanted {
         influence: true,
         extras: Some(ExtrasRequest::default()),
+        ..Wanted::default()
     };
     let outcome = analyze(input.table, request, wanted)?;
     let effects = exclusion_effects(input.table, request)?;

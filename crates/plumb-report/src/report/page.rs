@@ -65,7 +65,7 @@ impl Page<'_> {
     }
 
     fn data(&self, out: &mut String) -> std::fmt::Result {
-        let (input, sel) = (self.input, &self.outcome.selection);
+        let (input, sel) = (self.input, &self.outcome.rows.selection);
         writeln!(out, "<section class=\"facts\"><h2>Data</h2><dl>")?;
         writeln!(
             out,
@@ -166,7 +166,7 @@ impl Page<'_> {
     }
 
     fn cues(&self, out: &mut String) -> std::fmt::Result {
-        let sel = &self.outcome.selection;
+        let sel = &self.outcome.rows.selection;
         let mut cues: Vec<String> = self
             .outcome
             .extras

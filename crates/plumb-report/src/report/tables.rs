@@ -21,13 +21,13 @@ pub fn statistics_csv(outcome: &Analysis) -> String {
         "rows",
         "dropped",
         "",
-        outcome.selection.dropped.len().to_string(),
+        outcome.rows.selection.dropped.len().to_string(),
     );
     row(
         "rows",
         "excluded",
         "",
-        outcome.selection.excluded.len().to_string(),
+        outcome.rows.selection.excluded.len().to_string(),
     );
     row(
         "fit",
