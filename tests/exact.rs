@@ -6,10 +6,11 @@
 //! predictors.
 
 use num_rational::BigRational;
-use num_traits::{ToPrimitive, Zero};
+use num_traits::{One, ToPrimitive, Zero};
 use plumb_core::regression::{fit, Design, FitOptions};
+use plumb_tests::lre;
 
-fn exact(v: f64) -> BigRational {
+fn rational(v: f64) -> BigRational {
     BigRational::from_float(v).expect("finite")
 }
 
@@ -22,7 +23,7 @@ fn exact_columns(design: &Design) -> Vec<Vec<BigRational>> {
             (0..design.n_terms() as u32)
                 .map(|j| {
                     x.iter()
-                        .map(|&v| num_traits::pow(exact(v), (j + first) as usize))
+                        .map(|&v| num_traits::pow(rational(v), (j + first) as usize))
                         .collect()
                 })
                 .collect()
@@ -30,28 +31,79 @@ fn exact_columns(design: &Design) -> Vec<Vec<BigRational>> {
         None => design
             .columns()
             .iter()
-            .map(|c| c.iter().map(|&v| exact(v)).collect())
+            .map(|c| c.iter().map(|&v| rational(v)).collect())
             .collect(),
     }
 }
 
-/// Exact β of the design's columns on `y`.
-fn exact_beta(design: &Design, y: &[f64]) -> Vec<f64> {
+/// The exact least-squares numbers of a design on `y`, each rounded once to f64 at the end.
+struct Exact {
+    beta: Vec<f64>,
+    se: Vec<f64>,
+    sigma: f64,
+    r_squared: f64,
+}
+
+/// Solves `XᵀX β = Xᵀy` and inverts `XᵀX` in exact rational arithmetic (Gauss–Jordan on
+/// `[XᵀX | Xᵀy | I]`), then forms `RSS`, `σ̂² = RSS/(n − p)`, `SEⱼ = √(σ̂²·[(XᵀX)⁻¹]ⱼⱼ)` and
+/// `R² = 1 − RSS/TSS` exactly (the square roots are taken of the exact values rounded once).
+fn exact(design: &Design, y: &[f64]) -> Exact {
     let xs = exact_columns(design);
     let p = xs.len();
     let n = y.len();
-    let ys: Vec<BigRational> = y.iter().map(|&v| exact(v)).collect();
-    // Augmented [XᵀX | Xᵀy].
+    let ys: Vec<BigRational> = y.iter().map(|&v| rational(v)).collect();
+    let dot = |a: &[BigRational], b: &[BigRational]| {
+        a.iter()
+            .zip(b)
+            .fold(BigRational::zero(), |s, (u, v)| s + u * v)
+    };
     let mut a: Vec<Vec<BigRational>> = (0..p)
         .map(|i| {
-            let mut row: Vec<BigRational> = (0..p)
-                .map(|j| (0..n).fold(BigRational::zero(), |s, k| s + &xs[i][k] * &xs[j][k]))
-                .collect();
-            row.push((0..n).fold(BigRational::zero(), |s, k| s + &xs[i][k] * &ys[k]));
+            let mut row: Vec<BigRational> = (0..p).map(|j| dot(&xs[i], &xs[j])).collect();
+            row.push(dot(&xs[i], &ys));
+            row.extend((0..p).map(|j| {
+                if i == j {
+                    BigRational::one()
+                } else {
+                    BigRational::zero()
+                }
+            }));
             row
         })
         .collect();
-    // Gauss–Jordan; exact, so any non-zero pivot will do.
+    gauss_jordan(&mut a, p);
+    let beta: Vec<BigRational> = a.iter().map(|row| row[p].clone()).collect();
+    let residual: Vec<BigRational> = (0..n)
+        .map(|k| {
+            let fitted = (0..p).fold(BigRational::zero(), |s, j| s + &xs[j][k] * &beta[j]);
+            &ys[k] - fitted
+        })
+        .collect();
+    let rss = dot(&residual, &residual);
+    let s2 = &rss / BigRational::from_integer(((n - p) as i64).into());
+    let tss = if design.has_intercept() {
+        let mean = ys.iter().fold(BigRational::zero(), |s, v| s + v)
+            / BigRational::from_integer((n as i64).into());
+        ys.iter()
+            .map(|v| (v - &mean) * (v - &mean))
+            .fold(BigRational::zero(), |s, v| s + v)
+    } else {
+        dot(&ys, &ys)
+    };
+    let f = |v: &BigRational| v.to_f64().expect("representable");
+    Exact {
+        beta: beta.iter().map(f).collect(),
+        se: (0..p)
+            .map(|j| f(&(&s2 * &a[j][p + 1 + j])).sqrt())
+            .collect(),
+        sigma: f(&s2).sqrt(),
+        r_squared: f(&(BigRational::one() - &rss / &tss)),
+    }
+}
+
+/// Gauss–Jordan elimination of the first `p` columns of `a`; exact, so any non-zero pivot
+/// will do.
+fn gauss_jordan(a: &mut [Vec<BigRational>], p: usize) {
     for col in 0..p {
         let pivot = (col..p).find(|&r| !a[r][col].is_zero()).expect("full rank");
         a.swap(col, pivot);
@@ -69,31 +121,43 @@ fn exact_beta(design: &Design, y: &[f64]) -> Vec<f64> {
             }
         }
     }
-    a.iter()
-        .map(|row| row[p].to_f64().expect("representable"))
-        .collect()
 }
 
-/// Log relative error, capped at 15 (the LRE of the NIST StRD convention).
-fn lre(got: f64, want: f64) -> f64 {
-    if got == want {
-        return 15.0;
-    }
-    let rel = ((got - want) / if want == 0.0 { 1.0 } else { want }).abs();
-    (-rel.log10()).min(15.0)
-}
-
+/// Fits and checks every reported number against the exact reference: estimates, standard
+/// errors, t (from the exact estimate and SE), interval ends (with the fit's own t quantile,
+/// so they measure the estimate and SE), σ̂ and R² — each LRE at least `floor`.
 fn check(name: &str, design: &Design, y: &[f64], floor: f64) {
     let f = fit(design, y, None, &FitOptions::default()).expect("fits");
-    let want = exact_beta(design, y);
-    for (c, w) in f.coefficients.iter().zip(&want) {
-        let l = lre(c.estimate, *w);
-        println!(
-            "{name}: {} = {:e} (exact {w:e}), LRE {l:.1}",
-            c.term, c.estimate
-        );
-        assert!(l >= floor, "{name}: {} LRE {l:.1} below {floor}", c.term);
+    let want = exact(design, y);
+    let first = &f.coefficients[0];
+    let q = (first.ci_high - first.estimate) / first.std_error;
+    let mut scores = Vec::new();
+    for (j, c) in f.coefficients.iter().enumerate() {
+        let (b, se) = (want.beta[j], want.se[j]);
+        for (what, got, exact) in [
+            ("estimate", c.estimate, b),
+            ("SE", c.std_error, se),
+            ("t", c.t, b / se),
+            ("interval low", c.ci_low, b - q * se),
+            ("interval high", c.ci_high, b + q * se),
+        ] {
+            scores.push((format!("{} {what}", c.term), lre(got, exact), got, exact));
+        }
     }
+    let (s, r2) = (f.residual_std_error, f.r_squared);
+    scores.push(("σ̂".into(), lre(s, want.sigma), s, want.sigma));
+    scores.push(("R²".into(), lre(r2, want.r_squared), r2, want.r_squared));
+    for (what, l, got, exact) in &scores {
+        println!("{name}: {what} = {got:e} (exact {exact:e}), LRE {l:.1}");
+    }
+    let (what, worst, ..) = scores
+        .iter()
+        .min_by(|a, b| a.1.total_cmp(&b.1))
+        .expect("numbers");
+    assert!(
+        *worst >= floor,
+        "{name}: {what} LRE {worst:.1} below {floor}"
+    );
 }
 
 /// A small deterministic wobble in [−0.5, 0.5).
@@ -112,7 +176,7 @@ fn a_huge_offset_with_small_variation_keeps_its_digits() {
         "offset 1e9, line",
         &Design::linear(&[("x", &x)], true),
         &y,
-        12.0,
+        11.0,
     );
     // The response offset too.
     let y_big: Vec<f64> = y.iter().map(|v| v + 1e8).collect();
@@ -122,6 +186,81 @@ fn a_huge_offset_with_small_variation_keeps_its_digits() {
         &y_big,
         11.0,
     );
+}
+
+/// A deterministic stand-in for standard normal noise: the sum of four wobbles, scaled to
+/// unit variance (each wobble is close to uniform on [−0.5, 0.5), variance 1/12).
+fn noise(k: usize) -> f64 {
+    (0..4).map(|j| wobble(k * 4 + j + 1)).sum::<f64>() * 3f64.sqrt()
+}
+
+#[test]
+fn large_offsets_keep_eleven_digits_in_every_reported_number() {
+    // x = offset + spread·N(0, 1), y = 1e8 + 300·(x − offset) + noise: the case where a solver
+    // that only scales its columns keeps eight digits in the slope's standard error.
+    for (offset, spread, sd) in [
+        (1e6, 0.01, 1.0),
+        (1e3, 1.0, 0.1),
+        (1e8, 0.5, 10.0),
+        (1e6, 0.01, 1e-3),
+        (1e9, 0.5, 10.0),
+    ] {
+        let x: Vec<f64> = (0..200).map(|k| offset + spread * noise(k)).collect();
+        let y: Vec<f64> = x
+            .iter()
+            .enumerate()
+            .map(|(k, &v)| 1e8 + 300.0 * (v - offset) + sd * noise(k + 1000))
+            .collect();
+        let name = format!("offset {offset:e}, spread {spread}, noise {sd}");
+        check(&name, &Design::linear(&[("x", &x)], true), &y, 11.0);
+        // A second predictor with its own offset.
+        let z: Vec<f64> = (0..200).map(|k| -5e4 + 3.0 * noise(k + 500)).collect();
+        let y2: Vec<f64> = y.iter().zip(&z).map(|(v, w)| v + 0.7 * (w + 5e4)).collect();
+        check(
+            &format!("{name}, two predictors"),
+            &Design::linear(&[("x", &x), ("z", &z)], true),
+            &y2,
+            11.0,
+        );
+    }
+}
+
+#[test]
+fn a_grouped_line_far_from_the_origin_keeps_its_digits() {
+    // Three groups with slopes of their own at x = 1e4 + a spread of 0.01: the design of
+    // `--group --separate-slopes` (indicators, and x times each indicator).
+    let x: Vec<f64> = (0..120).map(|k| 1e4 + 0.01 * noise(k)).collect();
+    let level: Vec<usize> = (0..120).map(|k| k % 3).collect();
+    let y: Vec<f64> = x
+        .iter()
+        .zip(&level)
+        .enumerate()
+        .map(|(k, (&v, &l))| {
+            20.0 + 2.0 * l as f64 + (1e3 + 400.0 * l as f64) * (v - 1e4) + 0.5 * noise(k + 7)
+        })
+        .collect();
+    let indicator =
+        |l: usize| -> Vec<f64> { level.iter().map(|&g| f64::from(u8::from(g == l))).collect() };
+    let product = |l: usize| -> Vec<f64> {
+        x.iter()
+            .zip(&level)
+            .map(|(&v, &g)| if g == l { v } else { 0.0 })
+            .collect()
+    };
+    let (i1, i2, p1, p2) = (indicator(1), indicator(2), product(1), product(2));
+    let d = Design::linear(
+        &[
+            ("x", &x),
+            ("g=1", &i1),
+            ("g=2", &i2),
+            ("x×g=1", &p1),
+            ("x×g=2", &p2),
+        ],
+        true,
+    );
+    // The products x·I are not centred (their zeros are far from 1e4), so the design keeps
+    // part of its offset's conditioning; the floor says how much.
+    check("three groups at 1e4", &d, &y, 9.0);
 }
 
 #[test]

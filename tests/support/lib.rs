@@ -106,6 +106,11 @@ pub fn parse_nist(path: &Path) -> NistCase {
             _ => {}
         }
     }
+    assert!(
+        residual_sd.is_finite() && r_squared.is_finite() && !parameters.is_empty(),
+        "{}: the certified values (parameters, residual SD, R²) did not all parse",
+        path.display()
+    );
     let rows: Vec<Vec<f64>> = lines[data_from - 1..data_to]
         .iter()
         .map(|l| l.split_whitespace().map(number).collect::<Vec<f64>>())
@@ -134,8 +139,12 @@ fn number(s: &str) -> f64 {
 }
 
 /// Log relative error, the StRD accuracy score: `LRE = −log₁₀(|x − c| / |c|)`, or
-/// `−log₁₀|x|` when the certified value `c` is 0; capped at 15 (the certified digits).
+/// `−log₁₀|x|` when the certified value `c` is 0; capped at 15 (the certified digits). A
+/// value that is not finite, on either side, scores 0: a NaN must never pass for agreement.
 pub fn lre(computed: f64, certified: f64) -> f64 {
+    if !(computed.is_finite() && certified.is_finite()) {
+        return 0.0;
+    }
     let err = if certified == 0.0 {
         computed.abs()
     } else {
@@ -144,7 +153,7 @@ pub fn lre(computed: f64, certified: f64) -> f64 {
     if err == 0.0 {
         15.0
     } else {
-        (-err.log10()).min(15.0)
+        (-err.log10()).clamp(0.0, 15.0)
     }
 }
 
@@ -157,5 +166,18 @@ mod tests {
         assert!((lre(1.000_001, 1.0) - 6.0).abs() < 1e-6);
         assert_eq!(lre(2.0, 2.0), 15.0);
         assert!((lre(1e-12, 0.0) - 12.0).abs() < 1e-9);
+    }
+
+    #[test]
+    fn not_a_number_scores_nothing() {
+        assert_eq!(lre(f64::NAN, 1.0), 0.0);
+        assert_eq!(lre(1.0, f64::NAN), 0.0);
+        assert_eq!(lre(f64::INFINITY, 1.0), 0.0);
+        assert_eq!(lre(3.0, 1.0), 0.0, "wrong by 200%: no digit agrees");
+        // f64::min drops a NaN, which is how a NaN once scored a perfect 15: not any more.
+        assert_eq!(
+            [15.0, lre(f64::NAN, 2.0)].into_iter().fold(15.0, f64::min),
+            0.0
+        );
     }
 }

@@ -3,11 +3,15 @@
 //! The solver never factors `X` itself. It factors `Z`, whose columns span the same space
 //! but are better scaled, and recovers `β = T·α` from the working coefficients `α`:
 //!
-//! * any design: `Zⱼ = Xⱼ / sⱼ` with `sⱼ` a power of two near `‖W^{1/2}Xⱼ‖`, so `T = diag(1/sⱼ)`
-//!   and the map is exact;
+//! * any design: `Zⱼ = (Xⱼ − cⱼ) / sⱼ` with `sⱼ` a power of two near `‖W^{1/2}(Xⱼ − cⱼ)‖` and,
+//!   when the model has an intercept, `cⱼ` the data midpoint of a column whose values all lie
+//!   within a factor of two of it (so the shift is exact; otherwise, and without an intercept,
+//!   `cⱼ = 0`). Then `βⱼ = αⱼ/sⱼ`
+//!   and `β₀ = α₀/s₀ − Σⱼ cⱼαⱼ/sⱼ`; the entries of `T` are exact (`sⱼ` is a power of two), and
+//!   centring removes the conditioning that a large offset adds (x = 1e6 + small spread);
 //! * a polynomial in one predictor: `Zₖ = tᵏ / sₖ` with `t = (x − c)/h`, `c` the midpoint of
-//!   the data rounded to four significant bits (zero when there is no intercept, so the model
-//!   still passes through the origin) and `h` a power of two covering the half-range. Then
+//!   the data rounded to `max(4, ⌊45/degree⌋)` significant bits (zero when there is no
+//!   intercept) and `h` a power of two covering the half-range. Then
 //!   `βⱼ = Σ_{k≥j} αₖ C(k, j) (−c)^{k−j} / (hᵏ sₖ)`. Every entry of `T` is exact in binary
 //!   floating point for degrees up to 10, and `T·α` is evaluated with compensated dot products.
 //!
@@ -16,7 +20,7 @@
 
 use nalgebra::DMatrix;
 
-use super::design::Design;
+use super::design::{Design, TermKind};
 use crate::accurate;
 
 /// `Z` (unweighted, by column) and `T` with `β = T·α`.
@@ -35,63 +39,96 @@ pub(crate) struct Basis {
 impl Basis {
     /// Builds the working basis for `design`, with column norms taken under `root_w = √w`.
     pub fn new(design: &Design, root_w: &[f64]) -> Self {
-        let (raw, shift, step) = match design.polynomial_source() {
-            Some(x) => {
-                let (c, h) = shift_and_step(x, design.has_intercept());
-                let columns = design
-                    .terms()
-                    .iter()
-                    .map(|t| {
-                        let k = t.kind.power() as i32;
-                        x.iter().map(|&v| ((v - c) / h).powi(k)).collect()
-                    })
-                    .collect();
-                (columns, c, h)
-            }
-            None => (design.columns().to_vec(), 0.0, 1.0),
-        };
-        let scales: Vec<f64> = raw
-            .iter()
-            .map(|c| accurate::power_of_two_near(weighted_norm(c, root_w)))
-            .collect();
-        let columns = raw
-            .into_iter()
-            .zip(&scales)
-            .map(|(c, &s)| c.into_iter().map(|v| v / s).collect())
-            .collect();
-        let p = design.n_terms();
+        if design.polynomial_source().is_some() {
+            Self::polynomial(design, root_w)
+        } else {
+            Self::general(design, root_w)
+        }
+    }
+
+    /// `Zₖ = tᵏ/sₖ` with `t = (x − c)/h` (see the module notes).
+    fn polynomial(design: &Design, root_w: &[f64]) -> Self {
+        let x = design.polynomial_source().expect("a polynomial design");
         let powers: Vec<i32> = design
             .terms()
             .iter()
             .map(|t| t.kind.power() as i32)
             .collect();
-        let polynomial = design.polynomial_source().is_some();
+        let degree = powers.iter().copied().max().unwrap_or(1);
+        let (c, h) = shift_and_step(x, design.has_intercept(), degree);
+        let raw: Vec<Vec<f64>> = powers
+            .iter()
+            .map(|&k| x.iter().map(|&v| ((v - c) / h).powi(k)).collect())
+            .collect();
+        let scales = scales_of(&raw, root_w);
+        let p = design.n_terms();
         let to_terms = DMatrix::from_fn(p, p, |j, k| {
-            if !polynomial {
-                return if j == k { 1.0 / scales[k] } else { 0.0 };
-            }
             let (pj, pk) = (powers[j], powers[k]);
             if pk < pj {
                 return 0.0;
             }
-            binomial(pk, pj) * (-shift).powi(pk - pj) / step.powi(pk) / scales[k]
+            binomial(pk, pj) * (-c).powi(pk - pj) / h.powi(pk) / scales[k]
         });
         let recipe = powers
             .iter()
             .zip(&scales)
-            .map(|(&k, &sc)| {
-                if polynomial {
-                    (shift, step, sc, k)
+            .map(|(&k, &sc)| (c, h, sc, k))
+            .collect();
+        Self {
+            columns: divided(raw, &scales),
+            to_terms,
+            recipe,
+            polynomial: true,
+        }
+    }
+
+    /// `Zⱼ = (Xⱼ − cⱼ)/sⱼ`: with an intercept a column whose values all lie within a factor of
+    /// two of its data midpoint `cⱼ` (an offset larger than the spread) is centred there —
+    /// `Xⱼ − cⱼ` is then exact (Sterbenz's lemma), so the basis spans exactly the design's
+    /// space — and `T`'s entries `−cⱼ/sⱼ` are exact; other columns are only scaled. Then
+    /// `βⱼ = αⱼ/sⱼ` and `β₀ = α₀/s₀ − Σⱼ cⱼαⱼ/sⱼ`.
+    fn general(design: &Design, root_w: &[f64]) -> Self {
+        let centre = design.has_intercept();
+        let shifts: Vec<f64> = design
+            .terms()
+            .iter()
+            .zip(design.columns())
+            .map(|(t, col)| {
+                if centre && t.kind != TermKind::Intercept {
+                    exact_shift(col)
                 } else {
-                    (0.0, 1.0, sc, 1)
+                    0.0
                 }
             })
             .collect();
+        let raw: Vec<Vec<f64>> = design
+            .columns()
+            .iter()
+            .zip(&shifts)
+            .map(|(col, &c)| col.iter().map(|&v| v - c).collect())
+            .collect();
+        let scales = scales_of(&raw, root_w);
+        let p = design.n_terms();
+        let to_terms = DMatrix::from_fn(p, p, |j, k| {
+            if j == k {
+                1.0 / scales[k]
+            } else if j == 0 && centre {
+                -shifts[k] / scales[k]
+            } else {
+                0.0
+            }
+        });
+        let recipe = design
+            .terms()
+            .iter()
+            .zip(shifts.iter().zip(&scales))
+            .map(|(t, (&c, &sc))| (c, 1.0, sc, i32::from(t.kind != TermKind::Intercept)))
+            .collect();
         Self {
-            columns,
+            columns: divided(raw, &scales),
             to_terms,
             recipe,
-            polynomial,
+            polynomial: false,
         }
     }
 
@@ -113,15 +150,63 @@ impl Basis {
     }
 }
 
-/// `(c, h)` for a polynomial basis: see the module documentation.
-fn shift_and_step(x: &[f64], intercept: bool) -> (f64, f64) {
+/// Power-of-two scales near each column's weighted norm.
+fn scales_of(raw: &[Vec<f64>], root_w: &[f64]) -> Vec<f64> {
+    raw.iter()
+        .map(|c| accurate::power_of_two_near(weighted_norm(c, root_w)))
+        .collect()
+}
+
+/// Each column divided by its scale (exact: the scales are powers of two).
+fn divided(raw: Vec<Vec<f64>>, scales: &[f64]) -> Vec<Vec<f64>> {
+    raw.into_iter()
+        .zip(scales)
+        .map(|(c, &s)| c.into_iter().map(|v| v / s).collect())
+        .collect()
+}
+
+/// The column's midpoint when every value lies within a factor of two of it (so that each
+/// `v − c` is exact), else 0.
+fn exact_shift(column: &[f64]) -> f64 {
+    let c = midpoint(column);
+    let near = |v: &f64| {
+        let (a, b) = (v.abs(), c.abs());
+        v.signum() == c.signum() && a >= 0.5 * b && a <= 2.0 * b
+    };
+    if c != 0.0 && column.iter().filter(|v| v.is_finite()).all(near) {
+        c
+    } else {
+        0.0
+    }
+}
+
+/// `lo/2 + hi/2` of the finite values (0 when there are none); halved first so that values
+/// near the f64 limit do not overflow.
+fn midpoint(column: &[f64]) -> f64 {
+    let (lo, hi) = column
+        .iter()
+        .filter(|v| v.is_finite())
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), &v| {
+            (lo.min(v), hi.max(v))
+        });
+    if lo.is_finite() {
+        0.5 * lo + 0.5 * hi
+    } else {
+        0.0
+    }
+}
+
+/// `(c, h)` for a polynomial basis of `degree`: see the module documentation. `c` keeps as
+/// many significant bits as leave every entry of `T` exact, `max(4, ⌊45/degree⌋)` (the entries
+/// are `C(k, j)·c^{k−j}/h^k`, and `C(10, 5) = 252` takes 8 of a double's 53 bits).
+fn shift_and_step(x: &[f64], intercept: bool, degree: i32) -> (f64, f64) {
     let (lo, hi) = x
         .iter()
         .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), &v| {
             (lo.min(v), hi.max(v))
         });
     let c = if intercept {
-        round_to_bits(0.5 * lo + 0.5 * hi, 4)
+        round_to_bits(0.5 * lo + 0.5 * hi, (45 / degree.max(1)).max(4))
     } else {
         0.0
     };

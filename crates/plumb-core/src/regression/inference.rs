@@ -90,12 +90,19 @@ pub(crate) fn summarize(
     design: &Design,
     y: &[f64],
     weights: Option<&[f64]>,
-    solution: Solution,
+    mut solution: Solution,
     level: f64,
 ) -> LinearFit {
     let n = y.len();
     let p = design.n_terms();
     let intercept = design.has_intercept();
+    if intercept {
+        // With an intercept the least-squares residuals have weighted mean zero; what is left
+        // is the rounding of the intercept itself (half an ulp of a level far from zero),
+        // shared by every residual. Taking it out keeps RSS to full precision in tight fits.
+        let drift = describe::mean(&solution.residuals, weights);
+        solution.residuals.iter_mut().for_each(|r| *r -= drift);
+    }
     let rss = describe::sum_sq(&solution.residuals, weights);
     let (ss_total, kind) = if intercept {
         (describe::sum_sq_dev(y, weights), RSquaredKind::Centered)

@@ -13,8 +13,9 @@
 //! rows (O(np²), no refit).
 //! A full least-squares refit (the QR path of [`super::fit`]) replaces the update whenever the
 //! working basis is poorly conditioned (above [`CONDITION_LIMIT`]), an update would divide by
-//! `1 − hᵢᵢ` below [`PIVOT_FLOOR`], or the fit is so tight (`1 − R² <` [`TIGHT_FIT`]) that
-//! `Σy² − αᵀb` would cancel away the digits.
+//! `1 − hᵢᵢ` below [`PIVOT_FLOOR`], the fit is so tight (`1 − R² <` [`TIGHT_FIT`]) that
+//! `Σy² − αᵀb` would cancel away the digits, or fewer than [`FEW_ROWS_PER_TERM`] rows per term
+//! remain.
 
 use nalgebra::{DMatrix, DVector};
 use rayon::prelude::*;
@@ -34,6 +35,9 @@ pub const CONDITION_LIMIT: f64 = 1e3;
 pub const PIVOT_FLOOR: f64 = 0.05;
 /// `1 − R²` below which the numbers come from a full refit.
 pub const TIGHT_FIT: f64 = 1e-6;
+/// Below this many included rows per term every change is a full refit: with so few rows a
+/// refit costs next to nothing, and the updates' rounding is least diluted.
+pub const FEW_ROWS_PER_TERM: usize = 5;
 
 /// The model's numbers after a change.
 #[derive(Debug, Clone, PartialEq)]
@@ -250,7 +254,8 @@ impl LiveFit {
 
     fn update(&mut self, i: usize, sign: f64) {
         self.changes += 1;
-        if self.always_refit || !self.inverse_valid {
+        let few = self.n_included < FEW_ROWS_PER_TERM * self.design.n_terms();
+        if self.always_refit || !self.inverse_valid || few {
             self.refit();
             return;
         }

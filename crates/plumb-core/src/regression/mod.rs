@@ -32,7 +32,9 @@ pub use influence::{
 pub use line::{
     line_fit, line_from_moments, residual_sum_of_squares, LineSummary, RESIDUAL_PASS_BELOW,
 };
-pub use live::{LiveFit, LiveSummary, CONDITION_LIMIT, PIVOT_FLOOR, REFRESH_EVERY, TIGHT_FIT};
+pub use live::{
+    LiveFit, LiveSummary, CONDITION_LIMIT, FEW_ROWS_PER_TERM, PIVOT_FLOOR, REFRESH_EVERY, TIGHT_FIT,
+};
 pub use quality::{Anova, Coefficient, FitQuality, TInference};
 pub use standardized::StandardizedView;
 pub use transform::Transform;
