@@ -8,6 +8,8 @@ use plumb_core::regression::{fit, Design, FitOptions, Transform};
 use plumb_data::analysis::{analyze, compare, Factor, FitRequest, ResponseScale, Wanted};
 use plumb_data::{load, LoadOptions, Table};
 
+const NAMES: [&str; 2] = ["the kept model", "the current one"];
+
 /// Three sites with lines of their own: slopes 1.5, 1.5 and 2.4, intercepts 2, 5, 1.
 fn sites() -> (tempfile::TempDir, Table) {
     let dir = tempfile::tempdir().expect("dir");
@@ -225,16 +227,16 @@ fn added_variable_slopes_are_the_coefficients_and_comparisons_test_nested_models
         x: vec!["dose".into()],
         ..two.clone()
     };
-    let c = compare(&t, &one, &two).expect("both fit");
+    let c = compare(&t, &one, &two, NAMES).expect("both fit");
     let f = c.nested.expect("nested on the same rows");
     // One added term: the partial F is the square of its t (textbook identity).
     assert!((f.f_statistic - a.fit.coefficients[2].t.powi(2)).abs() < 1e-8 * f.f_statistic);
-    assert!(c.note.contains("kept model is nested"));
+    assert!(c.note.contains("the kept model is nested"), "{}", c.note);
     let logged = FitRequest {
         response: ResponseScale::Fixed(Transform::Ln),
         ..two.clone()
     };
-    let c = compare(&t, &one, &logged).expect("both fit");
+    let c = compare(&t, &one, &logged, NAMES).expect("both fit");
     assert!(
         c.nested.is_none() && c.note.contains("different scales"),
         "{}",
@@ -244,7 +246,7 @@ fn added_variable_slopes_are_the_coefficients_and_comparisons_test_nested_models
         exclude: vec![61, 5],
         ..two
     };
-    let c = compare(&t, &one, &fewer_rows).expect("both fit");
+    let c = compare(&t, &one, &fewer_rows, NAMES).expect("both fit");
     assert!(
         c.nested.is_none() && c.note.contains("not on the same rows"),
         "{}",

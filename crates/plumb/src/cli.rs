@@ -3,6 +3,8 @@
 use std::path::PathBuf;
 
 use clap::{Args as ClapArgs, Parser, Subcommand, ValueEnum};
+use plumb_core::regression::Transform;
+use plumb_data::analysis::{Factor, ResponseScale};
 use plumb_data::{DecimalMark, HeaderMode, LoadOptions};
 
 /// Plumbline: exploratory fitting with honest numbers.
@@ -241,6 +243,139 @@ impl LoadArgs {
     }
 }
 
+/// How a model's terms are built beyond its columns: a grouping and transforms (shared by
+/// `plumb fit`, `plumb influence` and `plumb report`).
+#[derive(Debug, Clone, Default, ClapArgs)]
+pub struct TermArgs {
+    /// Group the rows by this column (text, or numbers as labels): an indicator term per level
+    /// against the reference level.
+    #[arg(long, value_name = "COLUMN")]
+    pub group: Option<String>,
+    /// The level of --group the others are measured against (default: the first in sorted
+    /// order).
+    #[arg(long, value_name = "LEVEL", requires = "group")]
+    pub reference: Option<String>,
+    /// With --group: a slope of its own per level for the first predictor (else parallel lines).
+    #[arg(long, requires = "group")]
+    pub separate_slopes: bool,
+    /// Scale of the response: ln, log10, sqrt, reciprocal, box-cox (λ by maximum likelihood)
+    /// or box-cox:LAMBDA.
+    #[arg(long, value_name = "KIND", value_parser = parse_response_scale)]
+    pub transform_y: Option<ResponseScale>,
+    /// Scale of a predictor, as COLUMN=KIND with KIND ln, log10, sqrt or reciprocal (repeatable).
+    #[arg(long = "transform", value_name = "COLUMN=KIND", value_parser = parse_x_transform)]
+    pub transforms: Vec<(String, Transform)>,
+}
+
+impl TermArgs {
+    /// Puts the grouping and the transforms into `request`.
+    pub fn apply(&self, request: &mut plumb_data::analysis::FitRequest) {
+        request.factor = self.group.as_ref().map(|column| Factor {
+            column: column.clone(),
+            reference: self.reference.clone(),
+            separate_slopes: self.separate_slopes,
+        });
+        request.response = self.transform_y.unwrap_or_default();
+        request.x_transforms = self.transforms.clone();
+    }
+}
+
+fn transform_named(kind: &str) -> Option<Transform> {
+    Some(match kind {
+        "ln" => Transform::Ln,
+        "log10" => Transform::Log10,
+        "sqrt" => Transform::Sqrt,
+        "reciprocal" => Transform::Reciprocal,
+        _ => return None,
+    })
+}
+
+fn parse_response_scale(s: &str) -> Result<ResponseScale, String> {
+    if s == "box-cox" {
+        return Ok(ResponseScale::BoxCox);
+    }
+    if let Some(l) = s.strip_prefix("box-cox:") {
+        return match l.parse::<f64>() {
+            Ok(v) if v.is_finite() => Ok(ResponseScale::Fixed(Transform::BoxCox(v))),
+            _ => Err(format!(
+                "'{l}' is not a number for box-cox:LAMBDA (such as box-cox:0.5)"
+            )),
+        };
+    }
+    transform_named(s).map(ResponseScale::Fixed).ok_or_else(|| {
+        format!("'{s}' is not ln, log10, sqrt, reciprocal, box-cox or box-cox:LAMBDA")
+    })
+}
+
+fn parse_x_transform(s: &str) -> Result<(String, Transform), String> {
+    let bad = || {
+        format!(
+            "'{s}' is not COLUMN=KIND with KIND ln, log10, sqrt or reciprocal (such as dose=ln)"
+        )
+    };
+    let (column, kind) = s.rsplit_once('=').ok_or_else(bad)?;
+    let t = transform_named(kind.trim()).ok_or_else(bad)?;
+    if column.trim().is_empty() {
+        return Err(bad());
+    }
+    Ok((column.trim().to_string(), t))
+}
+
+/// A second model set beside the one fitted (`plumb fit`): the same model changed as these
+/// flags say.
+#[derive(Debug, Clone, Default, ClapArgs)]
+pub struct CompareArgs {
+    /// Compare with the same model without this part: a predictor column, the --group column,
+    /// or "slopes" for the separate slopes (repeatable).
+    #[arg(long, value_name = "TERM")]
+    pub compare_without: Vec<String>,
+    /// Compare with the same model at this polynomial degree.
+    #[arg(long, value_name = "N", value_parser = clap::value_parser!(u32).range(1..=10))]
+    pub compare_degree: Option<u32>,
+}
+
+impl CompareArgs {
+    /// The other model, when a comparison is asked for.
+    ///
+    /// # Errors
+    /// A part to leave out that the model does not have, or a comparison that leaves no
+    /// predictor.
+    pub fn other(
+        &self,
+        request: &plumb_data::analysis::FitRequest,
+    ) -> Result<Option<plumb_data::analysis::FitRequest>, String> {
+        if self.compare_without.is_empty() && self.compare_degree.is_none() {
+            return Ok(None);
+        }
+        let mut other = request.clone();
+        for part in &self.compare_without {
+            let group = request.factor.as_ref().map(|f| f.column.as_str());
+            if part == "slopes" && request.factor.as_ref().is_some_and(|f| f.separate_slopes) {
+                if let Some(f) = &mut other.factor {
+                    f.separate_slopes = false;
+                }
+            } else if Some(part.as_str()) == group {
+                other.factor = None;
+            } else if request.x.contains(part) {
+                other.x.retain(|x| x != part);
+            } else {
+                return Err(format!(
+                    "--compare-without {part}: the model has no such part (its predictors: {}{})",
+                    request.x.join(", "),
+                    group.map_or(String::new(), |g| format!("; its grouping: {g}"))
+                ));
+            }
+        }
+        if other.x.is_empty() {
+            return Err("--compare-without leaves no predictor in the other model".into());
+        }
+        if let Some(d) = self.compare_degree {
+            other.degree = d;
+        }
+        Ok(Some(other))
+    }
+}
+
 /// The model shared by `plumb fit` and `plumb influence`.
 #[derive(Debug, ClapArgs)]
 pub struct ModelArgs {
@@ -265,12 +400,15 @@ pub struct ModelArgs {
     /// Confidence level of the coefficient intervals.
     #[arg(long, default_value_t = 0.95, value_parser = parse_level)]
     pub level: f64,
+    /// Grouping and transforms.
+    #[command(flatten)]
+    pub terms: TermArgs,
 }
 
 impl ModelArgs {
     /// The analysis request these arguments describe.
     pub fn request(&self) -> plumb_data::analysis::FitRequest {
-        plumb_data::analysis::FitRequest {
+        let mut request = plumb_data::analysis::FitRequest {
             y: self.y.clone(),
             x: self.x.clone(),
             intercept: !self.no_intercept,
@@ -282,9 +420,10 @@ impl ModelArgs {
                 .map(|r| r.0.clone())
                 .unwrap_or_default(),
             level: self.level,
-            what_if: Vec::new(),
             ..plumb_data::analysis::FitRequest::default()
-        }
+        };
+        self.terms.apply(&mut request);
+        request
     }
 }
 
@@ -308,6 +447,9 @@ pub struct FitArgs {
     /// toward the mean a unit at this x is expected to sit on y.
     #[arg(long, value_name = "X", allow_negative_numbers = true)]
     pub at: Option<f64>,
+    /// A second model to set beside this one.
+    #[command(flatten)]
+    pub compare: CompareArgs,
     /// Output format.
     #[arg(long, value_enum, default_value_t = Format::Text)]
     pub format: Format,
@@ -357,6 +499,9 @@ pub struct ReportArgs {
     /// Confidence level of the intervals.
     #[arg(long, default_value_t = 0.95, value_parser = parse_level)]
     pub level: f64,
+    /// Grouping and transforms (data-file input).
+    #[command(flatten)]
+    pub terms: TermArgs,
     /// Where to write the HTML; the other files go beside it.
     #[arg(short = 'o', long = "output", value_name = "FILE.html")]
     pub output: PathBuf,

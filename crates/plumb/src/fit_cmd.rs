@@ -1,6 +1,6 @@
 //! `plumb fit`: load, fit, print.
 
-use plumb_data::analysis::{analyze, ExtrasRequest, Wanted};
+use plumb_data::analysis::{analyze, compare, ExtrasRequest, Wanted};
 
 use crate::cli::{FitArgs, Format};
 use crate::{fit_json, fit_text};
@@ -24,9 +24,19 @@ pub fn run(args: &FitArgs) -> anyhow::Result<String> {
         ..Wanted::default()
     };
     let outcome = analyze(&table, &request, wanted)?;
+    let other = args.compare.other(&request).map_err(anyhow::Error::msg)?;
+    let comparison = other
+        .map(|o| compare(&table, &o, &request, ["the other model", "this one"]))
+        .transpose()?;
     let extras = outcome.extras.as_ref();
     Ok(match args.format {
-        Format::Json => fit_json::render(&table, &request, &outcome, extras)?,
-        Format::Text => fit_text::render(&table, &request, &outcome, extras),
+        Format::Json => {
+            let keys = crate::model_json::keys(&outcome, &request, comparison.as_ref());
+            fit_json::render(&table, &request, &outcome, extras, keys)?
+        }
+        Format::Text => {
+            let model = crate::model_text::render(&outcome, &request, comparison.as_ref());
+            fit_text::render(&table, &request, &outcome, extras, &model)
+        }
     })
 }

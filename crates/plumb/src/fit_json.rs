@@ -92,6 +92,7 @@ pub fn render(
     request: &FitRequest,
     outcome: &Analysis,
     extras: Option<&PairExtras>,
+    model: serde_json::Map<String, serde_json::Value>,
 ) -> serde_json::Result<String> {
     let fit = &outcome.fit;
     let sel = &outcome.rows.selection;
@@ -145,8 +146,11 @@ pub fn render(
         }),
     };
     let mut value = serde_json::to_value(&json)?;
-    if let (Some(extras), Some(map)) = (extras, value.as_object_mut()) {
-        map.extend(crate::fit_extras_json::extras(extras));
+    if let Some(map) = value.as_object_mut() {
+        if let Some(extras) = extras {
+            map.extend(crate::fit_extras_json::extras(extras));
+        }
+        map.extend(model);
     }
     let mut text = serde_json::to_string_pretty(&value)?;
     text.push('\n');

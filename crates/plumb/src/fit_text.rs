@@ -18,6 +18,7 @@ pub fn render(
     request: &FitRequest,
     outcome: &Analysis,
     extras: Option<&PairExtras>,
+    model: &str,
 ) -> String {
     let mut out = String::new();
     // Writing to a String cannot fail.
@@ -29,6 +30,7 @@ pub fn render(
     if let Some(e) = extras {
         let _ = write_extras(&mut out, outcome, e);
     }
+    out.push_str(model);
     let _ = write_cautions(&mut out, table, outcome);
     out
 }
@@ -142,7 +144,7 @@ fn write_header(
     writeln!(
         out,
         "  model   {} = {}   ({method})",
-        request.y,
+        o.response_label(&request.y),
         terms.join(" + ")
     )?;
     writeln!(

@@ -9,6 +9,8 @@ mod fit_extras_json;
 mod fit_json;
 mod fit_text;
 mod influence_cmd;
+mod model_json;
+mod model_text;
 mod report_cmd;
 mod stream_cmd;
 

@@ -151,7 +151,7 @@ fn from_data(args: &ReportArgs) -> anyhow::Result<Prepared> {
             at: at.clone(),
         })
         .collect();
-    let request = FitRequest {
+    let mut request = FitRequest {
         y,
         x: args.x.clone(),
         intercept: !args.no_intercept,
@@ -159,9 +159,9 @@ fn from_data(args: &ReportArgs) -> anyhow::Result<Prepared> {
         weights: args.weights.clone(),
         exclude,
         level: args.level,
-        what_if: Vec::new(),
         ..FitRequest::default()
     };
+    args.terms.apply(&mut request);
     let reproduce = std::iter::once("plumb".to_string())
         .chain(std::env::args().skip(1))
         .map(|a| plumb_report::text::shell_word(&a))

@@ -56,7 +56,8 @@ pub struct Comparison {
     pub note: String,
 }
 
-/// Fits `kept` and `current` and compares them.
+/// Fits `kept` and `current` and compares them; `names` are how the note calls them (such as
+/// `["the kept model", "the current one"]`).
 ///
 /// # Errors
 /// Either fit's error.
@@ -64,7 +65,9 @@ pub fn compare(
     table: &Table,
     kept: &FitRequest,
     current: &FitRequest,
+    names: [&str; 2],
 ) -> Result<Comparison, AnalysisError> {
+    let [first, second] = names;
     let a = analyze(table, kept, Wanted::default())?;
     let b = analyze(table, current, Wanted::default())?;
     let kept_figures = FitFigures::of(&a.fit, a.response_label(&kept.y));
@@ -88,17 +91,17 @@ pub fn compare(
     } else if is_nested(&kept_figures.terms, &current_figures.terms) {
         (
             Some(compare_nested(&a.fit, &b.fit)),
-            "the kept model is nested in the current one".to_string(),
+            format!("{first} is nested in {second}"),
         )
     } else if is_nested(&current_figures.terms, &kept_figures.terms) {
         (
             Some(compare_nested(&b.fit, &a.fit)),
-            "the current model is nested in the kept one".to_string(),
+            format!("{second} is nested in {first}"),
         )
     } else {
         (
             None,
-            "neither model's terms contain the other's: the models are not nested, so there is no partial F test (compare AIC or BIC)".to_string(),
+            format!("neither {first} nor {second} holds the other's terms: the models are not nested, so there is no partial F test (compare AIC or BIC)"),
         )
     };
     Ok(Comparison {

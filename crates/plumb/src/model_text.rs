@@ -1,0 +1,107 @@
+//! The readable layout of a model's parts beyond its columns, in `plumb fit`: the response's
+//! scale, the Box–Cox estimate, the groups, and the comparison with a second model.
+
+use std::fmt::Write;
+
+use plumb_core::regression::NestedComparison;
+use plumb_data::analysis::{Analysis, Comparison, FitFigures, FitRequest};
+use plumb_report::text::{fixed, num, p};
+
+/// The lines, or nothing for a model of columns as they are.
+pub fn render(outcome: &Analysis, request: &FitRequest, comparison: Option<&Comparison>) -> String {
+    let mut out = String::new();
+    // Writing to a String cannot fail.
+    let _ = scale(&mut out, outcome, request);
+    let _ = groups(&mut out, outcome);
+    if let Some(c) = comparison {
+        let _ = compared(&mut out, c);
+    }
+    out
+}
+
+fn scale(out: &mut String, o: &Analysis, request: &FitRequest) -> std::fmt::Result {
+    let label = o.response_label(&request.y);
+    if label != request.y {
+        writeln!(out, "  scale                R², σ̂ and the residuals are on {label}; curves are drawn back in {}'s units", request.y)?;
+    }
+    if let Some(b) = &o.rows.boxcox {
+        let end = |v: Option<f64>| v.map_or_else(|| "unbounded".into(), |v| fixed(v, 4));
+        writeln!(
+            out,
+            "  Box–Cox              λ = {} ({}% profile-likelihood interval {} to {})",
+            fixed(b.lambda, 4),
+            b.level * 100.0,
+            end(b.interval.0),
+            end(b.interval.1)
+        )?;
+    }
+    Ok(())
+}
+
+fn groups(out: &mut String, o: &Analysis) -> std::fmt::Result {
+    let Some(g) = &o.groups else { return Ok(()) };
+    writeln!(
+        out,
+        "  groups by {} (reference {})",
+        g.column,
+        g.table.first().map_or("—", |r| r.level.as_str())
+    )?;
+    writeln!(
+        out,
+        "    equal slopes of {}    {}",
+        g.predictor,
+        test(&g.equal_slopes)
+    )?;
+    writeln!(out, "    one common line       {}", test(&g.common_line))?;
+    writeln!(
+        out,
+        "    {:<16} {:>6} {:>14} {:>12}   interval",
+        "level", "rows", "slope", "SE"
+    )?;
+    for r in &g.table {
+        writeln!(
+            out,
+            "    {:<16} {:>6} {:>14} {:>12}   [{}, {}]",
+            r.level,
+            r.n,
+            num(r.slope.estimate),
+            num(r.slope.std_error),
+            num(r.slope.ci_low),
+            num(r.slope.ci_high)
+        )?;
+    }
+    writeln!(out)
+}
+
+fn test(c: &NestedComparison) -> String {
+    format!(
+        "F {} on {} and {} df, p {}",
+        fixed(c.f_statistic, 4),
+        c.df_num,
+        c.df_den,
+        p(c.p_value)
+    )
+}
+
+fn compared(out: &mut String, c: &Comparison) -> std::fmt::Result {
+    writeln!(out, "  beside another model ({})", c.note)?;
+    let row = |name: &str, f: &FitFigures| {
+        format!(
+            "    {name:<6} {} = {}\n           n {}  R² {}  adjusted R² {}  σ̂ {}  AIC {}  BIC {}",
+            f.response,
+            f.terms.join(" + "),
+            f.n,
+            fixed(f.r_squared, 6),
+            fixed(f.adj_r_squared, 6),
+            num(f.residual_std_error),
+            fixed(f.aic, 3),
+            fixed(f.bic, 3)
+        )
+    };
+    writeln!(out, "{}", row("this", &c.current))?;
+    writeln!(out, "{}", row("other", &c.kept))?;
+    if let Some(n) = &c.nested {
+        writeln!(out, "    partial F           {}", test(n))?;
+    }
+    writeln!(out)
+}
