@@ -4,9 +4,10 @@
 //! diffed by people. It records the data file's path and SHA-256, so reopening it reproduces
 //! every number, and says so when the data changed.
 
+use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
-use plumb_data::analysis::FitRequest;
+use plumb_data::analysis::{transform_name, transform_named, Factor, FitRequest, ResponseScale};
 use plumb_data::{DecimalMark, HeaderMode, LoadOptions};
 use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
@@ -14,8 +15,9 @@ use sha2::{Digest, Sha256};
 use crate::atomic::write_atomically;
 use crate::{ReportError, Result};
 
-/// Newest schema version this build writes and reads.
-pub const SCHEMA_VERSION: u32 = 1;
+/// Newest schema version this build writes and reads. Version 2 added the model's grouping,
+/// transforms and the kept comparison; version-1 files read as version 2 (those parts absent).
+pub const SCHEMA_VERSION: u32 = 2;
 
 /// A saved session.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -30,6 +32,9 @@ pub struct Session {
     /// Rows left out, each with its reason.
     #[serde(default)]
     pub exclusions: Vec<Exclusion>,
+    /// A second model kept beside the main one for comparison (version 2).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub comparison: Option<ModelSpec>,
     /// View settings of the workbench (free-form, kept as written).
     #[serde(default)]
     pub view: serde_json::Map<String, serde_json::Value>,
@@ -117,9 +122,26 @@ impl LoadSpec {
 }
 
 impl ModelSpec {
-    /// The analysis request of this model with `exclude` left out.
-    pub fn request(&self, exclude: Vec<usize>) -> FitRequest {
-        FitRequest {
+    /// The analysis request of this model with `exclude` left out. A transform word this build
+    /// does not know is an error naming it.
+    ///
+    /// # Errors
+    /// [`ReportError::BadSession`]-style text for an unknown transform.
+    pub fn request(&self, exclude: Vec<usize>) -> std::result::Result<FitRequest, String> {
+        let response = match &self.transform_y {
+            Some(t) => ResponseScale::parse(t)?,
+            None => ResponseScale::Identity,
+        };
+        let x_transforms = self
+            .transforms
+            .iter()
+            .map(|(c, t)| {
+                transform_named(t).map(|t| (c.clone(), t)).ok_or_else(|| {
+                    format!("'{t}' (for column '{c}') is not ln, log10, sqrt or reciprocal")
+                })
+            })
+            .collect::<std::result::Result<_, _>>()?;
+        Ok(FitRequest {
             y: self.y.clone(),
             x: self.x.clone(),
             intercept: self.intercept,
@@ -127,9 +149,15 @@ impl ModelSpec {
             weights: self.weights.clone(),
             exclude,
             level: self.level,
-            what_if: Vec::new(),
+            factor: self.group.as_ref().map(|g| Factor {
+                column: g.column.clone(),
+                reference: g.reference.clone(),
+                separate_slopes: g.separate_slopes,
+            }),
+            response,
+            x_transforms,
             ..FitRequest::default()
-        }
+        })
     }
 
     /// The model of `request` (its exclusions are kept in the session's log, not here).
@@ -141,6 +169,19 @@ impl ModelSpec {
             degree: request.degree,
             weights: request.weights.clone(),
             level: request.level,
+            group: request.factor.as_ref().map(|f| GroupSpec {
+                column: f.column.clone(),
+                reference: f.reference.clone(),
+                separate_slopes: f.separate_slopes,
+            }),
+            transform_y: (request.response != ResponseScale::Identity)
+                .then(|| request.response.name()),
+            transforms: request
+                .x_transforms
+                .iter()
+                .filter(|(_, t)| !t.is_identity())
+                .map(|(c, t)| (c.clone(), transform_name(*t)))
+                .collect(),
         }
     }
 }
@@ -165,6 +206,30 @@ pub struct ModelSpec {
     /// Confidence level.
     #[serde(default = "level")]
     pub level: f64,
+    /// A grouping column entering as indicator terms (version 2).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub group: Option<GroupSpec>,
+    /// The response's scale: `ln`, `log10`, `sqrt`, `reciprocal`, `box-cox` or `box-cox:λ`
+    /// (version 2; absent: as measured).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub transform_y: Option<String>,
+    /// Transforms of predictors, column → `ln`, `log10`, `sqrt` or `reciprocal` (version 2).
+    #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
+    pub transforms: BTreeMap<String, String>,
+}
+
+/// A grouping column of a model.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct GroupSpec {
+    /// The column.
+    pub column: String,
+    /// The reference level (absent: the first in sorted order).
+    #[serde(default)]
+    pub reference: Option<String>,
+    /// A slope of its own per level.
+    #[serde(default)]
+    pub separate_slopes: bool,
 }
 
 fn yes() -> bool {
@@ -223,7 +288,12 @@ impl Session {
                 found: u32::try_from(v).unwrap_or(u32::MAX),
                 supported: SCHEMA_VERSION,
             }),
-            Some(_) => serde_json::from_value(value).map_err(bad),
+            Some(_) => {
+                let mut session: Self = serde_json::from_value(value).map_err(bad)?;
+                // Version 1 lacked only optional parts: it reads as version 2.
+                session.plumbline_session = SCHEMA_VERSION;
+                Ok(session)
+            }
             None => Err(ReportError::BadSession {
                 path: path.to_path_buf(),
                 detail: "no 'plumbline_session' version field".into(),
@@ -317,12 +387,30 @@ mod tests {
                 degree: 2,
                 weights: None,
                 level: 0.95,
+                group: Some(GroupSpec {
+                    column: "analyst".into(),
+                    reference: Some("MB".into()),
+                    separate_slopes: true,
+                }),
+                transform_y: Some("ln".into()),
+                transforms: [("dose".to_string(), "sqrt".to_string())].into(),
             }],
             exclusions: vec![Exclusion {
                 row: 17,
                 reason: "decimal point slipped".into(),
                 at: Some("2026-12-02T09:15:00Z".into()),
             }],
+            comparison: Some(ModelSpec {
+                y: "settled".into(),
+                x: vec!["dose".into()],
+                intercept: true,
+                degree: 1,
+                weights: None,
+                level: 0.95,
+                group: None,
+                transform_y: None,
+                transforms: BTreeMap::new(),
+            }),
             view: serde_json::Map::new(),
         }
     }
@@ -371,8 +459,34 @@ mod tests {
         assert_eq!(LoadSpec::from_options(&options).to_options(), options);
         assert_eq!(LoadSpec::default().to_options(), LoadOptions::default());
         let model = &sample().models[0];
-        assert_eq!(&ModelSpec::from_request(&model.request(vec![3])), model);
-        assert_eq!(model.request(vec![3]).exclude, [3]);
+        let request = model.request(vec![3]).expect("known transforms");
+        assert_eq!(&ModelSpec::from_request(&request), model);
+        assert_eq!(request.exclude, [3]);
+        assert_eq!(
+            request.factor.as_ref().map(|f| f.separate_slopes),
+            Some(true)
+        );
+        let mut unknown = model.clone();
+        unknown.transform_y = Some("log2".into());
+        assert!(unknown.request(vec![]).expect_err("log2").contains("log2"));
+    }
+
+    #[test]
+    fn a_version_1_file_opens_as_version_2() {
+        // Written by `plumb report … --save-session` of the version-1 build (commit 0e9a486),
+        // with its data path made relative; stored beside the tests.
+        let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/v1.plumb");
+        let s = Session::load(&path).expect("a version-1 session reads");
+        assert_eq!(s.plumbline_session, SCHEMA_VERSION);
+        assert_eq!(s.models[0].x, ["standard_mg_l"]);
+        assert!(s.models[0].group.is_none() && s.models[0].transforms.is_empty());
+        assert!(s.comparison.is_none());
+        assert_eq!(s.exclusions[0].row, 14);
+        let request = s.models[0].request(vec![14]).expect("a plain model");
+        assert_eq!(
+            request.response,
+            plumb_data::analysis::ResponseScale::Identity
+        );
     }
 
     #[test]

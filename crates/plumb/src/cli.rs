@@ -280,31 +280,8 @@ impl TermArgs {
     }
 }
 
-fn transform_named(kind: &str) -> Option<Transform> {
-    Some(match kind {
-        "ln" => Transform::Ln,
-        "log10" => Transform::Log10,
-        "sqrt" => Transform::Sqrt,
-        "reciprocal" => Transform::Reciprocal,
-        _ => return None,
-    })
-}
-
 fn parse_response_scale(s: &str) -> Result<ResponseScale, String> {
-    if s == "box-cox" {
-        return Ok(ResponseScale::BoxCox);
-    }
-    if let Some(l) = s.strip_prefix("box-cox:") {
-        return match l.parse::<f64>() {
-            Ok(v) if v.is_finite() => Ok(ResponseScale::Fixed(Transform::BoxCox(v))),
-            _ => Err(format!(
-                "'{l}' is not a number for box-cox:LAMBDA (such as box-cox:0.5)"
-            )),
-        };
-    }
-    transform_named(s).map(ResponseScale::Fixed).ok_or_else(|| {
-        format!("'{s}' is not ln, log10, sqrt, reciprocal, box-cox or box-cox:LAMBDA")
-    })
+    ResponseScale::parse(s)
 }
 
 fn parse_x_transform(s: &str) -> Result<(String, Transform), String> {
@@ -314,7 +291,9 @@ fn parse_x_transform(s: &str) -> Result<(String, Transform), String> {
         )
     };
     let (column, kind) = s.rsplit_once('=').ok_or_else(bad)?;
-    let t = transform_named(kind.trim()).ok_or_else(bad)?;
+    let t = plumb_data::analysis::transform_named(kind.trim())
+        .filter(|t| !t.is_identity())
+        .ok_or_else(bad)?;
     if column.trim().is_empty() {
         return Err(bad());
     }

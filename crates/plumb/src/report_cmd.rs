@@ -88,7 +88,9 @@ fn from_session(path: &Path, output: &Path, allow_outside: bool) -> anyhow::Resu
         .models
         .first()
         .ok_or_else(|| anyhow::anyhow!("{}: the session names no model", path.display()))?;
-    let request = model.request(session.exclusions.iter().map(|e| e.row).collect());
+    let request = model
+        .request(session.exclusions.iter().map(|e| e.row).collect())
+        .map_err(|e| anyhow::anyhow!("{}: {e}", path.display()))?;
     let reproduce = format!(
         "plumb report {} -o {}{}",
         path.display(),
@@ -198,6 +200,7 @@ fn session_of(
         },
         models: vec![ModelSpec::from_request(request)],
         exclusions: exclusions.to_vec(),
+        comparison: None,
         view: serde_json::Map::new(),
     }
 }

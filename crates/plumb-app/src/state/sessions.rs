@@ -41,6 +41,7 @@ pub fn session_of(
                 at: (!note.at.is_empty()).then(|| note.at.clone()),
             })
             .collect(),
+        comparison: None,
         view: serde_json::Map::new(),
     }
 }

@@ -71,18 +71,24 @@ pub struct LiveFit {
     /// Current values of each row: `[x]` for a polynomial, the design row otherwise.
     values: Vec<Vec<f64>>,
     y: Vec<f64>,
+    /// `√wᵢ` of each row (`None`: ordinary least squares).
+    root_w: Option<Vec<f64>>,
     included: Vec<bool>,
     n_included: usize,
     basis_recipe: Basis,
-    /// Working-basis rows, one after another (`p` values per row): contiguous, so that a
-    /// rebuild from the rows streams through memory.
+    /// Working-basis rows times `√wᵢ`, one after another (`p` values per row): contiguous, so
+    /// that a rebuild from the rows streams through memory.
     z: Vec<f64>,
     y_shift: f64,
     a: DMatrix<f64>,
     a_inv: DMatrix<f64>,
     b: DVector<f64>,
+    /// `Σ wᵢ(yᵢ − shift)` over the included rows.
     sum_y: f64,
+    /// `Σ wᵢ(yᵢ − shift)²`.
     sum_yy: f64,
+    /// `Σ wᵢ` (the count without weights).
+    sum_w: f64,
     options: FitOptions,
     changes: usize,
     always_refit: bool,
@@ -94,21 +100,43 @@ pub struct LiveFit {
 }
 
 impl LiveFit {
-    /// Starts with every row included. Weights are not supported here (use [`super::fit`]).
+    /// Starts with every row included (ordinary least squares).
     ///
     /// # Errors
     /// Whatever the initial fit raises.
     pub fn new(design: Design, y: Vec<f64>, options: FitOptions) -> Result<Self> {
-        let first = fit(&design, &y, None, &options)?;
-        let mut basis = Basis::new(&design, &vec![1.0; y.len()]);
+        Self::weighted(design, y, None, options)
+    }
+
+    /// Starts with every row included, weighted by `weights` when given (the same weighted
+    /// least squares as [`super::fit`]).
+    ///
+    /// # Errors
+    /// Whatever the initial fit raises (a weight that is not positive, among others).
+    pub fn weighted(
+        design: Design,
+        y: Vec<f64>,
+        weights: Option<Vec<f64>>,
+        options: FitOptions,
+    ) -> Result<Self> {
+        let first = fit(&design, &y, weights.as_deref(), &options)?;
+        let root_w: Option<Vec<f64>> = weights
+            .as_ref()
+            .map(|w| w.iter().map(|v| v.sqrt()).collect());
+        let rw = root_w.clone().unwrap_or_else(|| vec![1.0; y.len()]);
+        let mut basis = Basis::new(&design, &rw);
         let values: Vec<Vec<f64>> = match design.polynomial_source() {
             Some(x) => x.iter().map(|&v| vec![v]).collect(),
             None => (0..y.len()).map(|i| design.row(i).collect()).collect(),
         };
-        let z = values.iter().flat_map(|v| basis.z_row(v)).collect();
+        let z = values
+            .iter()
+            .zip(&rw)
+            .flat_map(|(v, &r)| basis.z_row(v).into_iter().map(move |z| z * r))
+            .collect();
         basis.columns = Vec::new(); // the rows `z` hold the same numbers
         let y_shift = if design.has_intercept() {
-            crate::describe::mean(&y, None)
+            crate::describe::mean(&y, weights.as_deref())
         } else {
             0.0
         };
@@ -121,6 +149,7 @@ impl LiveFit {
             design,
             values,
             y,
+            root_w,
             basis_recipe: basis,
             z,
             y_shift,
@@ -129,12 +158,18 @@ impl LiveFit {
             b: DVector::zeros(p),
             sum_y: 0.0,
             sum_yy: 0.0,
+            sum_w: 0.0,
             options,
             changes: 0,
             summary: Ok(from_fit(&first, true)),
         };
         live.rebuild();
         Ok(live)
+    }
+
+    /// `√wᵢ` of row `i` (1 without weights).
+    fn root_weight(&self, i: usize) -> f64 {
+        self.root_w.as_ref().map_or(1.0, |r| r[i])
     }
 
     /// The numbers after the last change (or why they are undefined, e.g. too few rows).
@@ -181,42 +216,13 @@ impl LiveFit {
                 .filter(|t| t.kind != TermKind::Intercept)
                 .count()
                 == 1;
-        if !one || !x.is_finite() || !y.is_finite() {
+        if !one {
             return Err(CoreError::InvalidOption(
-                "a point can be moved only in a one-predictor model, to finite values".into(),
+                "a point can be moved in x only in a one-predictor model".into(),
             ));
         }
-        let was_in = self.included[i];
-        if was_in {
-            self.included[i] = false;
-            self.n_included -= 1;
-            self.update(i, -1.0);
-        }
-        self.values[i] = if self.design.polynomial_source().is_some() {
-            vec![x]
-        } else {
-            self.design
-                .terms()
-                .iter()
-                .map(|t| {
-                    if t.kind == TermKind::Intercept {
-                        1.0
-                    } else {
-                        x
-                    }
-                })
-                .collect()
-        };
-        self.y[i] = y;
-        let p = self.design.n_terms();
-        let row = self.basis_recipe.z_row(&self.values[i]);
-        self.z[i * p..(i + 1) * p].copy_from_slice(&row);
-        if was_in {
-            self.included[i] = true;
-            self.n_included += 1;
-            self.update(i, 1.0);
-        }
-        Ok(&self.summary)
+        let row = self.polynomial_row(x);
+        self.set_row(i, &row, y)
     }
 
     /// Moves row `i`'s response to `y` (a what-if), keeping its predictors: works for any
@@ -225,9 +231,33 @@ impl LiveFit {
     /// # Errors
     /// [`CoreError::InvalidOption`] for a non-finite value.
     pub fn move_response(&mut self, i: usize, y: f64) -> Result<&Result<LiveSummary>> {
-        if !y.is_finite() {
+        let row = match self.design.polynomial_source() {
+            Some(_) => self.polynomial_row(self.values[i][0]),
+            None => self.values[i].clone(),
+        };
+        self.set_row(i, &row, y)
+    }
+
+    /// The design row of a one-predictor model at `x`: each term's power of `x`.
+    fn polynomial_row(&self, x: f64) -> Vec<f64> {
+        self.design
+            .terms()
+            .iter()
+            .map(|t| x.powi(t.kind.power() as i32))
+            .collect()
+    }
+
+    /// Gives row `i` the design row `row` (one value per term, as the design would hold it)
+    /// and the response `y`: a what-if of any model, e.g. a grouped or transformed one whose
+    /// row the caller built.
+    ///
+    /// # Errors
+    /// [`CoreError::InvalidOption`] for a non-finite value or a row of the wrong length.
+    pub fn set_row(&mut self, i: usize, row: &[f64], y: f64) -> Result<&Result<LiveSummary>> {
+        let p = self.design.n_terms();
+        if row.len() != p || !y.is_finite() || row.iter().any(|v| !v.is_finite()) {
             return Err(CoreError::InvalidOption(
-                "a point can be moved only to a finite value".into(),
+                "a point can be moved only to finite values, one per term".into(),
             ));
         }
         let was_in = self.included[i];
@@ -236,7 +266,20 @@ impl LiveFit {
             self.n_included -= 1;
             self.update(i, -1.0);
         }
+        self.values[i] = match self.design.polynomial_source() {
+            // The polynomial's working row is built from x, its linear term's value.
+            Some(_) => vec![row[usize::from(self.design.has_intercept())]],
+            None => row.to_vec(),
+        };
         self.y[i] = y;
+        let r = self.root_weight(i);
+        let z: Vec<f64> = self
+            .basis_recipe
+            .z_row(&self.values[i])
+            .into_iter()
+            .map(|v| v * r)
+            .collect();
+        self.z[i * p..(i + 1) * p].copy_from_slice(&z);
         if was_in {
             self.included[i] = true;
             self.n_included += 1;
@@ -281,10 +324,12 @@ impl LiveFit {
         }
         self.a_inv -= &u * u.transpose() * (sign / denom);
         self.a += &z * z.transpose() * sign;
-        let yi = self.y[i] - self.y_shift;
+        let r = self.root_weight(i);
+        let yi = r * (self.y[i] - self.y_shift);
         self.b += &z * (sign * yi);
-        self.sum_y += sign * yi;
+        self.sum_y += sign * r * yi;
         self.sum_yy += sign * yi * yi;
+        self.sum_w += sign * r * r;
         self.summary = self.summary_from_sums();
         if self.n_included <= self.design.n_terms() {
             // No longer a well-posed fit: the updated inverse is not to be trusted.
@@ -310,17 +355,35 @@ impl LiveFit {
         // Chunks of rows on rayon's threads, added in row order (the same answer whatever
         // the number of threads).
         let shift = self.y_shift;
+        let ones;
+        let rw = match &self.root_w {
+            Some(r) => r.as_slice(),
+            None => {
+                ones = vec![1.0; self.y.len()];
+                ones.as_slice()
+            }
+        };
         let parts: Vec<GramSums> = self
             .z
             .par_chunks(REBUILD_CHUNK * p)
             .zip(self.y.par_chunks(REBUILD_CHUNK))
+            .zip(rw.par_chunks(REBUILD_CHUNK))
             .zip(self.included.par_chunks(REBUILD_CHUNK))
-            .map(|((z, y), inc)| match p {
-                1 => gram_sums::<1>(z, y, inc, shift),
-                2 => gram_sums::<2>(z, y, inc, shift),
-                3 => gram_sums::<3>(z, y, inc, shift),
-                4 => gram_sums::<4>(z, y, inc, shift),
-                _ => gram_sums_any(p, z, y, inc, shift),
+            .map(|(((z, y), r), inc)| {
+                let rows = Rows {
+                    z,
+                    y,
+                    root_w: r,
+                    included: inc,
+                    shift,
+                };
+                match p {
+                    1 => gram_sums::<1>(&rows),
+                    2 => gram_sums::<2>(&rows),
+                    3 => gram_sums::<3>(&rows),
+                    4 => gram_sums::<4>(&rows),
+                    _ => gram_sums_any(p, &rows),
+                }
             })
             .collect();
         let mut sums = GramSums {
@@ -328,6 +391,7 @@ impl LiveFit {
             b: vec![0.0; p],
             sum_y: 0.0,
             sum_yy: 0.0,
+            sum_w: 0.0,
         };
         for part in parts {
             sums.add(&part);
@@ -337,9 +401,11 @@ impl LiveFit {
             b,
             sum_y,
             sum_yy,
+            sum_w,
         } = sums;
         self.sum_y = sum_y;
         self.sum_yy = sum_yy;
+        self.sum_w = sum_w;
         let a = DMatrix::from_fn(p, p, |j, k| lower[j.max(k) * p + j.min(k)]);
         self.b = DVector::from_vec(b);
         // A singular Gram matrix (too few rows) leaves the inverse at zero and marked invalid;
@@ -382,7 +448,11 @@ impl LiveFit {
                 d
             }
         };
-        fit(&design, &y, None, &self.options).map(|f| from_fit(&f, true))
+        let w: Option<Vec<f64>> = self
+            .root_w
+            .as_ref()
+            .map(|r| rows.iter().map(|&i| r[i] * r[i]).collect());
+        fit(&design, &y, w.as_deref(), &self.options).map(|f| from_fit(&f, true))
     }
 
     fn summary_from_sums(&self) -> Result<LiveSummary> {
@@ -402,7 +472,7 @@ impl LiveFit {
         }
         let rss = (self.sum_yy - alpha.dot(&self.b)).max(0.0);
         let tss = if intercept {
-            self.sum_y.mul_add(-self.sum_y / n as f64, self.sum_yy)
+            self.sum_y.mul_add(-self.sum_y / self.sum_w, self.sum_yy)
         } else {
             self.sum_yy
         };
@@ -434,13 +504,14 @@ impl LiveFit {
     }
 }
 
-/// `Σzzᵀ` (lower triangle, row-major `p × p`), `Σz·y`, `Σy`, `Σy²` over the included rows, with
-/// `y` shifted.
+/// `Σz̃z̃ᵀ` (lower triangle, row-major `p × p`), `Σz̃·ỹ`, `Σ√w·ỹ`, `Σỹ²` and `Σw` over the
+/// included rows, with `z̃ = √w·z` and `ỹ = √w·(y − shift)`.
 struct GramSums {
     lower: Vec<f64>,
     b: Vec<f64>,
     sum_y: f64,
     sum_yy: f64,
+    sum_w: f64,
 }
 
 impl GramSums {
@@ -453,65 +524,81 @@ impl GramSums {
         }
         self.sum_y += other.sum_y;
         self.sum_yy += other.sum_yy;
+        self.sum_w += other.sum_w;
     }
 }
 
 /// Rows per parallel task when the sums are rebuilt.
 const REBUILD_CHUNK: usize = 1 << 16;
 
-fn gram_sums<const P: usize>(z: &[f64], y: &[f64], included: &[bool], shift: f64) -> GramSums {
+/// One chunk of rows for a rebuild of the sums.
+struct Rows<'a> {
+    /// Weighted working rows, `p` values each.
+    z: &'a [f64],
+    y: &'a [f64],
+    root_w: &'a [f64],
+    included: &'a [bool],
+    shift: f64,
+}
+
+impl Rows<'_> {
+    /// The included rows: `(z̃, ỹ, √w)`.
+    fn each(&self, p: usize) -> impl Iterator<Item = (&[f64], f64, f64)> + '_ {
+        self.z
+            .chunks_exact(p)
+            .zip(self.y)
+            .zip(self.root_w)
+            .zip(self.included)
+            .filter(|(_, &inc)| inc)
+            .map(|(((row, &yv), &r), _)| (row, r * (yv - self.shift), r))
+    }
+}
+
+fn gram_sums<const P: usize>(rows: &Rows<'_>) -> GramSums {
     let mut a = [[0.0; P]; P];
     let mut b = [0.0; P];
-    let (mut sum_y, mut sum_yy) = (0.0, 0.0);
-    for ((row, &yv), _) in z
-        .chunks_exact(P)
-        .zip(y)
-        .zip(included)
-        .filter(|(_, &inc)| inc)
-    {
-        let yi = yv - shift;
+    let (mut sum_y, mut sum_yy, mut sum_w) = (0.0, 0.0, 0.0);
+    for (row, yi, r) in rows.each(P) {
         for j in 0..P {
             b[j] += row[j] * yi;
             for k in 0..=j {
                 a[j][k] += row[j] * row[k];
             }
         }
-        sum_y += yi;
+        sum_y += r * yi;
         sum_yy += yi * yi;
+        sum_w += r * r;
     }
     GramSums {
         lower: a.iter().flatten().copied().collect(),
         b: b.to_vec(),
         sum_y,
         sum_yy,
+        sum_w,
     }
 }
 
-fn gram_sums_any(p: usize, z: &[f64], y: &[f64], included: &[bool], shift: f64) -> GramSums {
+fn gram_sums_any(p: usize, rows: &Rows<'_>) -> GramSums {
     let mut lower = vec![0.0; p * p];
     let mut b = vec![0.0; p];
-    let (mut sum_y, mut sum_yy) = (0.0, 0.0);
-    for ((row, &yv), _) in z
-        .chunks_exact(p)
-        .zip(y)
-        .zip(included)
-        .filter(|(_, &inc)| inc)
-    {
-        let yi = yv - shift;
+    let (mut sum_y, mut sum_yy, mut sum_w) = (0.0, 0.0, 0.0);
+    for (row, yi, r) in rows.each(p) {
         for j in 0..p {
             b[j] += row[j] * yi;
             for k in 0..=j {
                 lower[j * p + k] += row[j] * row[k];
             }
         }
-        sum_y += yi;
+        sum_y += r * yi;
         sum_yy += yi * yi;
+        sum_w += r * r;
     }
     GramSums {
         lower,
         b,
         sum_y,
         sum_yy,
+        sum_w,
     }
 }
 
@@ -662,6 +749,37 @@ mod tests {
         live.exclude(9);
         assert_eq!(agrees_with_fresh_fit(&live), Ok(()));
         assert!(live.move_response(4, f64::NAN).is_err());
+    }
+
+    #[test]
+    fn weighted_changes_match_a_fresh_weighted_fit() {
+        let a: Vec<f64> = (0..40).map(|i| f64::from(i) * 0.5).collect();
+        let b: Vec<f64> = (0..40).map(|i| f64::from((i * 7) % 9)).collect();
+        let w: Vec<f64> = (0..40).map(|i| 0.5 + f64::from(i % 5)).collect();
+        let y: Vec<f64> = a
+            .iter()
+            .zip(&b)
+            .map(|(p, q)| 1.0 + 0.4 * p - 0.9 * q + (p * 3.1).sin())
+            .collect();
+        let design = Design::linear(&[("a", &a), ("b", &b)], true);
+        let mut live = LiveFit::weighted(design, y, Some(w), FitOptions::default()).expect("fits");
+        assert_eq!(agrees_with_fresh_fit(&live), Ok(()));
+        for i in [3, 17, 22, 5] {
+            live.exclude(i);
+            assert_eq!(agrees_with_fresh_fit(&live), Ok(()));
+        }
+        live.include(17);
+        live.move_response(8, 30.0).expect("finite");
+        live.set_row(9, &[1.0, 2.5, 4.0], -3.0).expect("a row");
+        assert_eq!(agrees_with_fresh_fit(&live), Ok(()));
+        assert!(
+            !live.summary().as_ref().expect("defined").refitted,
+            "the update path"
+        );
+        assert!(
+            live.set_row(9, &[1.0, 2.5], 0.0).is_err(),
+            "one value per term"
+        );
     }
 
     #[test]

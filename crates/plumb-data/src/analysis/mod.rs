@@ -29,7 +29,9 @@ pub use extras::{
 };
 pub use groups::{GroupRow, GroupTests};
 pub use prepare::{model_rows, FactorTerms, ModelRows};
-pub use terms::{level_term, Factor, Levels, ResponseScale, MAX_LEVELS};
+pub use terms::{
+    level_term, transform_name, transform_named, Factor, Levels, ResponseScale, MAX_LEVELS,
+};
 
 /// What to fit, on which rows.
 #[derive(Debug, Clone, PartialEq)]

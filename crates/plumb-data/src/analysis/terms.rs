@@ -36,6 +36,66 @@ pub enum ResponseScale {
     BoxCox,
 }
 
+impl ResponseScale {
+    /// Reads `ln`, `log10`, `sqrt`, `reciprocal`, `box-cox` (λ estimated) or `box-cox:λ`.
+    ///
+    /// # Errors
+    /// A message naming the word and what is accepted.
+    pub fn parse(s: &str) -> Result<Self, String> {
+        if s == "box-cox" {
+            return Ok(Self::BoxCox);
+        }
+        if let Some(l) = s.strip_prefix("box-cox:") {
+            return match l.parse::<f64>() {
+                Ok(v) if v.is_finite() => Ok(Self::Fixed(Transform::BoxCox(v))),
+                _ => Err(format!(
+                    "'{l}' is not a number for box-cox:LAMBDA (such as box-cox:0.5)"
+                )),
+            };
+        }
+        match s {
+            "none" | "identity" => Ok(Self::Identity),
+            _ => transform_named(s).map(Self::Fixed).ok_or_else(|| {
+                format!("'{s}' is not ln, log10, sqrt, reciprocal, box-cox or box-cox:LAMBDA")
+            }),
+        }
+    }
+
+    /// The word [`ResponseScale::parse`] reads back.
+    pub fn name(self) -> String {
+        match self {
+            Self::Identity => "none".into(),
+            Self::BoxCox => "box-cox".into(),
+            Self::Fixed(Transform::BoxCox(l)) => format!("box-cox:{l}"),
+            Self::Fixed(t) => transform_name(t).to_string(),
+        }
+    }
+}
+
+/// A predictor's transform by its word: `ln`, `log10`, `sqrt` or `reciprocal`.
+pub fn transform_named(kind: &str) -> Option<Transform> {
+    Some(match kind {
+        "ln" => Transform::Ln,
+        "log10" => Transform::Log10,
+        "sqrt" => Transform::Sqrt,
+        "reciprocal" => Transform::Reciprocal,
+        "none" => Transform::Identity,
+        _ => return None,
+    })
+}
+
+/// The word of a transform (`box-cox:λ` for a fixed Box–Cox).
+pub fn transform_name(t: Transform) -> String {
+    match t {
+        Transform::Identity => "none".into(),
+        Transform::Ln => "ln".into(),
+        Transform::Log10 => "log10".into(),
+        Transform::Sqrt => "sqrt".into(),
+        Transform::Reciprocal => "reciprocal".into(),
+        Transform::BoxCox(l) => format!("box-cox:{l}"),
+    }
+}
+
 /// The factor's levels on the rows used, the reference first.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Levels {
@@ -257,6 +317,23 @@ mod tests {
         );
         assert_eq!(d.columns()[2], vec![0.0, 1.0, 0.0, 1.0]);
         assert_eq!(d.columns()[5], vec![0.0, 0.0, 3.0, 0.0]);
+    }
+
+    #[test]
+    fn scales_read_back_what_they_write() {
+        for s in [
+            "none",
+            "ln",
+            "log10",
+            "sqrt",
+            "reciprocal",
+            "box-cox",
+            "box-cox:0.5",
+        ] {
+            assert_eq!(ResponseScale::parse(s).expect("known").name(), s);
+        }
+        assert!(ResponseScale::parse("log2").is_err());
+        assert!(ResponseScale::parse("box-cox:x").is_err());
     }
 
     #[test]
