@@ -14,7 +14,7 @@
 use std::time::{Duration, Instant};
 
 use eframe::egui;
-use plumb_app::{Action, PairSpec, Screen, Workbench};
+use plumb_app::{Action, FitSpec, Screen, Workbench};
 
 fn frame(ctx: &egui::Context, wb: &mut Workbench, events: Vec<egui::Event>) -> Duration {
     let input = egui::RawInput {
@@ -77,7 +77,7 @@ fn main() {
     let rows = loaded.dataset.table.n_rows();
     println!("loaded {rows} rows in {:.2} s", t0.elapsed().as_secs_f64());
     let t1 = Instant::now();
-    wb.apply(Action::OpenPair(PairSpec::line(y, x)));
+    wb.apply(Action::OpenPair(FitSpec::line(y, x)));
     assert!(wb.bench().pair().is_some(), "pair opens");
     wb.apply(Action::Show(Screen::Bench));
     println!(

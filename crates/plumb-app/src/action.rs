@@ -7,7 +7,7 @@ use std::path::PathBuf;
 
 use crate::state::diagnostics::Overlays;
 use crate::state::map::MapKey;
-use crate::state::pair::PairSpec;
+use crate::state::pair::FitSpec;
 use crate::state::{DialogPurpose, Screen, Status};
 
 /// One change the analyst asks for.
@@ -39,7 +39,7 @@ pub enum Action {
     /// Show a screen.
     Show(Screen),
     /// Put this model of a pair on the bench (keeping the marks).
-    OpenPair(PairSpec),
+    OpenPair(FitSpec),
     /// Overlays on the scatter.
     SetOverlays(Overlays),
     /// Colour the points by a text column (a line per group), or by nothing.

@@ -10,7 +10,7 @@ use eframe::egui;
 
 use crate::action::Action;
 use crate::error::WorkbenchError;
-use crate::state::pair::PairSpec;
+use crate::state::pair::FitSpec;
 use crate::state::Screen;
 use crate::workbench::Workbench;
 
@@ -82,7 +82,7 @@ impl eframe::App for Window {
 /// analyst would take.
 fn apply_after_load(wb: &mut Workbench, launch: Launch) {
     if let Some((y, x)) = &launch.pair {
-        wb.apply(Action::OpenPair(PairSpec::line(y, x)));
+        wb.apply(Action::OpenPair(FitSpec::line(y, x)));
         if wb.bench().pair().is_some() {
             wb.apply(Action::Show(Screen::Bench));
         }

@@ -26,6 +26,6 @@ pub use eframe::egui::ThemePreference;
 pub use error::WorkbenchError;
 pub use launch::{run, Launch};
 pub use state::diagnostics::Overlays;
-pub use state::pair::PairSpec;
+pub use state::pair::FitSpec;
 pub use state::{Ask, DialogPurpose, Loaded, Screen, State, Status};
 pub use workbench::Workbench;

@@ -10,7 +10,7 @@ use std::time::Duration;
 
 use common::{cli_fit, demo};
 
-use plumb_app::{Action, Ask, PairSpec, Screen, Workbench};
+use plumb_app::{Action, Ask, FitSpec, Screen, Workbench};
 use plumb_core::regression::LiveSummary;
 
 fn close(a: f64, b: f64) -> bool {
@@ -69,7 +69,7 @@ fn calibration(config: &Path, data: &Path) -> Workbench {
     wb.apply(Action::Open(data.to_path_buf()));
     settle(&mut wb);
     assert!(wb.loaded().is_some(), "{:?}", wb.status());
-    wb.apply(Action::OpenPair(PairSpec::line(
+    wb.apply(Action::OpenPair(FitSpec::line(
         "absorbance",
         "standard_mg_l",
     )));

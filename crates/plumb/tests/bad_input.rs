@@ -206,7 +206,7 @@ fn a_ten_megabyte_line_is_refused_with_a_short_message() {
 #[test]
 fn the_workbench_loader_answers_the_corpus_as_the_command_line_does() {
     use plumb_app::state::dataset::Dataset;
-    use plumb_app::state::pair::{Pair, PairSpec};
+    use plumb_app::state::pair::{FitSpec, Pair};
     let mut failures = Vec::new();
     for (name, extra, code, _) in CASES {
         let path = corpus(name);
@@ -226,7 +226,7 @@ fn the_workbench_loader_answers_the_corpus_as_the_command_line_does() {
                 }
             }
             Ok(Ok(data)) if extra.is_empty() && *code == 1 && cli_code == 1 => {
-                let bench = Pair::new(&data.table, PairSpec::line("y", "x"));
+                let bench = Pair::new(&data.table, FitSpec::line("y", "x"));
                 let refused = bench.as_ref().map_or(true, |p| p.summary().is_err());
                 if !refused {
                     failures.push(format!(

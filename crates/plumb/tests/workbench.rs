@@ -92,7 +92,7 @@ fn open_calibration(h: &mut Harness<'_, Workbench>, data: &Path) {
     settle(h);
     let pair = h.state().bench().pair().expect("pair on the bench");
     assert_eq!(
-        (pair.spec.y.as_str(), pair.spec.x.as_str()),
+        (pair.spec.y.as_str(), pair.spec.x0()),
         ("absorbance", "standard_mg_l")
     );
 }
@@ -237,7 +237,7 @@ fn the_map_counts_the_pairs_tested_and_a_strong_pair_opens_on_the_bench() {
     assert_eq!(h.state().screen(), plumb_app::Screen::Bench);
     let pair = h.state().bench().pair().expect("pair");
     assert_eq!(
-        (pair.spec.y.as_str(), pair.spec.x.as_str()),
+        (pair.spec.y.as_str(), pair.spec.x0()),
         ("visit_day", "sward_height_cm")
     );
 }

@@ -8,7 +8,6 @@ use super::pointer::PointerMode;
 use crate::action::{Action, Actions};
 use crate::palette;
 use crate::state::dataset::Dataset;
-use crate::state::pair::PairSpec;
 use crate::state::BenchModel;
 
 /// The row of controls above the bench.
@@ -20,8 +19,13 @@ pub fn controls_ui(
 ) -> Actions {
     let mut out = Actions::none();
     ui.horizontal_wrapped(|ui| {
-        out.push_some(model_ui(bench, data, ui));
-        ui.separator();
+        out.push_some(super::model_editor::model_ui(
+            bench.pair().map(|p| &p.spec),
+            data,
+            ui,
+        ));
+    });
+    ui.horizontal_wrapped(|ui| {
         out.push_some(overlays_ui(bench, ui));
         if !data.groups.is_empty() {
             ui.separator();
@@ -31,37 +35,6 @@ pub fn controls_ui(
         pointer_ui(mode, ui);
     });
     out
-}
-
-/// y, x, degree and intercept; a changed model is an action.
-fn model_ui(bench: &BenchModel, data: &Dataset, ui: &mut egui::Ui) -> Option<Action> {
-    let current = bench.pair().map(|p| p.spec.clone()).or_else(|| {
-        (data.numeric.len() >= 2).then(|| PairSpec::line(&data.numeric[1], &data.numeric[0]))
-    })?;
-    let mut s = current.clone();
-    column_choice(
-        ui,
-        "response-y",
-        "y:",
-        &mut s.y,
-        &data.numeric,
-        "The response: the column to be explained",
-    );
-    column_choice(
-        ui,
-        "predictor-x",
-        "x:",
-        &mut s.x,
-        &data.numeric,
-        "The predictor",
-    );
-    ui.label("degree:");
-    ui.add(egui::DragValue::new(&mut s.degree).range(1..=plumb_core::regression::MAX_DEGREE))
-        .on_hover_text("1 = straight line; 2, 3, … = polynomial in x");
-    ui.checkbox(&mut s.intercept, "intercept")
-        .on_hover_text("Off: the line is forced through the origin (R² is then uncentred)");
-    let changed = bench.pair().is_none_or(|p| p.spec != s);
-    changed.then_some(Action::OpenPair(s))
 }
 
 fn overlays_ui(bench: &BenchModel, ui: &mut egui::Ui) -> Option<Action> {
@@ -105,27 +78,6 @@ fn pointer_ui(mode: &mut PointerMode, ui: &mut egui::Ui) {
         .on_hover_text("Drag a loop around points in the scatter to leave them all out");
     ui.radio_value(mode, PointerMode::Move, "drag moves (what-if)")
         .on_hover_text("Drag a point to see what the numbers would be if it sat there; the data file is never changed");
-}
-
-fn column_choice(
-    ui: &mut egui::Ui,
-    id: &str,
-    label: &str,
-    value: &mut String,
-    names: &[String],
-    tip: &str,
-) {
-    let label = ui.label(label);
-    egui::ComboBox::from_id_salt(id)
-        .selected_text(value.clone())
-        .show_ui(ui, |ui| {
-            for n in names {
-                ui.selectable_value(value, n.clone(), n);
-            }
-        })
-        .response
-        .labelled_by(label.id)
-        .on_hover_text(tip);
 }
 
 /// The banner over the bench while points are moved.

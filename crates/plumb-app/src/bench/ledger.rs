@@ -65,7 +65,7 @@ fn exclusion_ui(
     let where_ = match pair.index_of(row) {
         Some(i) => format!(
             "row {row}: {} = {}, {} = {}",
-            pair.spec.x,
+            pair.spec.x0(),
             num(pair.x[i]),
             pair.spec.y,
             num(pair.y[i])

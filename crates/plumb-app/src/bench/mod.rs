@@ -6,6 +6,7 @@
 mod controls;
 mod influence;
 mod ledger;
+mod model_editor;
 mod numbers;
 mod pointer;
 mod points;

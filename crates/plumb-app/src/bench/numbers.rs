@@ -65,7 +65,10 @@ pub fn model_text(pair: &PairRows, s: &LiveSummary, csv: bool, hypothetical: boo
     } else {
         out.push_str(&format!(
             "{} on {} (degree {}), n = {}\n",
-            pair.spec.y, pair.spec.x, pair.spec.degree, s.n
+            pair.spec.y,
+            pair.spec.x.join(", "),
+            pair.spec.degree,
+            s.n
         ));
         if hypothetical {
             out.push_str("WHAT-IF: some points are moved; these numbers are hypothetical\n");
@@ -206,7 +209,7 @@ fn z_units_ui(ui: &mut egui::Ui, pair: &PairRows, d: &Diagnostics) {
     }
     ui.label(format!(
         "A row 2 SD above the mean of {} is expected {} SD from the mean of {}: {} nearer the mean (regression toward the mean).",
-        pair.spec.x,
+        pair.spec.x0(),
         num(2.0 * z.slope),
         pair.spec.y,
         num(2.0 * (1.0 - z.slope.abs()))

@@ -276,7 +276,7 @@ pub fn tooltip_text(scene: &Scene<'_>, mode: PointerMode, e: usize) -> String {
     let (x, y) = pair.point(e, marks);
     let mut text = format!(
         "row {row}\n{} = {}\n{} = {}",
-        pair.spec.x,
+        pair.spec.x0(),
         num(x),
         pair.spec.y,
         num(y)
@@ -322,7 +322,7 @@ mod tests {
     use super::*;
     use crate::state::cloud::DENSITY_FROM;
     use crate::state::marks::Note;
-    use crate::state::pair::{Pair, PairSpec};
+    use crate::state::pair::{FitSpec, Pair};
 
     fn pair(n: usize) -> (tempfile::TempDir, Pair) {
         let dir = tempfile::tempdir().expect("dir");
@@ -332,7 +332,7 @@ mod tests {
             .collect();
         std::fs::write(&path, text).expect("write");
         let t = plumb_data::load(&path, &Default::default()).expect("load");
-        (dir, Pair::new(&t, PairSpec::line("y", "x")).expect("pair"))
+        (dir, Pair::new(&t, FitSpec::line("y", "x")).expect("pair"))
     }
 
     fn marks() -> Marks {

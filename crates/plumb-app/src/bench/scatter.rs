@@ -4,7 +4,7 @@
 
 use eframe::egui::{self, Vec2};
 use egui_plot::{FilledArea, Line, LineStyle, PlotPoints, PlotUi};
-use plumb_core::regression::{polynomial_value, BandPoint, LiveSummary};
+use plumb_core::regression::{BandPoint, LiveSummary};
 use plumb_data::analysis::RobustFit;
 
 use super::pointer::PointerMode;
@@ -19,20 +19,39 @@ use crate::density::inside;
 use crate::palette;
 use crate::state::diagnostics::Diagnostics;
 use crate::state::marks::Marks;
-use crate::state::pair::{PairRows, PairSpec};
+use crate::state::pair::PairRows;
 
 /// Points along the drawn curve.
 const CURVE_POINTS: u32 = 120;
 
-/// The fitted line or polynomial `ŷ(x)` from the live coefficients, over `[lo, hi]`.
-pub fn curve(spec: &PairSpec, s: &LiveSummary, (lo, hi): (f64, f64)) -> Vec<[f64; 2]> {
-    if hi.partial_cmp(&lo) != Some(std::cmp::Ordering::Greater) {
+/// The fitted curves over `[lo, hi]` from the live coefficients, in the data's units: one for
+/// a model of one predictor, one per level of its grouping factor (level index, points).
+/// None for a model of several predictors (its fit is not a curve in the first one alone).
+pub fn curves(
+    pair: &PairRows,
+    s: &LiveSummary,
+    (lo, hi): (f64, f64),
+) -> Vec<(Option<usize>, Vec<[f64; 2]>)> {
+    if pair.spec.x.len() != 1 || hi.partial_cmp(&lo) != Some(std::cmp::Ordering::Greater) {
         return Vec::new();
     }
-    (0..=CURVE_POINTS)
-        .map(|k| {
-            let x = lo + (hi - lo) * f64::from(k) / f64::from(CURVE_POINTS);
-            [x, polynomial_value(&s.estimates, spec.intercept, x)]
+    let model = &pair.model;
+    let levels: Vec<Option<usize>> = match &model.levels {
+        Some(l) => (0..l.names.len()).map(Some).collect(),
+        None => vec![None],
+    };
+    levels
+        .into_iter()
+        .map(|level| {
+            let points = (0..=CURVE_POINTS)
+                .filter_map(|k| {
+                    let x = lo + (hi - lo) * f64::from(k) / f64::from(CURVE_POINTS);
+                    let row = model.row_at(&[x], level)?;
+                    let t: f64 = row.iter().zip(&s.estimates).map(|(a, b)| a * b).sum();
+                    Some([x, model.response_back(t)?])
+                })
+                .collect();
+            (level, points)
         })
         .collect()
 }
@@ -57,7 +76,7 @@ pub fn scatter_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui, size:
     let pair = scene.pair;
     title_ui(
         ui,
-        &format!("{} against {}", pair.spec.y, pair.spec.x),
+        &format!("{} against {}", pair.spec.y, pair.spec.x0()),
         "The rows with the fitted line or curve, its confidence band (shaded) and prediction band (dashed). Hollow rings are excluded rows.",
     );
     let marked = Marked::of(pair, scene.marks);
@@ -65,7 +84,7 @@ pub fn scatter_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui, size:
     let mut plot = axes::plot(
         ("scatter", scene.bench.serial()),
         size,
-        (&pair.spec.x, &pair.spec.y),
+        (pair.spec.x0(), &pair.spec.y),
     )
     .allow_drag(own.pointer.mode == PointerMode::Exclude)
     .legend(egui_plot::Legend::default().position(egui_plot::Corner::RightTop));
@@ -129,12 +148,19 @@ fn draw(
     };
     points_layer(pu, &layer, &mut own.textures, visuals);
     if let Some(Ok(s)) = scene.bench.summary() {
-        pu.line(
-            Line::new("least squares", curve(&pair.spec, &s, x_range))
-                .color(palette::fit(visuals))
-                .width(2.0)
-                .allow_hover(false),
-        );
+        let names = pair.model.levels.as_ref().map(|l| l.names.as_slice());
+        for (level, points) in curves(pair, &s, x_range) {
+            let (name, colour) = match (level, names) {
+                (Some(k), Some(n)) => (format!("fit, {}", n[k]), palette::group(k)),
+                _ => ("least squares".to_string(), palette::fit(visuals)),
+            };
+            pu.line(
+                Line::new(name, points)
+                    .color(colour)
+                    .width(2.0)
+                    .allow_hover(false),
+            );
+        }
     }
     if own.pointer.lasso.len() > 1 {
         pu.line(
@@ -287,6 +313,7 @@ fn overlays(
 mod tests {
     use super::*;
     use crate::state::marks::Note;
+    use crate::state::pair::FitSpec;
 
     fn summary(estimates: Vec<f64>) -> LiveSummary {
         LiveSummary {
@@ -304,16 +331,55 @@ mod tests {
     }
 
     #[test]
-    fn the_curve_spans_the_x_range_and_follows_the_live_coefficients() {
-        let spec = PairSpec {
+    fn the_curves_span_the_x_range_and_follow_the_live_coefficients() {
+        let dir = tempfile::tempdir().expect("dir");
+        let path = dir.path().join("c.csv");
+        let text: String = std::iter::once("x,y,g\n".to_string())
+            .chain((0..12).map(|i| {
+                format!(
+                    "{i},{},{}\n",
+                    1.0 + f64::from(i) * 0.7 + f64::from(i % 3),
+                    ["a", "b"][i as usize % 2]
+                )
+            }))
+            .collect();
+        std::fs::write(&path, text).expect("write");
+        let t = plumb_data::load(&path, &Default::default()).expect("load");
+        let quadratic = FitSpec {
             degree: 2,
-            ..PairSpec::line("y", "x")
+            ..FitSpec::line("y", "x")
         };
-        let c = curve(&spec, &summary(vec![1.0, 0.0, 2.0]), (-1.0, 3.0));
-        assert_eq!(c.len(), CURVE_POINTS as usize + 1);
-        assert_eq!(c[0], [-1.0, 3.0], "1 + 2x² at x = −1");
-        assert_eq!(c[c.len() - 1], [3.0, 19.0], "1 + 2x² at x = 3");
-        assert!(curve(&spec, &summary(vec![1.0]), (2.0, 2.0)).is_empty());
+        let pair = crate::state::pair::Pair::new(&t, quadratic).expect("pair");
+        let c = curves(&pair, &summary(vec![1.0, 0.0, 2.0]), (-1.0, 3.0));
+        assert_eq!(c.len(), 1);
+        let points = &c[0].1;
+        assert_eq!(points.len(), CURVE_POINTS as usize + 1);
+        assert_eq!(points[0], [-1.0, 3.0], "1 + 2x² at x = −1");
+        assert_eq!(points[points.len() - 1], [3.0, 19.0], "1 + 2x² at x = 3");
+        assert!(curves(&pair, &summary(vec![1.0, 0.0, 2.0]), (2.0, 2.0)).is_empty());
+        // On a log scale the line is drawn back as exp(a + b·x); grouped, one curve per level.
+        let logged = FitSpec {
+            response: plumb_data::analysis::ResponseScale::Fixed(
+                plumb_core::regression::Transform::Ln,
+            ),
+            factor: Some(plumb_data::analysis::Factor {
+                column: "g".into(),
+                reference: None,
+                separate_slopes: false,
+            }),
+            ..FitSpec::line("y", "x")
+        };
+        let pair = crate::state::pair::Pair::new(&t, logged).expect("pair");
+        let c = curves(&pair, &summary(vec![0.5, 0.1, 0.3]), (0.0, 10.0));
+        assert_eq!(
+            c.iter().map(|(l, _)| *l).collect::<Vec<_>>(),
+            [Some(0), Some(1)]
+        );
+        assert!((c[0].1[0][1] - 0.5f64.exp()).abs() < 1e-12);
+        assert!(
+            (c[1].1[0][1] - 0.8f64.exp()).abs() < 1e-12,
+            "level b sits 0.3 higher"
+        );
     }
 
     #[test]
@@ -322,7 +388,7 @@ mod tests {
         let path = dir.path().join("d.csv");
         std::fs::write(&path, "x,y\n1,1\n2,2\n3,3\n4,4\n5,5\n6,6.5\n").expect("write");
         let t = plumb_data::load(&path, &Default::default()).expect("load");
-        let pair = crate::state::pair::Pair::new(&t, PairSpec::line("y", "x")).expect("pair");
+        let pair = crate::state::pair::Pair::new(&t, FitSpec::line("y", "x")).expect("pair");
         let mut marks = Marks::default();
         marks.excluded.insert(
             2,

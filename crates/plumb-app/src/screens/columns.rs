@@ -6,7 +6,7 @@ use eframe::egui::{self, RichText};
 use plumb_report::text::num;
 
 use crate::action::{Action, Actions};
-use crate::state::pair::PairSpec;
+use crate::state::pair::FitSpec;
 use crate::state::{DialogPurpose, Loaded, Screen, State};
 
 /// What the screen keeps between frames.
@@ -139,7 +139,7 @@ fn next_steps_ui(loaded: &Loaded, ui: &mut egui::Ui) -> Actions {
         .on_hover_text("Open the first two numeric columns on the pair bench")
         .clicked()
     {
-        out.push(Action::OpenPair(PairSpec::line(&numeric[1], &numeric[0])));
+        out.push(Action::OpenPair(FitSpec::line(&numeric[1], &numeric[0])));
         out.push(Action::Show(Screen::Bench));
     }
     out

@@ -10,7 +10,7 @@ use plumb_report::wording;
 use crate::action::{Action, Actions};
 use crate::palette;
 use crate::state::map::{MapKey, MapResult};
-use crate::state::pair::PairSpec;
+use crate::state::pair::FitSpec;
 use crate::state::{Screen, State};
 
 /// What the screen keeps between frames.
@@ -72,7 +72,7 @@ pub fn map_ui(state: &State, own: &mut MapUi, ui: &mut egui::Ui) -> Actions {
         wording::line(&wording::MAP_CAUTIONS)
     ));
     if let Some((i, j)) = chosen {
-        out.push(Action::OpenPair(PairSpec::line(
+        out.push(Action::OpenPair(FitSpec::line(
             &result.columns[i],
             &result.columns[j],
         )));

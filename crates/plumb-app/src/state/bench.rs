@@ -7,7 +7,7 @@ use super::dataset::Dataset;
 use super::diagnostics::{compute, Diagnostics, Input, Overlays};
 use super::jobs::{Job, Waker};
 use super::marks::Marks;
-use super::pair::{Pair, PairSpec};
+use super::pair::{FitSpec, Pair};
 use crate::error::WorkbenchError;
 
 /// Rows just excluded that wait for their reason.
@@ -106,7 +106,7 @@ impl BenchModel {
     pub fn open(
         &mut self,
         data: &Dataset,
-        spec: PairSpec,
+        spec: FitSpec,
         marks: &Marks,
     ) -> Result<(), WorkbenchError> {
         let mut pair = Pair::new(&data.table, spec)?;
@@ -221,10 +221,10 @@ mod tests {
         let waker = Waker::default();
         let mut bench = BenchModel::default();
         bench
-            .open(&data, PairSpec::line("a", "t"), &marks)
+            .open(&data, FitSpec::line("a", "t"), &marks)
             .expect("first pair");
         bench.poll(&data, &marks, &waker);
-        let second = PairSpec::line("b", "a");
+        let second = FitSpec::line("b", "a");
         bench
             .open(&data, second.clone(), &marks)
             .expect("second pair");

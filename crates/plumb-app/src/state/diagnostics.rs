@@ -7,14 +7,14 @@
 use std::sync::Arc;
 
 use plumb_core::alternative::{deming, DemingFit};
-use plumb_core::regression::{normal_scores, polynomial_value, CaseInfluence, LinearFit};
+use plumb_core::regression::{normal_scores, CaseInfluence, LinearFit};
 use plumb_data::analysis::{analyze, ExtrasRequest, PairExtras, Robust, Wanted};
 use plumb_data::Table;
 use plumb_report::{exclusion_effects, Effect};
 
 use super::cloud::Cloud;
 use super::marks::Marks;
-use super::pair::{Pair, PairSpec};
+use super::pair::{FitSpec, Pair, PairRows};
 
 /// Optional overlays on the scatter.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -43,16 +43,12 @@ impl Default for Overlays {
 /// What a diagnostics job needs (cheap to clone: the columns are shared).
 #[derive(Debug, Clone)]
 pub struct Input {
-    /// The table (the analysis reads the pair's columns from it).
+    /// The table (the analysis reads the model's columns from it).
     pub table: Arc<Table>,
     /// The model.
-    pub spec: PairSpec,
-    /// The pair's data rows, ascending (entry `i` is row `rows[i]`).
-    pub rows: Arc<[usize]>,
-    /// Predictor values in the file.
-    pub x: Arc<[f64]>,
-    /// Response values in the file.
-    pub y: Arc<[f64]>,
+    pub spec: FitSpec,
+    /// The model's rows and values.
+    pub pair: PairRows,
     /// The analyst's marks.
     pub marks: Marks,
     /// Overlays asked for.
@@ -73,9 +69,7 @@ impl Input {
         Self {
             table: Arc::clone(table),
             spec: pair.spec.clone(),
-            rows: Arc::clone(&pair.rows),
-            x: Arc::clone(&pair.x),
-            y: Arc::clone(&pair.y),
+            pair: pair.rows(),
             marks: marks.clone(),
             overlays,
             groups,
@@ -84,16 +78,12 @@ impl Input {
 
     /// Current position of entry `i`: moved (what-if) or as in the file.
     fn point(&self, i: usize) -> (f64, f64) {
-        self.marks
-            .moved
-            .get(&self.rows[i])
-            .copied()
-            .unwrap_or((self.x[i], self.y[i]))
+        self.pair.point(i, &self.marks)
     }
 
     /// The pair entry of data row `row`.
     fn entry_of(&self, row: usize) -> Option<usize> {
-        self.rows.binary_search(&row).ok()
+        self.pair.index_of(row)
     }
 }
 
@@ -101,7 +91,7 @@ impl Input {
 #[derive(Debug, Clone)]
 pub struct Diagnostics {
     /// The model these results are for.
-    pub spec: PairSpec,
+    pub spec: FitSpec,
     /// The marks these results are for.
     pub marks: Marks,
     /// Pair entries included, ascending; `cases[k]` belongs to `included[k]`.
@@ -228,10 +218,17 @@ fn top_by(cases: &[CaseInfluence], key: impl Fn(&CaseInfluence) -> f64) -> Vec<u
     idx
 }
 
-/// `ŷ(x)` of the pair's fit.
-pub fn predict(spec: &PairSpec, f: &LinearFit, x: f64) -> f64 {
-    let beta: Vec<f64> = f.coefficients.iter().map(|c| c.estimate).collect();
-    polynomial_value(&beta, spec.intercept, x)
+/// Entry `i` at its current position against `f`: `(ŷ, y − ŷ)` on the model's scale (`None`
+/// where a transform cannot take its values).
+pub fn against_fit(pair: &PairRows, marks: &Marks, f: &LinearFit, i: usize) -> Option<(f64, f64)> {
+    let (x, y) = pair.point(i, marks);
+    let (row, y_t) = pair.model_row(i, x, y)?;
+    let yhat: f64 = row
+        .iter()
+        .zip(&f.coefficients)
+        .map(|(a, c)| a * c.estimate)
+        .sum();
+    Some((yhat, y_t - yhat))
 }
 
 fn views_of(
@@ -253,12 +250,14 @@ fn views_of(
         .filter_map(|&r| input.entry_of(r))
         .collect();
     let excluded_residuals = f.map_or_else(Cloud::default, |f| {
-        let at = |&i: &usize| {
-            let (x, y) = input.point(i);
-            let yhat = predict(&input.spec, f, x);
-            (yhat, y - yhat)
-        };
-        Cloud::new(excluded.iter().map(at).collect(), excluded)
+        let placed: Vec<(usize, (f64, f64))> = excluded
+            .iter()
+            .filter_map(|&i| Some((i, against_fit(&input.pair, &input.marks, f, i)?)))
+            .collect();
+        Cloud::new(
+            placed.iter().map(|p| p.1).collect(),
+            placed.iter().map(|p| p.0).collect(),
+        )
     });
     Views {
         residual: cloud(|c| (c.fitted, c.residual)),
@@ -292,18 +291,14 @@ fn group_lines(input: &Input, included: &[usize]) -> Vec<GroupLine> {
         return Vec::new();
     };
     let levels = groups.iter().flatten().copied().max().map_or(0, |m| m + 1);
-    let line = PairSpec {
-        degree: 1,
-        intercept: true,
-        ..input.spec.clone()
-    };
+    let line = FitSpec::line(&input.spec.y, input.spec.x0());
     (0..levels)
         .filter_map(|level| {
             let mut request = line.with_marks(&input.marks);
             request.exclude.extend(
-                (0..input.rows.len())
+                (0..input.pair.rows.len())
                     .filter(|&i| groups[i] != Some(level))
-                    .map(|i| input.rows[i]),
+                    .map(|i| input.pair.rows[i]),
             );
             let n = included
                 .iter()
@@ -341,7 +336,7 @@ mod tests {
         }
         std::fs::write(&path, text).expect("write");
         let data = crate::state::dataset::Dataset::load(&path, &Default::default()).expect("load");
-        let pair = Pair::new(&data.table, PairSpec::line("y", "x")).expect("pair");
+        let pair = Pair::new(&data.table, FitSpec::line("y", "x")).expect("pair");
         let mut marks = Marks::default();
         marks.excluded.insert(
             13,
@@ -375,7 +370,7 @@ mod tests {
         assert_eq!(d.group_lines.iter().map(|g| g.n).sum::<usize>(), 29);
         let fit = d.fit.expect("fit");
         for (k, &i) in d.included.iter().enumerate() {
-            let yhat = predict(&pair.spec, &fit, pair.x[i]);
+            let (yhat, _) = against_fit(&pair, &marks, &fit, i).expect("in the domain");
             assert!((yhat - fit.fitted[k]).abs() < 1e-9 * yhat.abs().max(1.0));
         }
         assert_eq!(d.views.excluded_residuals.entries, vec![12]);
@@ -385,7 +380,7 @@ mod tests {
             .windows(2)
             .all(|w| d.cases[w[0]].leverage >= d.cases[w[1]].leverage));
         assert_eq!(d.top[2].len(), 29);
-        let live = Pair::new(&data.table, PairSpec::line("y", "x"))
+        let live = Pair::new(&data.table, FitSpec::line("y", "x"))
             .expect("pair")
             .apply(&marks)
             .clone()
@@ -404,7 +399,7 @@ mod tests {
             .collect();
         std::fs::write(&path, text).expect("write");
         let data = crate::state::dataset::Dataset::load(&path, &Default::default()).expect("load");
-        let mut pair = Pair::new(&data.table, PairSpec::line("y", "x")).expect("pair");
+        let mut pair = Pair::new(&data.table, FitSpec::line("y", "x")).expect("pair");
         let mut marks = Marks::default();
         marks.moved.insert(7, (6.0, 40.0));
         let live = pair.apply(&marks).clone().expect("live");

@@ -10,7 +10,7 @@ use plumb_report::file_sha256;
 use super::dataset::Dataset;
 use super::jobs::{Job, Waker};
 use super::marks::Marks;
-use super::pair::PairSpec;
+use super::pair::FitSpec;
 use super::settings::Recent;
 use crate::error::WorkbenchError;
 
@@ -27,7 +27,7 @@ pub struct Loaded {
 #[derive(Debug, Clone, Default)]
 pub struct AfterLoad {
     /// Open this pair on the bench.
-    pub pair: Option<PairSpec>,
+    pub pair: Option<FitSpec>,
     /// Start from these marks.
     pub marks: Option<Marks>,
     /// The session file the work belongs to.

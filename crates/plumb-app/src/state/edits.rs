@@ -5,7 +5,7 @@
 
 use super::diagnostics::Overlays;
 use super::marks::{now_rfc3339, Marks, Note, DEFAULT_REASON};
-use super::pair::PairSpec;
+use super::pair::FitSpec;
 use super::{Prompt, State};
 
 impl State {
@@ -146,7 +146,7 @@ impl State {
 
     /// Puts pair `spec` on the bench (keeping the marks). False, with a message, if the
     /// columns cannot be fitted.
-    pub(crate) fn open_pair(&mut self, spec: PairSpec) -> bool {
+    pub(crate) fn open_pair(&mut self, spec: FitSpec) -> bool {
         let Some(loaded) = &self.doc.loaded else {
             return false;
         };

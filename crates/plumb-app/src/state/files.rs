@@ -8,7 +8,7 @@ use plumb_report::report::{build, write, ReportInput};
 use plumb_report::Session;
 
 use super::marks::History;
-use super::pair::PairSpec;
+use super::pair::FitSpec;
 use super::sessions::{
     clear_recovery, data_is_beside, marks_of, recovery_of, recovery_path, session_of, spec_of,
     write_recovery,
@@ -116,7 +116,7 @@ impl State {
         self.doc.session_path = then.session;
         let first_pair = then.pair.or_else(|| {
             let n = &loaded.dataset.numeric;
-            (n.len() >= 2).then(|| PairSpec::line(&n[1], &n[0]))
+            (n.len() >= 2).then(|| FitSpec::line(&n[1], &n[0]))
         });
         self.doc.loaded = Some(loaded);
         self.screen = Screen::Columns;

@@ -1,54 +1,94 @@
-//! The pair on screen: its complete rows, the live fit that follows the analyst's marks, and
-//! the model's numbers.
+//! The model on the bench: its complete rows, the live fit that follows the analyst's marks,
+//! and the model's numbers. The bench shows the response against the first predictor; the
+//! model may have several predictors, weights, a grouping factor and transforms.
 
 use std::sync::Arc;
 
-use plumb_core::regression::{LiveFit, LiveSummary};
-use plumb_data::analysis::{model_rows, FitRequest, WhatIf};
+use plumb_core::regression::{LiveFit, LiveSummary, Transform};
+use plumb_data::analysis::{model_rows, Factor, FitRequest, ModelRows, ResponseScale, WhatIf};
 use plumb_data::Table;
 
 use super::cloud::Cloud;
 use super::marks::Marks;
 use crate::error::WorkbenchError;
 
-/// Which model of which two columns.
+/// The model: its response, predictors, and how they enter.
 #[derive(Debug, Clone, PartialEq)]
-pub struct PairSpec {
+pub struct FitSpec {
     /// Response column.
     pub y: String,
-    /// Predictor column.
-    pub x: String,
-    /// Polynomial degree (1 = straight line).
+    /// Predictor columns (at least one; the first is the scatter's x).
+    pub x: Vec<String>,
+    /// Polynomial degree of a single predictor (1 = straight line).
     pub degree: u32,
     /// Fit an intercept.
     pub intercept: bool,
     /// Confidence level of intervals and bands.
     pub level: f64,
+    /// Column of positive weights.
+    pub weights: Option<String>,
+    /// A grouping column entering as indicator terms.
+    pub factor: Option<Factor>,
+    /// The response's scale.
+    pub response: ResponseScale,
+    /// Transforms of predictors, by column.
+    pub x_transforms: Vec<(String, Transform)>,
 }
 
-impl PairSpec {
-    /// A straight line with intercept at the 95% level.
+impl FitSpec {
+    /// A straight line of `y` on `x` with intercept at the 95% level.
     pub fn line(y: &str, x: &str) -> Self {
         Self {
             y: y.to_string(),
-            x: x.to_string(),
+            x: vec![x.to_string()],
             degree: 1,
             intercept: true,
             level: 0.95,
+            weights: None,
+            factor: None,
+            response: ResponseScale::Identity,
+            x_transforms: Vec::new(),
         }
+    }
+
+    /// The model part of a request (its rows and what-if values set aside).
+    pub fn from_request(r: &FitRequest) -> Self {
+        Self {
+            y: r.y.clone(),
+            x: r.x.clone(),
+            degree: r.degree,
+            intercept: r.intercept,
+            level: r.level,
+            weights: r.weights.clone(),
+            factor: r.factor.clone(),
+            response: r.response,
+            x_transforms: r.x_transforms.clone(),
+        }
+    }
+
+    /// The first predictor (the scatter's x).
+    pub fn x0(&self) -> &str {
+        &self.x[0]
+    }
+
+    /// Whether a dragged point may move in x too: one predictor, as measured, no grouping
+    /// (then the design row follows from x alone).
+    pub fn moves_in_x(&self) -> bool {
+        self.x.len() == 1 && self.factor.is_none()
     }
 
     /// The model on every complete row (what the live engine starts from).
     pub fn model(&self) -> FitRequest {
         FitRequest {
             y: self.y.clone(),
-            x: vec![self.x.clone()],
+            x: self.x.clone(),
             intercept: self.intercept,
             degree: self.degree,
-            weights: None,
-            exclude: Vec::new(),
-            what_if: Vec::new(),
+            weights: self.weights.clone(),
             level: self.level,
+            factor: self.factor.clone(),
+            response: self.response,
+            x_transforms: self.x_transforms.clone(),
             ..FitRequest::default()
         }
     }
@@ -63,7 +103,7 @@ impl PairSpec {
     }
 
     /// The model as the analyst sees it: the exclusions of `marks`, and its what-if moves in
-    /// place of the measured values.
+    /// place of the measured values (the first predictor and the response).
     pub fn with_marks(&self, marks: &Marks) -> FitRequest {
         let what_if = marks
             .moved
@@ -72,7 +112,7 @@ impl PairSpec {
                 [
                     WhatIf {
                         row,
-                        column: self.x.clone(),
+                        column: self.x[0].clone(),
                         value: x,
                     },
                     WhatIf {
@@ -90,17 +130,17 @@ impl PairSpec {
     }
 }
 
-/// The rows and values of a pair: cheap to clone (the columns are shared), so views can hold
+/// The rows and values of the model on the bench: cheap to clone (shared), so views can hold
 /// a copy while the workbench changes.
 #[derive(Debug, Clone)]
 pub struct PairRows {
     /// The model.
-    pub spec: PairSpec,
-    /// 1-based data rows with both values present, ascending.
+    pub spec: FitSpec,
+    /// 1-based data rows with every value the model needs, ascending.
     pub rows: Arc<[usize]>,
-    /// Predictor values as in the data file, one per entry of `rows`.
+    /// The first predictor as in the data file, one per entry of `rows`.
     pub x: Arc<[f64]>,
-    /// Response values as in the data file.
+    /// The response as in the data file.
     pub y: Arc<[f64]>,
     /// Rows of the file left out because a value is missing or not finite.
     pub incomplete: usize,
@@ -108,9 +148,11 @@ pub struct PairRows {
     pub terms: Arc<[String]>,
     /// The points `(x, y)` at their file positions, indexed for hover.
     pub points: Arc<Cloud>,
+    /// The model's rows, design and scales (for design rows at moved points and curves).
+    pub model: Arc<ModelRows>,
 }
 
-/// The complete rows of a pair and a live fit over them.
+/// The complete rows of the model and a live fit over them.
 #[derive(Debug, Clone)]
 pub struct Pair {
     base: PairRows,
@@ -132,17 +174,20 @@ impl Pair {
     /// # Errors
     /// A column that is not numeric or unknown, or a model the rows cannot support; the
     /// message names the file and column.
-    pub fn new(table: &Table, spec: PairSpec) -> Result<Self, WorkbenchError> {
+    pub fn new(table: &Table, spec: FitSpec) -> Result<Self, WorkbenchError> {
         let rows =
             model_rows(table, &spec.model()).map_err(|e| WorkbenchError::Model(e.to_string()))?;
         let terms: Vec<String> = rows.design.terms().iter().map(|t| t.name.clone()).collect();
-        let live = LiveFit::new(rows.design.clone(), rows.y().to_vec(), rows.options.clone())
-            .map_err(|e| WorkbenchError::Model(format!("{}: {e}", table.source().display())))?;
-        let selection = rows.selection;
-        let [y, x]: [Vec<f64>; 2] = selection
-            .columns
-            .try_into()
-            .map_err(|_| WorkbenchError::Model("two columns expected".into()))?;
+        let weights = rows.weights().map(<[f64]>::to_vec);
+        let live = LiveFit::weighted(
+            rows.design.clone(),
+            rows.y().to_vec(),
+            weights,
+            rows.options.clone(),
+        )
+        .map_err(|e| WorkbenchError::Model(format!("{}: {e}", table.source().display())))?;
+        let selection = &rows.selection;
+        let (y, x) = (selection.columns[0].clone(), selection.columns[1].clone());
         let points = Cloud::new(
             x.iter().copied().zip(y.iter().copied()).collect(),
             (0..selection.rows.len()).collect(),
@@ -150,12 +195,13 @@ impl Pair {
         Ok(Self {
             base: PairRows {
                 spec,
-                rows: selection.rows.into(),
+                rows: selection.rows.clone().into(),
                 x: x.into(),
                 y: y.into(),
                 incomplete: selection.dropped.len(),
                 terms: terms.into(),
                 points: Arc::new(points),
+                model: Arc::new(rows),
             },
             live,
             applied: Marks::default(),
@@ -192,14 +238,11 @@ impl Pair {
             .collect();
         for row in changed {
             if let Some(i) = self.index_of(row) {
-                let (x, y) = marks
-                    .moved
-                    .get(&row)
-                    .copied()
-                    .unwrap_or((self.x[i], self.y[i]));
-                // Only finite positions reach here (the plot gives finite coordinates), and a
-                // pair always has one predictor, so a move cannot be refused.
-                let _ = self.live.move_point(i, x, y);
+                let (x, y) = self.base.point(i, marks);
+                if let Some((design_row, y_t)) = self.base.model_row(i, x, y) {
+                    // A finite row of the right length: the engine takes it.
+                    let _ = self.live.set_row(i, &design_row, y_t);
+                }
             }
         }
         self.applied = marks.clone();
@@ -246,6 +289,20 @@ impl PairRows {
             .copied()
             .filter(|&r| self.index_of(r).is_some())
             .collect()
+    }
+
+    /// The design row and the response on the model's scale of entry `i` with its first
+    /// predictor at `x` and its response at `y` (data units): `None` where a transform
+    /// cannot take them.
+    pub fn model_row(&self, i: usize, x: f64, y: f64) -> Option<(Vec<f64>, f64)> {
+        let model = &self.model;
+        let mut values: Vec<f64> = (1..=self.spec.x.len())
+            .map(|c| model.selection.columns[c][i])
+            .collect();
+        values[0] = x;
+        let level = model.levels.as_ref().map(|l| l.of_row[i]);
+        let row = model.row_at(&values, level)?;
+        Some((row, model.response_transform.apply(y)?))
     }
 }
 
@@ -294,9 +351,9 @@ mod tests {
     fn live_numbers_match_the_shared_fit_path_after_any_sequence_of_marks() {
         let t = table();
         for degree in [1, 2] {
-            let spec = PairSpec {
+            let spec = FitSpec {
                 degree,
-                ..PairSpec::line("y", "x")
+                ..FitSpec::line("y", "x")
             };
             let mut pair = Pair::new(&t, spec.clone()).expect("pair");
             assert_eq!(pair.incomplete, 1);
@@ -318,7 +375,7 @@ mod tests {
     #[test]
     fn a_move_changes_the_numbers_and_undoing_it_restores_them() {
         let t = table();
-        let mut pair = Pair::new(&t, PairSpec::line("y", "x")).expect("pair");
+        let mut pair = Pair::new(&t, FitSpec::line("y", "x")).expect("pair");
         let base = pair.apply(&Marks::default()).clone().expect("fits");
         let mut moved = Marks::default();
         moved.moved.insert(10, (4.5, 40.0));

@@ -7,7 +7,7 @@ use plumb_report::{DataSource, Exclusion, LoadSpec, ModelSpec, Session, SCHEMA_V
 
 use super::dataset::Dataset;
 use super::marks::{Marks, Note};
-use super::pair::PairSpec;
+use super::pair::FitSpec;
 
 /// Key in the session's `view` map naming the session file the recovery copy belongs to.
 const RECOVERY_OF: &str = "recovery_of";
@@ -16,7 +16,7 @@ const RECOVERY_OF: &str = "recovery_of";
 pub fn session_of(
     data: &Dataset,
     sha256: &str,
-    spec: Option<&PairSpec>,
+    spec: Option<&FitSpec>,
     marks: &Marks,
     session_path: &Path,
 ) -> Session {
@@ -66,17 +66,14 @@ pub fn marks_of(session: &Session) -> Marks {
     }
 }
 
-/// The pair a session's first model describes, if it has one predictor.
-pub fn spec_of(session: &Session) -> Option<PairSpec> {
+/// The model a session's first model describes (`None` without one, or with a transform this
+/// build does not know).
+pub fn spec_of(session: &Session) -> Option<FitSpec> {
     let m = session.models.first()?;
-    let [x] = m.x.as_slice() else { return None };
-    Some(PairSpec {
-        y: m.y.clone(),
-        x: x.clone(),
-        degree: m.degree,
-        intercept: m.intercept,
-        level: m.level,
-    })
+    (!m.x.is_empty())
+        .then(|| m.request(Vec::new()).ok())
+        .flatten()
+        .map(|r| FitSpec::from_request(&r))
 }
 
 /// The recovery file in the settings folder.
@@ -150,7 +147,7 @@ mod tests {
             },
         );
         marks.moved.insert(2, (9.0, 9.0));
-        let spec = PairSpec::line("b", "a");
+        let spec = FitSpec::line("b", "a");
         let session_path = dir.path().join("s.plumb");
         let s = session_of(&data, "abc", Some(&spec), &marks, &session_path);
         assert_eq!(s.data.path, "d.csv");
