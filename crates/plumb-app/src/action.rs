@@ -5,7 +5,7 @@
 
 use std::path::PathBuf;
 
-use crate::state::diagnostics::Overlays;
+use crate::state::diagnostics::{Overlays, ResidualAxis};
 use crate::state::map::MapKey;
 use crate::state::pair::FitSpec;
 use crate::state::{DialogPurpose, Screen, Status};
@@ -40,6 +40,11 @@ pub enum Action {
     Show(Screen),
     /// Put this model of a pair on the bench (keeping the marks).
     OpenPair(FitSpec),
+    /// Keep the model on the bench for comparison with the ones that follow (`false`: stop
+    /// comparing).
+    KeepForComparison(bool),
+    /// Draw the residuals against fitted values, a column, or the row order.
+    ResidualsAgainst(ResidualAxis),
     /// Overlays on the scatter.
     SetOverlays(Overlays),
     /// Colour the points by a text column (a line per group), or by nothing.

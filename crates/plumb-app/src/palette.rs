@@ -20,6 +20,15 @@ pub fn group(k: usize) -> Color32 {
     GROUPS[k % GROUPS.len()]
 }
 
+/// The fit kept for comparison (drawn dashed beside the current one).
+pub fn kept(v: &Visuals) -> Color32 {
+    if v.dark_mode {
+        Color32::from_rgb(0x9F, 0xD8, 0x8A)
+    } else {
+        Color32::from_rgb(0x2E, 0x6B, 0x1F)
+    }
+}
+
 /// Included points.
 pub fn point(v: &Visuals) -> Color32 {
     if v.dark_mode {

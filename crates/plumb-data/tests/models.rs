@@ -253,3 +253,42 @@ fn added_variable_slopes_are_the_coefficients_and_comparisons_test_nested_models
         c.note
     );
 }
+
+#[test]
+fn the_ladder_suggests_the_square_for_a_bend_and_nothing_for_a_line() {
+    let dir = tempfile::tempdir().expect("dir");
+    let path = dir.path().join("bend.csv");
+    let mut text = String::from("x,bent,straight\n");
+    for i in 0..40 {
+        let x = f64::from(i) * 0.25;
+        let wobble = f64::from((i * 7919) % 13) / 13.0 - 0.5;
+        text.push_str(&format!(
+            "{x},{},{}\n",
+            3.0 + 2.0 * x - 0.6 * x * x + 0.3 * wobble,
+            3.0 + 2.0 * x + 0.3 * wobble
+        ));
+    }
+    std::fs::write(&path, text).expect("write");
+    let t = load(&path, &LoadOptions::default()).expect("load");
+    let wanted = Wanted {
+        extras: Some(Default::default()),
+        ..Wanted::default()
+    };
+    let suggested = |y: &str| {
+        let request = FitRequest {
+            y: y.into(),
+            x: vec!["x".into()],
+            ..FitRequest::default()
+        };
+        let a = analyze(&t, &request, wanted).expect("fits");
+        let e = a.extras.expect("extras");
+        // Independent reading of the same ladder: the square's partial F p-value.
+        let square = e.degrees[1].versus_previous.expect("tested").p_value;
+        (e.suggested_degree(), square)
+    };
+    let (bent, p_square) = suggested("bent");
+    assert_eq!(bent, 2, "a parabola with small noise: the square is needed");
+    assert!(p_square < plumb_data::analysis::POWER_STEP_P);
+    let (straight, p_square) = suggested("straight");
+    assert_eq!(straight, 1, "a line: p for the square is {p_square}");
+}

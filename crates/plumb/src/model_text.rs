@@ -3,9 +3,9 @@
 
 use std::fmt::Write;
 
-use plumb_core::regression::NestedComparison;
 use plumb_data::analysis::{Analysis, Comparison, FitFigures, FitRequest};
-use plumb_report::text::{fixed, num, p};
+use plumb_report::text::{fixed, num};
+use plumb_report::wording;
 
 /// The lines, or nothing for a model of columns as they are.
 pub fn render(outcome: &Analysis, request: &FitRequest, comparison: Option<&Comparison>) -> String {
@@ -20,20 +20,11 @@ pub fn render(outcome: &Analysis, request: &FitRequest, comparison: Option<&Comp
 }
 
 fn scale(out: &mut String, o: &Analysis, request: &FitRequest) -> std::fmt::Result {
-    let label = o.response_label(&request.y);
-    if label != request.y {
-        writeln!(out, "  scale                R², σ̂ and the residuals are on {label}; curves are drawn back in {}'s units", request.y)?;
+    if let Some(note) = wording::scale_note(&o.response_label(&request.y), &request.y) {
+        writeln!(out, "  scale                {note}")?;
     }
     if let Some(b) = &o.rows.boxcox {
-        let end = |v: Option<f64>| v.map_or_else(|| "unbounded".into(), |v| fixed(v, 4));
-        writeln!(
-            out,
-            "  Box–Cox              λ = {} ({}% profile-likelihood interval {} to {})",
-            fixed(b.lambda, 4),
-            b.level * 100.0,
-            end(b.interval.0),
-            end(b.interval.1)
-        )?;
+        writeln!(out, "  Box–Cox              {}", wording::box_cox(b))?;
     }
     Ok(())
 }
@@ -50,9 +41,13 @@ fn groups(out: &mut String, o: &Analysis) -> std::fmt::Result {
         out,
         "    equal slopes of {}    {}",
         g.predictor,
-        test(&g.equal_slopes)
+        wording::f_test(&g.equal_slopes)
     )?;
-    writeln!(out, "    one common line       {}", test(&g.common_line))?;
+    writeln!(
+        out,
+        "    one common line       {}",
+        wording::f_test(&g.common_line)
+    )?;
     writeln!(
         out,
         "    {:<16} {:>6} {:>14} {:>12}   interval",
@@ -73,16 +68,6 @@ fn groups(out: &mut String, o: &Analysis) -> std::fmt::Result {
     writeln!(out)
 }
 
-fn test(c: &NestedComparison) -> String {
-    format!(
-        "F {} on {} and {} df, p {}",
-        fixed(c.f_statistic, 4),
-        c.df_num,
-        c.df_den,
-        p(c.p_value)
-    )
-}
-
 fn compared(out: &mut String, c: &Comparison) -> std::fmt::Result {
     writeln!(out, "  beside another model ({})", c.note)?;
     let row = |name: &str, f: &FitFigures| {
@@ -101,7 +86,7 @@ fn compared(out: &mut String, c: &Comparison) -> std::fmt::Result {
     writeln!(out, "{}", row("this", &c.current))?;
     writeln!(out, "{}", row("other", &c.kept))?;
     if let Some(n) = &c.nested {
-        writeln!(out, "    partial F           {}", test(n))?;
+        writeln!(out, "    partial F           {}", wording::f_test(n))?;
     }
     writeln!(out)
 }

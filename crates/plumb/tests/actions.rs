@@ -6,63 +6,10 @@
 mod common;
 
 use std::path::Path;
-use std::time::Duration;
 
-use common::{cli_fit, demo};
+use common::{assert_same_numbers, cli_fit, close, demo, live, settle};
 
 use plumb_app::{Action, Ask, FitSpec, Screen, Workbench};
-use plumb_core::regression::LiveSummary;
-
-fn close(a: f64, b: f64) -> bool {
-    (a - b).abs() <= 1e-9 * a.abs().max(b.abs()).max(1e-300)
-}
-
-/// The live numbers equal the command line's: R², adjusted R², σ̂, and every coefficient's
-/// estimate, SE, p and interval.
-fn assert_same_numbers(live: &LiveSummary, cli: &serde_json::Value) {
-    let f = |k: &str| cli[k].as_f64().unwrap_or_else(|| panic!("{k} in {cli}"));
-    assert_eq!(live.n as u64, cli["n"].as_u64().expect("n"));
-    for (ours, key) in [
-        (live.r_squared, "r_squared"),
-        (live.adj_r_squared, "adj_r_squared"),
-        (live.residual_std_error, "residual_std_error"),
-    ] {
-        assert!(
-            close(ours, f(key)),
-            "{key}: live {ours}, plumb fit {}",
-            f(key)
-        );
-    }
-    let coefficients = cli["coefficients"].as_array().expect("coefficients");
-    assert_eq!(coefficients.len(), live.estimates.len());
-    for (j, c) in coefficients.iter().enumerate() {
-        let g = |k: &str| c[k].as_f64().expect("number");
-        let pairs = [
-            (live.estimates[j], g("estimate")),
-            (live.std_errors[j], g("std_error")),
-            (live.p_values[j], g("p_value")),
-            (live.ci[j].0, g("ci_low")),
-            (live.ci[j].1, g("ci_high")),
-        ];
-        for (ours, theirs) in pairs {
-            assert!(
-                close(ours, theirs),
-                "term {j}: live {ours}, plumb fit {theirs}"
-            );
-        }
-    }
-}
-
-fn settle(wb: &mut Workbench) {
-    assert!(
-        wb.settle(Duration::from_secs(60)),
-        "background work did not finish"
-    );
-}
-
-fn live(wb: &Workbench) -> LiveSummary {
-    wb.bench().summary().expect("a pair").expect("a fit")
-}
 
 fn calibration(config: &Path, data: &Path) -> Workbench {
     let mut wb = Workbench::new(Some(config.to_path_buf()));

@@ -368,3 +368,108 @@ fn a_file_over_the_memory_cap_opens_in_the_one_pass_view_with_the_command_lines_
     assert_eq!(v["n"], 60_000);
     assert_eq!(sha256(&data), before, "the data file is never written");
 }
+
+/// `R² = …` for `plumb fit DATA ARGS…`, with the scale and weighting the bench names.
+fn cli_r_squared_with(data: &Path, args: &[&str], kinds: &str) -> String {
+    let v = common::cli_fit_with(data, args);
+    let r2 = plumb_report::text::num(v["r_squared"].as_f64().expect("r²"));
+    format!("R² = {r2}{kinds}")
+}
+
+/// Model building as an analyst clicks it: a second predictor, a grouping factor, the kept
+/// fit beside a smaller model with its partial F, and a log scale on the response; each
+/// headline equals `plumb fit` with the same flags.
+#[test]
+fn a_predictor_a_factor_a_comparison_and_a_log_scale_are_built_by_clicking() {
+    let config = tempfile::tempdir().expect("config dir");
+    let work = tempfile::tempdir().expect("work dir");
+    let data = work.path().join("jar-tests.csv");
+    std::fs::copy(demo("jar-tests.csv"), &data).expect("copy");
+    let mut h = harness(config.path());
+    h.state_mut().apply(Action::Open(data.clone()));
+    settle(&mut h);
+    h.get_by_label("Pair bench").click();
+    h.run_steps(2);
+    choose(&mut h, "y:", "settled_ntu");
+    choose(&mut h, "x:", "dose_mg_l");
+    settle(&mut h);
+    // A chooser without a label is found by what it shows.
+    h.get_by_value("+ predictor").click();
+    h.run_steps(2);
+    h.get_all_by_label("raw_ntu")
+        .last()
+        .expect("listed")
+        .click();
+    settle(&mut h);
+    choose(&mut h, "group by:", "analyst");
+    settle(&mut h);
+    let spec = h.state().bench().pair().expect("pair").spec.clone();
+    assert_eq!(spec.x, ["dose_mg_l", "raw_ntu"]);
+    assert_eq!(
+        spec.factor.as_ref().map(|f| f.column.as_str()),
+        Some("analyst")
+    );
+    let full = [
+        "--y",
+        "settled_ntu",
+        "--x",
+        "dose_mg_l",
+        "--x",
+        "raw_ntu",
+        "--group",
+        "analyst",
+    ];
+    assert_eq!(shown_r_squared(&h), cli_r_squared_with(&data, &full, ""));
+    assert!(h.query_by_label_contains("Groups by analyst").is_some());
+
+    h.get_by_label("Keep this fit to compare").click();
+    settle(&mut h);
+    h.get_by_label("×").click();
+    settle(&mut h);
+    assert_eq!(
+        h.state().bench().pair().expect("pair").spec.x,
+        ["dose_mg_l"]
+    );
+    let cli = common::cli_fit_with(
+        &data,
+        &[&full[..], &["--compare-without", "raw_ntu"]].concat(),
+    );
+    let f = &cli["comparison"]["partial_f"];
+    let expected = format!(
+        "partial F: F {} on {} and {} df, p {}",
+        plumb_report::text::fixed(f["f_statistic"].as_f64().expect("F"), 4),
+        f["df_num"],
+        f["df_den"],
+        plumb_report::text::p(f["p_value"].as_f64().expect("p"))
+    );
+    assert!(
+        h.query_by_label(&expected).is_some(),
+        "the bench shows {expected}"
+    );
+    h.get_by_label("stop comparing").click();
+    settle(&mut h);
+    assert!(h.state().bench().kept().is_none());
+
+    // The response's scale is the first "as measured" chooser.
+    h.get_all_by_value("as measured")
+        .next()
+        .expect("scale")
+        .click();
+    h.run_steps(2);
+    h.get_all_by_label("ln").last().expect("ln listed").click();
+    settle(&mut h);
+    let logged = [
+        "--y",
+        "settled_ntu",
+        "--x",
+        "dose_mg_l",
+        "--group",
+        "analyst",
+        "--transform-y",
+        "ln",
+    ];
+    assert_eq!(
+        shown_r_squared(&h),
+        cli_r_squared_with(&data, &logged, " (on ln(settled_ntu))")
+    );
+}

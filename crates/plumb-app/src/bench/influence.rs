@@ -9,8 +9,9 @@ use super::view::{diagnostic_ui, guide, Diagnostic};
 use super::{BenchUi, Scene};
 use crate::action::Actions;
 
-const VIEW: Diagnostic = Diagnostic {
+const VIEW: Diagnostic<'static> = Diagnostic {
     id: "leverage",
+    variant: 0,
     title: "Leverage against studentized residual",
     tip: "Far right: unusual x. Far up or down: unusual y for its x. Curves: Cook's distance 0.5 and 1 (beyond them one row moves the fit a lot).",
     x_label: "leverage (hat value)",
@@ -49,7 +50,7 @@ pub fn influence_ui(
         ui,
         size,
         &VIEW,
-        |d| (&d.views.leverage, None),
+        |d| Some((&d.views.leverage, None)),
         |pu, cloud, v| {
             let h_max = cloud.points.iter().map(|q| q.0).fold(0.0_f64, f64::max);
             let styles = [LineStyle::dashed_loose(), LineStyle::dashed_dense()];

@@ -3,10 +3,12 @@
 //! and returns actions; what the pointer is doing, the text being typed and the density images
 //! are the bench's own UI state ([`BenchUi`]).
 
+mod added;
 mod controls;
 mod influence;
 mod ledger;
 mod model_editor;
+mod model_numbers;
 mod numbers;
 mod pointer;
 mod points;
@@ -50,6 +52,8 @@ pub struct BenchUi {
     pub z_units: bool,
     /// The side panel's tab when the numbers and the ledger share it.
     pub ledger_tab: bool,
+    /// The term whose added-variable view takes the scatter's place (`None`: the scatter).
+    pub added_term: Option<String>,
     scatter_transform: Option<PlotTransform>,
 }
 
@@ -68,6 +72,8 @@ pub struct Scene<'a> {
     pub marks: &'a Marks,
     /// The bench's model (live numbers, diagnostics, colouring).
     pub bench: &'a BenchModel,
+    /// The file's numeric columns.
+    pub columns: &'a [String],
 }
 
 /// Draws the bench.
@@ -86,6 +92,7 @@ pub fn bench_ui(state: &State, own: &mut BenchUi, ui: &mut egui::Ui) -> Actions 
         pair,
         marks: state.marks(),
         bench,
+        columns: &loaded.dataset.numeric,
     };
     if scene.marks.is_hypothetical() {
         out.extend(controls::what_if_banner_ui(scene.marks.moved.len(), ui));
@@ -148,8 +155,8 @@ fn side_panels_ui(
         .inner
 }
 
-/// The four views: the scatter with the larger share (it is where points are picked) beside
-/// the residuals; the influence view and the quantiles below.
+/// The four views: the scatter (or an added-variable view) with the larger share (it is where
+/// points are picked) beside the residuals; the influence view and the quantiles below.
 fn views_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> Actions {
     let avail = ui.available_size();
     let (w, h) = ((avail.x - 12.0).max(320.0), (avail.y - 52.0).max(280.0));
@@ -157,7 +164,7 @@ fn views_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> Actions 
     let mut out = Actions::none();
     ui.horizontal(|ui| {
         out.extend(
-            ui.vertical(|ui| scatter::scatter_ui(scene, own, ui, Vec2::new(w * 0.58, top)))
+            ui.vertical(|ui| top_left_ui(scene, own, ui, Vec2::new(w * 0.58, top)))
                 .inner,
         );
         out.extend(
@@ -177,6 +184,42 @@ fn views_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> Actions 
         );
     });
     out
+}
+
+/// The scatter, or with several terms the added-variable view the analyst picks.
+fn top_left_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui, size: Vec2) -> Actions {
+    let terms = added::terms(scene);
+    if own.added_term.as_ref().is_some_and(|t| !terms.contains(t)) && !scene.bench.is_busy() {
+        own.added_term = None;
+    }
+    if terms.is_empty() && own.added_term.is_none() {
+        return scatter::scatter_ui(scene, own, ui, size);
+    }
+    let scatter_name = format!("{} against {}", scene.pair.spec.y, scene.pair.spec.x0());
+    ui.horizontal(|ui| {
+        let shown = own
+            .added_term
+            .as_ref()
+            .map_or_else(|| scatter_name.clone(), |t| format!("added-variable: {t}"));
+        egui::ComboBox::from_id_salt("top-left-view")
+            .selected_text(shown)
+            .show_ui(ui, |ui| {
+                ui.selectable_value(&mut own.added_term, None, &scatter_name);
+                for t in &terms {
+                    ui.selectable_value(
+                        &mut own.added_term,
+                        Some(t.clone()),
+                        format!("added-variable: {t}"),
+                    );
+                }
+            })
+            .response
+            .on_hover_text("The scatter against the first predictor, or one term's added-variable view: its slope is that term's coefficient in the whole model");
+    });
+    match own.added_term.clone() {
+        Some(t) => added::added_ui(scene, own, ui, size - Vec2::new(0.0, 6.0), &t),
+        None => scatter::scatter_ui(scene, own, ui, size - Vec2::new(0.0, 6.0)),
+    }
 }
 
 /// A dense view starts at its data's extent (plus a margin): its density image would

@@ -104,7 +104,7 @@ fn predictors_ui(s: &mut FitSpec, data: &Dataset, ui: &mut egui::Ui) {
         scale_ui(s, k, ui);
         if k > 0
             && ui
-                .small_button("✕")
+                .small_button("×")
                 .on_hover_text(format!("Take {} out of the model", s.x[k]))
                 .clicked()
         {

@@ -6,7 +6,7 @@ use plumb_core::regression::{InfluenceFlag, LiveSummary};
 use plumb_report::text::{num, p, sig};
 use plumb_report::wording;
 
-use super::{BenchUi, Scene};
+use super::{model_numbers, BenchUi, Scene};
 use crate::action::{Action, Actions};
 use crate::state::diagnostics::Diagnostics;
 use crate::state::pair::PairRows;
@@ -26,12 +26,25 @@ pub enum SortKey {
 /// Rows listed in the influence table.
 const INFLUENCE_ROWS: usize = 25;
 
-/// The headline line for tests and the clipboard: `R² = …`.
+/// The headline line for tests and the clipboard: `R² = …`, with the scale it is on when the
+/// response is transformed, and whether it is weighted or uncentred.
 pub fn r_squared_line(pair: &PairRows, s: &LiveSummary) -> String {
-    let kind = if pair.spec.intercept {
-        ""
+    let y = &pair.spec.y;
+    let scale = pair.model.response_transform.label(y);
+    let mut kinds = Vec::new();
+    if scale != *y {
+        kinds.push(format!("on {scale}"));
+    }
+    if pair.spec.weights.is_some() {
+        kinds.push("weighted".to_string());
+    }
+    if !pair.spec.intercept {
+        kinds.push("uncentred, no intercept".to_string());
+    }
+    let kind = if kinds.is_empty() {
+        String::new()
     } else {
-        " (uncentred, no intercept)"
+        format!(" ({})", kinds.join("; "))
     };
     format!("R² = {}{kind}", num(s.r_squared))
 }
@@ -63,13 +76,7 @@ pub fn model_text(pair: &PairRows, s: &LiveSummary, csv: bool, hypothetical: boo
             s.n
         ));
     } else {
-        out.push_str(&format!(
-            "{} on {} (degree {}), n = {}\n",
-            pair.spec.y,
-            pair.spec.x.join(", "),
-            pair.spec.degree,
-            s.n
-        ));
+        out.push_str(&format!("{}, n = {}\n", pair.spec.describe(), s.n));
         if hypothetical {
             out.push_str("WHAT-IF: some points are moved; these numbers are hypothetical\n");
         }
@@ -112,17 +119,25 @@ pub fn numbers_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> Ac
                     ui.colored_label(ui.visuals().error_fg_color, format!("no fit: {e}"));
                 }
             }
+            let diag = scene.bench.diagnostics().map(AsRef::as_ref);
+            let current = diag.filter(|d| d.spec == pair.spec);
+            if let Some(g) = current.and_then(|d| d.groups.as_ref()) {
+                ui.separator();
+                model_numbers::groups_ui(ui, g);
+            }
+            ui.separator();
+            let mut out = model_numbers::comparison_ui(ui, scene, diag);
             ui.separator();
             ui.checkbox(&mut own.z_units, "z-units view")
                 .on_hover_text("Both columns in standard deviations from their means: the slope is then Pearson's r, and its square is R² of the straight line");
-            let diag = scene.bench.diagnostics();
             if let (true, Some(d)) = (own.z_units, diag) {
                 z_units_ui(ui, pair, d);
             }
             ui.separator();
-            cues_ui(ui, pair, diag);
+            out.extend(cues_ui(ui, scene, diag));
             ui.separator();
-            influence_table_ui(ui, scene, own)
+            out.extend(influence_table_ui(ui, scene, own));
+            out
         })
         .inner
 }
@@ -143,6 +158,7 @@ fn model_ui(ui: &mut egui::Ui, scene: &Scene<'_>, s: &LiveSummary, hypothetical:
         ));
     ui.label(format!("residual SE = {}", num(s.residual_std_error)))
         .on_hover_text("Typical size of a residual, in y's units: √(RSS/(n − p))");
+    model_numbers::scale_ui(ui, scene, scene.bench.diagnostics().map(AsRef::as_ref));
     if let Some((f, fp)) = s.f_test {
         ui.label(format!("F = {} (p = {})", num(f), p(fp)))
             .on_hover_text("Overall test that every non-intercept term is zero");
@@ -216,15 +232,16 @@ fn z_units_ui(ui: &mut egui::Ui, pair: &PairRows, d: &Diagnostics) {
     ));
 }
 
-fn cues_ui(ui: &mut egui::Ui, pair: &PairRows, diag: Option<&std::sync::Arc<Diagnostics>>) {
+fn cues_ui(ui: &mut egui::Ui, scene: &Scene<'_>, diag: Option<&Diagnostics>) -> Actions {
+    let pair = scene.pair;
     ui.label(RichText::new("Cues").strong());
     let Some(d) = diag else {
         ui.spinner();
-        return;
+        return Actions::none();
     };
     let Some(c) = d.extras.as_ref().and_then(|e| e.cues.as_ref()) else {
         ui.weak("no cues for this model");
-        return;
+        return Actions::none();
     };
     let said = wording::pair_cues(c, |k| d.included.get(k).map(|&e| pair.rows[e]));
     if said.is_empty() {
@@ -252,6 +269,7 @@ fn cues_ui(ui: &mut egui::Ui, pair: &PairRows, diag: Option<&std::sync::Arc<Diag
             ));
         }
     }
+    model_numbers::degree_button_ui(ui, scene, d)
 }
 
 fn influence_table_ui(ui: &mut egui::Ui, scene: &Scene<'_>, own: &mut BenchUi) -> Actions {

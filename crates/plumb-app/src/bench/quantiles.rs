@@ -8,8 +8,9 @@ use super::{BenchUi, Scene};
 use crate::action::Actions;
 use crate::state::cloud::Cloud;
 
-const VIEW: Diagnostic = Diagnostic {
+const VIEW: Diagnostic<'static> = Diagnostic {
     id: "quantiles",
+    variant: 0,
     title: "Normal quantiles of residuals",
     tip: "Points on the diagonal: residuals look normal. Bends at the ends: heavy or light tails; a lone point off the line: an outlier.",
     x_label: "expected normal score",
@@ -39,7 +40,7 @@ pub fn quantiles_ui(
         ui,
         size,
         &VIEW,
-        |d| (&d.views.quantile, None),
+        |d| Some((&d.views.quantile, None)),
         |pu, cloud, v| {
             pu.line(guide("y = x", diagonal(cloud).to_vec(), v));
         },

@@ -1,47 +1,105 @@
-//! Residuals against fitted values: a curve or a funnel here means the model misses structure.
+//! Residuals against the fitted values, a predictor, another numeric column (a time or
+//! sequence column) or the data row order: a curve or a funnel against the fitted values means
+//! the model misses structure; a drift along the row order points at the instrument.
 //! Excluded rows are drawn against the current fit, as rings.
 
 use eframe::egui::{self, Vec2};
 
 use super::view::{diagnostic_ui, Diagnostic};
 use super::{BenchUi, Scene};
-use crate::action::Actions;
+use crate::action::{Action, Actions};
 use crate::state::cloud::Cloud;
-use crate::state::diagnostics::{Diagnostics, Views};
+use crate::state::diagnostics::{Diagnostics, ResidualAxis, Views};
 
-const VIEW: Diagnostic = Diagnostic {
-    id: "residuals",
-    title: "Residuals against fitted values",
-    tip: "A pattern (curve, funnel) means the model misses structure. Hollow rings: excluded rows against the current fit.",
-    x_label: "fitted value",
-    y_label: "residual",
-};
+const TIP: &str = "A pattern (curve, funnel) means the model misses structure; against the row order or a time column, a drift means the measurements moved while they were taken. Hollow rings: excluded rows against the current fit.";
 
-/// The view's points: included rows as (fitted, residual), excluded rows as (prediction of the
-/// current fit, y − prediction).
+/// The view's points: included rows as (axis, residual), excluded rows as (axis, y −
+/// prediction of the current fit).
 pub fn residual_points(v: &Views) -> (&Cloud, &Cloud) {
     (&v.residual, &v.excluded_residuals)
 }
 
-fn pick(d: &Diagnostics) -> (&Cloud, Option<&Cloud>) {
+fn pick(d: &Diagnostics) -> Option<(&Cloud, Option<&Cloud>)> {
     let (points, rings) = residual_points(&d.views);
-    (points, Some(rings))
+    Some((points, Some(rings)))
 }
 
-/// Draws the view (a spinner until the first diagnostics arrive).
+/// The axes offered: the fitted values, the model's predictors, the other numeric columns of
+/// the file and the data row order.
+pub fn axes_offered(scene: &Scene<'_>) -> Vec<ResidualAxis> {
+    let spec = &scene.pair.spec;
+    let mut out = vec![ResidualAxis::Fitted];
+    out.extend(spec.x.iter().cloned().map(ResidualAxis::Column));
+    out.extend(
+        scene
+            .columns
+            .iter()
+            .filter(|c| **c != spec.y && !spec.x.contains(c))
+            .cloned()
+            .map(ResidualAxis::Column),
+    );
+    out.push(ResidualAxis::RowOrder);
+    out
+}
+
+/// Draws the view with its axis chooser (a spinner until the first diagnostics arrive).
 pub fn residuals_ui(
     scene: &Scene<'_>,
     own: &mut BenchUi,
     ui: &mut egui::Ui,
     size: Vec2,
 ) -> Actions {
-    diagnostic_ui(scene, own, ui, size, &VIEW, pick, |pu, _, v| {
-        pu.hline(
-            egui_plot::HLine::new("zero", 0.0)
-                .color(v.weak_text_color())
-                .allow_hover(false),
-        );
-    })
+    let mut out = Actions::none();
+    let asked = scene.bench.residual_axis();
+    ui.horizontal(|ui| {
+        ui.label("residuals against");
+        egui::ComboBox::from_id_salt("residual-axis")
+            .selected_text(asked.label())
+            .show_ui(ui, |ui| {
+                for axis in axes_offered(scene) {
+                    let label = axis.label();
+                    if ui.selectable_label(*asked == axis, label).clicked() && *asked != axis {
+                        out.push(Action::ResidualsAgainst(axis));
+                    }
+                }
+            })
+            .response
+            .on_hover_text(TIP);
+    });
+    let drawn = scene
+        .bench
+        .diagnostics()
+        .map(|d| (d.views.residual_axis.label(), d.scale.clone()));
+    let (x_label, scale) = drawn.unwrap_or_else(|| (asked.label(), scene.pair.spec.y.clone()));
+    let y_label = if scale == scene.pair.spec.y {
+        "residual".to_string()
+    } else {
+        format!("residual on {scale}")
+    };
+    let view = Diagnostic {
+        id: "residuals",
+        variant: 0,
+        title: "",
+        tip: TIP,
+        x_label: &x_label,
+        y_label: &y_label,
+    };
+    out.extend(diagnostic_ui(
+        scene,
+        own,
+        ui,
+        size,
+        &view,
+        pick,
+        |pu, _, v| {
+            pu.hline(
+                egui_plot::HLine::new("zero", 0.0)
+                    .color(v.weak_text_color())
+                    .allow_hover(false),
+            );
+        },
+    ));
+    out
 }
 
 #[cfg(test)]

@@ -132,6 +132,7 @@ fn draw(
     if let Some(d) = scene.bench.diagnostics() {
         bands(pu, d, visuals);
         overlays(pu, d, visuals, x_range, &colouring.levels);
+        kept_curves(pu, pair, d, visuals);
     }
     let layer = Layer {
         view: "scatter",
@@ -255,6 +256,28 @@ fn bands(pu: &mut PlotUi<'_>, d: &Diagnostics, v: &egui::Visuals) {
         pu.line(
             Line::new("prediction band", pts)
                 .color(c.gamma_multiply(0.7))
+                .style(LineStyle::dashed_loose())
+                .allow_hover(false),
+        );
+    }
+}
+
+/// The kept model's curves, dashed, when it draws in the same axes.
+fn kept_curves(pu: &mut PlotUi<'_>, pair: &PairRows, d: &Diagnostics, v: &egui::Visuals) {
+    let Some(kept) = &d.kept else { return };
+    if kept.spec.y != pair.spec.y || kept.spec.x0() != pair.spec.x0() {
+        return;
+    }
+    for c in &kept.curves {
+        let name = match &c.level {
+            Some(l) => format!("kept fit, {l}"),
+            None => "kept fit".to_string(),
+        };
+        let pts: PlotPoints = c.points.iter().map(|p| [p.x, p.fitted]).collect();
+        pu.line(
+            Line::new(name, pts)
+                .color(palette::kept(v))
+                .width(1.8)
                 .style(LineStyle::dashed_loose())
                 .allow_hover(false),
         );

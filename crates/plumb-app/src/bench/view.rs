@@ -21,45 +21,48 @@ pub fn guide(name: &str, points: Vec<[f64; 2]>, v: &egui::Visuals) -> egui_plot:
 }
 
 /// What a diagnostic view is called and what its axes show.
-pub struct Diagnostic {
+pub struct Diagnostic<'a> {
     /// Keys the view's zoom memory and density image.
     pub id: &'static str,
+    /// Tells apart views that share an `id` (one per model term), for the density image.
+    pub variant: u64,
     /// Title above the view.
-    pub title: &'static str,
+    pub title: &'a str,
     /// What the view shows, on hover of the title.
-    pub tip: &'static str,
+    pub tip: &'a str,
     /// Horizontal axis.
-    pub x_label: &'static str,
+    pub x_label: &'a str,
     /// Vertical axis.
-    pub y_label: &'static str,
+    pub y_label: &'a str,
 }
 
 /// Draws one diagnostic view: the points `pick` takes from the diagnostics (included rows, and
 /// excluded rows drawn as rings), with `guides` drawn first. A spinner while the first
-/// diagnostics compute.
+/// diagnostics compute (or while those on hand are for a model without the view).
 pub fn diagnostic_ui(
     scene: &Scene<'_>,
     own: &mut BenchUi,
     ui: &mut egui::Ui,
     size: Vec2,
-    view: &Diagnostic,
-    pick: fn(&Diagnostics) -> (&Cloud, Option<&Cloud>),
+    view: &Diagnostic<'_>,
+    pick: impl for<'d> Fn(&'d Diagnostics) -> Option<(&'d Cloud, Option<&'d Cloud>)>,
     guides: impl FnOnce(&mut PlotUi<'_>, &Cloud, &egui::Visuals),
 ) -> Actions {
-    title_ui(ui, view.title, view.tip);
-    let Some(d) = scene.bench.diagnostics() else {
+    if !view.title.is_empty() {
+        title_ui(ui, view.title, view.tip);
+    }
+    let Some((points, excluded)) = scene.bench.diagnostics().and_then(|d| pick(d)) else {
         ui.add_sized(size, egui::Spinner::new());
         return Actions::none();
     };
     let none = Cloud::default();
-    let (points, excluded) = pick(d);
     let excluded = excluded.unwrap_or(&none);
     let focus = own
         .pointer
         .focus()
         .and_then(|e| points.position_of(e).or_else(|| excluded.position_of(e)));
     let mut plot = axes::plot(
-        (view.id, scene.bench.serial()),
+        (view.id, view.variant, scene.bench.serial()),
         size,
         (view.x_label, view.y_label),
     )
@@ -82,7 +85,7 @@ pub fn diagnostic_ui(
             skip: &skip,
             extra: &none,
             focus,
-            generation: scene.bench.diag_generation(),
+            generation: scene.bench.diag_generation() ^ (view.variant << 48),
         };
         points_layer(pu, &layer, textures, &visuals);
     });

@@ -3,8 +3,10 @@
 
 use std::sync::Arc;
 
+use plumb_core::regression::BoxCox;
+
 use super::dataset::Dataset;
-use super::diagnostics::{compute, Diagnostics, Input, Overlays};
+use super::diagnostics::{compute, Diagnostics, Input, Overlays, ResidualAxis};
 use super::jobs::{Job, Waker};
 use super::marks::Marks;
 use super::pair::{FitSpec, Pair};
@@ -32,7 +34,10 @@ pub struct Colouring {
 #[derive(Default)]
 pub struct BenchModel {
     pair: Option<Pair>,
+    /// A model kept for comparison with the one on the bench (survives opening another).
+    kept: Option<FitSpec>,
     overlays: Overlays,
+    residual_axis: ResidualAxis,
     colouring: Colouring,
     diag: Option<Arc<Diagnostics>>,
     job: Option<Job<Diagnostics>>,
@@ -62,6 +67,32 @@ impl BenchModel {
         self.pair
             .as_ref()
             .map(|p| p.summary().clone().map_err(|e| e.to_string()))
+    }
+
+    /// The model kept for comparison.
+    pub fn kept(&self) -> Option<&FitSpec> {
+        self.kept.as_ref()
+    }
+
+    /// Keeps `spec` (or nothing) for comparison with the model on the bench.
+    pub fn keep(&mut self, spec: Option<FitSpec>) {
+        if spec != self.kept {
+            self.kept = spec;
+            self.touch();
+        }
+    }
+
+    /// What the residuals are drawn against.
+    pub fn residual_axis(&self) -> &ResidualAxis {
+        &self.residual_axis
+    }
+
+    /// Draws the residuals against `axis` (recomputing the diagnostics when it changed).
+    pub fn set_residual_axis(&mut self, axis: ResidualAxis) {
+        if axis != self.residual_axis {
+            self.residual_axis = axis;
+            self.touch();
+        }
     }
 
     /// The overlays asked for.
@@ -173,11 +204,25 @@ impl BenchModel {
         }
     }
 
+    /// Moves the live fit to the Box–Cox λ the diagnostics estimated on the rows in use (it is
+    /// held while the analyst excludes or drags, and follows once the diagnostics are in).
+    fn follow_lambda(&mut self, data: &Dataset, marks: &Marks, b: Option<BoxCox>) {
+        let Some(b) = b else { return };
+        let Some(pair) = self.pair.as_mut().filter(|p| p.lags_lambda(&b)) else {
+            return;
+        };
+        if let Ok(mut refitted) = Pair::at_lambda(&data.table, pair.spec.clone(), b) {
+            refitted.apply(marks);
+            *pair = refitted;
+        }
+    }
+
     /// Picks up finished diagnostics and starts a new computation when needed.
     pub fn poll(&mut self, data: &Dataset, marks: &Marks, waker: &Waker) {
         if let Some(d) = self.job.as_mut().and_then(Job::poll) {
             self.job = None;
             if self.pair.as_ref().is_some_and(|p| p.spec == d.spec) {
+                self.follow_lambda(data, marks, d.boxcox);
                 self.diag = Some(Arc::new(d));
                 self.diag_generation += 1;
             }
@@ -185,13 +230,15 @@ impl BenchModel {
         if self.stale && self.job.is_none() {
             if let Some(pair) = &self.pair {
                 self.stale = false;
-                let input = Input::of(
+                let mut input = Input::of(
                     &data.table,
                     pair,
                     marks,
                     self.overlays,
                     self.colouring.of_entry.clone(),
                 );
+                input.kept = self.kept.clone();
+                input.residual_axis = self.residual_axis.clone();
                 self.job = Some(Job::spawn(move |_| compute(&input), waker.hook()));
             }
         }

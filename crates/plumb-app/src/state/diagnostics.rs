@@ -7,14 +7,18 @@
 use std::sync::Arc;
 
 use plumb_core::alternative::{deming, DemingFit};
-use plumb_core::regression::{normal_scores, CaseInfluence, LinearFit};
-use plumb_data::analysis::{analyze, ExtrasRequest, PairExtras, Robust, Wanted};
+use plumb_core::regression::{AddedVariable, BoxCox, CaseInfluence, LinearFit};
+use plumb_data::analysis::{
+    analyze, compare, Analysis, AnalysisError, Comparison, Curve, ExtrasRequest, GroupTests,
+    PairExtras, Robust, Wanted,
+};
 use plumb_data::Table;
 use plumb_report::{exclusion_effects, Effect};
 
-use super::cloud::Cloud;
 use super::marks::Marks;
 use super::pair::{FitSpec, Pair, PairRows};
+use super::views::views_of;
+pub use super::views::{against_fit, AddedView, ResidualAxis, Views};
 
 /// Optional overlays on the scatter.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -55,6 +59,10 @@ pub struct Input {
     pub overlays: Overlays,
     /// Group level of each pair entry, for per-group lines.
     pub groups: Option<Arc<[Option<usize>]>>,
+    /// A model kept for comparison.
+    pub kept: Option<FitSpec>,
+    /// What the residuals are drawn against.
+    pub residual_axis: ResidualAxis,
 }
 
 impl Input {
@@ -73,6 +81,8 @@ impl Input {
             marks: marks.clone(),
             overlays,
             groups,
+            kept: None,
+            residual_axis: ResidualAxis::Fitted,
         }
     }
 
@@ -110,6 +120,14 @@ pub struct Diagnostics {
     pub group_lines: Vec<GroupLine>,
     /// Points of the residual, leverage and quantile views.
     pub views: Views,
+    /// The grouping factor's tests and table (with a factor in the model).
+    pub groups: Option<GroupTests>,
+    /// The Box–Cox estimate on the included rows (with that response scale).
+    pub boxcox: Option<BoxCox>,
+    /// The response as fitted: `y`, or its transform's label (`ln(y)`).
+    pub scale: String,
+    /// The fit kept for comparison.
+    pub kept: Option<Kept>,
     /// Positions in `cases` of the most influential rows, largest first, by Cook's distance,
     /// by leverage and by |externally studentized residual| (at most [`TOP_ROWS`] each).
     pub top: [Vec<usize>; 3],
@@ -118,19 +136,15 @@ pub struct Diagnostics {
 /// Rows kept in each influence ranking.
 pub const TOP_ROWS: usize = 50;
 
-/// Points of the three diagnostic views (included rows), and where the excluded rows fall
-/// against the current fit.
-#[derive(Debug, Clone, Default)]
-pub struct Views {
-    /// (fitted, residual).
-    pub residual: Cloud,
-    /// (leverage, internally studentized residual).
-    pub leverage: Cloud,
-    /// (expected normal score `Φ⁻¹((k − 3/8)/(n + 1/4))`, sorted externally studentized
-    /// residual).
-    pub quantile: Cloud,
-    /// Excluded rows as (prediction of the current fit, y − prediction).
-    pub excluded_residuals: Cloud,
+/// The fit kept beside the current one, and how they compare.
+#[derive(Debug, Clone)]
+pub struct Kept {
+    /// The kept model.
+    pub spec: FitSpec,
+    /// The two fits' figures, the partial F when one is nested in the other, or why not.
+    pub comparison: Result<Comparison, String>,
+    /// The kept model's curves (one predictor), in the data's units.
+    pub curves: Vec<Curve>,
 }
 
 /// A straight line through one group's included points.
@@ -157,41 +171,108 @@ pub fn compute(input: &Input) -> Diagnostics {
             loess_span: input.overlays.loess.then_some(input.overlays.loess_span),
             at: None,
         }),
-        ..Wanted::default()
+        added_variables: input.spec.x.len() > 1 || input.spec.factor.is_some(),
     };
     let analysis = analyze(&input.table, &input.spec.with_marks(&input.marks), wanted);
-    let (fit, cases, extras, included) = match analysis {
-        Ok(a) => {
-            let included = a
-                .rows
-                .selection
-                .rows
-                .iter()
-                .filter_map(|&r| input.entry_of(r))
-                .collect();
-            (Ok(a.fit), a.cases, a.extras, included)
-        }
-        Err(e) => (Err(e.to_string()), Vec::new(), None, Vec::new()),
-    };
-    let views = views_of(input, &included, &cases, fit.as_ref().ok());
+    let parts = Parts::of(input, analysis);
+    let views = views_of(
+        input,
+        &parts.included,
+        &parts.cases,
+        parts.fit.as_ref().ok(),
+        parts.added,
+    );
     let effects = exclusion_effects(&input.table, &input.spec.on_file_rows(&input.marks))
         .map_err(|e| e.to_string());
-    let (x, y): (Vec<f64>, Vec<f64>) = included.iter().map(|&i| input.point(i)).unzip();
+    let (x, y): (Vec<f64>, Vec<f64>) = parts.included.iter().map(|&i| input.point(i)).unzip();
     Diagnostics {
-        top: rankings(&cases),
+        top: rankings(&parts.cases),
         spec: input.spec.clone(),
         marks: input.marks.clone(),
         deming: input
             .overlays
             .deming
             .then(|| deming(&x, &y, 1.0).map_err(|e| e.to_string())),
-        group_lines: group_lines(input, &included),
+        group_lines: group_lines(input, &parts.included),
+        groups: parts.groups,
+        boxcox: parts.boxcox,
+        scale: parts.scale,
+        kept: input.kept.as_ref().map(|k| kept_fit(input, k)),
         views,
-        included,
-        fit,
-        cases,
-        extras,
+        included: parts.included,
+        fit: parts.fit,
+        cases: parts.cases,
+        extras: parts.extras,
         effects,
+    }
+}
+
+/// The analysis taken apart for the diagnostics (empty parts when it failed).
+struct Parts {
+    fit: Result<LinearFit, String>,
+    cases: Vec<CaseInfluence>,
+    extras: Option<PairExtras>,
+    included: Vec<usize>,
+    groups: Option<GroupTests>,
+    added: Vec<AddedVariable>,
+    boxcox: Option<BoxCox>,
+    scale: String,
+}
+
+impl Parts {
+    fn of(input: &Input, analysis: Result<Analysis, AnalysisError>) -> Self {
+        match analysis {
+            Ok(a) => Self {
+                included: a
+                    .rows
+                    .selection
+                    .rows
+                    .iter()
+                    .filter_map(|&r| input.entry_of(r))
+                    .collect(),
+                scale: a.response_label(&input.spec.y),
+                boxcox: a.rows.boxcox,
+                fit: Ok(a.fit),
+                cases: a.cases,
+                extras: a.extras,
+                groups: a.groups,
+                added: a.added,
+            },
+            Err(e) => Self {
+                fit: Err(e.to_string()),
+                cases: Vec::new(),
+                extras: None,
+                included: Vec::new(),
+                groups: None,
+                added: Vec::new(),
+                boxcox: None,
+                scale: input.spec.y.clone(),
+            },
+        }
+    }
+}
+
+/// The kept model beside the current one, on the same marks.
+fn kept_fit(input: &Input, kept: &FitSpec) -> Kept {
+    let names = ["the kept fit", "the current one"];
+    let (a, b) = (
+        kept.with_marks(&input.marks),
+        input.spec.with_marks(&input.marks),
+    );
+    let comparison = compare(&input.table, &a, &b, names).map_err(|e| e.to_string());
+    let wanted = Wanted {
+        extras: Some(ExtrasRequest::default()),
+        ..Wanted::default()
+    };
+    let curves = analyze(&input.table, &a, wanted)
+        .ok()
+        .and_then(|k| k.extras)
+        .map(|e| e.curves)
+        .unwrap_or_default();
+    Kept {
+        spec: kept.clone(),
+        comparison,
+        curves,
     }
 }
 
@@ -216,73 +297,6 @@ fn top_by(cases: &[CaseInfluence], key: impl Fn(&CaseInfluence) -> f64) -> Vec<u
     }
     idx.sort_by(by);
     idx
-}
-
-/// Entry `i` at its current position against `f`: `(ŷ, y − ŷ)` on the model's scale (`None`
-/// where a transform cannot take its values).
-pub fn against_fit(pair: &PairRows, marks: &Marks, f: &LinearFit, i: usize) -> Option<(f64, f64)> {
-    let (x, y) = pair.point(i, marks);
-    let (row, y_t) = pair.model_row(i, x, y)?;
-    let yhat: f64 = row
-        .iter()
-        .zip(&f.coefficients)
-        .map(|(a, c)| a * c.estimate)
-        .sum();
-    Some((yhat, y_t - yhat))
-}
-
-fn views_of(
-    input: &Input,
-    included: &[usize],
-    cases: &[CaseInfluence],
-    f: Option<&LinearFit>,
-) -> Views {
-    if cases.len() != included.len() {
-        return Views::default();
-    }
-    let cloud = |pick: fn(&CaseInfluence) -> (f64, f64)| {
-        Cloud::new(cases.iter().map(pick).collect(), included.to_vec())
-    };
-    let excluded: Vec<usize> = input
-        .marks
-        .excluded
-        .keys()
-        .filter_map(|&r| input.entry_of(r))
-        .collect();
-    let excluded_residuals = f.map_or_else(Cloud::default, |f| {
-        let placed: Vec<(usize, (f64, f64))> = excluded
-            .iter()
-            .filter_map(|&i| Some((i, against_fit(&input.pair, &input.marks, f, i)?)))
-            .collect();
-        Cloud::new(
-            placed.iter().map(|p| p.1).collect(),
-            placed.iter().map(|p| p.0).collect(),
-        )
-    });
-    Views {
-        residual: cloud(|c| (c.fitted, c.residual)),
-        leverage: cloud(|c| (c.leverage, c.studentized_internal)),
-        quantile: quantile_cloud(cases, included),
-        excluded_residuals,
-    }
-}
-
-/// Sorted externally studentized residuals against normal scores `Φ⁻¹((k − 3/8)/(n + 1/4))`.
-fn quantile_cloud(cases: &[CaseInfluence], included: &[usize]) -> Cloud {
-    let mut order: Vec<usize> = (0..cases.len())
-        .filter(|&k| cases[k].studentized_external.is_finite())
-        .collect();
-    order.sort_by(|&a, &b| {
-        cases[a]
-            .studentized_external
-            .total_cmp(&cases[b].studentized_external)
-    });
-    let points = normal_scores(order.len())
-        .into_iter()
-        .zip(&order)
-        .map(|(expected, &k)| (expected, cases[k].studentized_external))
-        .collect();
-    Cloud::new(points, order.iter().map(|&k| included[k]).collect())
 }
 
 /// A line per group level, fitted through the analysis route with every other row left out.

@@ -28,6 +28,8 @@ pub struct Loaded {
 pub struct AfterLoad {
     /// Open this pair on the bench.
     pub pair: Option<FitSpec>,
+    /// Keep this model for comparison.
+    pub kept: Option<FitSpec>,
     /// Start from these marks.
     pub marks: Option<Marks>,
     /// The session file the work belongs to.

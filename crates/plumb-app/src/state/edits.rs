@@ -160,6 +160,18 @@ impl State {
         }
     }
 
+    /// Keeps the model on the bench beside the ones that follow, or stops comparing.
+    pub(crate) fn keep_for_comparison(&mut self, keep: bool) {
+        let spec = keep
+            .then(|| self.bench.pair().map(|p| p.spec.clone()))
+            .flatten();
+        if keep && spec.is_none() {
+            return self.fail("open a pair on the bench first");
+        }
+        self.bench.keep(spec);
+        self.write_recovery();
+    }
+
     /// Sets the scatter's overlays.
     pub(crate) fn set_overlays(&mut self, overlays: Overlays) {
         self.bench.set_overlays(overlays);

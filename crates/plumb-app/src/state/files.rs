@@ -10,8 +10,8 @@ use plumb_report::Session;
 use super::marks::History;
 use super::pair::FitSpec;
 use super::sessions::{
-    clear_recovery, data_is_beside, marks_of, recovery_of, recovery_path, session_of, spec_of,
-    write_recovery,
+    clear_recovery, data_is_beside, kept_of, marks_of, recovery_of, recovery_path, session_of,
+    spec_of, write_recovery,
 };
 use super::{AfterLoad, Ask, BenchModel, DialogPurpose, Loaded, Loading, Screen, State};
 use crate::error::WorkbenchError;
@@ -63,6 +63,7 @@ impl State {
         }
         let then = AfterLoad {
             pair: spec_of(&session),
+            kept: kept_of(&session),
             marks: Some(marks_of(&session)),
             session: Some(path.to_path_buf()),
             restoring: false,
@@ -122,6 +123,7 @@ impl State {
         self.screen = Screen::Columns;
         if let Some(spec) = first_pair {
             if self.open_pair(spec) && then.marks.is_some() {
+                self.bench.keep(then.kept);
                 self.screen = Screen::Bench;
             }
         }
@@ -154,7 +156,7 @@ impl State {
         Some(session_of(
             &loaded.dataset,
             &loaded.sha256,
-            spec,
+            [spec, self.bench.kept()],
             self.marks(),
             at,
         ))
@@ -210,7 +212,7 @@ impl State {
         let session = session_of(
             &loaded.dataset,
             &loaded.sha256,
-            Some(&pair.spec),
+            [Some(&pair.spec), self.bench.kept()],
             self.marks(),
             &session_file,
         );
@@ -260,6 +262,7 @@ impl State {
         let data = session.data_path(&recovery_path(&config));
         let then = AfterLoad {
             pair: spec_of(session),
+            kept: kept_of(session),
             marks: Some(marks_of(session)),
             session: recovery_of(session),
             restoring: true,

@@ -19,6 +19,7 @@ pub mod one_pass;
 pub mod pair;
 pub mod sessions;
 pub mod settings;
+mod views;
 
 use std::path::PathBuf;
 

@@ -4,7 +4,7 @@
 
 use std::sync::Arc;
 
-use plumb_core::regression::{LiveFit, LiveSummary, Transform};
+use plumb_core::regression::{BoxCox, LiveFit, LiveSummary, Transform};
 use plumb_data::analysis::{model_rows, Factor, FitRequest, ModelRows, ResponseScale, WhatIf};
 use plumb_data::Table;
 
@@ -64,6 +64,33 @@ impl FitSpec {
             response: r.response,
             x_transforms: r.x_transforms.clone(),
         }
+    }
+
+    /// The model in a few words: `ln(y) on dose, temp (degree 2), by site with own slopes,
+    /// weighted by w`.
+    pub fn describe(&self) -> String {
+        let response = match self.response {
+            ResponseScale::Identity => self.y.clone(),
+            ResponseScale::Fixed(t) => t.label(&self.y),
+            ResponseScale::BoxCox => format!("Box–Cox({})", self.y),
+        };
+        let mut out = format!("{response} on {}", self.model().x_term_names().join(", "));
+        if self.degree > 1 {
+            out.push_str(&format!(" (degree {})", self.degree));
+        }
+        if let Some(f) = &self.factor {
+            out.push_str(&format!(", by {}", f.column));
+            if f.separate_slopes {
+                out.push_str(" with own slopes");
+            }
+        }
+        if !self.intercept {
+            out.push_str(", through the origin");
+        }
+        if let Some(w) = &self.weights {
+            out.push_str(&format!(", weighted by {w}"));
+        }
+        out
     }
 
     /// The first predictor (the scatter's x).
@@ -177,6 +204,32 @@ impl Pair {
     pub fn new(table: &Table, spec: FitSpec) -> Result<Self, WorkbenchError> {
         let rows =
             model_rows(table, &spec.model()).map_err(|e| WorkbenchError::Model(e.to_string()))?;
+        Self::on(table, spec, rows)
+    }
+
+    /// The same model with the Box–Cox λ held at `b` (the estimate on the rows in use, which
+    /// the diagnostics bring), so that the live numbers are those of a fresh fit.
+    ///
+    /// # Errors
+    /// As [`Pair::new`].
+    pub fn at_lambda(table: &Table, spec: FitSpec, b: BoxCox) -> Result<Self, WorkbenchError> {
+        let request = FitRequest {
+            response: ResponseScale::Fixed(b.transform()),
+            ..spec.model()
+        };
+        let mut rows =
+            model_rows(table, &request).map_err(|e| WorkbenchError::Model(e.to_string()))?;
+        rows.boxcox = Some(b);
+        Self::on(table, spec, rows)
+    }
+
+    /// Whether the live fit should move to the Box–Cox estimate `b` of the rows in use.
+    pub fn lags_lambda(&self, b: &BoxCox) -> bool {
+        self.spec.response == ResponseScale::BoxCox
+            && self.model.response_transform != b.transform()
+    }
+
+    fn on(table: &Table, spec: FitSpec, rows: ModelRows) -> Result<Self, WorkbenchError> {
         let terms: Vec<String> = rows.design.terms().iter().map(|t| t.name.clone()).collect();
         let weights = rows.weights().map(<[f64]>::to_vec);
         let live = LiveFit::weighted(

@@ -12,14 +12,16 @@ use super::pair::FitSpec;
 /// Key in the session's `view` map naming the session file the recovery copy belongs to.
 const RECOVERY_OF: &str = "recovery_of";
 
-/// The session for `data` under `marks`, to be saved at `session_path`.
+/// The session for `data` under `marks`, to be saved at `session_path`: `models` are the one
+/// on the bench and the one kept for comparison.
 pub fn session_of(
     data: &Dataset,
     sha256: &str,
-    spec: Option<&FitSpec>,
+    models: [Option<&FitSpec>; 2],
     marks: &Marks,
     session_path: &Path,
 ) -> Session {
+    let [spec, kept] = models;
     Session {
         plumbline_session: SCHEMA_VERSION,
         data: DataSource {
@@ -41,7 +43,7 @@ pub fn session_of(
                 at: (!note.at.is_empty()).then(|| note.at.clone()),
             })
             .collect(),
-        comparison: None,
+        comparison: kept.map(|k| ModelSpec::from_request(&k.model())),
         view: serde_json::Map::new(),
     }
 }
@@ -73,6 +75,14 @@ pub fn spec_of(session: &Session) -> Option<FitSpec> {
     (!m.x.is_empty())
         .then(|| m.request(Vec::new()).ok())
         .flatten()
+        .map(|r| FitSpec::from_request(&r))
+}
+
+/// The model a session keeps for comparison.
+pub fn kept_of(session: &Session) -> Option<FitSpec> {
+    let m = session.comparison.as_ref()?;
+    m.request(Vec::new())
+        .ok()
         .map(|r| FitSpec::from_request(&r))
 }
 
@@ -149,12 +159,21 @@ mod tests {
         marks.moved.insert(2, (9.0, 9.0));
         let spec = FitSpec::line("b", "a");
         let session_path = dir.path().join("s.plumb");
-        let s = session_of(&data, "abc", Some(&spec), &marks, &session_path);
+        let mut kept = spec.clone();
+        kept.degree = 2;
+        let s = session_of(
+            &data,
+            "abc",
+            [Some(&spec), Some(&kept)],
+            &marks,
+            &session_path,
+        );
         assert_eq!(s.data.path, "d.csv");
         let mut expect = marks.clone();
         expect.moved.clear();
         assert_eq!(marks_of(&s), expect, "moves are hypothetical and not saved");
         assert_eq!(spec_of(&s), Some(spec));
+        assert_eq!(kept_of(&s), Some(kept));
         let config = dir.path().join("config");
         write_recovery(&config, s, Some(&session_path)).expect("write");
         let back = read_recovery(&config).expect("present").expect("readable");

@@ -81,6 +81,26 @@ pub struct DegreeStep {
     pub versus_previous: Option<NestedComparison>,
 }
 
+/// The p-value an added power must fall below for the ladder to suggest it (common practice,
+/// no source: a strict level, since the ladder is itself a search).
+pub const POWER_STEP_P: f64 = 0.01;
+
+impl PairExtras {
+    /// The degree the polynomial ladder supports: the highest degree reached by adding powers
+    /// one at a time while each addition's partial-F p-value is below [`POWER_STEP_P`]
+    /// (1 when the ladder is empty or the square already fails).
+    pub fn suggested_degree(&self) -> u32 {
+        let mut degree = 1;
+        for step in self.degrees.iter().skip(1) {
+            match step.versus_previous {
+                Some(c) if c.p_value < POWER_STEP_P => degree = step.degree,
+                _ => break,
+            }
+        }
+        degree
+    }
+}
+
 /// Points in the band grid.
 pub const BAND_POINTS: usize = 41;
 

@@ -26,6 +26,7 @@ use crate::DataError;
 pub use compare::{compare, Comparison, FitFigures};
 pub use extras::{
     Curve, DegreeStep, ExtrasRequest, PairExtras, ReadAt, Robust, RobustFit, BAND_POINTS,
+    POWER_STEP_P,
 };
 pub use groups::{GroupRow, GroupTests};
 pub use prepare::{model_rows, FactorTerms, ModelRows};

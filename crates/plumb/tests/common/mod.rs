@@ -5,6 +5,10 @@
 
 use std::path::{Path, PathBuf};
 use std::process::Command;
+use std::time::Duration;
+
+use plumb_app::Workbench;
+use plumb_core::regression::LiveSummary;
 
 /// A demo scenario's data file.
 pub fn demo(name: &str) -> PathBuf {
@@ -40,9 +44,78 @@ pub fn cli_fit(data: &Path, y: &str, x: &str, exclude: &str) -> serde_json::Valu
     serde_json::from_slice(&out.stdout).expect("json")
 }
 
+/// `plumb fit DATA ARGS… --format json`, parsed.
+pub fn cli_fit_with(data: &Path, args: &[&str]) -> serde_json::Value {
+    let out = Command::new(env!("CARGO_BIN_EXE_plumb"))
+        .arg("fit")
+        .arg(data)
+        .args(args)
+        .args(["--format", "json"])
+        .output()
+        .expect("plumb runs");
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    serde_json::from_slice(&out.stdout).expect("json")
+}
+
 /// SHA-256 of a file, hex.
 pub fn sha256(path: &Path) -> String {
     use sha2::{Digest, Sha256};
     let bytes = std::fs::read(path).expect("read");
     format!("{:x}", Sha256::digest(bytes))
+}
+
+/// Whether `a` and `b` agree to 1e-9 relative.
+pub fn close(a: f64, b: f64) -> bool {
+    (a - b).abs() <= 1e-9 * a.abs().max(b.abs()).max(1e-300)
+}
+
+/// The live numbers equal the command line's: R², adjusted R², σ̂, and every coefficient's
+/// estimate, SE, p and interval.
+pub fn assert_same_numbers(live: &LiveSummary, cli: &serde_json::Value) {
+    let f = |k: &str| cli[k].as_f64().unwrap_or_else(|| panic!("{k} in {cli}"));
+    assert_eq!(live.n as u64, cli["n"].as_u64().expect("n"));
+    for (ours, key) in [
+        (live.r_squared, "r_squared"),
+        (live.adj_r_squared, "adj_r_squared"),
+        (live.residual_std_error, "residual_std_error"),
+    ] {
+        assert!(
+            close(ours, f(key)),
+            "{key}: live {ours}, plumb fit {}",
+            f(key)
+        );
+    }
+    let coefficients = cli["coefficients"].as_array().expect("coefficients");
+    assert_eq!(coefficients.len(), live.estimates.len());
+    for (j, c) in coefficients.iter().enumerate() {
+        let g = |k: &str| c[k].as_f64().expect("number");
+        let pairs = [
+            (live.estimates[j], g("estimate")),
+            (live.std_errors[j], g("std_error")),
+            (live.p_values[j], g("p_value")),
+            (live.ci[j].0, g("ci_low")),
+            (live.ci[j].1, g("ci_high")),
+        ];
+        for (ours, theirs) in pairs {
+            assert!(
+                close(ours, theirs),
+                "term {j}: live {ours}, plumb fit {theirs}"
+            );
+        }
+    }
+}
+
+pub fn settle(wb: &mut Workbench) {
+    assert!(
+        wb.settle(Duration::from_secs(60)),
+        "background work did not finish"
+    );
+}
+
+pub fn live(wb: &Workbench) -> LiveSummary {
+    wb.bench().summary().expect("a pair").expect("a fit")
 }

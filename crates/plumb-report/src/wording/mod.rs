@@ -6,6 +6,10 @@ use plumb_core::cues::{PairCues, CURVE_R2_GAIN, CURVE_R2_STRONG};
 
 use crate::text::{num, p};
 
+mod models;
+
+pub use models::{box_cox, f_test, scale_note, NOT_NESTED_HINT};
+
 /// A correlation or a fit describes association only.
 pub const NOT_CAUSATION: &str = "Association is not causation.";
 /// Every exclusion is written down with its reason.
