@@ -248,4 +248,45 @@ fn live_changes(xs: &[Vec<f64>], y: &[f64], o: &FitOptions, out: &mut Timings) {
         })
         .fold(0.0_f64, f64::max);
     out.push(("live_toggle_1m_worst", worst));
+    live_p12(xs, y, o, out);
+}
+
+/// Twelve terms (intercept, the eight columns and three products of them) at 1 M rows: the
+/// cost of opening the model (the first solve) and of each live exclusion, median and worst.
+fn live_p12(xs: &[Vec<f64>], y: &[f64], o: &FitOptions, out: &mut Timings) {
+    let mut cols: Vec<Vec<f64>> = xs.to_vec();
+    for (a, b) in [(0, 1), (2, 3), (4, 5)] {
+        cols.push(xs[a].iter().zip(&xs[b]).map(|(u, v)| u * v).collect());
+    }
+    let names: Vec<String> = (0..cols.len()).map(|j| format!("t{j}")).collect();
+    let named: Vec<(&str, &[f64])> = names
+        .iter()
+        .zip(&cols)
+        .map(|(n, c)| (n.as_str(), c.as_slice()))
+        .collect();
+    let design = Design::linear(&named, true);
+    assert_eq!(design.n_terms(), 12);
+    let start = Instant::now();
+    let mut live = LiveFit::new(design.clone(), y.to_vec(), o.clone()).expect("fits");
+    out.push(("live_open_p12_1m", start.elapsed().as_secs_f64()));
+    // Each change is timed, the exclusions and the puttings back alike, so the drift guard's
+    // rebuild (every REFRESH_EVERY changes) is among them.
+    let mut k = 0usize;
+    let mut times: Vec<f64> = Vec::with_capacity(256);
+    for _ in 0..128 {
+        k = (k + 7919) % y.len();
+        for exclude in [true, false] {
+            let start = Instant::now();
+            if exclude {
+                live.exclude(k);
+            } else {
+                live.include(k);
+            }
+            std::hint::black_box(live.summary().as_ref().map(|s| s.r_squared).ok());
+            times.push(start.elapsed().as_secs_f64());
+        }
+    }
+    times.sort_by(f64::total_cmp);
+    out.push(("live_change_p12_1m", times[times.len() / 2]));
+    out.push(("live_change_p12_1m_worst", times[times.len() - 1]));
 }

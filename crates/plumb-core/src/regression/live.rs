@@ -382,6 +382,14 @@ impl LiveFit {
                     2 => gram_sums::<2>(&rows),
                     3 => gram_sums::<3>(&rows),
                     4 => gram_sums::<4>(&rows),
+                    5 => gram_sums::<5>(&rows),
+                    6 => gram_sums::<6>(&rows),
+                    7 => gram_sums::<7>(&rows),
+                    8 => gram_sums::<8>(&rows),
+                    9 => gram_sums::<9>(&rows),
+                    10 => gram_sums::<10>(&rows),
+                    11 => gram_sums::<11>(&rows),
+                    12 => gram_sums::<12>(&rows),
                     _ => gram_sums_any(p, &rows),
                 }
             })
@@ -559,6 +567,10 @@ fn gram_sums<const P: usize>(rows: &Rows<'_>) -> GramSums {
     let mut b = [0.0; P];
     let (mut sum_y, mut sum_yy, mut sum_w) = (0.0, 0.0, 0.0);
     for (row, yi, r) in rows.each(P) {
+        // A fixed-length row: the loops unroll without bounds checks.
+        let Ok(row) = <&[f64; P]>::try_from(row) else {
+            continue;
+        };
         for j in 0..P {
             b[j] += row[j] * yi;
             for k in 0..=j {
@@ -730,6 +742,58 @@ mod tests {
             for i in toggles {
                 if live.is_included(i) { live.exclude(i); } else { live.include(i); }
                 prop_assert_eq!(agrees_with_fresh_fit(&live), Ok(()));
+            }
+        }
+    }
+
+    /// Models of 6, 12 and 15 terms take the fixed-size and the general rebuild paths; forty
+    /// toggles cross the drift guard's rebuild twice.
+    #[test]
+    fn wide_models_match_a_fresh_fit_through_the_rebuilds() {
+        let n = 90;
+        for k in [5usize, 11, 14] {
+            // Pseudo-random columns (a multiplicative hash of row and column): independent
+            // enough that no term is aliased.
+            let cell = |i: usize, j: usize| {
+                let h = (i as u64 + 1).wrapping_mul(6_364_136_223_846_793_005)
+                    ^ (j as u64 + 1).wrapping_mul(1_442_695_040_888_963_407);
+                (h.wrapping_mul(2_862_933_555_777_941_757) >> 40) as f64 / 1e5
+            };
+            let cols: Vec<Vec<f64>> = (0..k)
+                .map(|j| (0..n).map(|i| cell(i, j)).collect())
+                .collect();
+            let names: Vec<String> = (0..k).map(|j| format!("c{j}")).collect();
+            let named: Vec<(&str, &[f64])> = names
+                .iter()
+                .zip(&cols)
+                .map(|(n, c)| (n.as_str(), c.as_slice()))
+                .collect();
+            let y: Vec<f64> = (0..n)
+                .map(|i| {
+                    let signal: f64 = cols
+                        .iter()
+                        .enumerate()
+                        .map(|(j, c)| c[i] / (j + 1) as f64)
+                        .sum();
+                    signal + 20.0 * (((i * 7919) % 13) as f64 / 13.0 - 0.5)
+                })
+                .collect();
+            let design = Design::linear(&named, true);
+            assert_eq!(design.n_terms(), k + 1);
+            let mut live = LiveFit::new(design, y, FitOptions::default()).expect("fits");
+            for t in 0..40 {
+                let i = (t * 37) % n;
+                if live.is_included(i) {
+                    live.exclude(i);
+                } else {
+                    live.include(i);
+                }
+                assert_eq!(
+                    agrees_with_fresh_fit(&live),
+                    Ok(()),
+                    "{} terms, change {t}",
+                    k + 1
+                );
             }
         }
     }
