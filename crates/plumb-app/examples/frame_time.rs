@@ -78,10 +78,14 @@ fn main() {
     println!("loaded {rows} rows in {:.2} s", t0.elapsed().as_secs_f64());
     let t1 = Instant::now();
     wb.apply(Action::OpenPair(FitSpec::line(y, x)));
-    assert!(wb.bench().pair().is_some(), "pair opens");
     wb.apply(Action::Show(Screen::Bench));
+    while wb.bench().is_opening() {
+        wb.poll();
+        std::thread::sleep(Duration::from_millis(5));
+    }
+    assert!(wb.bench().pair().is_some(), "pair opens: {:?}", wb.status());
     println!(
-        "pair opened (live fit and hover index) in {:.3} s",
+        "pair opened on a worker (rows, live fit and hover index) in {:.3} s",
         t1.elapsed().as_secs_f64()
     );
     let t2 = Instant::now();
@@ -132,4 +136,37 @@ fn main() {
         "diagnostics after the exclusion ready in {:.2} s",
         t4.elapsed().as_secs_f64()
     );
+    model_change(&ctx, &mut wb);
+}
+
+/// Adds the file's other numeric columns as predictors and times the frames drawn while the
+/// worker refits (the model on the bench stays live).
+fn model_change(ctx: &egui::Context, wb: &mut Workbench) {
+    let Some(spec) = wb.bench().spec().cloned() else {
+        return;
+    };
+    let numeric = wb
+        .loaded()
+        .map(|l| l.dataset.numeric.clone())
+        .unwrap_or_default();
+    let mut next = spec.clone();
+    next.x.extend(
+        numeric
+            .into_iter()
+            .filter(|c| *c != spec.y && !spec.x.contains(c)),
+    );
+    let t = Instant::now();
+    wb.apply(Action::OpenPair(next.clone()));
+    let mut frames = Vec::new();
+    while wb.bench().pair().is_some_and(|p| p.spec != next) && wb.bench().is_opening() {
+        frames.push(frame(ctx, wb, Vec::new()));
+    }
+    println!(
+        "model changed to {} terms: refitted on a worker in {:.2} s",
+        wb.bench().pair().map_or(0, |p| p.terms.len()),
+        t.elapsed().as_secs_f64()
+    );
+    if !frames.is_empty() {
+        report("frames drawn during that refit", frames);
+    }
 }

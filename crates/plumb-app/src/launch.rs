@@ -83,7 +83,7 @@ impl eframe::App for Window {
 fn apply_after_load(wb: &mut Workbench, launch: Launch) {
     if let Some((y, x)) = &launch.pair {
         wb.apply(Action::OpenPair(FitSpec::line(y, x)));
-        if wb.bench().pair().is_some() {
+        if wb.bench().spec().is_some() {
             wb.apply(Action::Show(Screen::Bench));
         }
     }

@@ -3,21 +3,11 @@
 
 use eframe::egui::{Color32, Visuals};
 
-/// Colour-blind-safe categorical colours for groups (Okabe & Ito's eight-colour set, without
-/// black).
-pub const GROUPS: [Color32; 7] = [
-    Color32::from_rgb(0xE6, 0x9F, 0x00),
-    Color32::from_rgb(0x56, 0xB4, 0xE9),
-    Color32::from_rgb(0x00, 0x9E, 0x73),
-    Color32::from_rgb(0xF0, 0xE4, 0x42),
-    Color32::from_rgb(0x00, 0x72, 0xB2),
-    Color32::from_rgb(0xD5, 0x5E, 0x00),
-    Color32::from_rgb(0xCC, 0x79, 0xA7),
-];
-
-/// Colour of group level `k`.
+/// Colour of group level `k` (the summary's charts use the same set,
+/// [`plumb_report::charts::GROUP_RGB`]).
 pub fn group(k: usize) -> Color32 {
-    GROUPS[k % GROUPS.len()]
+    let (r, g, b) = plumb_report::charts::group_rgb(k);
+    Color32::from_rgb(r, g, b)
 }
 
 /// The fit kept for comparison (drawn dashed beside the current one).

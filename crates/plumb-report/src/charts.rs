@@ -18,6 +18,24 @@ const FIT: RGBColor = RGBColor(21, 101, 192);
 const OUT: RGBColor = RGBColor(216, 67, 21);
 const GUIDE: RGBColor = RGBColor(120, 144, 156);
 const FONT: &str = "sans-serif";
+const KEPT: RGBColor = RGBColor(46, 107, 31);
+
+/// Colour-blind-safe categorical colours for groups (Okabe & Ito's eight-colour set, without
+/// black), shared by the workbench and the summary.
+pub const GROUP_RGB: [(u8, u8, u8); 7] = [
+    (0xE6, 0x9F, 0x00),
+    (0x56, 0xB4, 0xE9),
+    (0x00, 0x9E, 0x73),
+    (0xF0, 0xE4, 0x42),
+    (0x00, 0x72, 0xB2),
+    (0xD5, 0x5E, 0x00),
+    (0xCC, 0x79, 0xA7),
+];
+
+/// The colour of group level `k`.
+pub fn group_rgb(k: usize) -> (u8, u8, u8) {
+    GROUP_RGB[k % GROUP_RGB.len()]
+}
 
 /// One drawn chart.
 #[derive(Debug, Clone, PartialEq)]
@@ -54,6 +72,29 @@ pub struct PairChart<'a> {
     pub dots: Vec<Dot>,
     /// `(x, fitted, mean_low, mean_high, predict_low, predict_high)` along the curve.
     pub curve: Vec<[f64; 6]>,
+    /// Further curves without bands: one per level of a grouping factor, and the model kept
+    /// for comparison.
+    pub lines: Vec<ChartLine>,
+}
+
+/// A labelled curve of the pair chart.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ChartLine {
+    /// Legend text.
+    pub label: String,
+    /// Points along it.
+    pub points: Vec<(f64, f64)>,
+    /// How it is drawn.
+    pub kind: LineKind,
+}
+
+/// How a [`ChartLine`] is drawn.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum LineKind {
+    /// A group level's curve, solid in the level's colour.
+    Level(usize),
+    /// The model kept for comparison, dashed.
+    Kept,
 }
 
 fn register_font() {
@@ -191,13 +232,15 @@ impl Paint for PairChart<'_> {
             data.dots
                 .iter()
                 .map(|d| d.x)
-                .chain(data.curve.iter().map(|c| c[0])),
+                .chain(data.curve.iter().map(|c| c[0]))
+                .chain(data.lines.iter().flat_map(|l| l.points.iter().map(|p| p.0))),
         );
         let (y0, y1) = range(
             data.dots
                 .iter()
                 .map(|d| d.y)
-                .chain(data.curve.iter().flat_map(|c| [c[4], c[5]])),
+                .chain(data.curve.iter().flat_map(|c| [c[4], c[5]]))
+                .chain(data.lines.iter().flat_map(|l| l.points.iter().map(|p| p.1))),
         );
         let mut chart = axes(root, x0..x1, y0..y1, data.x_label, data.y_label)?;
         if !data.curve.is_empty() {
@@ -227,8 +270,48 @@ impl Paint for PairChart<'_> {
                 ))
                 .map_err(|e| e.to_string())?;
         }
-        dots_series(&mut chart, &data.dots)
+        lines_series(&mut chart, &data.lines)?;
+        dots_series(&mut chart, &data.dots)?;
+        if !data.lines.is_empty() {
+            chart
+                .configure_series_labels()
+                .background_style(WHITE.mix(0.85))
+                .border_style(GUIDE)
+                .label_font((FONT, 12))
+                .position(SeriesLabelPosition::UpperRight)
+                .draw()
+                .map_err(|e| e.to_string())?;
+        }
+        Ok(())
     }
+}
+
+fn lines_series<DB: DrawingBackend>(
+    chart: &mut ChartContext<'_, DB, Plane>,
+    lines: &[ChartLine],
+) -> std::result::Result<(), String> {
+    for line in lines {
+        let (colour, dashed) = match line.kind {
+            LineKind::Level(k) => {
+                let (r, g, b) = group_rgb(k);
+                (RGBColor(r, g, b), false)
+            }
+            LineKind::Kept => (KEPT, true),
+        };
+        let style = colour.stroke_width(2);
+        let legend = move |(x, y): (i32, i32)| PathElement::new(vec![(x, y), (x + 18, y)], style);
+        let points = line.points.iter().copied();
+        let drawn = if dashed {
+            chart.draw_series(DashedLineSeries::new(points, 8, 5, style))
+        } else {
+            chart.draw_series(LineSeries::new(points, style))
+        };
+        drawn
+            .map_err(|e| e.to_string())?
+            .label(line.label.clone())
+            .legend(legend);
+    }
+    Ok(())
 }
 
 /// Residuals against fitted values, with the zero line.

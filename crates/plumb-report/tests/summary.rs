@@ -28,6 +28,7 @@ fn input_for(table: &plumb_data::Table) -> ReportInput<'_> {
             at: Some("2026-12-02T09:00:00Z".into()),
         }],
         reproduce: "plumb report jar.plumb -o summary.html".into(),
+        comparison: None,
     }
 }
 
@@ -85,4 +86,69 @@ fn the_page_shows_what_was_excluded_and_why() {
         "{}",
         r.statistics_csv
     );
+}
+
+/// The value of `section,name,term` in the statistics CSV.
+fn stat(csv: &str, key: &str) -> f64 {
+    csv.lines()
+        .find_map(|l| l.strip_prefix(key)?.strip_prefix(',')?.parse().ok())
+        .unwrap_or_else(|| panic!("{key} not in\n{csv}"))
+}
+
+#[test]
+fn a_kept_model_and_a_grouping_factor_reach_the_page_and_the_statistics() {
+    let table = load(&jar(), &LoadOptions::default()).expect("demo loads");
+    let mut input = input_for(&table);
+    input.comparison = Some(FitRequest {
+        degree: 1,
+        ..input.request.clone()
+    });
+    let r = build(&input).expect("builds");
+    for needle in ["Beside another model", "Partial F", "other model"] {
+        assert!(r.html.contains(needle), "missing {needle}");
+    }
+    // One added term: the partial F is the square of its t (textbook identity), from the fit's
+    // own coefficient table.
+    let t = stat(&r.statistics_csv, "coefficient,t,dose_mg_l^2");
+    let f = stat(&r.statistics_csv, "comparison,partial_f,f_statistic");
+    assert!((f - t * t).abs() < 1e-8 * f, "F {f}, t² {}", t * t);
+    let svg = &r.charts[0].svg;
+    assert!(
+        svg.contains("other model"),
+        "the kept curve has a legend entry"
+    );
+
+    let mut grouped = input_for(&table);
+    grouped.request.degree = 1;
+    grouped.request.factor = Some(plumb_data::analysis::Factor {
+        column: "analyst".into(),
+        reference: Some("MB".into()),
+        separate_slopes: true,
+    });
+    grouped.request.response =
+        plumb_data::analysis::ResponseScale::Fixed(plumb_core::regression::Transform::Ln);
+    let r = build(&grouped).expect("builds");
+    for needle in [
+        "Groups by analyst",
+        "Reference level MB",
+        "equal slopes of dose_mg_l",
+        "ln(settled_ntu) =",
+        "the residual SE and the residuals are on ln(settled_ntu)",
+        "fit, MB",
+    ] {
+        assert!(
+            r.html.contains(needle) || r.charts[0].svg.contains(needle),
+            "missing {needle}"
+        );
+    }
+    let n: f64 = ["MB", "IK", "TS"]
+        .iter()
+        .map(|l| stat(&r.statistics_csv, &format!("group_slope,n,{l}")))
+        .sum();
+    assert_eq!(
+        n,
+        stat(&r.statistics_csv, "rows,used,"),
+        "the groups share out the rows"
+    );
+    assert!(r.statistics_csv.contains("scale,response,,ln"));
 }

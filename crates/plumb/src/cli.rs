@@ -481,6 +481,9 @@ pub struct ReportArgs {
     /// Grouping and transforms (data-file input).
     #[command(flatten)]
     pub terms: TermArgs,
+    /// A second model shown beside this one.
+    #[command(flatten)]
+    pub compare: CompareArgs,
     /// Where to write the HTML; the other files go beside it.
     #[arg(short = 'o', long = "output", value_name = "FILE.html")]
     pub output: PathBuf,

@@ -20,6 +20,7 @@ pub fn run(args: &ReportArgs) -> anyhow::Result<String> {
         reproduce,
         note,
         sha256,
+        comparison,
     } = if is_session {
         from_session(input, &args.output, args.allow_outside_data)?
     } else {
@@ -31,10 +32,13 @@ pub fn run(args: &ReportArgs) -> anyhow::Result<String> {
         request: request.clone(),
         exclusions: exclusions.clone(),
         reproduce,
+        comparison: comparison.clone(),
     })?;
     let files = write(&report, &args.output)?;
     if let (Some(path), false) = (&args.save_session, is_session) {
-        session_of(args, &table, &request, &exclusions, sha256).save(path)?;
+        let mut session = session_of(args, &table, &request, &exclusions, sha256);
+        session.comparison = comparison.as_ref().map(ModelSpec::from_request);
+        session.save(path)?;
     }
     let mut out = String::new();
     if let Some(n) = note {
@@ -56,6 +60,8 @@ struct Prepared {
     note: Option<String>,
     /// SHA-256 of the data file, read once.
     sha256: String,
+    /// A second model to show beside the first.
+    comparison: Option<FitRequest>,
 }
 
 fn from_session(path: &Path, output: &Path, allow_outside: bool) -> anyhow::Result<Prepared> {
@@ -91,6 +97,12 @@ fn from_session(path: &Path, output: &Path, allow_outside: bool) -> anyhow::Resu
     let request = model
         .request(session.exclusions.iter().map(|e| e.row).collect())
         .map_err(|e| anyhow::anyhow!("{}: {e}", path.display()))?;
+    let comparison = session
+        .comparison
+        .as_ref()
+        .map(|m| m.request(Vec::new()))
+        .transpose()
+        .map_err(|e| anyhow::anyhow!("{}: the kept model: {e}", path.display()))?;
     let reproduce = format!(
         "plumb report {} -o {}{}",
         path.display(),
@@ -108,6 +120,7 @@ fn from_session(path: &Path, output: &Path, allow_outside: bool) -> anyhow::Resu
         reproduce,
         note,
         sha256: hash,
+        comparison,
     })
 }
 
@@ -164,6 +177,10 @@ fn from_data(args: &ReportArgs) -> anyhow::Result<Prepared> {
         ..FitRequest::default()
     };
     args.terms.apply(&mut request);
+    let comparison = args
+        .compare
+        .other(&request)
+        .map_err(|e| anyhow::anyhow!("{}: {e}", args.load.data.display()))?;
     let reproduce = std::iter::once("plumb".to_string())
         .chain(std::env::args().skip(1))
         .map(|a| plumb_report::text::shell_word(&a))
@@ -177,6 +194,7 @@ fn from_data(args: &ReportArgs) -> anyhow::Result<Prepared> {
         reproduce,
         note: None,
         sha256,
+        comparison,
     })
 }
 

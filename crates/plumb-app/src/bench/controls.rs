@@ -19,11 +19,11 @@ pub fn controls_ui(
 ) -> Actions {
     let mut out = Actions::none();
     ui.horizontal_wrapped(|ui| {
-        out.push_some(super::model_editor::model_ui(
-            bench.pair().map(|p| &p.spec),
-            data,
-            ui,
-        ));
+        out.push_some(super::model_editor::model_ui(bench.spec(), data, ui));
+        if bench.is_opening() {
+            ui.spinner();
+            ui.weak("fitting…");
+        }
     });
     ui.horizontal_wrapped(|ui| {
         out.push_some(overlays_ui(bench, ui));

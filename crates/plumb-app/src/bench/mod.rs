@@ -84,7 +84,9 @@ pub fn bench_ui(state: &State, own: &mut BenchUi, ui: &mut egui::Ui) -> Actions 
     let bench = state.bench();
     let mut out = controls::controls_ui(bench, &loaded.dataset, &mut own.pointer.mode, ui);
     let Some(pair) = bench.pair() else {
-        ui.label("Choose a response (y) and a predictor (x) above, or click a cell of the co-movement map.");
+        if !bench.is_opening() {
+            ui.label("Choose a response (y) and a predictor (x) above, or click a cell of the co-movement map.");
+        }
         return out;
     };
     own.pointer.follow(bench.serial());
@@ -162,26 +164,32 @@ fn views_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> Actions 
     let (w, h) = ((avail.x - 12.0).max(320.0), (avail.y - 52.0).max(280.0));
     let top = h * 0.56;
     let mut out = Actions::none();
+    // Each view keeps to its column: a wrapped note under one never pushes the next aside.
+    let column = |ui: &mut egui::Ui, width: f32, f: &mut dyn FnMut(&mut egui::Ui) -> Actions| {
+        ui.vertical(|ui| {
+            ui.set_max_width(width);
+            f(ui)
+        })
+        .inner
+    };
     ui.horizontal(|ui| {
-        out.extend(
-            ui.vertical(|ui| top_left_ui(scene, own, ui, Vec2::new(w * 0.58, top)))
-                .inner,
-        );
-        out.extend(
-            ui.vertical(|ui| residuals::residuals_ui(scene, own, ui, Vec2::new(w * 0.42, top)))
-                .inner,
-        );
+        let size = Vec2::new(w * 0.58, top);
+        out.extend(column(ui, size.x, &mut |ui| {
+            top_left_ui(scene, own, ui, size)
+        }));
+        let size = Vec2::new(w * 0.42, top);
+        out.extend(column(ui, size.x, &mut |ui| {
+            residuals::residuals_ui(scene, own, ui, size)
+        }));
     });
     let bottom = Vec2::new(w / 2.0, h - top);
     ui.horizontal(|ui| {
-        out.extend(
-            ui.vertical(|ui| influence::influence_ui(scene, own, ui, bottom))
-                .inner,
-        );
-        out.extend(
-            ui.vertical(|ui| quantiles::quantiles_ui(scene, own, ui, bottom))
-                .inner,
-        );
+        out.extend(column(ui, bottom.x, &mut |ui| {
+            influence::influence_ui(scene, own, ui, bottom)
+        }));
+        out.extend(column(ui, bottom.x, &mut |ui| {
+            quantiles::quantiles_ui(scene, own, ui, bottom)
+        }));
     });
     out
 }
@@ -193,7 +201,7 @@ fn top_left_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui, size: Ve
         own.added_term = None;
     }
     if terms.is_empty() && own.added_term.is_none() {
-        return scatter::scatter_ui(scene, own, ui, size);
+        return scatter::scatter_ui(scene, own, ui, size, true);
     }
     let scatter_name = format!("{} against {}", scene.pair.spec.y, scene.pair.spec.x0());
     ui.horizontal(|ui| {
@@ -214,11 +222,11 @@ fn top_left_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui, size: Ve
                 }
             })
             .response
-            .on_hover_text("The scatter against the first predictor, or one term's added-variable view: its slope is that term's coefficient in the whole model");
+            .on_hover_text("The scatter against the first predictor, or one term's added-variable view: its slope is that term's coefficient in the whole model. With several predictors the fit is not a curve in the first one alone, so the scatter shows no curve.");
     });
     match own.added_term.clone() {
         Some(t) => added::added_ui(scene, own, ui, size - Vec2::new(0.0, 6.0), &t),
-        None => scatter::scatter_ui(scene, own, ui, size - Vec2::new(0.0, 6.0)),
+        None => scatter::scatter_ui(scene, own, ui, size - Vec2::new(0.0, 6.0), false),
     }
 }
 

@@ -210,6 +210,7 @@ fn factor_ui(s: &mut FitSpec, data: &Dataset, ui: &mut egui::Ui) {
         .find(|(g, _)| *g == f.column)
         .map(|(_, l)| l.clone())
         .unwrap_or_default();
+    let reference = ui.label("reference:");
     egui::ComboBox::from_id_salt("reference-level")
         .selected_text(
             f.reference
@@ -222,6 +223,7 @@ fn factor_ui(s: &mut FitSpec, data: &Dataset, ui: &mut egui::Ui) {
             }
         })
         .response
+        .labelled_by(reference.id)
         .on_hover_text("The reference level: the others' terms measure how far they sit from it");
     ui.checkbox(&mut f.separate_slopes, "own slopes")
         .on_hover_text("A slope of its own per level for the first predictor; the numbers then test whether the slopes differ");

@@ -102,7 +102,7 @@ fn figures_ui(ui: &mut egui::Ui, c: &Comparison) {
         ("rows", |f| f.n.to_string()),
         ("R²", |f| fixed(f.r_squared, 4)),
         ("adjusted R²", |f| fixed(f.adj_r_squared, 4)),
-        ("σ̂", |f| num(f.residual_std_error)),
+        ("residual SE", |f| num(f.residual_std_error)),
         ("AIC", |f| fixed(f.aic, 2)),
         ("BIC", |f| fixed(f.bic, 2)),
     ];
@@ -122,7 +122,7 @@ fn figures_ui(ui: &mut egui::Ui, c: &Comparison) {
         });
     if c.kept.response != c.current.response {
         ui.weak(format!(
-            "R² and σ̂ are on {} (kept) and {} (current): not comparable",
+            "R² and the residual SE are on {} (kept) and {} (current): not comparable",
             c.kept.response, c.current.response
         ));
     }

@@ -134,8 +134,9 @@ pub fn points_layer(
         }
         _ => {
             let pts: Vec<[f64; 2]> = markers.iter().map(|(_, (x, y))| [*x, *y]).collect();
+            // Unnamed: plain points need no legend entry (the legend keeps to lines and keys).
             pu.points(
-                Points::new("rows", pts)
+                Points::new("", pts)
                     .color(palette::point(visuals))
                     .radius(2.5)
                     .filled(true)

@@ -4,6 +4,7 @@
 //! Excluded rows are drawn against the current fit, as rings.
 
 use eframe::egui::{self, Vec2};
+use plumb_report::text::sig;
 
 use super::view::{diagnostic_ui, Diagnostic};
 use super::{BenchUi, Scene};
@@ -84,22 +85,52 @@ pub fn residuals_ui(
         x_label: &x_label,
         y_label: &y_label,
     };
-    out.extend(diagnostic_ui(
-        scene,
-        own,
-        ui,
-        size,
-        &view,
-        pick,
-        |pu, _, v| {
-            pu.hline(
-                egui_plot::HLine::new("zero", 0.0)
-                    .color(v.weak_text_color())
-                    .allow_hover(false),
-            );
-        },
-    ));
+    let beyond = scene
+        .bench
+        .diagnostics()
+        .map(|d| beyond_text(scene, &d.views))
+        .unwrap_or_default();
+    let size = if beyond.is_empty() {
+        size
+    } else {
+        size - Vec2::new(0.0, 18.0)
+    };
+    out.extend(diagnostic_ui(scene, own, ui, size, &view, pick, zero_line));
+    if !beyond.is_empty() {
+        ui.weak(beyond);
+    }
     out
+}
+
+fn zero_line(pu: &mut egui_plot::PlotUi<'_>, _: &Cloud, v: &egui::Visuals) {
+    pu.hline(
+        egui_plot::HLine::new("zero", 0.0)
+            .color(v.weak_text_color())
+            .allow_hover(false),
+    );
+}
+
+/// The excluded rows too far out to draw, by data row with their residuals.
+pub fn beyond_text(scene: &Scene<'_>, v: &Views) -> String {
+    if v.beyond.is_empty() {
+        return String::new();
+    }
+    let rows: Vec<String> = v
+        .beyond
+        .iter()
+        .take(4)
+        .map(|&(i, e)| format!("row {} ({})", scene.pair.rows[i], sig(e, 3)))
+        .collect();
+    let more = v.beyond.len().saturating_sub(4);
+    let tail = if more > 0 {
+        format!(" and {more} more")
+    } else {
+        String::new()
+    };
+    format!(
+        "excluded, far outside the view (residual): {}{tail}",
+        rows.join(", ")
+    )
 }
 
 #[cfg(test)]

@@ -21,6 +21,8 @@ use crate::state::diagnostics::Diagnostics;
 use crate::state::marks::Marks;
 use crate::state::pair::PairRows;
 
+const TIP: &str = "The rows with the fitted line or curve, its confidence band (shaded) and prediction band (dashed). Hollow rings are excluded rows; a dashed green curve is the fit kept for comparison.";
+
 /// Points along the drawn curve.
 const CURVE_POINTS: u32 = 120;
 
@@ -72,13 +74,22 @@ pub fn lasso_rows(pair: &PairRows, marks: &Marks, ring: &[[f64; 2]]) -> Vec<usiz
 }
 
 /// Draws the scatter and returns what the pointer asked for.
-pub fn scatter_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui, size: Vec2) -> Actions {
+/// `titled`: draw the view's title (not when a chooser above names it).
+pub fn scatter_ui(
+    scene: &Scene<'_>,
+    own: &mut BenchUi,
+    ui: &mut egui::Ui,
+    size: Vec2,
+    titled: bool,
+) -> Actions {
     let pair = scene.pair;
-    title_ui(
-        ui,
-        &format!("{} against {}", pair.spec.y, pair.spec.x0()),
-        "The rows with the fitted line or curve, its confidence band (shaded) and prediction band (dashed). Hollow rings are excluded rows.",
-    );
+    if titled {
+        title_ui(
+            ui,
+            &format!("{} against {}", pair.spec.y, pair.spec.x0()),
+            TIP,
+        );
+    }
     let marked = Marked::of(pair, scene.marks);
     let included = pair.points.as_ref();
     let mut plot = axes::plot(
@@ -87,7 +98,11 @@ pub fn scatter_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui, size:
         (pair.spec.x0(), &pair.spec.y),
     )
     .allow_drag(own.pointer.mode == PointerMode::Exclude)
-    .legend(egui_plot::Legend::default().position(egui_plot::Corner::RightTop));
+    .legend(
+        egui_plot::Legend::default()
+            .position(egui_plot::Corner::RightTop)
+            .text_style(egui::TextStyle::Small),
+    );
     if included.is_dense() {
         if let Some(b) = included.bounds {
             plot = super::dense_bounds(plot, b);

@@ -30,10 +30,19 @@ pub struct Colouring {
     pub of_entry: Option<Arc<[Option<usize>]>>,
 }
 
+/// A model being fitted on the worker.
+struct Opening {
+    spec: FitSpec,
+    /// A new model (`false`: the same model refitted at the Box–Cox λ of the rows in use).
+    fresh: bool,
+    job: Job<Result<Pair, WorkbenchError>>,
+}
+
 /// State of the bench.
 #[derive(Default)]
 pub struct BenchModel {
     pair: Option<Pair>,
+    opening: Option<Opening>,
     /// A model kept for comparison with the one on the bench (survives opening another).
     kept: Option<FitSpec>,
     overlays: Overlays,
@@ -105,9 +114,9 @@ impl BenchModel {
         &self.colouring
     }
 
-    /// Whether diagnostics are being computed or are out of date.
+    /// Whether a model is being fitted, or diagnostics are being computed or are out of date.
     pub fn is_busy(&self) -> bool {
-        self.job.is_some() || self.stale
+        self.opening.is_some() || self.job.is_some() || self.stale
     }
 
     /// The reason prompt, if open.
@@ -130,21 +139,57 @@ impl BenchModel {
         self.diag_generation
     }
 
-    /// Puts `spec` on the bench under `marks`.
-    ///
-    /// # Errors
-    /// Columns that cannot be fitted.
-    pub fn open(
+    /// Starts putting `spec` on the bench: its rows are selected and fitted on a worker (on a
+    /// large file that takes a moment; the pair on the bench stays until the new one is ready).
+    /// A failure arrives from [`BenchModel::poll`].
+    pub fn open(&mut self, data: &Dataset, spec: FitSpec, waker: &Waker) {
+        let table = Arc::clone(&data.table);
+        let wanted = spec.clone();
+        self.start_opening(spec, true, waker, move || Pair::new(&table, wanted));
+    }
+
+    /// The model being opened, or the one on the bench (what the model's controls show).
+    pub fn spec(&self) -> Option<&FitSpec> {
+        self.opening
+            .as_ref()
+            .filter(|o| o.fresh)
+            .map(|o| &o.spec)
+            .or(self.pair.as_ref().map(|p| &p.spec))
+    }
+
+    /// Whether a model is being fitted on the worker.
+    pub fn is_opening(&self) -> bool {
+        self.opening.is_some()
+    }
+
+    fn start_opening(
         &mut self,
-        data: &Dataset,
         spec: FitSpec,
-        marks: &Marks,
-    ) -> Result<(), WorkbenchError> {
-        let mut pair = Pair::new(&data.table, spec)?;
+        fresh: bool,
+        waker: &Waker,
+        build: impl FnOnce() -> Result<Pair, WorkbenchError> + Send + 'static,
+    ) {
+        if let Some(old) = self.opening.take() {
+            old.job.cancel();
+        }
+        self.opening = Some(Opening {
+            spec,
+            fresh,
+            job: Job::spawn(move |_| build(), waker.hook()),
+        });
+    }
+
+    /// Installs a pair the worker built: a new model starts its views afresh; a refit of the
+    /// same model (λ followed) keeps them.
+    fn install(&mut self, data: &Dataset, mut pair: Pair, marks: &Marks, fresh: bool) {
         pair.apply(marks);
-        self.pair = Some(pair);
+        let old_pair = self.pair.replace(pair);
+        if !fresh {
+            drop_aside((old_pair, None));
+            return;
+        }
         self.serial += 1;
-        self.diag = None;
+        drop_aside((old_pair, self.diag.take()));
         // The diagnostics of the pair that was on the bench must not arrive for this one.
         if let Some(job) = self.job.take() {
             job.cancel();
@@ -152,7 +197,6 @@ impl BenchModel {
         let column = self.colouring.column.take();
         self.colour_by(data, column);
         self.touch();
-        Ok(())
     }
 
     /// Colours the points by `column` (a text column with few levels) or by nothing.
@@ -205,24 +249,37 @@ impl BenchModel {
     }
 
     /// Moves the live fit to the Box–Cox λ the diagnostics estimated on the rows in use (it is
-    /// held while the analyst excludes or drags, and follows once the diagnostics are in).
-    fn follow_lambda(&mut self, data: &Dataset, marks: &Marks, b: Option<BoxCox>) {
+    /// held while the analyst excludes or drags, and follows once the diagnostics are in): a
+    /// refit of the same model on the worker.
+    fn follow_lambda(&mut self, data: &Dataset, b: Option<BoxCox>, waker: &Waker) {
         let Some(b) = b else { return };
-        let Some(pair) = self.pair.as_mut().filter(|p| p.lags_lambda(&b)) else {
+        let Some(pair) = self.pair.as_ref().filter(|p| p.lags_lambda(&b)) else {
             return;
         };
-        if let Ok(mut refitted) = Pair::at_lambda(&data.table, pair.spec.clone(), b) {
-            refitted.apply(marks);
-            *pair = refitted;
-        }
+        let (table, spec) = (Arc::clone(&data.table), pair.spec.clone());
+        let wanted = spec.clone();
+        self.start_opening(spec, false, waker, move || {
+            Pair::at_lambda(&table, wanted, b)
+        });
     }
 
-    /// Picks up finished diagnostics and starts a new computation when needed.
-    pub fn poll(&mut self, data: &Dataset, marks: &Marks, waker: &Waker) {
+    /// Installs a model the worker fitted, picks up finished diagnostics and starts a new
+    /// computation when needed. Returns why a model could not be opened.
+    pub fn poll(&mut self, data: &Dataset, marks: &Marks, waker: &Waker) -> Option<String> {
+        let mut failure = None;
+        if let Some(done) = self.opening.as_mut().and_then(|o| o.job.poll()) {
+            let fresh = self.opening.take().is_some_and(|o| o.fresh);
+            match done {
+                Ok(pair) => self.install(data, pair, marks, fresh),
+                Err(e) => failure = Some(e.to_string()),
+            }
+        }
         if let Some(d) = self.job.as_mut().and_then(Job::poll) {
             self.job = None;
             if self.pair.as_ref().is_some_and(|p| p.spec == d.spec) {
-                self.follow_lambda(data, marks, d.boxcox);
+                if self.opening.is_none() {
+                    self.follow_lambda(data, d.boxcox, waker);
+                }
                 self.diag = Some(Arc::new(d));
                 self.diag_generation += 1;
             }
@@ -242,6 +299,7 @@ impl BenchModel {
                 self.job = Some(Job::spawn(move |_| compute(&input), waker.hook()));
             }
         }
+        failure
     }
 }
 
@@ -267,14 +325,17 @@ mod tests {
         let marks = Marks::default();
         let waker = Waker::default();
         let mut bench = BenchModel::default();
-        bench
-            .open(&data, FitSpec::line("a", "t"), &marks)
-            .expect("first pair");
+        bench.open(&data, FitSpec::line("a", "t"), &waker);
+        while bench.pair().is_none() {
+            assert_eq!(
+                bench.poll(&data, &marks, &waker),
+                None,
+                "the first pair opens"
+            );
+        }
         bench.poll(&data, &marks, &waker);
         let second = FitSpec::line("b", "a");
-        bench
-            .open(&data, second.clone(), &marks)
-            .expect("second pair");
+        bench.open(&data, second.clone(), &waker);
         let start = std::time::Instant::now();
         while bench.diagnostics().is_none() {
             assert!(start.elapsed().as_secs() < 60, "no diagnostics");
@@ -286,5 +347,13 @@ mod tests {
             d.spec, second,
             "the first diagnostics shown are the new pair's"
         );
+    }
+}
+
+/// Frees a replaced pair and its diagnostics on a short-lived thread: at a million rows their
+/// vectors take tens of milliseconds to give back, which would otherwise stall a frame.
+fn drop_aside(old: (Option<Pair>, Option<Arc<Diagnostics>>)) {
+    if old.0.is_some() || old.1.is_some() {
+        std::thread::spawn(move || drop(old));
     }
 }

@@ -144,19 +144,11 @@ impl State {
         }
     }
 
-    /// Puts pair `spec` on the bench (keeping the marks). False, with a message, if the
-    /// columns cannot be fitted.
-    pub(crate) fn open_pair(&mut self, spec: FitSpec) -> bool {
-        let Some(loaded) = &self.doc.loaded else {
-            return false;
-        };
-        let marks = self.history.current().clone();
-        match self.bench.open(&loaded.dataset, spec, &marks) {
-            Ok(()) => true,
-            Err(e) => {
-                self.fail(e.to_string());
-                false
-            }
+    /// Starts putting model `spec` on the bench (keeping the marks); it is fitted on a worker
+    /// and a failure is reported when the worker is done.
+    pub(crate) fn open_pair(&mut self, spec: FitSpec) {
+        if let Some(loaded) = &self.doc.loaded {
+            self.bench.open(&loaded.dataset, spec, &self.waker);
         }
     }
 

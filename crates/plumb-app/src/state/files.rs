@@ -122,7 +122,8 @@ impl State {
         self.doc.loaded = Some(loaded);
         self.screen = Screen::Columns;
         if let Some(spec) = first_pair {
-            if self.open_pair(spec) && then.marks.is_some() {
+            self.open_pair(spec);
+            if then.marks.is_some() {
                 self.bench.keep(then.kept);
                 self.screen = Screen::Bench;
             }
@@ -152,7 +153,7 @@ impl State {
 
     fn current_session(&self, at: &Path) -> Option<Session> {
         let loaded = self.doc.loaded.as_ref()?;
-        let spec = self.bench.pair().map(|p| &p.spec);
+        let spec = self.bench.spec();
         Some(session_of(
             &loaded.dataset,
             &loaded.sha256,
@@ -222,6 +223,7 @@ impl State {
             request: pair.spec.on_file_rows(self.marks()),
             exclusions: session.exclusions.clone(),
             reproduce: reproduce_command(&session_file, out, &loaded.dataset.path()),
+            comparison: self.bench.kept().map(FitSpec::model),
         })
         .map_err(|e| WorkbenchError::Report(e.to_string()))?;
         let files = write(&report, out).map_err(|e| WorkbenchError::Report(e.to_string()))?;

@@ -222,8 +222,11 @@ impl State {
         }
         let marks = self.history.current().clone();
         if let Some(loaded) = &self.doc.loaded {
-            self.bench.poll(&loaded.dataset, &marks, &self.waker);
+            let failure = self.bench.poll(&loaded.dataset, &marks, &self.waker);
             self.map.poll(&loaded.dataset, &self.waker);
+            if let Some(e) = failure {
+                self.fail(e);
+            }
         }
         self.doc.poll_dialog()
     }

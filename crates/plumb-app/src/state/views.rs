@@ -46,8 +46,12 @@ pub struct Views {
     /// (expected normal score `Φ⁻¹((k − 3/8)/(n + 1/4))`, sorted externally studentized
     /// residual).
     pub quantile: Cloud,
-    /// Excluded rows as (the residual axis, y − prediction of the current fit).
+    /// Excluded rows as (the residual axis, y − prediction of the current fit), those near
+    /// the included rows' extent.
     pub excluded_residuals: Cloud,
+    /// Excluded rows far beyond the included rows' extent (a gross error left out would
+    /// squash the included residuals into a strip): `(entry, residual)`, named under the view.
+    pub beyond: Vec<(usize, f64)>,
     /// The added-variable view of each predictor term (several predictors).
     pub added: Vec<AddedView>,
 }
@@ -99,19 +103,27 @@ pub fn views_of(
             .zip(cases)
             .map(|(&i, c)| (i, (along.at(i, c.fitted), c.residual))),
     );
-    let excluded_residuals = f.map_or_else(Cloud::default, |f| {
-        finite_cloud(input.marks.excluded.keys().filter_map(|&r| {
-            let i = input.pair.index_of(r)?;
-            let (yhat, e) = against_fit(&input.pair, &input.marks, f, i)?;
-            Some((i, (along.at(i, yhat), e)))
-        }))
+    let rings: Vec<Placed> = f.map_or_else(Vec::new, |f| {
+        input
+            .marks
+            .excluded
+            .keys()
+            .filter_map(|&r| {
+                let i = input.pair.index_of(r)?;
+                let (yhat, e) = against_fit(&input.pair, &input.marks, f, i)?;
+                Some((i, (along.at(i, yhat), e)))
+            })
+            .collect()
     });
+    let (near, beyond) = split_far(residual.bounds, rings);
+    let excluded_residuals = finite_cloud(near.into_iter());
     Views {
         residual,
         residual_axis: axis,
         leverage: cloud(|c| (c.leverage, c.studentized_internal)),
         quantile: quantile_cloud(cases, included),
         excluded_residuals,
+        beyond: beyond.into_iter().map(|(i, (_, e))| (i, e)).collect(),
         added: added
             .into_iter()
             .map(|av| AddedView {
@@ -123,8 +135,33 @@ pub fn views_of(
     }
 }
 
+/// A pair entry and where it sits in a view.
+pub type Placed = (usize, (f64, f64));
+
+/// How far past the included rows' extent (in shares of its span, each way) an excluded row
+/// is still drawn in the residual view.
+pub const RING_REACH: f64 = 0.5;
+
+/// Splits excluded rows into those within [`RING_REACH`] of `bounds` (drawn) and those
+/// beyond (named instead); everything is near when there are no bounds.
+pub fn split_far(
+    bounds: Option<crate::density::Bounds>,
+    rings: Vec<Placed>,
+) -> (Vec<Placed>, Vec<Placed>) {
+    let Some(b) = bounds else {
+        return (rings, Vec::new());
+    };
+    let reach = |v: f64, lo: f64, hi: f64| {
+        let pad = (hi - lo).max(f64::MIN_POSITIVE) * RING_REACH;
+        v >= lo - pad && v <= hi + pad
+    };
+    rings
+        .into_iter()
+        .partition(|(_, (x, y))| reach(*x, b.x_min, b.x_max) && reach(*y, b.y_min, b.y_max))
+}
+
 /// A cloud of the finite points only (a missing cell in an order column leaves its row out).
-fn finite_cloud(placed: impl Iterator<Item = (usize, (f64, f64))>) -> Cloud {
+fn finite_cloud(placed: impl Iterator<Item = Placed>) -> Cloud {
     let (entries, points): (Vec<usize>, Vec<(f64, f64)>) = placed
         .filter(|(_, (x, y))| x.is_finite() && y.is_finite())
         .unzip();
@@ -189,4 +226,31 @@ fn quantile_cloud(cases: &[CaseInfluence], included: &[usize]) -> Cloud {
         .map(|(expected, &k)| (expected, cases[k].studentized_external))
         .collect();
     Cloud::new(points, order.iter().map(|&k| included[k]).collect())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::density::Bounds;
+
+    #[test]
+    fn a_gross_error_left_out_is_named_instead_of_squashing_the_view() {
+        let b = Bounds {
+            x_min: 0.0,
+            x_max: 10.0,
+            y_min: -1.0,
+            y_max: 1.0,
+        };
+        let rings = vec![
+            (3, (5.0, 1.8)),
+            (7, (5.0, 50.0)),
+            (9, (-4.9, 0.0)),
+            (11, (-5.1, 0.0)),
+        ];
+        let (near, far) = split_far(Some(b), rings.clone());
+        assert_eq!(near.iter().map(|r| r.0).collect::<Vec<_>>(), [3, 9]);
+        assert_eq!(far.iter().map(|r| r.0).collect::<Vec<_>>(), [7, 11]);
+        let (near, far) = split_far(None, rings);
+        assert_eq!((near.len(), far.len()), (4, 0));
+    }
 }

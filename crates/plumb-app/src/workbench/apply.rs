@@ -20,9 +20,7 @@ impl Workbench {
             Action::ExportSummaryTo(path) => s.export_summary_to(&path),
             Action::Answer(yes) => answer(s, yes),
             Action::Show(screen) => s.screen = screen,
-            Action::OpenPair(spec) => {
-                s.open_pair(spec);
-            }
+            Action::OpenPair(spec) => s.open_pair(spec),
             Action::KeepForComparison(keep) => s.keep_for_comparison(keep),
             Action::ResidualsAgainst(axis) => s.bench.set_residual_axis(axis),
             Action::SetOverlays(o) => s.set_overlays(o),

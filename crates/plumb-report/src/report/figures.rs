@@ -1,19 +1,25 @@
 //! The summary's charts: the pair with its fit and bands (or y against its fitted value with
 //! several predictors), the residuals, and the influence view; excluded rows stay visible.
 
-use plumb_data::analysis::{Analysis, PairExtras};
+use plumb_data::analysis::{Analysis, Curve, PairExtras};
 
-use super::ReportInput;
-use crate::charts::{leverage_chart, pair_chart, residual_chart, Chart, Dot, PairChart};
+use super::{Beside, ReportInput};
+use crate::charts::{
+    leverage_chart, pair_chart, residual_chart, Chart, ChartLine, Dot, LineKind, PairChart,
+};
 use crate::Result;
 
 /// Every chart of the summary.
 ///
 /// # Errors
 /// A chart that could not be drawn.
-pub fn draw(input: &ReportInput<'_>, outcome: &Analysis) -> Result<Vec<Chart>> {
+pub fn draw(
+    input: &ReportInput<'_>,
+    outcome: &Analysis,
+    beside: Option<&Beside>,
+) -> Result<Vec<Chart>> {
     let first = match &outcome.extras {
-        Some(e) => pair_figure(input, outcome, e)?,
+        Some(e) => pair_figure(input, outcome, e, beside)?,
         None => fitted_figure(input, outcome)?,
     };
     let residuals = dots(outcome.fit.fitted.iter().zip(&outcome.fit.residuals));
@@ -68,7 +74,43 @@ fn excluded_dots(input: &ReportInput<'_>, outcome: &Analysis, x: &str) -> Vec<Do
         .collect()
 }
 
-fn pair_figure(input: &ReportInput<'_>, outcome: &Analysis, e: &PairExtras) -> Result<Chart> {
+/// The curves drawn without bands: one per group level, and the other model's when it is
+/// drawn against the same axes.
+fn lines(input: &ReportInput<'_>, e: &PairExtras, beside: Option<&Beside>) -> Vec<ChartLine> {
+    let along = |c: &Curve| c.points.iter().map(|b| (b.x, b.fitted)).collect();
+    let mut out: Vec<ChartLine> = e
+        .curves
+        .iter()
+        .enumerate()
+        .filter(|(_, c)| c.level.is_some())
+        .map(|(k, c)| ChartLine {
+            label: format!("fit, {}", c.level.as_deref().unwrap_or_default()),
+            points: along(c),
+            kind: LineKind::Level(k),
+        })
+        .collect();
+    let request = &input.request;
+    let same_axes = |b: &&Beside| b.request.y == request.y && b.request.x[0] == request.x[0];
+    for c in beside.filter(same_axes).iter().flat_map(|b| &b.curves) {
+        let label = match &c.level {
+            Some(l) => format!("other model, {l}"),
+            None => "other model".to_string(),
+        };
+        out.push(ChartLine {
+            label,
+            points: along(c),
+            kind: LineKind::Kept,
+        });
+    }
+    out
+}
+
+fn pair_figure(
+    input: &ReportInput<'_>,
+    outcome: &Analysis,
+    e: &PairExtras,
+    beside: Option<&Beside>,
+) -> Result<Chart> {
     let request = &input.request;
     let sel = &outcome.rows.selection;
     let mut all = dots(sel.columns[1].iter().zip(&sel.columns[0]));
@@ -92,6 +134,7 @@ fn pair_figure(input: &ReportInput<'_>, outcome: &Analysis, e: &PairExtras) -> R
         y_label: &request.y,
         dots: all,
         curve,
+        lines: lines(input, e, beside),
     };
     pair_chart(
         &data,
@@ -102,19 +145,15 @@ fn pair_figure(input: &ReportInput<'_>, outcome: &Analysis, e: &PairExtras) -> R
     )
 }
 
+/// The response (on the model's scale) against its fitted value.
 fn fitted_figure(input: &ReportInput<'_>, outcome: &Analysis) -> Result<Chart> {
-    let y = &input.request.y;
+    let y = &outcome.response_label(&input.request.y);
     let data = PairChart {
         x_label: "fitted value",
         y_label: y,
-        dots: dots(
-            outcome
-                .fit
-                .fitted
-                .iter()
-                .zip(&outcome.rows.selection.columns[0]),
-        ),
+        dots: dots(outcome.fit.fitted.iter().zip(outcome.rows.y())),
         curve: Vec::new(),
+        lines: Vec::new(),
     };
     pair_chart(&data, format!("{y} against its fitted value"))
 }

@@ -2,11 +2,14 @@
 
 mod figures;
 mod page;
+mod parts;
 mod tables;
 
 use std::path::{Path, PathBuf};
 
-use plumb_data::analysis::{analyze, ExtrasRequest, FitRequest, Wanted};
+use plumb_data::analysis::{
+    analyze, compare, Comparison, Curve, ExtrasRequest, FitRequest, Wanted,
+};
 use plumb_data::Table;
 
 use crate::charts::Chart;
@@ -27,6 +30,41 @@ pub struct ReportInput<'a> {
     pub exclusions: Vec<Exclusion>,
     /// The command that reproduces this summary.
     pub reproduce: String,
+    /// A second model shown beside the first (on the same exclusions), if one was kept.
+    pub comparison: Option<FitRequest>,
+}
+
+/// The second model beside the first: how they compare (or why they could not be fitted
+/// together) and its curves in the data's units.
+#[derive(Debug, Clone)]
+pub struct Beside {
+    /// The model.
+    pub request: FitRequest,
+    /// The two fits' figures and the partial F when nested, or why there is none.
+    pub comparison: std::result::Result<Comparison, String>,
+    /// Its curves (one predictor), in the data's units.
+    pub curves: Vec<Curve>,
+}
+
+impl Beside {
+    fn of(table: &Table, kept: &FitRequest, current: &FitRequest) -> Self {
+        let names = ["the other model", "this one"];
+        let comparison = compare(table, kept, current, names).map_err(|e| e.to_string());
+        let wanted = Wanted {
+            extras: Some(ExtrasRequest::default()),
+            ..Wanted::default()
+        };
+        let curves = analyze(table, kept, wanted)
+            .ok()
+            .and_then(|a| a.extras)
+            .map(|e| e.curves)
+            .unwrap_or_default();
+        Self {
+            request: kept.clone(),
+            comparison,
+            curves,
+        }
+    }
 }
 
 /// A built summary, not yet written.
@@ -56,17 +94,25 @@ pub fn build(input: &ReportInput<'_>) -> Result<Report> {
     };
     let outcome = analyze(input.table, request, wanted)?;
     let effects = exclusion_effects(input.table, request)?;
-    let charts = figures::draw(input, &outcome)?;
+    let beside = input.comparison.as_ref().map(|k| {
+        let kept = FitRequest {
+            exclude: request.exclude.clone(),
+            ..k.clone()
+        };
+        Beside::of(input.table, &kept, request)
+    });
+    let charts = figures::draw(input, &outcome, beside.as_ref())?;
     let html = page::Page {
         input,
         outcome: &outcome,
         effects: &effects,
         charts: &charts,
+        beside: beside.as_ref(),
     }
     .render();
     Ok(Report {
         html,
-        statistics_csv: tables::statistics_csv(&outcome),
+        statistics_csv: tables::statistics_csv(&outcome, beside.as_ref()),
         exclusions_csv: tables::exclusions_csv(&effects, &input.exclusions),
         charts,
     })

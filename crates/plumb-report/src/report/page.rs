@@ -24,6 +24,8 @@ pub struct Page<'a> {
     pub effects: &'a [Effect],
     /// The charts, drawn.
     pub charts: &'a [Chart],
+    /// A second model beside the first.
+    pub beside: Option<&'a super::Beside>,
 }
 
 impl Page<'_> {
@@ -34,6 +36,8 @@ impl Page<'_> {
         let _ = self.head(&mut out);
         let _ = self.data(&mut out);
         let _ = self.model(&mut out);
+        let _ = self.groups(&mut out);
+        let _ = self.beside(&mut out);
         let _ = self.figures(&mut out);
         let _ = self.exclusions(&mut out);
         let _ = self.cues(&mut out);
@@ -95,12 +99,14 @@ impl Page<'_> {
             .iter()
             .map(|t| html(t))
             .collect();
+        let y = &self.input.request.y;
         writeln!(
             out,
             "<section><h2>Model</h2><p class=\"eq\">{} = {}</p>",
-            html(&self.input.request.y),
+            html(&self.outcome.response_label(y)),
             terms.join(" + ")
         )?;
+        self.scale(out)?;
         writeln!(out, "<table><thead><tr><th>term</th><th>estimate</th><th>std. error</th><th>t</th><th>p</th><th>{}% interval</th><th>z-units</th></tr></thead><tbody>", fit.level * 100.0)?;
         for c in &fit.coefficients {
             writeln!(out, "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>[{}, {}]</td><td>{}</td></tr>", html(&c.term), num(c.estimate), num(c.std_error), num(c.t), p(c.p_value), num(c.ci_low), num(c.ci_high), c.standardized.map_or_else(|| "—".into(), num))?;

@@ -20,11 +20,13 @@ pub fn f_test(c: &NestedComparison) -> String {
     )
 }
 
-/// Which scale R², σ̂ and the residuals refer to, when the response is transformed
+/// Which scale R², the residual SE and the residuals refer to, when the response is transformed
 /// (`label` is the response as fitted, e.g. `ln(dose)`; `None` when it is `y` itself).
 pub fn scale_note(label: &str, y: &str) -> Option<String> {
     (label != y).then(|| {
-        format!("R², σ̂ and the residuals are on {label}; curves are drawn back in {y}'s units")
+        format!(
+            "R², the residual SE and the residuals are on {label}; curves are drawn back in {y}'s units"
+        )
     })
 }
 
