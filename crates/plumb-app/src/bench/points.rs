@@ -336,6 +336,19 @@ mod tests {
         (dir, Pair::new(&t, FitSpec::line("y", "x")).expect("pair"))
     }
 
+    fn test_layer<'a>(pair: &'a Pair, marked: &'a Marked) -> Layer<'a> {
+        Layer {
+            view: "test",
+            cloud: &pair.points,
+            groups: None,
+            excluded: &marked.excluded,
+            skip: &marked.skip,
+            extra: &marked.moved,
+            focus: None,
+            generation: 0,
+        }
+    }
+
     fn marks() -> Marks {
         let mut m = Marks::default();
         m.excluded.insert(
@@ -362,16 +375,7 @@ mod tests {
             "at its moved place"
         );
         assert_eq!(marked.moved.entries, vec![4], "row 5 moved and still in");
-        let layer = Layer {
-            view: "test",
-            cloud: &pair.points,
-            groups: None,
-            excluded: &marked.excluded,
-            skip: &marked.skip,
-            extra: &marked.moved,
-            focus: None,
-            generation: 0,
-        };
+        let layer = test_layer(&pair, &marked);
         let drawn = layer.markers();
         assert_eq!(drawn.len(), 11, "12 rows, one excluded");
         assert!(drawn.iter().all(|(e, _)| *e != 2));
@@ -389,16 +393,7 @@ mod tests {
         assert!(pair.points.is_dense());
         let m = marks();
         let marked = Marked::of(&pair, &m);
-        let layer = Layer {
-            view: "test",
-            cloud: &pair.points,
-            groups: None,
-            excluded: &marked.excluded,
-            skip: &marked.skip,
-            extra: &marked.moved,
-            focus: None,
-            generation: 0,
-        };
+        let layer = test_layer(&pair, &marked);
         assert_eq!(layer.markers(), vec![(4, (100.0, -7.0))]);
         let b = pair.points.bounds.expect("bounds");
         assert_eq!((b.x_min, b.x_max), (0.0, (DENSITY_FROM + 9) as f64));

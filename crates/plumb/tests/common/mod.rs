@@ -19,29 +19,11 @@ pub fn demo(name: &str) -> PathBuf {
 
 /// `plumb fit DATA --y Y --x X [--exclude ROWS] --format json`, parsed.
 pub fn cli_fit(data: &Path, y: &str, x: &str, exclude: &str) -> serde_json::Value {
-    let mut args = vec![
-        "fit".to_string(),
-        data.display().to_string(),
-        "--y".into(),
-        y.into(),
-        "--x".into(),
-        x.into(),
-        "--format".into(),
-        "json".into(),
-    ];
+    let mut args = vec!["--y", y, "--x", x];
     if !exclude.is_empty() {
-        args.extend(["--exclude".into(), exclude.into()]);
+        args.extend(["--exclude", exclude]);
     }
-    let out = Command::new(env!("CARGO_BIN_EXE_plumb"))
-        .args(&args)
-        .output()
-        .expect("plumb runs");
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    serde_json::from_slice(&out.stdout).expect("json")
+    cli_fit_with(data, &args)
 }
 
 /// `plumb fit DATA ARGS… --format json`, parsed.
