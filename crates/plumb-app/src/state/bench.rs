@@ -303,6 +303,14 @@ impl BenchModel {
     }
 }
 
+/// Frees a replaced pair and its diagnostics on a short-lived thread: at a million rows their
+/// vectors take tens of milliseconds to give back, which would otherwise stall a frame.
+fn drop_aside(old: (Option<Pair>, Option<Arc<Diagnostics>>)) {
+    if old.0.is_some() || old.1.is_some() {
+        std::thread::spawn(move || drop(old));
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -347,13 +355,5 @@ mod tests {
             d.spec, second,
             "the first diagnostics shown are the new pair's"
         );
-    }
-}
-
-/// Frees a replaced pair and its diagnostics on a short-lived thread: at a million rows their
-/// vectors take tens of milliseconds to give back, which would otherwise stall a frame.
-fn drop_aside(old: (Option<Pair>, Option<Arc<Diagnostics>>)) {
-    if old.0.is_some() || old.1.is_some() {
-        std::thread::spawn(move || drop(old));
     }
 }
