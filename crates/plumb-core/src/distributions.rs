@@ -97,6 +97,21 @@ pub fn normal_upper_tail(z: f64) -> f64 {
     }
 }
 
+/// Upper tail of the chi-square distribution with `df` degrees of freedom:
+/// `P(X ≥ x) = Γ(df/2, x/2)/Γ(df/2)` (the regularized upper incomplete gamma).
+pub fn chi_square_upper_tail(x: f64, df: f64) -> f64 {
+    if x.is_nan() || df.is_nan() || df <= 0.0 {
+        return f64::NAN;
+    }
+    if x <= 0.0 {
+        return 1.0;
+    }
+    if x.is_infinite() {
+        return 0.0;
+    }
+    gamma_ur(0.5 * df, 0.5 * x)
+}
+
 /// Upper quantile `z` with `Q(z) = alpha`, from statrs' inverse CDF polished by Newton steps
 /// on `Q(z) − alpha` with `Q'(z) = −φ(z) = −e^{−z²/2}/√(2π)`.
 ///
