@@ -209,6 +209,36 @@ mod tests {
         assert!(anderson_darling(&skewed).expect("defined").p_value < 1e-3);
     }
 
+    /// `((i·7919 mod 101)/10)^1.3 + i/10` for i = 0..37: skewed, with no ties.
+    fn skewed_sample() -> Vec<f64> {
+        (0..37)
+            .map(|i| ((i * 7919 % 101) as f64 / 10.0).powf(1.3) + i as f64 * 0.1)
+            .collect()
+    }
+
+    #[test]
+    fn shapiro_wilk_matches_scipy() {
+        // scipy 1.14.1 stats.shapiro on 2026-12-02, pasted: (0.9668652505040336,
+        // 0.3299769138089207) for all 37, (0.9452695043687562, 0.6865407869062907) for the first
+        // 7. scipy's own W is good to about 1e-9 here (its coefficients differ in the 10th digit).
+        let x = skewed_sample();
+        let all = shapiro_wilk(&x).expect("defined");
+        let seven = shapiro_wilk(&x[..7]).expect("defined");
+        assert!((all.statistic - 0.9668652505040336).abs() < 1e-9);
+        assert!((all.p_value / 0.3299769138089207 - 1.0).abs() < 1e-7);
+        assert!((seven.statistic - 0.9452695043687562).abs() < 1e-9);
+        assert!((seven.p_value / 0.6865407869062907 - 1.0).abs() < 1e-7);
+    }
+
+    #[test]
+    fn anderson_darling_matches_statsmodels() {
+        // statsmodels 0.14.4 stats.diagnostic.normal_ad on 2026-12-02, pasted:
+        // (0.3495744982851079, 0.4551993416013817); scipy's stats.anderson gives the same A².
+        let r = anderson_darling(&skewed_sample()).expect("defined");
+        assert!((r.statistic / 0.3495744982851079 - 1.0).abs() < 1e-12);
+        assert!((r.p_value / 0.4551993416013817 - 1.0).abs() < 1e-12);
+    }
+
     #[test]
     fn three_values_use_the_exact_form() {
         // Equally spaced: W = 1 exactly, p = 1 (6/π·(π/2 − π/3) = 1, by hand).

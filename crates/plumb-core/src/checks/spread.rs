@@ -76,6 +76,19 @@ mod tests {
     }
 
     #[test]
+    fn matches_statsmodels_on_a_skewed_series() {
+        // statsmodels 0.14.4 het_breuschpagan(e, [1, i]) on 2026-12-02, pasted:
+        // LM 4.010591194790268, p 0.04521529352895727, with e the sample below and i = 0..37.
+        let e: Vec<f64> = (0..37)
+            .map(|i| ((i * 7919 % 101) as f64 / 10.0).powf(1.3) + i as f64 * 0.1)
+            .collect();
+        let z: Vec<f64> = (0..37).map(f64::from).collect();
+        let r = breusch_pagan(&e, &[&z]).expect("defined");
+        assert!((r.statistic / 4.010591194790268 - 1.0).abs() < 1e-12);
+        assert!((r.p_value / 0.04521529352895727 - 1.0).abs() < 1e-10);
+    }
+
+    #[test]
     fn equal_squares_are_reported_not_divided_by_zero() {
         let e = [1.0, -1.0, 1.0, -1.0, 1.0];
         let z = [1.0, 2.0, 3.0, 4.0, 5.0];
