@@ -12,6 +12,7 @@
 pub mod accurate;
 pub mod alternative;
 pub mod association;
+pub mod calibration;
 pub mod checks;
 pub mod cues;
 pub mod describe;
