@@ -9,6 +9,7 @@ use std::hint::black_box;
 use std::time::Duration;
 
 use criterion::{criterion_group, criterion_main, BatchSize, Criterion};
+use plumb_core::agreement::{passing_bablok, passing_bablok_brute};
 use plumb_core::association::{correlation_matrix, kendall_tau_b, Adjustment, Method};
 use plumb_core::regression::{fit, influence, line_fit, Design, FitOptions, LiveFit};
 use rand::{Rng, SeedableRng};
@@ -207,6 +208,35 @@ fn live_toggle(c: &mut Criterion) {
     g.finish();
 }
 
+/// Two methods measuring the same quantity: `y = 0.5 + 1.02·x + noise`, x spread over 0..100.
+fn method_pair(n: usize, seed: u64) -> (Vec<f64>, Vec<f64>) {
+    let c = columns(n, 2, seed);
+    let x: Vec<f64> = c[0].iter().map(|v| 50.0 + 25.0 * v).collect();
+    let y: Vec<f64> = x
+        .iter()
+        .zip(&c[1])
+        .map(|(v, e)| 0.5 + 1.02 * v + 2.0 * e)
+        .collect();
+    (x, y)
+}
+
+fn passing_bablok_line(c: &mut Criterion) {
+    let mut g = c.benchmark_group("Passing-Bablok line");
+    g.sample_size(10);
+    let (x, y) = method_pair(1_000, 13);
+    g.bench_function("passing_bablok 1k", |b| {
+        b.iter(|| black_box(passing_bablok(&x, &y, 0.95).expect("defined")));
+    });
+    g.bench_function("passing_bablok_brute 1k", |b| {
+        b.iter(|| black_box(passing_bablok_brute(&x, &y, 0.95).expect("defined")));
+    });
+    let (x, y) = method_pair(100_000, 14);
+    g.bench_function("passing_bablok 100k", |b| {
+        b.iter(|| black_box(passing_bablok(&x, &y, 0.95).expect("defined")));
+    });
+    g.finish();
+}
+
 criterion_group!(
     benches,
     simple_ols,
@@ -214,6 +244,7 @@ criterion_group!(
     influence_measures,
     matrices,
     kendall,
-    live_toggle
+    live_toggle,
+    passing_bablok_line
 );
 criterion_main!(benches);

@@ -10,6 +10,7 @@
 //! * [`accurate`]: compensated sums and dot products used where cancellation would cost digits.
 
 pub mod accurate;
+pub mod agreement;
 pub mod alternative;
 pub mod association;
 pub mod calibration;

@@ -288,6 +288,50 @@ impl LiveFit {
         Ok(&self.summary)
     }
 
+    /// Gives row `i` the weight `w` (a weighting that depends on the data changes when rows
+    /// are left out or moved): the row is taken out, re-weighted and put back, O(p²).
+    ///
+    /// # Errors
+    /// [`CoreError::BadWeight`] for a weight that is not positive and finite;
+    /// [`CoreError::InvalidOption`] for an engine started without weights.
+    pub fn set_weight(&mut self, i: usize, w: f64) -> Result<&Result<LiveSummary>> {
+        if !(w.is_finite() && w > 0.0) {
+            return Err(CoreError::BadWeight { index: i, value: w });
+        }
+        if self.root_w.is_none() {
+            return Err(CoreError::InvalidOption(
+                "weights can be changed only in a weighted fit".into(),
+            ));
+        }
+        let r = w.sqrt();
+        if self.root_weight(i) == r {
+            return Ok(&self.summary);
+        }
+        let was_in = self.included[i];
+        if was_in {
+            self.included[i] = false;
+            self.n_included -= 1;
+            self.update(i, -1.0);
+        }
+        if let Some(root_w) = &mut self.root_w {
+            root_w[i] = r;
+        }
+        let p = self.design.n_terms();
+        let z: Vec<f64> = self
+            .basis_recipe
+            .z_row(&self.values[i])
+            .into_iter()
+            .map(|v| v * r)
+            .collect();
+        self.z[i * p..(i + 1) * p].copy_from_slice(&z);
+        if was_in {
+            self.included[i] = true;
+            self.n_included += 1;
+            self.update(i, 1.0);
+        }
+        Ok(&self.summary)
+    }
+
     /// Recomputes everything from the included rows with the QR solver.
     pub fn refit(&mut self) -> &Result<LiveSummary> {
         self.summary = self.full_fit();
@@ -690,6 +734,31 @@ mod tests {
             (Err(_), Err(_)) => Ok(()),
             (a, b) => Err(format!("live {a:?} vs fresh {b:?}")),
         }
+    }
+
+    #[test]
+    fn reweighting_rows_matches_a_fresh_weighted_fit() {
+        let x: Vec<f64> = (1..=20).map(f64::from).collect();
+        let y: Vec<f64> = x
+            .iter()
+            .map(|v| 0.4 + 1.3 * v + 0.05 * v * (v * 1.7).sin())
+            .collect();
+        let w: Vec<f64> = x.iter().map(|v| 1.0 / (v * v)).collect();
+        let design = Design::linear(&[("x", &x)], true);
+        let mut live = LiveFit::weighted(design, y, Some(w), FitOptions::default()).expect("fits");
+        live.exclude(4);
+        for (i, w) in [(3, 0.5), (4, 2.0), (19, 1.0), (0, 1e-3), (3, 0.25)] {
+            live.set_weight(i, w).expect("a positive weight");
+            agrees_with_fresh_fit(&live).expect("agrees");
+        }
+        assert!(live.set_weight(2, 0.0).is_err());
+        let mut plain = LiveFit::new(
+            Design::linear(&[("x", &x)], true),
+            x.clone(),
+            FitOptions::default(),
+        )
+        .expect("fits");
+        assert!(plain.set_weight(1, 2.0).is_err(), "no weights to change");
     }
 
     #[derive(Debug, Clone)]
