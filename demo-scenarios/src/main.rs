@@ -4,6 +4,7 @@
 //! `--large --rows N` writes only an N-row log, `sensor-log-N.csv`, for benchmarks).
 //! Each scenario's story is in `demo-scenarios/README.md`.
 
+mod lab;
 mod scenarios;
 
 use std::io::Write;

@@ -29,6 +29,12 @@ pub fn all() -> Vec<(&'static str, String)> {
         ("jar-tests.csv", jar_tests()),
         ("calibration-run.csv", calibration_run()),
         ("field-survey.csv", field_survey()),
+        (
+            "calibration-unknowns.csv",
+            crate::lab::calibration_unknowns(),
+        ),
+        ("trace-copper.csv", crate::lab::trace_copper()),
+        ("chlorine-meters.csv", crate::lab::chlorine_meters()),
     ]
 }
 
@@ -42,7 +48,7 @@ fn write_atomically(path: &Path, bytes: &[u8]) -> std::io::Result<()> {
     std::fs::rename(tmp, path)
 }
 
-fn normal(sd: f64) -> Normal<f64> {
+pub(crate) fn normal(sd: f64) -> Normal<f64> {
     Normal::new(0.0, sd).expect("positive standard deviation")
 }
 

@@ -8,6 +8,7 @@ use std::path::PathBuf;
 use crate::state::diagnostics::{Overlays, ResidualAxis};
 use crate::state::map::MapKey;
 use crate::state::pair::FitSpec;
+use crate::state::reading::Reading;
 use crate::state::{DialogPurpose, Screen, Status};
 
 /// One change the analyst asks for.
@@ -45,6 +46,18 @@ pub enum Action {
     KeepForComparison(bool),
     /// Draw the residuals against fitted values, a column, or the row order.
     ResidualsAgainst(ResidualAxis),
+    /// What the bench reads beside the fit: the mode, the calibration's unknowns and σ, the
+    /// method comparison's settings, the order of the sequence checks.
+    SetReading(Reading),
+    /// Read the calibration's unknowns from a second file (a small one: it is read at once).
+    ReadUnknowns {
+        /// The file.
+        path: PathBuf,
+        /// Its readings' column.
+        reading: String,
+        /// Its samples' column (`None`: each row is a sample).
+        sample: Option<String>,
+    },
     /// Overlays on the scatter.
     SetOverlays(Overlays),
     /// Colour the points by a text column (a line per group), or by nothing.

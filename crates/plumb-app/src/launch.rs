@@ -37,6 +37,10 @@ pub struct Launch {
     pub colour_by: Option<String>,
     /// Read `data` in the one-pass view (for files too large to load) instead of loading it.
     pub one_pass: bool,
+    /// Weights of the pair from a rule on x and y.
+    pub weight_rule: Option<plumb_core::calibration::WeightRule>,
+    /// What the bench reads beside the fit (its mode, the calibration's unknowns).
+    pub reading: Option<crate::state::reading::Reading>,
 }
 
 /// Longest wait for the data and diagnostics before a screenshot is taken anyway.
@@ -81,8 +85,14 @@ impl eframe::App for Window {
 /// Once the file is in: the pair, the exclusions and the screen asked for, as the actions an
 /// analyst would take.
 fn apply_after_load(wb: &mut Workbench, launch: Launch) {
+    if let Some(reading) = &launch.reading {
+        wb.apply(Action::SetReading(reading.clone()));
+    }
     if let Some((y, x)) = &launch.pair {
-        wb.apply(Action::OpenPair(FitSpec::line(y, x)));
+        wb.apply(Action::OpenPair(FitSpec {
+            weight_rule: launch.weight_rule,
+            ..FitSpec::line(y, x)
+        }));
         if wb.bench().spec().is_some() {
             wb.apply(Action::Show(Screen::Bench));
         }

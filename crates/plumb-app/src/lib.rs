@@ -27,5 +27,6 @@ pub use error::WorkbenchError;
 pub use launch::{run, Launch};
 pub use state::diagnostics::Overlays;
 pub use state::pair::FitSpec;
+pub use state::reading::{BenchMode, Reading};
 pub use state::{Ask, DialogPurpose, Loaded, Screen, State, Status};
 pub use workbench::Workbench;

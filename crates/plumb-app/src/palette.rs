@@ -55,6 +55,16 @@ pub fn excluded(v: &Visuals) -> Color32 {
     }
 }
 
+/// The unknowns read back off a calibration (a hue the fit, the groups and the focus do not
+/// use).
+pub fn unknown(v: &Visuals) -> Color32 {
+    if v.dark_mode {
+        Color32::from_rgb(0xD4, 0x9B, 0xF0)
+    } else {
+        Color32::from_rgb(0x6A, 0x1B, 0x9A)
+    }
+}
+
 /// The LOESS curve (a hue the group colours do not use).
 pub fn loess(v: &Visuals) -> Color32 {
     if v.dark_mode {

@@ -18,5 +18,6 @@ pub use atomic::write_atomically;
 pub use effects::{exclusion_effects, Effect, Headline};
 pub use error::{ReportError, Result};
 pub use session::{
-    file_sha256, DataSource, Exclusion, GroupSpec, LoadSpec, ModelSpec, Session, SCHEMA_VERSION,
+    file_sha256, AgreementSpec, CalibrationSpec, DataSource, Exclusion, GroupSpec, LoadSpec,
+    ModelSpec, Session, UnknownSpec, SCHEMA_VERSION,
 };

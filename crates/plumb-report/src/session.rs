@@ -7,7 +7,11 @@
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
-use plumb_data::analysis::{transform_name, transform_named, Factor, FitRequest, ResponseScale};
+use plumb_core::calibration::{SigmaSource, WeightRule};
+use plumb_data::analysis::{
+    transform_name, transform_named, AgreementRequest, CalibrationRequest, Factor, FitRequest,
+    ResponseScale, RowOrder, Unknown,
+};
 use plumb_data::{DecimalMark, HeaderMode, LoadOptions};
 use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
@@ -16,8 +20,9 @@ use crate::atomic::write_atomically;
 use crate::{ReportError, Result};
 
 /// Newest schema version this build writes and reads. Version 2 added the model's grouping,
-/// transforms and the kept comparison; version-1 files read as version 2 (those parts absent).
-pub const SCHEMA_VERSION: u32 = 2;
+/// transforms and the kept comparison; version 3 the weighting rules, the calibration's
+/// unknowns and the method comparison. Older files read as the newest (those parts absent).
+pub const SCHEMA_VERSION: u32 = 3;
 
 /// A saved session.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -35,6 +40,12 @@ pub struct Session {
     /// A second model kept beside the main one for comparison (version 2).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub comparison: Option<ModelSpec>,
+    /// The main model read as a calibration: its unknowns and the limits' σ (version 3).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub calibration: Option<CalibrationSpec>,
+    /// Two methods compared on the same samples (version 3).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub agreement: Option<AgreementSpec>,
     /// View settings of the workbench (free-form, kept as written).
     #[serde(default)]
     pub view: serde_json::Map<String, serde_json::Value>,
@@ -147,6 +158,15 @@ impl ModelSpec {
             intercept: self.intercept,
             degree: self.degree,
             weights: self.weights.clone(),
+            weight_rule: self
+                .weighting
+                .as_deref()
+                .map(|w| {
+                    WeightRule::parse(w).ok_or_else(|| {
+                        format!("'{w}' is not a weighting rule: 1/x, 1/x2, 1/y2 or 1/s2")
+                    })
+                })
+                .transpose()?,
             exclude,
             level: self.level,
             factor: self.group.as_ref().map(|g| Factor {
@@ -168,6 +188,7 @@ impl ModelSpec {
             intercept: request.intercept,
             degree: request.degree,
             weights: request.weights.clone(),
+            weighting: request.weight_rule.map(|r| r.key().to_string()),
             level: request.level,
             group: request.factor.as_ref().map(|f| GroupSpec {
                 column: f.column.clone(),
@@ -203,6 +224,9 @@ pub struct ModelSpec {
     /// Weights column.
     #[serde(default)]
     pub weights: Option<String>,
+    /// Weights from a rule instead: `1/x`, `1/x2`, `1/y2` or `1/s2` (version 3).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub weighting: Option<String>,
     /// Confidence level.
     #[serde(default = "level")]
     pub level: f64,
@@ -216,6 +240,117 @@ pub struct ModelSpec {
     /// Transforms of predictors, column → `ln`, `log10`, `sqrt` or `reciprocal` (version 2).
     #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
     pub transforms: BTreeMap<String, String>,
+}
+
+/// The calibration read from the main model.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct CalibrationSpec {
+    /// Unknown samples and their readings.
+    #[serde(default)]
+    pub unknowns: Vec<UnknownSpec>,
+    /// σ of the limits: `residual` or `intercept`.
+    #[serde(default = "residual")]
+    pub sigma: String,
+}
+
+fn residual() -> String {
+    "residual".into()
+}
+
+/// Key in the session's `view` map naming the row order of the sequence checks: `file`, or
+/// `column:NAME`.
+const CHECK_ORDER: &str = "check_order";
+
+impl CalibrationSpec {
+    /// The calibration request this records.
+    pub fn request(&self) -> CalibrationRequest {
+        CalibrationRequest {
+            unknowns: self
+                .unknowns
+                .iter()
+                .map(|u| Unknown {
+                    name: u.name.clone(),
+                    readings: u.readings.clone(),
+                })
+                .collect(),
+            sigma: SigmaSource::parse(&self.sigma).unwrap_or_default(),
+        }
+    }
+
+    /// The record of `request`.
+    pub fn from_request(request: &CalibrationRequest) -> Self {
+        Self {
+            unknowns: request
+                .unknowns
+                .iter()
+                .map(|u| UnknownSpec {
+                    name: u.name.clone(),
+                    readings: u.readings.clone(),
+                })
+                .collect(),
+            sigma: match request.sigma {
+                SigmaSource::ResidualSd => "residual",
+                SigmaSource::InterceptSe => "intercept",
+            }
+            .into(),
+        }
+    }
+}
+
+impl AgreementSpec {
+    /// The comparison this records, on `model`'s exclusions and level.
+    pub fn request(&self, model: &FitRequest) -> AgreementRequest {
+        AgreementRequest {
+            reference: self.reference.clone(),
+            test: self.test.clone(),
+            exclude: model.exclude.clone(),
+            level: model.level,
+            deming_ratio: self.deming_ratio,
+            percent: self.percent,
+            ..AgreementRequest::default()
+        }
+    }
+
+    /// The record of `request`.
+    pub fn from_request(request: &AgreementRequest) -> Self {
+        Self {
+            reference: request.reference.clone(),
+            test: request.test.clone(),
+            percent: request.percent,
+            deming_ratio: request.deming_ratio,
+        }
+    }
+}
+
+/// One unknown sample.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct UnknownSpec {
+    /// Its name.
+    pub name: String,
+    /// Its replicate readings.
+    pub readings: Vec<f64>,
+}
+
+/// Two methods compared on the same samples.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct AgreementSpec {
+    /// The established method's column.
+    pub reference: String,
+    /// The new method's column.
+    pub test: String,
+    /// Differences as percentages of the pair's mean.
+    #[serde(default)]
+    pub percent: bool,
+    /// Deming error-variance ratio.
+    #[serde(default = "one_f")]
+    pub deming_ratio: f64,
+}
+
+fn one_f() -> f64 {
+    1.0
 }
 
 /// A grouping column of a model.
@@ -256,6 +391,37 @@ pub struct Exclusion {
 }
 
 impl Session {
+    /// The row order the sequence checks follow, as recorded in the view settings.
+    pub fn check_order(&self) -> RowOrder {
+        match self
+            .view
+            .get(CHECK_ORDER)
+            .and_then(serde_json::Value::as_str)
+        {
+            Some("file") => RowOrder::File,
+            Some(v) => v
+                .strip_prefix("column:")
+                .map_or(RowOrder::None, |c| RowOrder::Column(c.to_string())),
+            None => RowOrder::None,
+        }
+    }
+
+    /// Records the row order of the sequence checks in the view settings.
+    pub fn set_check_order(&mut self, order: &RowOrder) {
+        match order {
+            RowOrder::None => {
+                self.view.remove(CHECK_ORDER);
+            }
+            RowOrder::File => {
+                self.view.insert(CHECK_ORDER.into(), "file".into());
+            }
+            RowOrder::Column(c) => {
+                self.view
+                    .insert(CHECK_ORDER.into(), format!("column:{c}").into());
+            }
+        }
+    }
+
     /// Reads a session, refusing newer schema versions and malformed files with a clear message.
     ///
     /// # Errors
@@ -386,6 +552,7 @@ mod tests {
                 intercept: true,
                 degree: 2,
                 weights: None,
+                weighting: None,
                 level: 0.95,
                 group: Some(GroupSpec {
                     column: "analyst".into(),
@@ -406,13 +573,51 @@ mod tests {
                 intercept: true,
                 degree: 1,
                 weights: None,
+                weighting: Some("1/x2".into()),
                 level: 0.95,
                 group: None,
                 transform_y: None,
                 transforms: BTreeMap::new(),
             }),
+            calibration: Some(CalibrationSpec {
+                unknowns: vec![UnknownSpec {
+                    name: "A7".into(),
+                    readings: vec![0.412, 0.418],
+                }],
+                sigma: "intercept".into(),
+            }),
+            agreement: None,
             view: serde_json::Map::new(),
         }
+    }
+
+    #[test]
+    fn the_lab_parts_come_back_as_requests() {
+        let s = sample();
+        let kept = s
+            .comparison
+            .as_ref()
+            .expect("kept")
+            .request(vec![3])
+            .expect("known");
+        assert_eq!(kept.weight_rule, Some(WeightRule::InverseX2));
+        let c = s.calibration.as_ref().expect("calibration").request();
+        assert_eq!(c.sigma, SigmaSource::InterceptSe);
+        assert_eq!(
+            CalibrationSpec::from_request(&c),
+            *s.calibration.as_ref().expect("spec")
+        );
+        let mut bad = s.comparison.clone().expect("kept");
+        bad.weighting = Some("1/z".into());
+        assert!(
+            bad.request(Vec::new()).is_err(),
+            "an unknown rule is named, not ignored"
+        );
+        let mut t = s;
+        t.set_check_order(&RowOrder::Column("run".into()));
+        assert_eq!(t.check_order(), RowOrder::Column("run".into()));
+        t.set_check_order(&RowOrder::None);
+        assert_eq!(t.check_order(), RowOrder::None);
     }
 
     #[test]

@@ -2,7 +2,10 @@
 
 use std::path::Path;
 
-use plumb_data::analysis::FitRequest;
+use plumb_data::analysis::{
+    agree, analyze, calibrate, AgreementRequest, CalibrationRequest, FitRequest, RowOrder, Unknown,
+    Wanted,
+};
 use plumb_data::{load, LoadOptions};
 use plumb_report::report::{build, write, ReportInput};
 use plumb_report::{file_sha256, Exclusion};
@@ -29,6 +32,9 @@ fn input_for(table: &plumb_data::Table) -> ReportInput<'_> {
         }],
         reproduce: "plumb report jar.plumb -o summary.html".into(),
         comparison: None,
+        calibration: None,
+        agreement: None,
+        order: RowOrder::None,
     }
 }
 
@@ -151,4 +157,110 @@ fn a_kept_model_and_a_grouping_factor_reach_the_page_and_the_statistics() {
         "the groups share out the rows"
     );
     assert!(r.statistics_csv.contains("scale,response,,ln"));
+}
+
+fn demo(name: &str) -> std::path::PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("../../demo-scenarios/data")
+        .join(name)
+}
+
+#[test]
+fn a_calibration_summary_carries_its_unknowns_limits_and_weightings() {
+    let path = demo("trace-copper.csv");
+    let table = load(&path, &LoadOptions::default()).expect("demo loads");
+    let request = FitRequest {
+        y: "counts".into(),
+        x: vec!["copper_ug_l".into()],
+        weight_rule: Some(plumb_core::calibration::WeightRule::InverseX2),
+        ..FitRequest::default()
+    };
+    let calibration = CalibrationRequest {
+        unknowns: vec![Unknown {
+            name: "rinse-7".into(),
+            readings: vec![4620.0, 4575.0],
+        }],
+        ..CalibrationRequest::default()
+    };
+    let input = ReportInput {
+        table: &table,
+        sha256: file_sha256(&path).expect("hash"),
+        request: request.clone(),
+        exclusions: Vec::new(),
+        reproduce: "plumb report trace.plumb -o s.html".into(),
+        comparison: None,
+        calibration: Some(calibration.clone()),
+        agreement: None,
+        order: RowOrder::Column("run".into()),
+    };
+    let report = build(&input).expect("builds");
+    // The same numbers through the analysis route directly, formatted as the page does.
+    let a = analyze(&table, &request, Wanted::default()).expect("fits");
+    let c = calibrate(&request, &a, &calibration).expect("a calibration");
+    let rb = c.unknowns[0].1.as_ref().expect("reads back");
+    let x = plumb_report::text::num(rb.x);
+    assert!(report.html.contains("<h2>Calibration</h2>"));
+    assert!(
+        report.html.contains("<td>rinse-7</td><td>2</td>"),
+        "the unknown's row"
+    );
+    assert!(report.html.contains(&x), "x̂ {x} on the page");
+    let lod = plumb_report::text::num(c.limits.as_ref().expect("a line").detection);
+    assert!(report.html.contains(&lod), "LOD {lod} on the page");
+    assert!(
+        report.html.contains("Durbin–Watson"),
+        "checks along the run order"
+    );
+    assert!(report.charts.iter().any(|ch| ch.name == "weightings"));
+    let csv_x = format!("unknown,x,rinse-7,{}", plumb_report::text::exact(rb.x));
+    assert!(report.statistics_csv.contains(&csv_x), "{csv_x}");
+}
+
+#[test]
+fn a_method_comparison_summary_carries_both_lines_and_the_limits() {
+    let path = demo("chlorine-meters.csv");
+    let table = load(&path, &LoadOptions::default()).expect("demo loads");
+    let request = FitRequest {
+        y: "meter_mg_l".into(),
+        x: vec!["lab_mg_l".into()],
+        exclude: vec![23],
+        ..FitRequest::default()
+    };
+    let agreement = AgreementRequest {
+        reference: "lab_mg_l".into(),
+        test: "meter_mg_l".into(),
+        exclude: vec![23],
+        ..AgreementRequest::default()
+    };
+    let input = ReportInput {
+        table: &table,
+        sha256: file_sha256(&path).expect("hash"),
+        request,
+        exclusions: vec![Exclusion {
+            row: 23,
+            reason: "bubble in the cuvette".into(),
+            at: None,
+        }],
+        reproduce: "plumb report chlorine.plumb -o s.html".into(),
+        comparison: None,
+        calibration: None,
+        agreement: Some(agreement.clone()),
+        order: RowOrder::None,
+    };
+    let report = build(&input).expect("builds");
+    let direct = agree(&table, &agreement).expect("compares");
+    assert_eq!(direct.selection.rows.len(), 63, "row 23 is left out");
+    let pb = direct.passing_bablok.as_ref().expect("a line");
+    let l = direct.limits.as_ref().expect("limits");
+    assert!(report.html.contains("<h2>Method comparison</h2>"));
+    for v in [pb.slope, pb.intercept, l.bias, l.lower, l.upper] {
+        let shown = plumb_report::text::num(v);
+        assert!(report.html.contains(&shown), "{shown} on the page");
+    }
+    let names: Vec<&str> = report.charts.iter().map(|c| c.name).collect();
+    assert!(names.contains(&"differences"), "{names:?}");
+    assert!(report.statistics_csv.contains(&format!(
+        "passing_bablok,slope,,{}",
+        plumb_report::text::exact(pb.slope)
+    )));
 }

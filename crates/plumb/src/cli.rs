@@ -3,6 +3,7 @@
 use std::path::PathBuf;
 
 use clap::{Args as ClapArgs, Parser, Subcommand, ValueEnum};
+use plumb_core::calibration::WeightRule;
 use plumb_core::regression::Transform;
 use plumb_data::analysis::{Factor, ResponseScale};
 use plumb_data::{DecimalMark, HeaderMode, LoadOptions};
@@ -55,6 +56,27 @@ pub struct WorkbenchArgs {
     /// on --x and a density image, in bounded memory, for files too large to hold.
     #[arg(long, requires = "data")]
     pub one_pass: bool,
+    /// What the pair bench is for: a fit, a calibration (unknowns, limits, weightings), or two
+    /// methods compared (--y the new one, --x the established one).
+    #[arg(long, value_enum, value_name = "MODE")]
+    pub bench: Option<BenchArg>,
+    /// Weights of the pair from a rule on x and y: 1/x, 1/x2, 1/y2 or 1/s2.
+    #[arg(long, value_name = "RULE", value_parser = parse_weight_rule, requires = "x")]
+    pub weighting: Option<WeightRule>,
+    /// Unknown samples to read off the calibration (opens the bench as a calibration).
+    #[command(flatten)]
+    pub unknowns: UnknownArgs,
+}
+
+/// What the pair bench is for.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum BenchArg {
+    /// A fit and its diagnostics.
+    Fit,
+    /// A calibration.
+    Calibration,
+    /// Two methods measuring the same thing.
+    Methods,
 }
 
 /// Scatter overlays.
@@ -118,6 +140,12 @@ pub enum Command {
     /// One pass over a delimited file of any size (never loaded whole): the least-squares line
     /// of one column on another, and their Pearson r, in bounded memory.
     Stream(StreamArgs),
+    /// Read unknown samples off a calibration line or curve: concentrations with intervals,
+    /// detection and quantitation limits, lack of fit, and the weightings side by side.
+    Calibrate(CalibrateArgs),
+    /// Compare two methods that measure the same thing on the same samples: Passing–Bablok and
+    /// Deming lines, and the agreement of their differences (bias, limits of agreement).
+    Agree(AgreeArgs),
 }
 
 /// Coefficient for `plumb corr`.
@@ -371,8 +399,12 @@ pub struct ModelArgs {
     #[arg(long, default_value_t = 1, value_parser = clap::value_parser!(u32).range(1..=10))]
     pub degree: u32,
     /// Column of positive weights (weighted least squares).
-    #[arg(long, value_name = "COLUMN")]
+    #[arg(long, value_name = "COLUMN", conflicts_with = "weighting")]
     pub weights: Option<String>,
+    /// Weights from a rule on the single predictor x and the response y: 1/x, 1/x2, 1/y2, or
+    /// 1/s2 (the inverse variance of the replicate readings at each x).
+    #[arg(long, value_name = "RULE", value_parser = parse_weight_rule)]
+    pub weighting: Option<WeightRule>,
     /// Data rows to leave out, numbered from 1 after the header: "3,17,40-42".
     #[arg(long, value_name = "ROWS", value_parser = parse_rows)]
     pub exclude: Option<RowList>,
@@ -384,6 +416,35 @@ pub struct ModelArgs {
     pub terms: TermArgs,
 }
 
+fn parse_weight_rule(s: &str) -> Result<WeightRule, String> {
+    WeightRule::parse(s)
+        .ok_or_else(|| format!("'{s}' is not a weighting rule: 1/x, 1/x2, 1/y2 or 1/s2"))
+}
+
+/// The order of the rows for the sequence checks (Durbin–Watson, runs of signs).
+#[derive(Debug, Clone, Default, ClapArgs)]
+pub struct OrderArgs {
+    /// Column giving the order the rows were measured in (run sequence, time): adds the
+    /// Durbin–Watson statistic and the runs of residual signs along it.
+    #[arg(long, value_name = "COLUMN", conflicts_with = "file_order")]
+    pub order: Option<String>,
+    /// The rows were measured in file order: check the residuals along it.
+    #[arg(long)]
+    pub file_order: bool,
+}
+
+impl OrderArgs {
+    /// The row order to check along.
+    pub fn row_order(&self) -> plumb_data::analysis::RowOrder {
+        use plumb_data::analysis::RowOrder;
+        match (&self.order, self.file_order) {
+            (Some(c), _) => RowOrder::Column(c.clone()),
+            (None, true) => RowOrder::File,
+            (None, false) => RowOrder::None,
+        }
+    }
+}
+
 impl ModelArgs {
     /// The analysis request these arguments describe.
     pub fn request(&self) -> plumb_data::analysis::FitRequest {
@@ -393,6 +454,7 @@ impl ModelArgs {
             intercept: !self.no_intercept,
             degree: self.degree,
             weights: self.weights.clone(),
+            weight_rule: self.weighting,
             exclude: self
                 .exclude
                 .as_ref()
@@ -429,6 +491,147 @@ pub struct FitArgs {
     /// A second model to set beside this one.
     #[command(flatten)]
     pub compare: CompareArgs,
+    /// The row order for the sequence checks.
+    #[command(flatten)]
+    pub order: OrderArgs,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    pub format: Format,
+}
+
+/// `plumb calibrate`.
+#[derive(Debug, ClapArgs)]
+pub struct CalibrateArgs {
+    /// How to read the standards' file.
+    #[command(flatten)]
+    pub load: LoadArgs,
+    /// The calibration: --y the reading, --x the standards' concentration.
+    #[command(flatten)]
+    pub model: ModelArgs,
+    /// The unknown samples.
+    #[command(flatten)]
+    pub unknowns: UnknownArgs,
+    /// Where σ of the detection limits comes from: the residual standard deviation, or the
+    /// standard error of the intercept.
+    #[arg(long, value_enum, default_value_t = SigmaArg::Residual)]
+    pub sigma: SigmaArg,
+    /// The row order for the sequence checks.
+    #[command(flatten)]
+    pub order: OrderArgs,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    pub format: Format,
+}
+
+/// Unknown samples to read off a calibration, typed or from a second file.
+#[derive(Debug, Clone, Default, ClapArgs)]
+pub struct UnknownArgs {
+    /// An unknown sample as NAME=READING[,READING…] (repeatable), e.g. A7=0.412,0.418.
+    #[arg(long = "unknown", value_name = "NAME=READINGS", value_parser = parse_unknown)]
+    pub unknowns: Vec<plumb_data::analysis::Unknown>,
+    /// A second file of unknowns: its column named like --y (or --unknowns-reading) holds
+    /// the readings, grouped into samples by --unknowns-sample.
+    #[arg(long, value_name = "FILE")]
+    pub unknowns_file: Option<PathBuf>,
+    /// The readings' column in --unknowns-file (default: the --y column's name).
+    #[arg(long, value_name = "COLUMN", requires = "unknowns_file")]
+    pub unknowns_reading: Option<String>,
+    /// The column of --unknowns-file naming each sample (replicates share a name; default:
+    /// each row is a sample).
+    #[arg(long, value_name = "COLUMN", requires = "unknowns_file")]
+    pub unknowns_sample: Option<String>,
+}
+
+impl UnknownArgs {
+    /// Whether any unknown is given.
+    pub fn any(&self) -> bool {
+        !self.unknowns.is_empty() || self.unknowns_file.is_some()
+    }
+
+    /// The unknowns typed and those of the second file (read like the data file, `options`),
+    /// whose readings default to the column named `y`.
+    ///
+    /// # Errors
+    /// The second file cannot be read, or lacks the columns.
+    pub fn read(
+        &self,
+        y: &str,
+        options: &LoadOptions,
+    ) -> anyhow::Result<Vec<plumb_data::analysis::Unknown>> {
+        let mut out = self.unknowns.clone();
+        if let Some(path) = &self.unknowns_file {
+            let second = plumb_data::load(path, options)?;
+            let reading = self.unknowns_reading.as_deref().unwrap_or(y);
+            out.extend(plumb_data::analysis::unknowns_from_table(
+                &second,
+                reading,
+                self.unknowns_sample.as_deref(),
+            )?);
+        }
+        Ok(out)
+    }
+}
+
+/// Where σ of the limits comes from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum SigmaArg {
+    /// The residual standard deviation of the line.
+    Residual,
+    /// The standard error of its intercept.
+    Intercept,
+}
+
+impl SigmaArg {
+    /// The core's name for it.
+    pub fn source(self) -> plumb_core::calibration::SigmaSource {
+        match self {
+            Self::Residual => plumb_core::calibration::SigmaSource::ResidualSd,
+            Self::Intercept => plumb_core::calibration::SigmaSource::InterceptSe,
+        }
+    }
+}
+
+fn parse_unknown(s: &str) -> Result<plumb_data::analysis::Unknown, String> {
+    let bad = || format!("'{s}' is not NAME=READING[,READING…] (such as A7=0.412,0.418)");
+    let (name, readings) = s.split_once('=').ok_or_else(bad)?;
+    let readings = readings
+        .split(',')
+        .map(|r| r.trim().parse::<f64>().ok().filter(|v| v.is_finite()))
+        .collect::<Option<Vec<f64>>>()
+        .ok_or_else(bad)?;
+    if name.trim().is_empty() || readings.is_empty() {
+        return Err(bad());
+    }
+    Ok(plumb_data::analysis::Unknown {
+        name: name.trim().to_string(),
+        readings,
+    })
+}
+
+/// `plumb agree`.
+#[derive(Debug, ClapArgs)]
+pub struct AgreeArgs {
+    /// How to read the file.
+    #[command(flatten)]
+    pub load: LoadArgs,
+    /// The established (reference) method's column.
+    #[arg(long, value_name = "COLUMN")]
+    pub reference: String,
+    /// The new (test) method's column.
+    #[arg(long, value_name = "COLUMN")]
+    pub test: String,
+    /// Data rows to leave out: "3,17,40-42".
+    #[arg(long, value_name = "ROWS", value_parser = parse_rows)]
+    pub exclude: Option<RowList>,
+    /// Confidence level of the intervals.
+    #[arg(long, default_value_t = 0.95, value_parser = parse_level)]
+    pub level: f64,
+    /// Error-variance ratio of the Deming line, Var(error of test)/Var(error of reference).
+    #[arg(long, default_value_t = 1.0, value_name = "LAMBDA")]
+    pub deming_ratio: f64,
+    /// Differences as percentages of the pair's mean (when the spread grows with the level).
+    #[arg(long)]
+    pub percent: bool,
     /// Output format.
     #[arg(long, value_enum, default_value_t = Format::Text)]
     pub format: Format,
@@ -467,8 +670,11 @@ pub struct ReportArgs {
     #[arg(long, default_value_t = 1, value_parser = clap::value_parser!(u32).range(1..=10))]
     pub degree: u32,
     /// Column of positive weights.
-    #[arg(long, value_name = "COLUMN")]
+    #[arg(long, value_name = "COLUMN", conflicts_with = "weighting")]
     pub weights: Option<String>,
+    /// Weights from a rule on x and y: 1/x, 1/x2, 1/y2 or 1/s2.
+    #[arg(long, value_name = "RULE", value_parser = parse_weight_rule)]
+    pub weighting: Option<WeightRule>,
     /// Data rows to leave out: "3,17,40-42".
     #[arg(long, value_name = "ROWS", value_parser = parse_rows)]
     pub exclude: Option<RowList>,
@@ -484,6 +690,29 @@ pub struct ReportArgs {
     /// A second model shown beside this one.
     #[command(flatten)]
     pub compare: CompareArgs,
+    /// The row order for the sequence checks.
+    #[command(flatten)]
+    pub order: OrderArgs,
+    /// Read the model as a calibration: unknowns, limits, lack of fit, the weightings side by
+    /// side (implied by --unknown and --unknowns-file).
+    #[arg(long)]
+    pub calibration: bool,
+    /// The unknown samples of the calibration.
+    #[command(flatten)]
+    pub unknowns: UnknownArgs,
+    /// Where σ of the detection limits comes from.
+    #[arg(long, value_enum, default_value_t = SigmaArg::Residual)]
+    pub sigma: SigmaArg,
+    /// --y and --x measure the same thing by two methods (--y the new one): add the method
+    /// comparison (Passing–Bablok, Deming, the differences' bias and limits of agreement).
+    #[arg(long)]
+    pub methods: bool,
+    /// With --methods: differences as percentages of the pair's mean.
+    #[arg(long, requires = "methods")]
+    pub percent: bool,
+    /// With --methods: Deming's error-variance ratio.
+    #[arg(long, value_name = "LAMBDA", requires = "methods")]
+    pub deming_ratio: Option<f64>,
     /// Where to write the HTML; the other files go beside it.
     #[arg(short = 'o', long = "output", value_name = "FILE.html")]
     pub output: PathBuf,

@@ -1,6 +1,6 @@
 //! `plumb fit`: load, fit, print.
 
-use plumb_data::analysis::{analyze, compare, ExtrasRequest, Wanted};
+use plumb_data::analysis::{analyze, assumption_checks, compare, ExtrasRequest, Wanted};
 
 use crate::cli::{FitArgs, Format};
 use crate::{fit_json, fit_text};
@@ -28,14 +28,18 @@ pub fn run(args: &FitArgs) -> anyhow::Result<String> {
     let comparison = other
         .map(|o| compare(&table, &o, &request, ["the other model", "this one"]))
         .transpose()?;
+    let checks = assumption_checks(&table, &outcome, &args.order.row_order())?;
     let extras = outcome.extras.as_ref();
     Ok(match args.format {
         Format::Json => {
-            let keys = crate::model_json::keys(&outcome, &request, comparison.as_ref());
+            let mut keys = crate::model_json::keys(&outcome, &request, comparison.as_ref());
+            keys.insert("checks".into(), crate::checks_out::json(&checks));
             fit_json::render(&table, &request, &outcome, extras, keys)?
         }
         Format::Text => {
-            let model = crate::model_text::render(&outcome, &request, comparison.as_ref());
+            let mut model = crate::model_text::render(&outcome, &request, comparison.as_ref());
+            // Writing to a String cannot fail.
+            let _ = crate::checks_out::write(&mut model, &checks);
             fit_text::render(&table, &request, &outcome, extras, &model)
         }
     })

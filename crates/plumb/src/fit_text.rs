@@ -135,10 +135,11 @@ fn write_header(
     let fit = &o.fit;
     let sel = &o.rows.selection;
     let terms = plumb_report::text::equation_terms(fit);
-    let method = if request.weights.is_some() {
-        "weighted least squares"
+    let weighting = plumb_data::analysis::weighting_label(request);
+    let method = if weighting == "none" {
+        "least squares".to_string()
     } else {
-        "least squares"
+        format!("weighted least squares, weights {weighting}")
     };
     writeln!(out, "{}", table.source().display())?;
     writeln!(

@@ -1,6 +1,9 @@
 //! `plumb`: Plumbline's command line. Parses arguments, runs one mode, prints, and picks the
 //! exit code in one place; the work itself lives in the library crates.
 
+mod agree_cmd;
+mod calibrate_cmd;
+mod checks_out;
 mod cli;
 mod columns_cmd;
 mod corr_cmd;
@@ -27,6 +30,8 @@ fn main() -> ExitCode {
         Some(cli::Command::Corr(a)) => corr_cmd::run(&a),
         Some(cli::Command::Columns(a)) => columns_cmd::run(&a),
         Some(cli::Command::Stream(a)) => stream_cmd::run(&a),
+        Some(cli::Command::Calibrate(a)) => calibrate_cmd::run(&a),
+        Some(cli::Command::Agree(a)) => agree_cmd::run(&a),
         None => workbench(args.workbench),
     };
     match result {
@@ -41,8 +46,33 @@ fn main() -> ExitCode {
     }
 }
 
+/// What the bench reads beside the fit, as the command line asks (`None`: the default).
+fn reading_of(a: &cli::WorkbenchArgs) -> anyhow::Result<Option<plumb_app::Reading>> {
+    let unknowns = match (&a.y, a.unknowns.any()) {
+        (Some(y), true) => a.unknowns.read(y, &plumb_data::LoadOptions::default())?,
+        (None, true) => {
+            anyhow::bail!("--unknown and --unknowns-file need the calibration's --y and --x")
+        }
+        (_, false) => Vec::new(),
+    };
+    let mode = match a.bench {
+        Some(cli::BenchArg::Fit) => plumb_app::BenchMode::Fit,
+        Some(cli::BenchArg::Calibration) => plumb_app::BenchMode::Calibration,
+        Some(cli::BenchArg::Methods) => plumb_app::BenchMode::Agreement,
+        None if !unknowns.is_empty() => plumb_app::BenchMode::Calibration,
+        None => return Ok(None),
+    };
+    let mut reading = plumb_app::Reading {
+        mode,
+        ..plumb_app::Reading::default()
+    };
+    reading.calibration.unknowns = unknowns;
+    Ok(Some(reading))
+}
+
 /// Opens the desktop workbench.
 fn workbench(a: cli::WorkbenchArgs) -> anyhow::Result<String> {
+    let reading = reading_of(&a)?;
     let launch = plumb_app::Launch {
         data: a.data,
         pair: a.y.zip(a.x),
@@ -62,6 +92,8 @@ fn workbench(a: cli::WorkbenchArgs) -> anyhow::Result<String> {
         },
         colour_by: a.colour_by.clone(),
         one_pass: a.one_pass,
+        weight_rule: a.weighting,
+        reading,
         theme: a.theme.map(|t| match t {
             cli::ThemeArg::Light => plumb_app::ThemePreference::Light,
             cli::ThemeArg::Dark => plumb_app::ThemePreference::Dark,

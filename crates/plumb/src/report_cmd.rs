@@ -2,10 +2,11 @@
 
 use std::path::Path;
 
-use plumb_data::analysis::FitRequest;
+use plumb_data::analysis::{AgreementRequest, CalibrationRequest, FitRequest, RowOrder};
 use plumb_report::report::{build, write, ReportInput};
 use plumb_report::{
-    file_sha256, DataSource, Exclusion, LoadSpec, ModelSpec, Session, SCHEMA_VERSION,
+    file_sha256, AgreementSpec, CalibrationSpec, DataSource, Exclusion, LoadSpec, ModelSpec,
+    Session, SCHEMA_VERSION,
 };
 
 use crate::cli::ReportArgs;
@@ -21,6 +22,7 @@ pub fn run(args: &ReportArgs) -> anyhow::Result<String> {
         note,
         sha256,
         comparison,
+        lab,
     } = if is_session {
         from_session(input, &args.output, args.allow_outside_data)?
     } else {
@@ -33,11 +35,15 @@ pub fn run(args: &ReportArgs) -> anyhow::Result<String> {
         exclusions: exclusions.clone(),
         reproduce,
         comparison: comparison.clone(),
+        calibration: lab.calibration.clone(),
+        agreement: lab.agreement.clone(),
+        order: lab.order.clone(),
     })?;
     let files = write(&report, &args.output)?;
     if let (Some(path), false) = (&args.save_session, is_session) {
         let mut session = session_of(args, &table, &request, &exclusions, sha256);
         session.comparison = comparison.as_ref().map(ModelSpec::from_request);
+        lab.put_in(&mut session);
         session.save(path)?;
     }
     let mut out = String::new();
@@ -62,6 +68,62 @@ struct Prepared {
     sha256: String,
     /// A second model to show beside the first.
     comparison: Option<FitRequest>,
+    /// The calibration, method comparison and check order asked for.
+    lab: LabAsked,
+}
+
+/// The lab sections a summary is asked for.
+#[derive(Default)]
+struct LabAsked {
+    calibration: Option<CalibrationRequest>,
+    agreement: Option<AgreementRequest>,
+    order: RowOrder,
+}
+
+impl LabAsked {
+    /// What a session records.
+    fn of_session(session: &Session, request: &FitRequest) -> Self {
+        Self {
+            calibration: session.calibration.as_ref().map(CalibrationSpec::request),
+            agreement: session.agreement.as_ref().map(|a| a.request(request)),
+            order: session.check_order(),
+        }
+    }
+
+    /// What the command line asks for.
+    fn of_args(args: &ReportArgs, request: &FitRequest) -> anyhow::Result<Self> {
+        let calibration = (args.calibration || args.unknowns.any())
+            .then(|| {
+                args.unknowns
+                    .read(&request.y, &args.load.options())
+                    .map(|unknowns| CalibrationRequest {
+                        unknowns,
+                        sigma: args.sigma.source(),
+                    })
+            })
+            .transpose()?;
+        let agreement = args.methods.then(|| AgreementRequest {
+            reference: request.x[0].clone(),
+            test: request.y.clone(),
+            exclude: request.exclude.clone(),
+            level: request.level,
+            deming_ratio: args.deming_ratio.unwrap_or(1.0),
+            percent: args.percent,
+            ..AgreementRequest::default()
+        });
+        Ok(Self {
+            calibration,
+            agreement,
+            order: args.order.row_order(),
+        })
+    }
+
+    /// Records the lab sections in a session.
+    fn put_in(&self, session: &mut Session) {
+        session.calibration = self.calibration.as_ref().map(CalibrationSpec::from_request);
+        session.agreement = self.agreement.as_ref().map(AgreementSpec::from_request);
+        session.set_check_order(&self.order);
+    }
 }
 
 fn from_session(path: &Path, output: &Path, allow_outside: bool) -> anyhow::Result<Prepared> {
@@ -103,6 +165,7 @@ fn from_session(path: &Path, output: &Path, allow_outside: bool) -> anyhow::Resu
         .map(|m| m.request(Vec::new()))
         .transpose()
         .map_err(|e| anyhow::anyhow!("{}: the kept model: {e}", path.display()))?;
+    let lab = LabAsked::of_session(&session, &request);
     let reproduce = format!(
         "plumb report {} -o {}{}",
         path.display(),
@@ -121,6 +184,7 @@ fn from_session(path: &Path, output: &Path, allow_outside: bool) -> anyhow::Resu
         note,
         sha256: hash,
         comparison,
+        lab,
     })
 }
 
@@ -172,11 +236,13 @@ fn from_data(args: &ReportArgs) -> anyhow::Result<Prepared> {
         intercept: !args.no_intercept,
         degree: args.degree,
         weights: args.weights.clone(),
+        weight_rule: args.weighting,
         exclude,
         level: args.level,
         ..FitRequest::default()
     };
     args.terms.apply(&mut request);
+    let lab = LabAsked::of_args(args, &request)?;
     let comparison = args
         .compare
         .other(&request)
@@ -195,6 +261,7 @@ fn from_data(args: &ReportArgs) -> anyhow::Result<Prepared> {
         note: None,
         sha256,
         comparison,
+        lab,
     })
 }
 
@@ -219,6 +286,8 @@ fn session_of(
         models: vec![ModelSpec::from_request(request)],
         exclusions: exclusions.to_vec(),
         comparison: None,
+        calibration: None,
+        agreement: None,
         view: serde_json::Map::new(),
     }
 }

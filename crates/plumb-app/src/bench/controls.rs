@@ -8,6 +8,7 @@ use super::pointer::PointerMode;
 use crate::action::{Action, Actions};
 use crate::palette;
 use crate::state::dataset::Dataset;
+use crate::state::reading::BenchMode;
 use crate::state::BenchModel;
 
 /// The row of controls above the bench.
@@ -19,6 +20,8 @@ pub fn controls_ui(
 ) -> Actions {
     let mut out = Actions::none();
     ui.horizontal_wrapped(|ui| {
+        out.push_some(mode_ui(bench, ui));
+        ui.separator();
         out.push_some(super::model_editor::model_ui(bench.spec(), data, ui));
         if bench.is_opening() {
             ui.spinner();
@@ -35,6 +38,22 @@ pub fn controls_ui(
         pointer_ui(mode, ui);
     });
     out
+}
+
+/// What the bench is for: a fit, a calibration, or two methods compared.
+fn mode_ui(bench: &BenchModel, ui: &mut egui::Ui) -> Option<Action> {
+    let reading = bench.reading();
+    let mut mode = reading.mode;
+    ui.label("bench:");
+    for m in BenchMode::ALL {
+        ui.selectable_value(&mut mode, m, m.label())
+            .on_hover_text(m.tip());
+    }
+    (mode != reading.mode).then(|| {
+        let mut next = reading.clone();
+        next.mode = mode;
+        Action::SetReading(next)
+    })
 }
 
 fn overlays_ui(bench: &BenchModel, ui: &mut egui::Ui) -> Option<Action> {

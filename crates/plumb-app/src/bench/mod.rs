@@ -4,8 +4,12 @@
 //! are the bench's own UI state ([`BenchUi`]).
 
 mod added;
+mod agreement_numbers;
+mod calibration_numbers;
 mod controls;
+mod differences;
 mod influence;
+mod lab_layers;
 mod ledger;
 mod model_editor;
 mod model_numbers;
@@ -17,6 +21,7 @@ mod reason;
 mod residuals;
 mod scatter;
 mod view;
+mod weightings;
 
 use eframe::egui::{self, Vec2};
 use egui_plot::{Plot, PlotTransform};
@@ -26,6 +31,7 @@ use crate::action::Actions;
 use crate::density::{Bounds, DensityTextures};
 use crate::state::marks::Marks;
 use crate::state::pair::PairRows;
+use crate::state::reading::BenchMode;
 use crate::state::{BenchModel, State};
 
 pub use reason::reason_prompt_ui;
@@ -54,6 +60,8 @@ pub struct BenchUi {
     pub ledger_tab: bool,
     /// The term whose added-variable view takes the scatter's place (`None`: the scatter).
     pub added_term: Option<String>,
+    /// The calibration's unknowns being typed.
+    pub unknowns: calibration_numbers::UnknownsUi,
     scatter_transform: Option<PlotTransform>,
 }
 
@@ -157,21 +165,38 @@ fn side_panels_ui(
         .inner
 }
 
-/// The four views: the scatter (or an added-variable view) with the larger share (it is where
-/// points are picked) beside the residuals; the influence view and the quantiles below.
+/// Each view keeps to its column: a wrapped note under one never pushes the next aside.
+fn column(ui: &mut egui::Ui, width: f32, f: &mut dyn FnMut(&mut egui::Ui) -> Actions) -> Actions {
+    ui.vertical(|ui| {
+        ui.set_max_width(width);
+        f(ui)
+    })
+    .inner
+}
+
+/// The views of the bench's mode. A fit: the scatter (or an added-variable view) with the
+/// larger share (it is where points are picked) beside the residuals; the influence view and
+/// the quantiles below. A calibration: the scatter with the unknowns read back beside the
+/// residuals; the weightings side by side below. Two methods: the scatter with the line of
+/// identity beside the differences, full height.
 fn views_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> Actions {
     let avail = ui.available_size();
     let (w, h) = ((avail.x - 12.0).max(320.0), (avail.y - 52.0).max(280.0));
-    let top = h * 0.56;
+    let mode = scene.bench.reading().mode;
     let mut out = Actions::none();
-    // Each view keeps to its column: a wrapped note under one never pushes the next aside.
-    let column = |ui: &mut egui::Ui, width: f32, f: &mut dyn FnMut(&mut egui::Ui) -> Actions| {
-        ui.vertical(|ui| {
-            ui.set_max_width(width);
-            f(ui)
-        })
-        .inner
-    };
+    if mode == BenchMode::Agreement {
+        ui.horizontal(|ui| {
+            let size = Vec2::new(w * 0.5, h);
+            out.extend(column(ui, size.x, &mut |ui| {
+                top_left_ui(scene, own, ui, size)
+            }));
+            out.extend(column(ui, size.x, &mut |ui| {
+                differences::differences_ui(scene, own, ui, size)
+            }));
+        });
+        return out;
+    }
+    let top = h * 0.56;
     ui.horizontal(|ui| {
         let size = Vec2::new(w * 0.58, top);
         out.extend(column(ui, size.x, &mut |ui| {
@@ -182,6 +207,11 @@ fn views_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> Actions 
             residuals::residuals_ui(scene, own, ui, size)
         }));
     });
+    if mode == BenchMode::Calibration {
+        let size = Vec2::new(w, h - top);
+        out.extend(weightings::weightings_ui(scene, own, ui, size));
+        return out;
+    }
     let bottom = Vec2::new(w / 2.0, h - top);
     ui.horizontal(|ui| {
         out.extend(column(ui, bottom.x, &mut |ui| {

@@ -3,6 +3,7 @@
 //! reference level and optional slopes per level. A changed model is an action.
 
 use eframe::egui;
+use plumb_core::calibration::WeightRule;
 use plumb_core::regression::Transform;
 use plumb_data::analysis::{Factor, ResponseScale};
 
@@ -164,19 +165,57 @@ fn scale_ui(s: &mut FitSpec, k: usize, ui: &mut egui::Ui) {
     }
 }
 
+/// The weights: none, a rule on x and y (one predictor), or a column.
+#[derive(Debug, Clone, PartialEq)]
+enum WeightChoice {
+    None,
+    Rule(WeightRule),
+    Column(String),
+}
+
 fn weights_ui(s: &mut FitSpec, data: &Dataset, ui: &mut egui::Ui) {
     let label = ui.label("weights:");
+    let mut choice = match (&s.weights, s.weight_rule) {
+        (Some(c), _) => WeightChoice::Column(c.clone()),
+        (None, Some(r)) => WeightChoice::Rule(r),
+        (None, None) => WeightChoice::None,
+    };
+    let shown = match &choice {
+        WeightChoice::None => "none".to_string(),
+        WeightChoice::Rule(r) => r.label().to_string(),
+        WeightChoice::Column(c) => c.clone(),
+    };
     egui::ComboBox::from_id_salt("weights")
-        .selected_text(s.weights.clone().unwrap_or_else(|| "none".into()))
+        .selected_text(shown)
         .show_ui(ui, |ui| {
-            ui.selectable_value(&mut s.weights, None, "none");
+            ui.selectable_value(&mut choice, WeightChoice::None, "none");
+            if s.x.len() == 1 {
+                for r in WeightRule::ALL {
+                    ui.selectable_value(&mut choice, WeightChoice::Rule(r), r.label())
+                        .on_hover_text(rule_tip(r));
+                }
+            }
             for c in &data.numeric {
-                ui.selectable_value(&mut s.weights, Some(c.clone()), c);
+                ui.selectable_value(&mut choice, WeightChoice::Column(c.clone()), c);
             }
         })
         .response
         .labelled_by(label.id)
-        .on_hover_text("A column of positive weights (weighted least squares): R² and everything else are then weighted");
+        .on_hover_text("Weighted least squares: a rule on x and y (1/x, 1/x², 1/y², 1/s² of the replicates at each x) or a column of positive weights; R² and everything else are then weighted");
+    (s.weights, s.weight_rule) = match choice {
+        WeightChoice::None => (None, None),
+        WeightChoice::Rule(r) => (None, Some(r)),
+        WeightChoice::Column(c) => (Some(c), None),
+    };
+}
+
+fn rule_tip(r: WeightRule) -> &'static str {
+    match r {
+        WeightRule::InverseX => "Variance grows in proportion to x",
+        WeightRule::InverseX2 => "Standard deviation grows in proportion to x (constant relative error)",
+        WeightRule::InverseY2 => "As 1/x², judged on each reading",
+        WeightRule::InverseLevelVariance => "The inverse variance of the replicate readings at each x (needs replicates at every level)",
+    }
 }
 
 fn factor_ui(s: &mut FitSpec, data: &Dataset, ui: &mut egui::Ui) {

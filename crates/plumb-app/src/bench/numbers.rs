@@ -10,6 +10,8 @@ use super::{model_numbers, BenchUi, Scene};
 use crate::action::{Action, Actions};
 use crate::state::diagnostics::Diagnostics;
 use crate::state::pair::PairRows;
+use crate::state::reading::BenchMode;
+use plumb_data::analysis::RowOrder;
 
 /// How the influence table is sorted.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -35,7 +37,7 @@ pub fn r_squared_line(pair: &PairRows, s: &LiveSummary) -> String {
     if scale != *y {
         kinds.push(format!("on {scale}"));
     }
-    if pair.spec.weights.is_some() {
+    if pair.spec.weights.is_some() || pair.spec.weight_rule.is_some() {
         kinds.push("weighted".to_string());
     }
     if !pair.spec.intercept {
@@ -113,12 +115,24 @@ pub fn numbers_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> Ac
                     RichText::new("hypothetical (what-if moves)").strong(),
                 );
             }
+            let mode = scene.bench.reading().mode;
+            let mut out = Actions::none();
+            if mode == BenchMode::Agreement {
+                out.extend(super::agreement_numbers::agreement_ui(scene, ui));
+                ui.separator();
+            }
             match scene.bench.summary().unwrap_or_else(|| Err("no pair".into())) {
                 Ok(s) => model_ui(ui, scene, &s, hypothetical),
                 Err(e) => {
                     ui.colored_label(ui.visuals().error_fg_color, format!("no fit: {e}"));
                 }
             }
+            if mode == BenchMode::Calibration {
+                ui.separator();
+                out.extend(super::calibration_numbers::calibration_ui(scene, own, ui));
+            }
+            ui.separator();
+            out.extend(checks_ui(ui, scene));
             let diag = scene.bench.diagnostics().map(AsRef::as_ref);
             let current = diag.filter(|d| d.spec == pair.spec);
             if let Some(g) = current.and_then(|d| d.groups.as_ref()) {
@@ -126,7 +140,7 @@ pub fn numbers_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> Ac
                 model_numbers::groups_ui(ui, g);
             }
             ui.separator();
-            let mut out = model_numbers::comparison_ui(ui, scene, diag);
+            out.extend(model_numbers::comparison_ui(ui, scene, diag));
             ui.separator();
             ui.checkbox(&mut own.z_units, "z-units view")
                 .on_hover_text("Both columns in standard deviations from their means: the slope is then Pearson's r, and its square is R² of the straight line");
@@ -270,6 +284,63 @@ fn cues_ui(ui: &mut egui::Ui, scene: &Scene<'_>, diag: Option<&Diagnostics>) -> 
         }
     }
     model_numbers::degree_button_ui(ui, scene, d)
+}
+
+/// The assumption checks as cues, and the row order the sequence checks follow.
+fn checks_ui(ui: &mut egui::Ui, scene: &Scene<'_>) -> Actions {
+    let reading = scene.bench.reading();
+    let mut order = reading.order.clone();
+    ui.horizontal(|ui| {
+        ui.label(RichText::new("Checks of the residuals").strong());
+        let label = ui.label("in order of:");
+        let shown = match &order {
+            RowOrder::None => "—".to_string(),
+            RowOrder::File => "file rows".to_string(),
+            RowOrder::Column(c) => c.clone(),
+        };
+        egui::ComboBox::from_id_salt("check-order")
+            .selected_text(shown)
+            .show_ui(ui, |ui| {
+                ui.selectable_value(&mut order, RowOrder::None, "— (no sequence)");
+                ui.selectable_value(&mut order, RowOrder::File, "file rows");
+                for c in scene.columns {
+                    ui.selectable_value(&mut order, RowOrder::Column(c.clone()), c);
+                }
+            })
+            .response
+            .labelled_by(label.id)
+            .on_hover_text("The order the rows were measured in (run sequence, time): the Durbin–Watson statistic and the runs of residual signs follow it");
+    });
+    let checks = scene
+        .bench
+        .diagnostics()
+        .filter(|d| d.spec == scene.pair.spec)
+        .and_then(|d| d.checks.as_ref());
+    match checks {
+        None => {
+            ui.spinner();
+        }
+        Some(Err(e)) => {
+            ui.weak(e);
+        }
+        Some(Ok(c)) => {
+            for cue in wording::check_cues(c) {
+                let head = format!("{}: {}", cue.topic, cue.figures);
+                if cue.flagged {
+                    ui.colored_label(ui.visuals().warn_fg_color, head);
+                    ui.label(cue.meaning);
+                } else {
+                    ui.label(head).on_hover_text(cue.meaning);
+                }
+            }
+        }
+    }
+    if order == reading.order {
+        return Actions::none();
+    }
+    let mut next = reading.clone();
+    next.order = order;
+    Actions::from(Action::SetReading(next))
 }
 
 fn influence_table_ui(ui: &mut egui::Ui, scene: &Scene<'_>, own: &mut BenchUi) -> Actions {

@@ -20,6 +20,7 @@ use crate::palette;
 use crate::state::diagnostics::Diagnostics;
 use crate::state::marks::Marks;
 use crate::state::pair::PairRows;
+use crate::state::reading::BenchMode;
 
 const TIP: &str = "The rows with the fitted line or curve, its confidence band (shaded) and prediction band (dashed). Hollow rings are excluded rows; a dashed green curve is the fit kept for comparison.";
 
@@ -144,10 +145,18 @@ fn draw(
     let included = pair.points.as_ref();
     let colouring = scene.bench.colouring();
     let x_range = included.bounds.map_or((0.0, 0.0), |b| (b.x_min, b.x_max));
+    let mode = scene.bench.reading().mode;
     if let Some(d) = scene.bench.diagnostics() {
-        bands(pu, d, visuals);
-        overlays(pu, d, visuals, x_range, &colouring.levels);
-        kept_curves(pu, pair, d, visuals);
+        if mode == BenchMode::Agreement {
+            super::lab_layers::method_lines(pu, d, visuals, x_range);
+        } else {
+            bands(pu, d, visuals);
+            overlays(pu, d, visuals, x_range, &colouring.levels);
+            kept_curves(pu, pair, d, visuals);
+        }
+        if mode == BenchMode::Calibration {
+            super::lab_layers::unknowns(pu, d, visuals, x_range);
+        }
     }
     let layer = Layer {
         view: "scatter",
@@ -163,7 +172,7 @@ fn draw(
         generation: scene.bench.marks_generation(),
     };
     points_layer(pu, &layer, &mut own.textures, visuals);
-    if let Some(Ok(s)) = scene.bench.summary() {
+    if let (Some(Ok(s)), false) = (scene.bench.summary(), mode == BenchMode::Agreement) {
         let names = pair.model.levels.as_ref().map(|l| l.names.as_slice());
         for (level, points) in curves(pair, &s, x_range) {
             let (name, colour) = match (level, names) {

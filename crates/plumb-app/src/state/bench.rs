@@ -10,6 +10,7 @@ use super::diagnostics::{compute, Diagnostics, Input, Overlays, ResidualAxis};
 use super::jobs::{Job, Waker};
 use super::marks::Marks;
 use super::pair::{FitSpec, Pair};
+use super::reading::Reading;
 use crate::error::WorkbenchError;
 
 /// Rows just excluded that wait for their reason.
@@ -47,6 +48,7 @@ pub struct BenchModel {
     kept: Option<FitSpec>,
     overlays: Overlays,
     residual_axis: ResidualAxis,
+    reading: Reading,
     colouring: Colouring,
     diag: Option<Arc<Diagnostics>>,
     job: Option<Job<Diagnostics>>,
@@ -73,9 +75,10 @@ impl BenchModel {
 
     /// The live numbers of the pair on the bench.
     pub fn summary(&self) -> Option<Result<plumb_core::regression::LiveSummary, String>> {
-        self.pair
-            .as_ref()
-            .map(|p| p.summary().clone().map_err(|e| e.to_string()))
+        self.pair.as_ref().map(|p| match p.weight_error() {
+            Some(e) => Err(e.to_string()),
+            None => p.summary().clone().map_err(|e| e.to_string()),
+        })
     }
 
     /// The model kept for comparison.
@@ -100,6 +103,20 @@ impl BenchModel {
     pub fn set_residual_axis(&mut self, axis: ResidualAxis) {
         if axis != self.residual_axis {
             self.residual_axis = axis;
+            self.touch();
+        }
+    }
+
+    /// What the bench reads beside the fit.
+    pub fn reading(&self) -> &Reading {
+        &self.reading
+    }
+
+    /// Changes what the bench reads beside the fit (recomputing the diagnostics when it
+    /// changed).
+    pub fn set_reading(&mut self, reading: Reading) {
+        if reading != self.reading {
+            self.reading = reading;
             self.touch();
         }
     }
@@ -296,6 +313,7 @@ impl BenchModel {
                 );
                 input.kept = self.kept.clone();
                 input.residual_axis = self.residual_axis.clone();
+                input.reading = self.reading.clone();
                 self.job = Some(Job::spawn(move |_| compute(&input), waker.hook()));
             }
         }

@@ -9,14 +9,17 @@ use std::sync::Arc;
 use plumb_core::alternative::{deming, DemingFit};
 use plumb_core::regression::{AddedVariable, BoxCox, CaseInfluence, LinearFit};
 use plumb_data::analysis::{
-    analyze, compare, Analysis, AnalysisError, Comparison, Curve, ExtrasRequest, GroupTests,
+    agree, analyze, assumption_checks, calibrate, compare, AgreementReport, Analysis,
+    AnalysisError, CalibrationReport, Checks, Comparison, Curve, ExtrasRequest, GroupTests,
     PairExtras, Robust, Wanted,
 };
 use plumb_data::Table;
 use plumb_report::{exclusion_effects, Effect};
 
+use super::lab_views::{lab_views, LabViews};
 use super::marks::Marks;
 use super::pair::{FitSpec, Pair, PairRows};
+use super::reading::{BenchMode, Reading};
 use super::views::views_of;
 pub use super::views::{against_fit, AddedView, ResidualAxis, Views};
 
@@ -63,6 +66,8 @@ pub struct Input {
     pub kept: Option<FitSpec>,
     /// What the residuals are drawn against.
     pub residual_axis: ResidualAxis,
+    /// What the bench reads beside the fit (calibration, method comparison, check order).
+    pub reading: Reading,
 }
 
 impl Input {
@@ -83,6 +88,7 @@ impl Input {
             groups,
             kept: None,
             residual_axis: ResidualAxis::Fitted,
+            reading: Reading::default(),
         }
     }
 
@@ -131,6 +137,14 @@ pub struct Diagnostics {
     /// Positions in `cases` of the most influential rows, largest first, by Cook's distance,
     /// by leverage and by |externally studentized residual| (at most [`TOP_ROWS`] each).
     pub top: [Vec<usize>; 3],
+    /// The assumption checks of the fit.
+    pub checks: Option<Result<Checks, String>>,
+    /// The calibration read from the fit (in calibration mode).
+    pub calibration: Option<Result<CalibrationReport, String>>,
+    /// The two methods compared (in method-comparison mode).
+    pub agreement: Option<Result<AgreementReport, String>>,
+    /// The points of the differences view and the weightings' views.
+    pub lab_views: LabViews,
 }
 
 /// Rows kept in each influence ranking.
@@ -173,7 +187,26 @@ pub fn compute(input: &Input) -> Diagnostics {
         }),
         added_variables: input.spec.x.len() > 1 || input.spec.factor.is_some(),
     };
-    let analysis = analyze(&input.table, &input.spec.with_marks(&input.marks), wanted);
+    let request = input.spec.with_marks(&input.marks);
+    let analysis = analyze(&input.table, &request, wanted);
+    let checks = analysis.as_ref().ok().map(|a| {
+        assumption_checks(&input.table, a, &input.reading.order).map_err(|e| e.to_string())
+    });
+    let calibration = (input.reading.mode == BenchMode::Calibration).then(|| match &analysis {
+        Ok(a) => calibrate(&request, a, &input.reading.calibration).map_err(|e| e.to_string()),
+        Err(e) => Err(e.to_string()),
+    });
+    let agreement = (input.reading.mode == BenchMode::Agreement).then(|| {
+        let a = input
+            .reading
+            .agreement_request(&input.spec, &input.marks, true);
+        agree(&input.table, &a).map_err(|e| e.to_string())
+    });
+    let lab_views = lab_views(
+        input,
+        calibration.as_ref().and_then(|c| c.as_ref().ok()),
+        agreement.as_ref().and_then(|a| a.as_ref().ok()),
+    );
     let parts = Parts::of(input, analysis);
     let views = views_of(
         input,
@@ -187,6 +220,10 @@ pub fn compute(input: &Input) -> Diagnostics {
     let (x, y): (Vec<f64>, Vec<f64>) = parts.included.iter().map(|&i| input.point(i)).unzip();
     Diagnostics {
         top: rankings(&parts.cases),
+        checks,
+        calibration,
+        agreement,
+        lab_views,
         spec: input.spec.clone(),
         marks: input.marks.clone(),
         deming: input

@@ -36,6 +36,8 @@ pub struct AfterLoad {
     pub session: Option<PathBuf>,
     /// The load restores a recovery copy (its work stays marked unsaved).
     pub restoring: bool,
+    /// What the bench reads beside the fit.
+    pub reading: Option<super::reading::Reading>,
 }
 
 /// A load in progress.

@@ -164,6 +164,50 @@ impl State {
         self.write_recovery();
     }
 
+    /// Changes what the bench reads beside the fit; the unknowns are work, so the recovery
+    /// copy follows.
+    pub(crate) fn set_reading(&mut self, reading: super::reading::Reading) {
+        let unknowns_changed = reading.unknowns() != self.bench.reading().unknowns();
+        self.bench.set_reading(reading);
+        if unknowns_changed {
+            self.write_recovery();
+        }
+    }
+
+    /// Reads the calibration's unknowns from a second file. Such files are small: it is read
+    /// here, under a memory cap of [`UNKNOWNS_FILE_CAP`] bytes so a wrong choice cannot stall
+    /// the workbench.
+    pub(crate) fn read_unknowns(
+        &mut self,
+        path: &std::path::Path,
+        reading: &str,
+        sample: Option<&str>,
+    ) {
+        if path.as_os_str().is_empty() {
+            return self.fail("unknowns: type the path of the file that holds them");
+        }
+        let options = plumb_data::LoadOptions {
+            memory_limit: Some(UNKNOWNS_FILE_CAP),
+            ..plumb_data::LoadOptions::default()
+        };
+        let read = plumb_data::load(path, &options)
+            .map_err(|e| e.to_string())
+            .and_then(|t| {
+                plumb_data::analysis::unknowns_from_table(&t, reading, sample)
+                    .map_err(|e| e.to_string())
+            });
+        match read {
+            Ok(unknowns) => {
+                let n = unknowns.len();
+                let mut next = self.bench.reading().clone();
+                next.calibration.unknowns = unknowns;
+                self.set_reading(next);
+                self.say(format!("read {n} unknowns from {}", path.display()));
+            }
+            Err(e) => self.fail(format!("unknowns: {e}")),
+        }
+    }
+
     /// Sets the scatter's overlays.
     pub(crate) fn set_overlays(&mut self, overlays: Overlays) {
         self.bench.set_overlays(overlays);
@@ -176,6 +220,9 @@ impl State {
         }
     }
 }
+
+/// Largest file of unknowns read (bytes of memory the loader may need).
+pub const UNKNOWNS_FILE_CAP: u64 = 64 << 20;
 
 /// The reason as recorded: trimmed, or the default text when blank.
 fn reason_text(reason: &str) -> String {

@@ -10,8 +10,8 @@ use plumb_report::Session;
 use super::marks::History;
 use super::pair::FitSpec;
 use super::sessions::{
-    clear_recovery, data_is_beside, kept_of, marks_of, recovery_of, recovery_path, session_of,
-    spec_of, write_recovery,
+    clear_recovery, data_is_beside, kept_of, marks_of, reading_of, recovery_of, recovery_path,
+    session_of, spec_of, write_recovery,
 };
 use super::{AfterLoad, Ask, BenchModel, DialogPurpose, Loaded, Loading, Screen, State};
 use crate::error::WorkbenchError;
@@ -67,6 +67,7 @@ impl State {
             marks: Some(marks_of(&session)),
             session: Some(path.to_path_buf()),
             restoring: false,
+            reading: Some(reading_of(&session)),
         };
         self.start_load(&data, session.data.load.to_options(), then);
     }
@@ -121,6 +122,9 @@ impl State {
         });
         self.doc.loaded = Some(loaded);
         self.screen = Screen::Columns;
+        if let Some(reading) = then.reading {
+            self.bench.set_reading(reading);
+        }
         if let Some(spec) = first_pair {
             self.open_pair(spec);
             if then.marks.is_some() {
@@ -159,6 +163,7 @@ impl State {
             &loaded.sha256,
             [spec, self.bench.kept()],
             self.marks(),
+            self.bench.reading(),
             at,
         ))
     }
@@ -215,6 +220,7 @@ impl State {
             &loaded.sha256,
             [Some(&pair.spec), self.bench.kept()],
             self.marks(),
+            self.bench.reading(),
             &session_file,
         );
         let report = build(&ReportInput {
@@ -224,6 +230,12 @@ impl State {
             exclusions: session.exclusions.clone(),
             reproduce: reproduce_command(&session_file, out, &loaded.dataset.path()),
             comparison: self.bench.kept().map(FitSpec::model),
+            calibration: self.bench.reading().report_calibration(),
+            agreement: self
+                .bench
+                .reading()
+                .report_agreement(&pair.spec, self.marks()),
+            order: self.bench.reading().order.clone(),
         })
         .map_err(|e| WorkbenchError::Report(e.to_string()))?;
         let files = write(&report, out).map_err(|e| WorkbenchError::Report(e.to_string()))?;
@@ -268,6 +280,7 @@ impl State {
             marks: Some(marks_of(session)),
             session: recovery_of(session),
             restoring: true,
+            reading: Some(reading_of(session)),
         };
         self.start_load(&data, session.data.load.to_options(), then);
     }

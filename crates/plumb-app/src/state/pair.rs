@@ -4,6 +4,7 @@
 
 use std::sync::Arc;
 
+use plumb_core::calibration::{rule_weights, WeightRule};
 use plumb_core::regression::{BoxCox, LiveFit, LiveSummary, Transform};
 use plumb_data::analysis::{model_rows, Factor, FitRequest, ModelRows, ResponseScale, WhatIf};
 use plumb_data::Table;
@@ -27,6 +28,8 @@ pub struct FitSpec {
     pub level: f64,
     /// Column of positive weights.
     pub weights: Option<String>,
+    /// Or weights from a rule on the predictor and the response (1/x, 1/x², 1/y², 1/s²).
+    pub weight_rule: Option<WeightRule>,
     /// A grouping column entering as indicator terms.
     pub factor: Option<Factor>,
     /// The response's scale.
@@ -45,6 +48,7 @@ impl FitSpec {
             intercept: true,
             level: 0.95,
             weights: None,
+            weight_rule: None,
             factor: None,
             response: ResponseScale::Identity,
             x_transforms: Vec::new(),
@@ -60,6 +64,7 @@ impl FitSpec {
             intercept: r.intercept,
             level: r.level,
             weights: r.weights.clone(),
+            weight_rule: r.weight_rule,
             factor: r.factor.clone(),
             response: r.response,
             x_transforms: r.x_transforms.clone(),
@@ -90,6 +95,9 @@ impl FitSpec {
         if let Some(w) = &self.weights {
             out.push_str(&format!(", weighted by {w}"));
         }
+        if let Some(r) = self.weight_rule {
+            out.push_str(&format!(", weights {}", r.label()));
+        }
         out
     }
 
@@ -112,6 +120,7 @@ impl FitSpec {
             intercept: self.intercept,
             degree: self.degree,
             weights: self.weights.clone(),
+            weight_rule: self.weight_rule,
             level: self.level,
             factor: self.factor.clone(),
             response: self.response,
@@ -185,6 +194,9 @@ pub struct Pair {
     base: PairRows,
     live: LiveFit,
     applied: Marks,
+    /// Why the weighting rule cannot weigh the rows in use (1/s² with a level left with one
+    /// reading), when it cannot.
+    weight_error: Option<String>,
 }
 
 impl std::ops::Deref for Pair {
@@ -258,6 +270,7 @@ impl Pair {
             },
             live,
             applied: Marks::default(),
+            weight_error: None,
         })
     }
 
@@ -299,7 +312,48 @@ impl Pair {
             }
         }
         self.applied = marks.clone();
+        self.reweigh(marks);
         self.live.summary()
+    }
+
+    /// Puts the weighting rule's weights of the rows in use (at their current positions) into
+    /// the live fit: a rule on each row's own values changes with moves; 1/s² also when a
+    /// replicate is left out. O(n), plus O(p²) for each row whose weight changed.
+    fn reweigh(&mut self, marks: &Marks) {
+        let Some(rule) = self.spec.weight_rule else {
+            return;
+        };
+        let entries: Vec<usize> = (0..self.base.rows.len())
+            .filter(|&i| !self.base.is_excluded(i, marks))
+            .collect();
+        let (x, y): (Vec<f64>, Vec<f64>) =
+            entries.iter().map(|&i| self.base.point(i, marks)).unzip();
+        match rule_weights(rule, &x, &y) {
+            Ok(w) => {
+                self.weight_error = None;
+                for (&i, &w) in entries.iter().zip(&w) {
+                    // A weight the engine refuses cannot come from a rule that accepted it.
+                    let _ = self.live.set_weight(i, w);
+                }
+            }
+            Err(e) => {
+                let row = |k: usize| entries.get(k).map_or(0, |&i| self.base.rows[i]);
+                self.weight_error = Some(match e {
+                    plumb_core::calibration::CalibrationError::UnreplicatedLevel {
+                        level,
+                        index,
+                    } => {
+                        format!("{} weights need two readings at every level; x = {level} has one left (row {})", rule.label(), row(index))
+                    }
+                    other => other.to_string(),
+                });
+            }
+        }
+    }
+
+    /// Why the weighting rule cannot weigh the rows in use, if it cannot.
+    pub fn weight_error(&self) -> Option<&str> {
+        self.weight_error.as_deref()
     }
 
     /// Whether `marks` would change the fit (a different set of excluded rows or moves;

@@ -3,26 +3,31 @@
 
 use std::path::{Path, PathBuf};
 
-use plumb_report::{DataSource, Exclusion, LoadSpec, ModelSpec, Session, SCHEMA_VERSION};
+use plumb_report::{
+    AgreementSpec, CalibrationSpec, DataSource, Exclusion, LoadSpec, ModelSpec, Session,
+    SCHEMA_VERSION,
+};
 
 use super::dataset::Dataset;
 use super::marks::{Marks, Note};
 use super::pair::FitSpec;
+use super::reading::{AgreementOptions, BenchMode, Reading};
 
 /// Key in the session's `view` map naming the session file the recovery copy belongs to.
 const RECOVERY_OF: &str = "recovery_of";
 
 /// The session for `data` under `marks`, to be saved at `session_path`: `models` are the one
-/// on the bench and the one kept for comparison.
+/// on the bench and the one kept for comparison; `reading` what the bench reads beside it.
 pub fn session_of(
     data: &Dataset,
     sha256: &str,
     models: [Option<&FitSpec>; 2],
     marks: &Marks,
+    reading: &Reading,
     session_path: &Path,
 ) -> Session {
     let [spec, kept] = models;
-    Session {
+    let mut session = Session {
         plumbline_session: SCHEMA_VERSION,
         data: DataSource {
             path: Session::data_path_for(data.table.source(), session_path),
@@ -44,8 +49,38 @@ pub fn session_of(
             })
             .collect(),
         comparison: kept.map(|k| ModelSpec::from_request(&k.model())),
+        calibration: reading
+            .report_calibration()
+            .as_ref()
+            .map(CalibrationSpec::from_request),
+        agreement: spec
+            .and_then(|s| reading.report_agreement(s, marks))
+            .as_ref()
+            .map(AgreementSpec::from_request),
         view: serde_json::Map::new(),
+    };
+    session.set_check_order(&reading.order);
+    session
+}
+
+/// What the bench read beside the fit when the session was saved.
+pub fn reading_of(session: &Session) -> Reading {
+    let mut reading = Reading {
+        order: session.check_order(),
+        ..Reading::default()
+    };
+    if let Some(c) = &session.calibration {
+        reading.mode = BenchMode::Calibration;
+        reading.calibration = c.request();
     }
+    if let Some(a) = &session.agreement {
+        reading.mode = BenchMode::Agreement;
+        reading.agreement = AgreementOptions {
+            percent: a.percent,
+            deming_ratio: a.deming_ratio,
+        };
+    }
+    reading
 }
 
 /// The marks a session records (what-if moves are never saved).
@@ -141,6 +176,8 @@ pub fn data_is_beside(session_path: &Path, data: &Path) -> bool {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use plumb_core::calibration::SigmaSource;
+    use plumb_data::analysis::{RowOrder, Unknown};
 
     #[test]
     fn a_session_round_trips_marks_and_the_pair_and_the_recovery_copy_names_its_owner() {
@@ -161,12 +198,30 @@ mod tests {
         let session_path = dir.path().join("s.plumb");
         let mut kept = spec.clone();
         kept.degree = 2;
+        let reading = Reading {
+            mode: BenchMode::Calibration,
+            calibration: plumb_data::analysis::CalibrationRequest {
+                unknowns: vec![Unknown {
+                    name: "A7".into(),
+                    readings: vec![2.5, 2.6],
+                }],
+                sigma: SigmaSource::InterceptSe,
+            },
+            order: RowOrder::Column("a".into()),
+            ..Reading::default()
+        };
         let s = session_of(
             &data,
             "abc",
             [Some(&spec), Some(&kept)],
             &marks,
+            &reading,
             &session_path,
+        );
+        assert_eq!(
+            reading_of(&s),
+            reading,
+            "the calibration's unknowns and σ come back"
         );
         assert_eq!(s.data.path, "d.csv");
         let mut expect = marks.clone();

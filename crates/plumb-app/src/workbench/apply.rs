@@ -23,6 +23,12 @@ impl Workbench {
             Action::OpenPair(spec) => s.open_pair(spec),
             Action::KeepForComparison(keep) => s.keep_for_comparison(keep),
             Action::ResidualsAgainst(axis) => s.bench.set_residual_axis(axis),
+            Action::SetReading(reading) => s.set_reading(reading),
+            Action::ReadUnknowns {
+                path,
+                reading,
+                sample,
+            } => s.read_unknowns(&path, &reading, sample.as_deref()),
             Action::SetOverlays(o) => s.set_overlays(o),
             Action::ColourBy(column) => s.colour_by(column),
             Action::Exclude { rows, reason } => s.exclude_rows(&rows, reason.as_deref()),

@@ -6,12 +6,17 @@
 //! each shows the same numbers for the same request. [`model_rows`] is its first step (the
 //! rows and the design), which the workbench's live engine starts from.
 
+mod agreement;
+mod calibration;
+mod checks;
 mod compare;
 mod extras;
 mod groups;
 mod prepare;
 mod terms;
+mod unknowns;
 
+use plumb_core::calibration::WeightRule;
 use plumb_core::regression::{
     added_variable, influence, variance_inflation, AddedVariable, CaseInfluence, LinearFit,
     Transform,
@@ -23,6 +28,9 @@ use crate::select::Selection;
 use crate::table::Table;
 use crate::DataError;
 
+pub use agreement::{agree, AgreementReport, AgreementRequest, DemingLine};
+pub use calibration::{calibrate, weighting_label, CalibrationReport, CalibrationRequest, Unknown};
+pub use checks::{assumption_checks, Checks, NormalityTest, OrderChecks, RowOrder};
 pub use compare::{compare, Comparison, FitFigures};
 pub use extras::{
     Curve, DegreeStep, ExtrasRequest, PairExtras, ReadAt, Robust, RobustFit, BAND_POINTS,
@@ -33,6 +41,7 @@ pub use prepare::{model_rows, FactorTerms, ModelRows};
 pub use terms::{
     level_term, transform_name, transform_named, Factor, Levels, ResponseScale, MAX_LEVELS,
 };
+pub use unknowns::{parse_unknowns, unknowns_from_table};
 
 /// What to fit, on which rows.
 #[derive(Debug, Clone, PartialEq)]
@@ -47,6 +56,8 @@ pub struct FitRequest {
     pub degree: u32,
     /// Optional column of positive weights (weighted least squares).
     pub weights: Option<String>,
+    /// Or weights from a rule on the response and the single predictor (1/x, 1/x², 1/y², 1/s²).
+    pub weight_rule: Option<WeightRule>,
     /// 1-based data rows to leave out.
     pub exclude: Vec<usize>,
     /// Hypothetical values of some cells (the data file and the table keep the measured ones).
@@ -87,6 +98,7 @@ impl Default for FitRequest {
             intercept: true,
             degree: 1,
             weights: None,
+            weight_rule: None,
             exclude: Vec::new(),
             what_if: Vec::new(),
             level: 0.95,

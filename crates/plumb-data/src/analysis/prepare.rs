@@ -2,6 +2,7 @@
 //! what-if values put in place, the transforms applied, the grouping factor's levels read, and
 //! the design matrix built from them.
 
+use plumb_core::calibration::{rule_weights, CalibrationError};
 use plumb_core::regression::{boxcox, fit, BoxCox, Design, FitOptions, LinearFit, Transform};
 use plumb_core::CoreError;
 
@@ -45,7 +46,7 @@ pub struct ModelRows {
     pub levels: Option<Levels>,
     /// The polynomial degree of the single predictor.
     pub degree: u32,
-    has_weights: bool,
+    weights: Option<Vec<f64>>,
 }
 
 impl ModelRows {
@@ -54,15 +55,10 @@ impl ModelRows {
         &self.y
     }
 
-    /// The weights on the rows used, when the request names a weights column.
+    /// The weights on the rows used: the request's weights column, or its weighting rule
+    /// applied to these rows' values (as measured, what-if values in place).
     pub fn weights(&self) -> Option<&[f64]> {
-        self.has_weights.then(|| {
-            self.selection
-                .columns
-                .last()
-                .expect("weights column selected")
-                .as_slice()
-        })
+        self.weights.as_deref()
     }
 
     /// The least-squares fit of these rows.
@@ -84,7 +80,7 @@ impl ModelRows {
         fit(design, self.y(), self.weights(), &self.options).map_err(|e| match e {
             CoreError::BadWeight { index, value } => AnalysisError::Request(format!(
                 "{file}, column '{}', row {}: weight {value} is not positive; weights must be positive and finite",
-                request.weights.as_deref().unwrap_or_default(),
+                request.weights.as_deref().unwrap_or("(weighting rule)"),
                 self.selection.rows[index]
             )),
             source => AnalysisError::Model { file, source },
@@ -216,7 +212,7 @@ pub fn model_rows(table: &Table, request: &FitRequest) -> Result<ModelRows, Anal
         predictors,
         levels,
         degree: request.degree,
-        has_weights: request.weights.is_some(),
+        weights: weights_of(&file, &selection, request)?,
         selection,
     };
     let model_error = |source| AnalysisError::Model {
@@ -265,7 +261,69 @@ fn put_response(rows: &mut ModelRows, file: &str, request: &FitRequest) -> Resul
     Ok(())
 }
 
+/// The weights of the selected rows: the weights column (selected last), or the rule applied
+/// to the response and the single predictor as measured.
+fn weights_of(
+    file: &str,
+    selection: &Selection,
+    request: &FitRequest,
+) -> Result<Option<Vec<f64>>, AnalysisError> {
+    if request.weights.is_some() {
+        return Ok(selection.columns.last().cloned());
+    }
+    let Some(rule) = request.weight_rule else {
+        return Ok(None);
+    };
+    let (y, x) = (&selection.columns[0], &selection.columns[1]);
+    rule_weights(rule, x, y)
+        .map(Some)
+        .map_err(|e| AnalysisError::Request(weight_rule_message(file, request, selection, &e)))
+}
+
+/// The weighting rule's complaint with the file, column and data row named.
+fn weight_rule_message(
+    file: &str,
+    request: &FitRequest,
+    selection: &Selection,
+    e: &CalibrationError,
+) -> String {
+    let row = |i: usize| selection.rows[i];
+    match *e {
+        CalibrationError::BadWeightBase { rule, index, value } => {
+            let column = if rule.contains('y') { &request.y } else { &request.x[0] };
+            format!(
+                "{file}, column '{column}', row {}: {rule} weighting needs a value other than {value} there; leave blanks and zero readings out (exclude the row) or choose another weighting",
+                row(index)
+            )
+        }
+        CalibrationError::UnreplicatedLevel { level, index } => format!(
+            "{file}, column '{}', row {}: the level {level} is measured once, so 1/s² has no variance there; every level needs at least two readings for 1/s² weighting (or choose another weighting)",
+            request.x[0],
+            row(index)
+        ),
+        CalibrationError::NoSpreadAtLevel { level, index } => format!(
+            "{file}, column '{}', level {level} (first at row {}): its readings are all equal, so 1/s² would weigh them infinitely; choose another weighting",
+            request.y,
+            row(index)
+        ),
+        ref other => format!("{file}: {other}"),
+    }
+}
+
 fn check(request: &FitRequest) -> Result<(), AnalysisError> {
+    if request.weight_rule.is_some() {
+        if request.weights.is_some() {
+            return Err(AnalysisError::Request(
+                "give either a weights column or a weighting rule, not both".into(),
+            ));
+        }
+        if request.x.len() != 1 {
+            return Err(AnalysisError::Request(format!(
+                "a weighting rule (1/x, 1/x², 1/y², 1/s²) works on one predictor; {} were given",
+                request.x.len()
+            )));
+        }
+    }
     if request.x.is_empty() {
         return Err(AnalysisError::Request(
             "name at least one predictor column (--x COLUMN)".into(),

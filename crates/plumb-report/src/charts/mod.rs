@@ -10,6 +10,10 @@ use plotters::prelude::*;
 
 use crate::{ReportError, Result};
 
+mod lab;
+
+pub use lab::{differences_chart, weightings_chart, DifferencesChart, WeightingPanel};
+
 /// Chart size in pixels (SVG user units).
 pub const SIZE: (u32, u32) = (720, 460);
 
@@ -95,6 +99,8 @@ pub enum LineKind {
     Level(usize),
     /// The model kept for comparison, dashed.
     Kept,
+    /// A reference line (the line of identity), thin and dashed in the guides' grey.
+    Guide,
 }
 
 fn register_font() {
@@ -297,6 +303,7 @@ fn lines_series<DB: DrawingBackend>(
                 (RGBColor(r, g, b), false)
             }
             LineKind::Kept => (KEPT, true),
+            LineKind::Guide => (GUIDE, true),
         };
         let style = colour.stroke_width(2);
         let legend = move |(x, y): (i32, i32)| PathElement::new(vec![(x, y), (x + 18, y)], style);

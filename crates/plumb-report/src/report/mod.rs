@@ -1,6 +1,7 @@
 //! The summary for a colleague: HTML with inline charts, charts as SVG and PNG, and CSVs.
 
 mod figures;
+mod lab;
 mod page;
 mod parts;
 mod tables;
@@ -8,7 +9,8 @@ mod tables;
 use std::path::{Path, PathBuf};
 
 use plumb_data::analysis::{
-    analyze, compare, Comparison, Curve, ExtrasRequest, FitRequest, Wanted,
+    analyze, compare, AgreementRequest, CalibrationRequest, Comparison, Curve, ExtrasRequest,
+    FitRequest, RowOrder, Wanted,
 };
 use plumb_data::Table;
 
@@ -32,6 +34,12 @@ pub struct ReportInput<'a> {
     pub reproduce: String,
     /// A second model shown beside the first (on the same exclusions), if one was kept.
     pub comparison: Option<FitRequest>,
+    /// Read the model as a calibration: these unknowns and this σ of the limits.
+    pub calibration: Option<CalibrationRequest>,
+    /// Compare two methods (on the request's exclusions).
+    pub agreement: Option<AgreementRequest>,
+    /// The order the sequence checks follow.
+    pub order: RowOrder,
 }
 
 /// The second model beside the first: how they compare (or why they could not be fitted
@@ -101,18 +109,23 @@ pub fn build(input: &ReportInput<'_>) -> Result<Report> {
         };
         Beside::of(input.table, &kept, request)
     });
-    let charts = figures::draw(input, &outcome, beside.as_ref())?;
+    let lab = lab::Lab::of(input, &outcome);
+    let mut charts = figures::draw(input, &outcome, beside.as_ref())?;
+    charts.extend(lab.charts(input)?);
     let html = page::Page {
         input,
         outcome: &outcome,
         effects: &effects,
         charts: &charts,
         beside: beside.as_ref(),
+        lab: &lab,
     }
     .render();
+    let mut statistics_csv = tables::statistics_csv(&outcome, beside.as_ref());
+    lab::statistics_rows(&lab, &mut statistics_csv);
     Ok(Report {
         html,
-        statistics_csv: tables::statistics_csv(&outcome, beside.as_ref()),
+        statistics_csv,
         exclusions_csv: tables::exclusions_csv(&effects, &input.exclusions),
         charts,
     })

@@ -26,6 +26,8 @@ pub struct Page<'a> {
     pub charts: &'a [Chart],
     /// A second model beside the first.
     pub beside: Option<&'a super::Beside>,
+    /// The checks, the calibration and the method comparison.
+    pub lab: &'a super::lab::Lab,
 }
 
 impl Page<'_> {
@@ -38,6 +40,9 @@ impl Page<'_> {
         let _ = self.model(&mut out);
         let _ = self.groups(&mut out);
         let _ = self.beside(&mut out);
+        let _ = self.checks(&mut out);
+        let _ = self.calibration(&mut out);
+        let _ = self.agreement(&mut out);
         let _ = self.figures(&mut out);
         let _ = self.exclusions(&mut out);
         let _ = self.cues(&mut out);

@@ -6,8 +6,12 @@ use plumb_core::cues::{PairCues, CURVE_R2_GAIN, CURVE_R2_STRONG};
 
 use crate::text::{num, p};
 
+pub mod agreement;
+pub mod calibration;
+mod checks;
 mod models;
 
+pub use checks::{check_cues, CheckCue, CHECK_ALPHA, DW_LOW};
 pub use models::{box_cox, f_test, scale_note, NOT_NESTED_HINT};
 
 /// A correlation or a fit describes association only.

@@ -1,0 +1,72 @@
+//! The calibration's weighted residuals under each weighting, side by side: the weighting that
+//! evens out the spread along the standards is the one the data support. Linked to the other
+//! views (hover and click) like them.
+
+use eframe::egui::{self, Vec2};
+
+use super::view::{diagnostic_ui, Diagnostic};
+use super::{BenchUi, Scene};
+use crate::action::Actions;
+
+const TIP: &str = "The same calibration under each weighting: its weighted residuals √w·e against the standards. The aim is an even band around zero from the lowest standard to the highest; a funnel means the weighting does not match how the spread grows.";
+
+/// Draws one small view per weighting across `size` (a spinner until they are computed).
+pub fn weightings_ui(
+    scene: &Scene<'_>,
+    own: &mut BenchUi,
+    ui: &mut egui::Ui,
+    size: Vec2,
+) -> Actions {
+    let d = scene.bench.diagnostics();
+    let labels: Vec<String> = d
+        .map(|d| d.lab_views.weightings.iter().map(|w| w.0.clone()).collect())
+        .unwrap_or_default();
+    let log_x = d.is_some_and(|d| d.lab_views.weightings_log_x);
+    let x_label = if log_x {
+        format!("log₁₀ {}", scene.pair.spec.x0())
+    } else {
+        scene.pair.spec.x0().to_string()
+    };
+    super::points::title_ui(ui, "Weighted residuals under each weighting", TIP);
+    if labels.is_empty() {
+        ui.add_sized(size, egui::Spinner::new());
+        return Actions::none();
+    }
+    let width = (size.x / labels.len() as f32 - 6.0).max(120.0);
+    let panel = Vec2::new(width, size.y - 22.0);
+    let mut out = Actions::none();
+    ui.horizontal(|ui| {
+        for (k, label) in labels.iter().enumerate() {
+            ui.vertical(|ui| {
+                ui.set_max_width(width);
+                let view = Diagnostic {
+                    id: "weightings",
+                    variant: k as u64 + 1,
+                    title: label,
+                    tip: TIP,
+                    x_label: &x_label,
+                    y_label: "√w · residual",
+                };
+                out.extend(diagnostic_ui(
+                    scene,
+                    own,
+                    ui,
+                    panel,
+                    &view,
+                    |d| {
+                        let (_, cloud) = d.lab_views.weightings.iter().find(|w| w.0 == *label)?;
+                        Some((cloud, None))
+                    },
+                    |pu, _, v| {
+                        pu.hline(
+                            egui_plot::HLine::new("zero", 0.0)
+                                .color(v.weak_text_color())
+                                .allow_hover(false),
+                        );
+                    },
+                ));
+            });
+        }
+    });
+    out
+}
