@@ -5,8 +5,8 @@ use std::fmt::Write;
 
 use plumb_core::calibration::{Interval, ReadBack};
 use plumb_data::analysis::{
-    analyze, assumption_checks, calibrate, Analysis, CalibrationReport, CalibrationRequest, Checks,
-    FitRequest, Wanted,
+    analyze, assumption_checks, calibrate, calibration_ready, Analysis, CalibrationReport,
+    CalibrationRequest, Checks, FitRequest, Wanted,
 };
 use plumb_data::Table;
 use plumb_report::text::{fixed, num, p as pval};
@@ -18,6 +18,7 @@ use crate::cli::{CalibrateArgs, Format};
 pub fn run(args: &CalibrateArgs) -> anyhow::Result<String> {
     let table = plumb_data::load(&args.load.data, &args.load.options())?;
     let request = args.model.request();
+    calibration_ready(&request)?;
     let unknowns = args.unknowns.read(&request.y, &args.load.options())?;
     let analysis = analyze(&table, &request, Wanted::default())?;
     let wanted = CalibrationRequest {

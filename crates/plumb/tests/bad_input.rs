@@ -89,6 +89,24 @@ const CASES: &[(&str, &[&str], i32, &str)] = &[
     ("not-parquet.parquet", &[], 1, "not a readable Parquet file"),
     ("tiny-spread.csv", &[], 0, "R² (centered)"),
     ("huge-offset.csv", &[], 0, "R² (centered)"),
+    (
+        "blank-standard.csv",
+        &["--weighting", "1/x"],
+        1,
+        "column 'x', row 1: 1/x weighting needs a value other than 0",
+    ),
+    (
+        "single-reading-level.csv",
+        &["--weighting", "1/s2"],
+        1,
+        "column 'x', row 3: the level 2 is measured once",
+    ),
+    (
+        "flat-replicates.csv",
+        &["--weighting", "1/s2"],
+        1,
+        "level 2 (first at row 3): its readings are all equal",
+    ),
 ];
 
 /// Sessions go through `plumb report`.

@@ -473,3 +473,52 @@ fn a_predictor_a_factor_a_comparison_and_a_log_scale_are_built_by_clicking() {
         cli_r_squared_with(&data, &logged, " (on ln(settled_ntu))")
     );
 }
+
+/// Calibration by clicking: switch the bench to calibration, type two unknowns, read them back;
+/// the table shows each x̂ as `plumb calibrate` computes it, and choosing σ from the intercept
+/// changes the limits shown to that route's.
+#[test]
+fn typed_unknowns_are_read_back_as_plumb_calibrate_reads_them() {
+    let config = tempfile::tempdir().expect("config");
+    let data = demo("calibration-run.csv");
+    let mut h = harness(config.path());
+    open_calibration(&mut h, &data);
+    h.get_by_label("calibration").click();
+    settle(&mut h);
+    let field = "Unknowns (a name, then its readings; one sample per line):";
+    h.get_by_label(field).click();
+    h.run_steps(1);
+    h.get_by_label(field).type_text("A7 0.412 0.418\nB2 0.305");
+    h.run_steps(1);
+    h.get_by_label("Read these back").click();
+    settle(&mut h);
+    let out = Command::new(env!("CARGO_BIN_EXE_plumb"))
+        .arg("calibrate")
+        .arg(&data)
+        .args(["--y", "absorbance", "--x", "standard_mg_l"])
+        .args(["--unknown", "A7=0.412,0.418", "--unknown", "B2=0.305"])
+        .args(["--sigma", "intercept", "--format", "json"])
+        .output()
+        .expect("plumb runs");
+    assert!(out.status.success());
+    let cli: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
+    for u in cli["unknowns"].as_array().expect("unknowns") {
+        let x = plumb_report::text::num(u["x"].as_f64().expect("x̂"));
+        assert!(
+            h.query_by_label(&x).is_some(),
+            "{}'s x̂ {x} is in the table",
+            u["name"]
+        );
+    }
+    h.get_by_label("intercept SE").click();
+    settle(&mut h);
+    let lod = plumb_report::text::num(cli["limits"]["detection"].as_f64().expect("LOD"));
+    let shown = h
+        .get_all_by_label_contains("LOD ")
+        .filter_map(|n| n.accesskit_node().value())
+        .collect::<Vec<_>>();
+    assert!(
+        shown.iter().any(|s| s.contains(&lod)),
+        "LOD {lod} from the intercept's SE: {shown:?}"
+    );
+}

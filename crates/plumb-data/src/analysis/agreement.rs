@@ -90,6 +90,13 @@ impl AgreementReport {
 /// message names the file and column. A method that cannot be computed on these rows is not
 /// an error: its entry says why.
 pub fn agree(table: &Table, request: &AgreementRequest) -> Result<AgreementReport, AnalysisError> {
+    if request.reference == request.test {
+        return Err(AnalysisError::Request(format!(
+            "{}: '{}' is named as both methods; compare two different columns",
+            table.source().display(),
+            request.test
+        )));
+    }
     if !(request.level > 0.0 && request.level < 1.0) {
         return Err(AnalysisError::Request(format!(
             "confidence level {} is not between 0 and 1 (try 0.95)",

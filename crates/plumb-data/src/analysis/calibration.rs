@@ -59,7 +59,7 @@ pub fn calibrate(
     analysis: &Analysis,
     wanted: &CalibrationRequest,
 ) -> Result<CalibrationReport, AnalysisError> {
-    check(request)?;
+    calibration_ready(request)?;
     let rows = &analysis.rows;
     let (y, x) = (&rows.selection.columns[0], &rows.selection.columns[1]);
     let range = x
@@ -126,7 +126,12 @@ pub fn weighting_label(request: &FitRequest) -> String {
     }
 }
 
-fn check(request: &FitRequest) -> Result<(), AnalysisError> {
+/// Whether `request` can be read as a calibration: one predictor and the response, both as
+/// measured, no grouping.
+///
+/// # Errors
+/// What to change, when it cannot.
+pub fn calibration_ready(request: &FitRequest) -> Result<(), AnalysisError> {
     let bad = |why: &str| Err(AnalysisError::Request(format!("a calibration {why}")));
     if request.x.len() != 1 || request.factor.is_some() {
         return bad("reads one predictor back from the response: give one --x and no grouping");

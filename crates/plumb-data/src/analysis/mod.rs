@@ -29,7 +29,9 @@ use crate::table::Table;
 use crate::DataError;
 
 pub use agreement::{agree, AgreementReport, AgreementRequest, DemingLine};
-pub use calibration::{calibrate, weighting_label, CalibrationReport, CalibrationRequest, Unknown};
+pub use calibration::{
+    calibrate, calibration_ready, weighting_label, CalibrationReport, CalibrationRequest, Unknown,
+};
 pub use checks::{assumption_checks, Checks, NormalityTest, OrderChecks, RowOrder};
 pub use compare::{compare, Comparison, FitFigures};
 pub use extras::{
