@@ -26,7 +26,8 @@ pub fn json(c: &Checks) -> Value {
     });
     let (test, result) = &c.normality;
     let normality = match result {
-        Ok(n) => json!({ "test": test.key(), "statistic": n.statistic, "p_value": n.p_value }),
+        Ok(n) => json!({ "test": test.key(), "statistic": n.statistic, "p_value": n.p_value,
+            "p_is_bound": n.p_is_bound }),
         Err(e) => json!({ "test": test.key(), "undefined": e }),
     };
     let flags: Vec<&str> = wording::check_cues(c)

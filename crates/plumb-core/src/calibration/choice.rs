@@ -11,7 +11,7 @@ pub struct WeightingFigures {
     /// Weighted `R² = 1 − Σwe²/Σw(y − ȳ_w)²`.
     pub r_squared: f64,
     /// Back-calculated standards: `Σ|REᵢ|`, `REᵢ = 100·(x̂ᵢ − xᵢ)/xᵢ` over standards with
-    /// `xᵢ ≠ 0`, `x̂ᵢ` read back from `yᵢ` on the fitted curve.
+    /// `xᵢ ≠ 0`, `x̂ᵢ` read back from `yᵢ` on the fitted curve (the root nearest `xᵢ`).
     pub sum_abs_relative_error: f64,
     /// `max|REᵢ|`.
     pub max_abs_relative_error: f64,
@@ -76,16 +76,12 @@ fn figures(
             (a.min(v), b.max(v))
         });
     let curve = CalibrationCurve::new(&design, &f, range).map_err(|e| e.to_string())?;
-    let (lo, hi) = curve.search_domain();
     let relative_errors: Vec<Option<f64>> = x
         .iter()
         .zip(y)
         .map(|(&xi, &yi)| {
-            let nearest = curve
-                .roots(yi, lo, hi)
-                .into_iter()
-                .min_by(|a, b| (a - xi).abs().total_cmp(&(b - xi).abs()))?;
-            (xi != 0.0).then(|| 100.0 * (nearest - xi) / xi)
+            let back = curve.root_near(yi, xi)?;
+            (xi != 0.0).then(|| 100.0 * (back - xi) / xi)
         })
         .collect();
     let weighted_residuals: Vec<f64> = f

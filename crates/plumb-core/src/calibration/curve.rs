@@ -145,6 +145,36 @@ impl CalibrationCurve {
     }
 }
 
+impl CalibrationCurve {
+    /// The x nearest `start` where `f(x) = y0`, by Newton's method from `start` (a line in
+    /// closed form): O(1), for reading back many standards. `None` when the iteration leaves
+    /// the search domain, meets a flat stretch or does not settle in 50 steps.
+    pub fn root_near(&self, y0: f64, start: f64) -> Option<f64> {
+        if self.is_line() {
+            let x = (y0 - self.beta[0]) / self.beta[1];
+            return x.is_finite().then_some(x);
+        }
+        let (a, b) = self.search_domain();
+        let scale = (b - a).abs().max(start.abs()).max(f64::MIN_POSITIVE);
+        let mut x = start;
+        for _ in 0..50 {
+            let d = self.slope(x);
+            if d == 0.0 || !d.is_finite() {
+                return None;
+            }
+            let step = (self.value(x) - y0) / d;
+            x -= step;
+            if !(a..=b).contains(&x) {
+                return None;
+            }
+            if step.abs() <= 1e-14 * scale {
+                return Some(x);
+            }
+        }
+        None
+    }
+}
+
 /// The points where `h` changes sign (or is zero) on a grid over `[a, b]`, each refined by
 /// bisection to a relative 1e-13 of the interval.
 pub(super) fn sign_changes(h: impl Fn(f64) -> f64, a: f64, b: f64) -> Vec<f64> {
@@ -198,6 +228,11 @@ mod tests {
         assert_eq!(roots.len(), 1);
         assert!((roots[0] - 3.0).abs() < 1e-3, "{roots:?}");
         assert!((c.slope(3.0) - 5.0).abs() < 1e-2);
+        let near = c.root_near(11.5, 2.0).expect("Newton settles");
+        assert!((near - roots[0]).abs() < 1e-9, "{near} vs {}", roots[0]);
+        // The other root of 1 + 2x + 0.5x² = 11.5 lies at x = −7 (by hand), in the domain.
+        let other = c.root_near(11.5, -7.5).expect("the far root");
+        assert!((other + 7.0).abs() < 1e-2, "{other}");
     }
 
     #[test]

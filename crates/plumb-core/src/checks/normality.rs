@@ -1,7 +1,7 @@
 //! Normality of residuals: Shapiro–Wilk (Royston's approximation) and Anderson–Darling.
 
 use super::{finite, CheckError};
-use crate::distributions::{normal_upper_quantile, normal_upper_tail};
+use crate::distributions::{ln_normal_upper_tail, normal_upper_quantile, normal_upper_tail};
 
 /// Largest sample Royston's Shapiro–Wilk approximation is calibrated for.
 pub const SHAPIRO_WILK_MAX_N: usize = 5_000;
@@ -13,7 +13,14 @@ pub struct Normality {
     pub statistic: f64,
     /// Probability of a statistic this far from normal if the data were normal.
     pub p_value: f64,
+    /// Whether `p_value` is only an upper bound: the statistic lies beyond the range the
+    /// p-value's formula was published for, and the p-value is known only to be below it.
+    pub p_is_bound: bool,
 }
+
+/// Largest `A*²` the D'Agostino–Stephens p-value formula covers (its table ends there;
+/// beyond it the fitted curve turns up again and would give nonsense).
+pub const ANDERSON_DARLING_TABLE_END: f64 = 13.0;
 
 /// `Σ cₖ xᵏ` (coefficients from the constant up), Horner's rule.
 fn poly(c: &[f64], x: f64) -> f64 {
@@ -70,6 +77,7 @@ pub fn shapiro_wilk(values: &[f64]) -> Result<Normality, CheckError> {
     Ok(Normality {
         statistic: w,
         p_value: shapiro_wilk_p(w, n),
+        p_is_bound: false,
     })
 }
 
@@ -141,6 +149,8 @@ fn shapiro_wilk_p(w: f64, n: usize) -> f64 {
 /// n − 1 divisor in s (as scipy's `stats.anderson`). The p-value is that of D'Agostino and
 /// Stephens (1986, Goodness-of-Fit Techniques, table 4.9; constants quoted from memory and
 /// checked against statsmodels' `normal_ad`) for the modified `A*² = A²(1 + 0.75/n + 2.25/n²)`.
+/// Above `A*² = 13`, where the published formula ends, the p-value is reported as the bound
+/// at 13 (`p < 4.95e-31`, [`Normality::p_is_bound`]), as statsmodels reports 0 there.
 ///
 /// # Errors
 /// Fewer than 8 values, a non-finite value, or no spread.
@@ -160,12 +170,14 @@ pub fn anderson_darling(values: &[f64]) -> Result<Normality, CheckError> {
     }
     let z: Vec<f64> = x.iter().map(|v| (v - mean) / sd).collect();
     let s = crate::accurate::sum((0..n).map(|i| {
-        let lower = normal_upper_tail(-z[i]).ln();
-        let upper = normal_upper_tail(z[n - 1 - i]).ln();
+        let lower = ln_normal_upper_tail(-z[i]);
+        let upper = ln_normal_upper_tail(z[n - 1 - i]);
         (2.0 * i as f64 + 1.0) * (lower + upper)
     }));
     let a2 = -nf - s / nf;
     let a = a2 * (1.0 + 0.75 / nf + 2.25 / (nf * nf));
+    let beyond = a > ANDERSON_DARLING_TABLE_END;
+    let a = a.min(ANDERSON_DARLING_TABLE_END);
     let p = if a >= 0.6 {
         (1.2937 - 5.709 * a + 0.0186 * a * a).exp()
     } else if a >= 0.34 {
@@ -178,12 +190,32 @@ pub fn anderson_darling(values: &[f64]) -> Result<Normality, CheckError> {
     Ok(Normality {
         statistic: a2,
         p_value: p.clamp(0.0, 1.0),
+        p_is_bound: beyond,
     })
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_statistic_past_the_table_gives_a_bound_not_a_p_of_one() {
+        // exp of evenly spaced normal-ish scores: a strongly skewed sample of 6000 (A² in the
+        // hundreds). Before the table's end was respected, p came out as 1.
+        let n = 6000;
+        let v: Vec<f64> = (1..=n)
+            .map(|i| (3.0 * normal_upper_quantile(1.0 - (i as f64 - 0.5) / n as f64)).exp())
+            .collect();
+        let r = anderson_darling(&v).expect("defined");
+        assert!(r.statistic > 100.0, "{}", r.statistic);
+        assert!(r.p_is_bound && r.p_value < 5e-31, "{r:?}");
+        // Inside the table the p-value is an ordinary one.
+        let calm: Vec<f64> = (1..=200)
+            .map(|i| normal_upper_quantile(1.0 - (f64::from(i) - 0.5) / 200.0))
+            .collect();
+        let c = anderson_darling(&calm).expect("defined");
+        assert!(!c.p_is_bound && c.p_value > 0.5, "{c:?}");
+    }
 
     #[test]
     fn coefficients_have_unit_length() {

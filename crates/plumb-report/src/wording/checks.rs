@@ -105,9 +105,10 @@ fn normality(checks: &Checks) -> CheckCue {
             CheckCue {
                 topic: "normality",
                 figures: format!(
-                    "{} {stat} {}, p {}",
+                    "{} {stat} {}, p {}{}",
                     test.name(),
                     fixed(n.statistic, 4),
+                    if n.p_is_bound { "< " } else { "" },
                     p(n.p_value)
                 ),
                 flagged,
