@@ -234,6 +234,12 @@ fn passing_bablok_line(c: &mut Criterion) {
     g.bench_function("passing_bablok 100k", |b| {
         b.iter(|| black_box(passing_bablok(&x, &y, 0.95).expect("defined")));
     });
+    // Lab values are written to a few decimals: many slopes tie exactly.
+    let round = |v: &[f64]| -> Vec<f64> { v.iter().map(|a| (a * 100.0).round() / 100.0).collect() };
+    let (xr, yr) = (round(&x), round(&y));
+    g.bench_function("passing_bablok 100k rounded to 0.01", |b| {
+        b.iter(|| black_box(passing_bablok(&xr, &yr, 0.95).expect("defined")));
+    });
     g.finish();
 }
 

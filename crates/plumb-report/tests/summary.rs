@@ -259,6 +259,10 @@ fn a_method_comparison_summary_carries_both_lines_and_the_limits() {
     }
     let names: Vec<&str> = report.charts.iter().map(|c| c.name).collect();
     assert!(names.contains(&"differences"), "{names:?}");
+    let mut unique = names.clone();
+    unique.sort_unstable();
+    unique.dedup();
+    assert_eq!(unique.len(), names.len(), "one file per chart: {names:?}");
     assert!(report.statistics_csv.contains(&format!(
         "passing_bablok,slope,,{}",
         plumb_report::text::exact(pb.slope)

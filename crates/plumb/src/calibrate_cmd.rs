@@ -67,7 +67,7 @@ fn to_json(
         "unknowns": r.unknowns.iter().map(|(u, rb)| {
             let mut v = json!({ "name": u.name, "readings": u.readings });
             match rb {
-                Ok(rb) => extend(&mut v, read_back_json(rb)),
+                Ok(rb) => extend(&mut v, read_back_json(rb, r.limits.as_ref().ok())),
                 Err(e) => extend(&mut v, json!({ "undefined": e })),
             }
             v
@@ -101,7 +101,10 @@ fn extend(v: &mut Value, more: Value) {
     }
 }
 
-fn read_back_json(rb: &ReadBack) -> Value {
+fn read_back_json(
+    rb: &ReadBack,
+    limits: Option<&plumb_core::calibration::DetectionLimits>,
+) -> Value {
     let exact = match rb.exact {
         Interval::Bounded { low, high } => json!({ "kind": "bounded", "low": low, "high": high }),
         Interval::Open { low, high } => json!({ "kind": "open", "low": low, "high": high }),
@@ -112,6 +115,8 @@ fn read_back_json(rb: &ReadBack) -> Value {
     json!({
         "mean_reading": rb.reading, "replicates": rb.replicates, "x": rb.x,
         "outside_range": rb.outside_range, "std_error": rb.std_error,
+        "below_detection": limits.is_some_and(|l| rb.x < l.detection),
+        "below_quantitation": limits.is_some_and(|l| rb.x < l.quantitation),
         "approx_low": rb.approximate.0, "approx_high": rb.approximate.1, "exact": exact,
     })
 }
@@ -120,6 +125,7 @@ fn limits_json(l: &Result<plumb_core::calibration::DetectionLimits, String>) -> 
     match l {
         Ok(l) => json!({
             "sigma_source": l.source.label(), "sigma": l.sigma, "slope": l.slope,
+            "sigma_at_lowest_standard": l.at_lowest_standard,
             "detection": l.detection, "quantitation": l.quantitation,
         }),
         Err(e) => json!({ "undefined": e }),
@@ -255,7 +261,7 @@ fn write_limits_and_fit(out: &mut String, r: &CalibrationReport) -> std::fmt::Re
     match &r.lack_of_fit {
         Ok(l) => writeln!(
             out,
-            "  lack of fit   {} levels: lack-of-fit SS {} on {} df against pure error {} on {} df; F {}, p {}{}",
+            "  lack of fit   {} levels: lack-of-fit SS {} ({} df) against pure error {} ({} df); F = {}, p {}{}",
             l.levels,
             num(l.lack_of_fit_ss),
             l.lack_of_fit_df,

@@ -503,7 +503,8 @@ fn typed_unknowns_are_read_back_as_plumb_calibrate_reads_them() {
     assert!(out.status.success());
     let cli: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
     for u in cli["unknowns"].as_array().expect("unknowns") {
-        let x = plumb_report::text::num(u["x"].as_f64().expect("x̂"));
+        // The table shows four significant digits (the full value on hover).
+        let x = plumb_report::text::sig(u["x"].as_f64().expect("x̂"), 4);
         assert!(
             h.query_by_label(&x).is_some(),
             "{}'s x̂ {x} is in the table",

@@ -2,9 +2,10 @@
 //! choice of σ, lack of fit, and the weightings side by side (each can be adopted).
 
 use eframe::egui::{self, RichText};
+use plumb_core::calibration::Interval;
 use plumb_core::calibration::SigmaSource;
 use plumb_data::analysis::{parse_unknowns, CalibrationReport};
-use plumb_report::text::{fixed, num, p};
+use plumb_report::text::{fixed, num, p, sig};
 use plumb_report::wording;
 
 use super::{BenchUi, Scene};
@@ -88,57 +89,57 @@ fn unknowns_table_ui(ui: &mut egui::Ui, r: &CalibrationReport, level: f64, x: &s
     }
     let pct = (level * 100.0).round();
     ui.label(RichText::new(format!("Unknowns read back ({pct}% intervals)")).strong())
-        .on_hover_text("first-order: x̂ ± t·SE(x̂); band: the concentrations whose prediction band holds the mean reading (Fieller's interval for a line), which may be lopsided or unbounded");
-    egui::ScrollArea::horizontal()
-        .id_salt("unknowns-scroll")
-        .show(ui, |ui| {
-            egui::Grid::new("unknowns").striped(true).show(ui, |ui| {
-                for h in ["sample", "m", "reading", x, "SE", "first-order", "band"] {
-                    ui.label(RichText::new(h).strong());
-                }
-                ui.end_row();
-                for (u, rb) in &r.unknowns {
-                    ui.label(&u.name);
-                    match rb {
-                        Ok(rb) => {
-                            ui.label(rb.replicates.to_string());
-                            ui.label(num(rb.reading));
-                            let x = ui.label(num(rb.x));
-                            if rb.outside_range {
-                                x.on_hover_text(wording::calibration::OUTSIDE_RANGE);
-                            }
-                            ui.label(num(rb.std_error));
-                            ui.label(format!(
-                                "{} to {}",
-                                num(rb.approximate.0),
-                                num(rb.approximate.1)
-                            ));
-                            ui.label(wording::calibration::interval(&rb.exact));
+        .on_hover_text("The interval holds the concentrations whose prediction band takes in the mean reading (Fieller's interval for a line); it may be lopsided or unbounded. Hover a row for the replicates, the mean reading, the standard error and the first-order interval x̂ ± t·SE.");
+    let warn = ui.visuals().warn_fg_color;
+    let limits = r.limits.as_ref().ok();
+    egui::Grid::new("unknowns").striped(true).show(ui, |ui| {
+        for h in ["sample", x, "interval"] {
+            ui.label(RichText::new(h).strong());
+        }
+        ui.end_row();
+        for (u, rb) in &r.unknowns {
+            ui.label(&u.name);
+            match rb {
+                Ok(rb) => {
+                    let detail = format!(
+                        "{} reading(s), mean {}; SE {}; first-order {} to {}",
+                        rb.replicates,
+                        num(rb.reading),
+                        num(rb.std_error),
+                        num(rb.approximate.0),
+                        num(rb.approximate.1)
+                    );
+                    let notes = wording::calibration::unknown_notes(rb, limits);
+                    let value = sig(rb.x, 4);
+                    let shown = if notes.is_empty() {
+                        ui.label(value)
+                    } else {
+                        ui.colored_label(warn, value)
+                    };
+                    shown.on_hover_text(format!("{}\n{detail}\n{}", num(rb.x), notes.join("\n")));
+                    let band = match rb.exact {
+                        Interval::Bounded { low, high } => {
+                            format!("{} to {}", sig(low, 4), sig(high, 4))
                         }
-                        Err(e) => {
-                            ui.label(u.readings.len().to_string());
-                            ui.colored_label(ui.visuals().warn_fg_color, e);
-                        }
-                    }
-                    ui.end_row();
+                        ref other => wording::calibration::interval(other),
+                    };
+                    ui.label(band)
+                        .on_hover_text(wording::calibration::interval(&rb.exact));
                 }
-            });
-        });
-    let outside: Vec<&str> = r
-        .unknowns
-        .iter()
-        .filter(|(_, rb)| rb.as_ref().is_ok_and(|rb| rb.outside_range))
-        .map(|(u, _)| u.name.as_str())
-        .collect();
-    if !outside.is_empty() {
-        ui.colored_label(
-            ui.visuals().warn_fg_color,
-            format!(
-                "{}: {}",
-                outside.join(", "),
-                wording::calibration::OUTSIDE_RANGE
-            ),
-        );
+                Err(e) => {
+                    ui.colored_label(warn, "—").on_hover_text(e.as_str());
+                    ui.colored_label(warn, e);
+                }
+            }
+            ui.end_row();
+        }
+    });
+    for (u, rb) in &r.unknowns {
+        if let Ok(rb) = rb {
+            for note in wording::calibration::unknown_notes(rb, limits) {
+                ui.colored_label(warn, format!("{}: {note}", u.name));
+            }
+        }
     }
 }
 
@@ -240,6 +241,9 @@ fn limits_ui(scene: &Scene<'_>, r: &CalibrationReport, ui: &mut egui::Ui) -> Act
                     wording::calibration::limits(o)
                 ));
             }
+            if let Some(note) = wording::calibration::limits_below_standards(l, r.range.0) {
+                ui.colored_label(ui.visuals().warn_fg_color, note);
+            }
             ui.weak(wording::calibration::LIMITS_CAUTION);
         }
         Err(e) => {
@@ -260,7 +264,7 @@ fn lack_of_fit_ui(r: &CalibrationReport, ui: &mut egui::Ui) {
     match &r.lack_of_fit {
         Ok(l) => {
             let text = format!(
-                "{} levels: F {} on {} and {} df, p {}",
+                "{} levels: F = {} ({} and {} df), p {}",
                 l.levels,
                 fixed(l.f, 3),
                 l.lack_of_fit_df,

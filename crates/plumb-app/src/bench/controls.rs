@@ -29,12 +29,15 @@ pub fn controls_ui(
         }
     });
     ui.horizontal_wrapped(|ui| {
-        out.push_some(overlays_ui(bench, ui));
-        if !data.groups.is_empty() {
+        // Two methods get their own lines (Passing–Bablok, Deming, identity) instead.
+        if bench.reading().mode != BenchMode::Agreement {
+            out.push_some(overlays_ui(bench, ui));
             ui.separator();
-            out.push_some(colour_ui(bench, data, ui));
         }
-        ui.separator();
+        if !data.groups.is_empty() {
+            out.push_some(colour_ui(bench, data, ui));
+            ui.separator();
+        }
         pointer_ui(mode, ui);
     });
     out

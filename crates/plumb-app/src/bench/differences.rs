@@ -3,7 +3,7 @@
 //! Linked to the other views and excludable like them.
 
 use eframe::egui::{self, Vec2};
-use egui_plot::{HLine, Line, LineStyle, PlotUi, Polygon};
+use egui_plot::{HLine, Line, LineStyle, PlotUi};
 use plumb_core::agreement::AgreementLimits;
 
 use super::view::{diagnostic_ui, Diagnostic};
@@ -12,7 +12,7 @@ use crate::action::Actions;
 use crate::palette;
 use crate::state::cloud::Cloud;
 
-const TIP: &str = "Each sample's difference between the methods against their mean. Solid: the mean difference (bias); dashed: the limits within which about 95% of differences fall; shaded: their confidence intervals; thin: the differences' trend with the level (a slope means a proportional difference). Hollow rings: excluded samples.";
+const TIP: &str = "Each sample's difference between the methods against their mean. Solid: the mean difference (bias); dashed: the limits within which about 95% of differences fall; the capped bars at the right: their confidence intervals; thin: the differences' trend with the level (a slope means a proportional difference). Hollow rings: excluded samples.";
 
 /// Draws the view (a spinner until the comparison is computed).
 pub fn differences_ui(
@@ -46,7 +46,17 @@ pub fn differences_ui(
         .and_then(|a| a.as_ref().ok())
         .and_then(|a| a.limits.as_ref().ok())
         .cloned();
-    diagnostic_ui(
+    let beyond = scene
+        .bench
+        .diagnostics()
+        .map(|d| beyond_text(scene, &d.lab_views.differences_beyond))
+        .unwrap_or_default();
+    let size = if beyond.is_empty() {
+        size
+    } else {
+        size - Vec2::new(0.0, 18.0)
+    };
+    let out = diagnostic_ui(
         scene,
         own,
         ui,
@@ -61,6 +71,38 @@ pub fn differences_ui(
                 agreement_guides(pu, cloud, l, v);
             }
         },
+    );
+    if !beyond.is_empty() {
+        ui.weak(beyond);
+    }
+    out
+}
+
+/// The excluded samples too far out to draw, by data row with their differences.
+fn beyond_text(scene: &Scene<'_>, beyond: &[(usize, f64)]) -> String {
+    if beyond.is_empty() {
+        return String::new();
+    }
+    let rows: Vec<String> = beyond
+        .iter()
+        .take(4)
+        .map(|&(e, d)| {
+            format!(
+                "row {} ({})",
+                scene.pair.rows[e],
+                plumb_report::text::sig(d, 3)
+            )
+        })
+        .collect();
+    let more = beyond.len().saturating_sub(4);
+    let tail = if more > 0 {
+        format!(" and {more} more")
+    } else {
+        String::new()
+    };
+    format!(
+        "excluded, far outside the view (difference): {}{tail}",
+        rows.join(", ")
     )
 }
 
@@ -69,12 +111,21 @@ fn agreement_guides(pu: &mut PlotUi<'_>, cloud: &Cloud, l: &AgreementLimits, v: 
     let Some(b) = cloud.bounds else { return };
     let (x0, x1) = (b.x_min, b.x_max);
     let c = palette::fit(v);
+    // Each interval as a capped bar just right of the points.
+    let (at, cap) = (x1 + 0.04 * (x1 - x0), 0.015 * (x1 - x0));
     for (lo, hi) in [l.bias_interval, l.lower_interval, l.upper_interval] {
-        let strip = vec![[x0, lo], [x1, lo], [x1, hi], [x0, hi]];
-        pu.polygon(
-            Polygon::new("interval", strip)
-                .fill_color(c.gamma_multiply(0.16))
-                .stroke(egui::Stroke::NONE)
+        let bar = vec![
+            [at - cap, lo],
+            [at + cap, lo],
+            [at, lo],
+            [at, hi],
+            [at - cap, hi],
+            [at + cap, hi],
+        ];
+        pu.line(
+            Line::new("interval", bar)
+                .color(c)
+                .width(2.5)
                 .allow_hover(false),
         );
     }

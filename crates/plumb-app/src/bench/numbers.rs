@@ -121,11 +121,21 @@ pub fn numbers_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> Ac
                 out.extend(super::agreement_numbers::agreement_ui(scene, ui));
                 ui.separator();
             }
-            match scene.bench.summary().unwrap_or_else(|| Err("no pair".into())) {
-                Ok(s) => model_ui(ui, scene, &s, hypothetical),
+            let summary = scene.bench.summary().unwrap_or_else(|| Err("no pair".into()));
+            let show_fit = |ui: &mut egui::Ui| match &summary {
+                Ok(s) => model_ui(ui, scene, s, hypothetical),
                 Err(e) => {
                     ui.colored_label(ui.visuals().error_fg_color, format!("no fit: {e}"));
                 }
+            };
+            if mode == BenchMode::Agreement {
+                // A least-squares fit of one method on the other measures association, not
+                // agreement: kept at hand, folded away.
+                egui::CollapsingHeader::new("Least-squares fit of y on x (association, not agreement)")
+                    .default_open(false)
+                    .show(ui, show_fit);
+            } else {
+                show_fit(ui);
             }
             if mode == BenchMode::Calibration {
                 ui.separator();
@@ -294,14 +304,14 @@ fn checks_ui(ui: &mut egui::Ui, scene: &Scene<'_>) -> Actions {
         ui.label(RichText::new("Checks of the residuals").strong());
         let label = ui.label("in order of:");
         let shown = match &order {
-            RowOrder::None => "—".to_string(),
+            RowOrder::None => "no sequence".to_string(),
             RowOrder::File => "file rows".to_string(),
             RowOrder::Column(c) => c.clone(),
         };
         egui::ComboBox::from_id_salt("check-order")
             .selected_text(shown)
             .show_ui(ui, |ui| {
-                ui.selectable_value(&mut order, RowOrder::None, "— (no sequence)");
+                ui.selectable_value(&mut order, RowOrder::None, "no sequence");
                 ui.selectable_value(&mut order, RowOrder::File, "file rows");
                 for c in scene.columns {
                     ui.selectable_value(&mut order, RowOrder::Column(c.clone()), c);

@@ -109,6 +109,10 @@ pub fn scatter_ui(
             plot = super::dense_bounds(plot, b);
         }
     }
+    if scene.bench.reading().mode == BenchMode::Agreement {
+        // Two methods on one scale: equal units on both axes, so a slope of 1 looks like one.
+        plot = plot.data_aspect(1.0);
+    }
     let visuals = ui.visuals().clone();
     let resp = plot.show(ui, |pu| draw(pu, scene, own, &marked, &visuals));
     let hovered = hovered_entry(

@@ -32,17 +32,31 @@ pub fn weightings_ui(
         ui.add_sized(size, egui::Spinner::new());
         return Actions::none();
     }
-    let width = (size.x / labels.len() as f32 - 6.0).max(120.0);
+    // Each panel keeps to its share of the width (item spacing included), so the last one is
+    // never pushed off the edge.
+    let gap = ui.spacing().item_spacing.x;
+    let n = labels.len() as f32;
+    let width = ((size.x - gap * (n - 1.0)) / n).floor().max(80.0);
     let panel = Vec2::new(width, size.y - 22.0);
+    let in_use = d
+        .and_then(|d| d.calibration.as_ref())
+        .and_then(|c| c.as_ref().ok())
+        .map(|c| c.weighting.clone())
+        .unwrap_or_default();
     let mut out = Actions::none();
     ui.horizontal(|ui| {
         for (k, label) in labels.iter().enumerate() {
             ui.vertical(|ui| {
-                ui.set_max_width(width);
+                ui.set_width(width);
+                let title = if *label == in_use {
+                    format!("{label} (in use)")
+                } else {
+                    label.clone()
+                };
                 let view = Diagnostic {
                     id: "weightings",
                     variant: k as u64 + 1,
-                    title: label,
+                    title: &title,
                     tip: TIP,
                     x_label: &x_label,
                     y_label: "√w · residual",

@@ -10,11 +10,17 @@ use super::diagnostics::Input;
 /// Standards spanning this ratio or more are drawn against log₁₀ x in the weightings' view.
 pub const LOG_AXIS_FROM: f64 = 50.0;
 
+/// Excluded points set aside from a view: `(entry, value)`.
+type Beyond = Vec<(usize, f64)>;
+
 /// The lab views' points.
 #[derive(Debug, Clone, Default)]
 pub struct LabViews {
-    /// Included pairs as (mean, difference), excluded ones as rings at their file values.
+    /// Included pairs as (mean, difference), excluded ones as rings at their current values.
     pub differences: Option<(Cloud, Cloud)>,
+    /// Excluded pairs whose difference lies far outside the included ones' (drawn, they would
+    /// squash the view): `(entry, difference)`, named under the view instead.
+    pub differences_beyond: Beyond,
     /// Each weighting's weighted residuals against x (or log₁₀ x), by label.
     pub weightings: Vec<(String, Cloud)>,
     /// Whether the weightings' x axis is log₁₀ of the standards.
@@ -29,7 +35,10 @@ pub fn lab_views(
 ) -> LabViews {
     let mut out = LabViews::default();
     if let Some(a) = agreement {
-        out.differences = differences(input, a);
+        if let Some((points, rings, beyond)) = differences(input, a) {
+            out.differences = Some((points, rings));
+            out.differences_beyond = beyond;
+        }
     }
     if let Some(c) = calibration {
         let (lo, hi) = c.range;
@@ -59,8 +68,9 @@ pub fn lab_views(
 }
 
 /// Included pairs as (mean, difference) by their data rows; excluded pairs of the bench at
-/// their current values, as rings.
-fn differences(input: &Input, a: &AgreementReport) -> Option<(Cloud, Cloud)> {
+/// their current values, as rings (those further from the included differences than their
+/// own spread are set aside to be named).
+fn differences(input: &Input, a: &AgreementReport) -> Option<(Cloud, Cloud, Beyond)> {
     let l = a.limits.as_ref().ok()?;
     let (mut pts, mut entries) = (Vec::new(), Vec::new());
     for (k, &row) in a.selection.rows.iter().enumerate() {
@@ -83,6 +93,14 @@ fn differences(input: &Input, a: &AgreementReport) -> Option<(Cloud, Cloud)> {
             Some(((m, d), i))
         })
         .collect();
-    let (rp, re): (Vec<_>, Vec<_>) = rings.into_iter().unzip();
-    Some((Cloud::new(pts, entries), Cloud::new(rp, re)))
+    let points = Cloud::new(pts, entries);
+    let (lo, hi) = points
+        .bounds
+        .map_or((f64::NEG_INFINITY, f64::INFINITY), |b| (b.y_min, b.y_max));
+    let span = (hi - lo).max(f64::MIN_POSITIVE);
+    let near = |d: f64| d >= lo - span && d <= hi + span;
+    let (kept, far): (Vec<_>, Vec<_>) = rings.into_iter().partition(|((_, d), _)| near(*d));
+    let (rp, re): (Vec<_>, Vec<_>) = kept.into_iter().unzip();
+    let beyond = far.into_iter().map(|((_, d), e)| (e, d)).collect();
+    Some((points, Cloud::new(rp, re), beyond))
 }

@@ -46,6 +46,9 @@ pub struct DetectionLimits {
     pub detection: f64,
     /// `LOQ = 10σ/|S|`.
     pub quantitation: f64,
+    /// Whether σ is the residual SD of one reading at the lowest standard of a weighted fit
+    /// (`σ̂/√w_low`) rather than the fit's σ̂ itself.
+    pub at_lowest_standard: bool,
 }
 
 /// The limits of detection and quantitation of a straight calibration line `y = a + Sx`:
@@ -76,6 +79,7 @@ pub fn detection_limits(
         SigmaSource::InterceptSe => fit.coefficients[0].std_error,
     };
     Ok(DetectionLimits {
+        at_lowest_standard: source == SigmaSource::ResidualSd && low_weight.is_some(),
         source,
         sigma,
         slope,

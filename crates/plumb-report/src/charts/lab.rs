@@ -26,7 +26,7 @@ pub struct DifferencesChart {
 }
 
 /// Differences against means: the bias (solid) and the limits (dashed) with their intervals
-/// as shaded strips, and the differences' trend on the level (thin).
+/// as capped bars at the right edge, and the differences' trend on the level (thin).
 pub fn differences_chart(data: &DifferencesChart, title: String) -> Result<Chart> {
     render("differences", title, data)
 }
@@ -38,6 +38,8 @@ impl Paint for DifferencesChart {
     ) -> std::result::Result<(), String> {
         root.fill(&WHITE).map_err(|e| e.to_string())?;
         let (x0, x1) = range(self.dots.iter().map(|d| d.x));
+        // Room at the right for the intervals' bars.
+        let (x0, x1) = (x0, x1 + 0.05 * (x1 - x0));
         let ends = [self.bias, self.lower, self.upper];
         let (y0, y1) = range(
             self.dots
@@ -53,12 +55,6 @@ impl Paint for DifferencesChart {
             "mean of the two methods",
             &self.y_label,
         )?;
-        let strip = |(_, lo, hi): (f64, f64, f64)| {
-            Rectangle::new([(x0, lo), (x1, hi)], FIT.mix(0.14).filled())
-        };
-        chart
-            .draw_series(ends.iter().map(|e| strip(*e)))
-            .map_err(|e| e.to_string())?;
         chart
             .draw_series(LineSeries::new(
                 [(x0, 0.0), (x1, 0.0)],
@@ -79,6 +75,21 @@ impl Paint for DifferencesChart {
                     5,
                     FIT.stroke_width(2),
                 ))
+                .map_err(|e| e.to_string())?;
+        }
+        // Each interval as a capped bar at the right edge.
+        let (at, cap) = (x1 - 0.025 * (x1 - x0), 0.01 * (x1 - x0));
+        for (_, lo, hi) in ends {
+            let bar = vec![
+                (at - cap, lo),
+                (at + cap, lo),
+                (at, lo),
+                (at, hi),
+                (at - cap, hi),
+                (at + cap, hi),
+            ];
+            chart
+                .draw_series(LineSeries::new(bar, FIT.stroke_width(2)))
                 .map_err(|e| e.to_string())?;
         }
         if let Some((a, b)) = self.trend {

@@ -101,6 +101,9 @@ pub enum LineKind {
     Kept,
     /// A reference line (the line of identity), thin and dashed in the guides' grey.
     Guide,
+    /// A second line of the same kind as the first (another method's line), dashed in the
+    /// level's colour so that it shows where it runs on top of a solid one.
+    Dashed(usize),
 }
 
 fn register_font() {
@@ -227,6 +230,11 @@ pub fn pair_chart(data: &PairChart<'_>, title: String) -> Result<Chart> {
     render("pair", title, data)
 }
 
+/// A pair chart under another file name (`STEM-NAME.svg`), for a second pair on the page.
+pub fn pair_chart_named(name: &'static str, data: &PairChart<'_>, title: String) -> Result<Chart> {
+    render(name, title, data)
+}
+
 impl Paint for PairChart<'_> {
     fn paint<DB: DrawingBackend>(
         &self,
@@ -304,6 +312,10 @@ fn lines_series<DB: DrawingBackend>(
             }
             LineKind::Kept => (KEPT, true),
             LineKind::Guide => (GUIDE, true),
+            LineKind::Dashed(k) => {
+                let (r, g, b) = group_rgb(k);
+                (RGBColor(r, g, b), true)
+            }
         };
         let style = colour.stroke_width(2);
         let legend = move |(x, y): (i32, i32)| PathElement::new(vec![(x, y), (x + 18, y)], style);

@@ -12,7 +12,7 @@ use plumb_data::analysis::{
 use super::page::Page;
 use super::ReportInput;
 use crate::charts::{
-    differences_chart, pair_chart, weightings_chart, Chart, ChartLine, DifferencesChart, Dot,
+    differences_chart, pair_chart_named, weightings_chart, Chart, ChartLine, DifferencesChart, Dot,
     LineKind, PairChart, WeightingPanel,
 };
 use crate::text::{csv, exact, fixed, html, num, p};
@@ -117,10 +117,10 @@ fn methods_figure(input: &ReportInput<'_>, a: &AgreementReport) -> Result<Chart>
         lines.push(ChartLine {
             label: "Deming".into(),
             points: along(d.fit.intercept, d.fit.slope),
-            kind: LineKind::Level(5),
+            kind: LineKind::Dashed(5),
         });
     }
-    let dots = xs
+    let mut dots: Vec<Dot> = xs
         .iter()
         .zip(a.test())
         .map(|(&x, &y)| Dot {
@@ -129,7 +129,17 @@ fn methods_figure(input: &ReportInput<'_>, a: &AgreementReport) -> Result<Chart>
             excluded: false,
         })
         .collect();
-    pair_chart(
+    if let (Ok(xc), Ok(yc)) = (input.table.numeric(reference), input.table.numeric(test)) {
+        dots.extend(a.selection.excluded.iter().filter_map(|&r| {
+            Some(Dot {
+                x: xc.get(r - 1).copied()??,
+                y: yc.get(r - 1).copied()??,
+                excluded: true,
+            })
+        }));
+    }
+    pair_chart_named(
+        "methods",
         &PairChart {
             x_label: reference,
             y_label: test,
@@ -147,16 +157,18 @@ fn differences_figure(
     l: &plumb_core::agreement::AgreementLimits,
 ) -> Result<Chart> {
     let percent = input.agreement.as_ref().is_some_and(|r| r.percent);
+    let mut dots: Vec<Dot> = l
+        .points
+        .iter()
+        .map(|&(x, y)| Dot {
+            x,
+            y,
+            excluded: false,
+        })
+        .collect();
+    dots.extend(excluded_differences(input, a, percent));
     let data = DifferencesChart {
-        dots: l
-            .points
-            .iter()
-            .map(|&(x, y)| Dot {
-                x,
-                y,
-                excluded: false,
-            })
-            .collect(),
+        dots,
         bias: (l.bias, l.bias_interval.0, l.bias_interval.1),
         lower: (l.lower, l.lower_interval.0, l.lower_interval.1),
         upper: (l.upper, l.upper_interval.0, l.upper_interval.1),
@@ -170,11 +182,42 @@ fn differences_figure(
     differences_chart(
         &data,
         format!(
-            "differences against the mean of the two methods ({} pairs): bias solid, limits of agreement dashed, their {}% intervals shaded",
+            "differences against the mean of the two methods ({} pairs): bias solid, limits of agreement dashed, their {}% intervals as bars at the right",
             a.selection.rows.len(),
             a.level * 100.0
         ),
     )
+}
+
+/// The excluded pairs at their file values, as hollow dots (mean, difference).
+fn excluded_differences(input: &ReportInput<'_>, a: &AgreementReport, percent: bool) -> Vec<Dot> {
+    let Some(req) = &input.agreement else {
+        return Vec::new();
+    };
+    let (Ok(x), Ok(y)) = (
+        input.table.numeric(&req.reference),
+        input.table.numeric(&req.test),
+    ) else {
+        return Vec::new();
+    };
+    a.selection
+        .excluded
+        .iter()
+        .filter_map(|&r| {
+            let (xi, yi) = (x.get(r - 1).copied()??, y.get(r - 1).copied()??);
+            let m = 0.5 * xi + 0.5 * yi;
+            let d = if percent {
+                (m != 0.0).then(|| 100.0 * (yi - xi) / m)?
+            } else {
+                yi - xi
+            };
+            Some(Dot {
+                x: m,
+                y: d,
+                excluded: true,
+            })
+        })
+        .collect()
 }
 
 impl Page<'_> {
@@ -225,8 +268,11 @@ impl Page<'_> {
         match &c.limits {
             Ok(l) => writeln!(
                 out,
-                "<p><b>Limits</b>: {}.</p><p class=\"small\">{}</p>",
+                "<p><b>Limits</b>: {}.</p><p class=\"small\">{} {}</p>",
                 html(&wording::calibration::limits(l)),
+                html(
+                    &wording::calibration::limits_below_standards(l, c.range.0).unwrap_or_default()
+                ),
                 html(wording::calibration::LIMITS_CAUTION)
             )?,
             Err(e) => writeln!(out, "<p><b>Limits</b>: {}</p>", html(e))?,
@@ -234,7 +280,7 @@ impl Page<'_> {
         match &c.lack_of_fit {
             Ok(l) => writeln!(
                 out,
-                "<p><b>Lack of fit</b> over {} levels: lack-of-fit SS {} on {} df against pure error {} on {} df; F {}, p {}.</p>",
+                "<p><b>Lack of fit</b> over {} levels: lack-of-fit SS {} ({} df) against pure error {} ({} df); F = {}, p {}.</p>",
                 l.levels,
                 num(l.lack_of_fit_ss),
                 l.lack_of_fit_df,
@@ -258,10 +304,11 @@ impl Page<'_> {
         for (u, rb) in &c.unknowns {
             match rb {
                 Ok(rb) => {
-                    let note = if rb.outside_range {
-                        format!(" ({})", wording::calibration::OUTSIDE_RANGE)
-                    } else {
+                    let notes = wording::calibration::unknown_notes(rb, c.limits.as_ref().ok());
+                    let note = if notes.is_empty() {
                         String::new()
+                    } else {
+                        format!(" ({})", notes.join("; "))
                     };
                     writeln!(
                         out,

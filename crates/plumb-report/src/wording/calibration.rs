@@ -1,7 +1,7 @@
 //! Sentences of a calibration: what an inverse-prediction interval is, and the caution that
 //! goes with detection limits.
 
-use plumb_core::calibration::{DetectionLimits, Interval};
+use plumb_core::calibration::{DetectionLimits, Interval, ReadBack};
 
 use crate::text::num;
 
@@ -31,14 +31,54 @@ pub fn interval(i: &Interval) -> String {
     }
 }
 
-/// `LOD 0.71, LOQ 2.15 (σ = residual standard deviation 0.0046, S = 0.0215)`.
+/// `detection 0.71, quantitation 2.15 (σ = residual standard deviation 0.0046, S = 0.0215)`;
+/// with a weighted fit the residual SD is said to be that of a reading at the lowest standard.
 pub fn limits(l: &DetectionLimits) -> String {
+    let source = if l.at_lowest_standard {
+        "residual standard deviation of a reading at the lowest standard (weighted fit)"
+    } else {
+        l.source.label()
+    };
     format!(
-        "detection {}, quantitation {} (σ = {} {}, S = {})",
+        "detection {}, quantitation {} (σ = {source} {}, S = {})",
         num(l.detection),
         num(l.quantitation),
-        l.source.label(),
         num(l.sigma),
         num(l.slope)
     )
+}
+
+/// Where an unknown's x̂ falls against the limits: below detection, below quantitation, or
+/// nowhere worth saying (`None`).
+pub fn against_limits(x: f64, l: &DetectionLimits) -> Option<&'static str> {
+    if x < l.detection {
+        Some("below the detection limit: report as not detected")
+    } else if x < l.quantitation {
+        Some("below the quantitation limit: detected, not quantified")
+    } else {
+        None
+    }
+}
+
+/// What to say about one unknown read back: an extrapolation, and where x̂ falls against the
+/// limits (when they are defined).
+pub fn unknown_notes(rb: &ReadBack, limits: Option<&DetectionLimits>) -> Vec<&'static str> {
+    let mut notes = Vec::new();
+    if rb.outside_range {
+        notes.push(OUTSIDE_RANGE);
+    }
+    if let Some(note) = limits.and_then(|l| against_limits(rb.x, l)) {
+        notes.push(note);
+    }
+    notes
+}
+
+/// A note when the limits lie below the lowest standard (they are then extrapolated).
+pub fn limits_below_standards(l: &DetectionLimits, lowest: f64) -> Option<String> {
+    (l.quantitation < lowest).then(|| {
+        format!(
+            "Both limits lie below the lowest standard ({}): they are extrapolated from the line; a standard near them would show whether they hold.",
+            num(lowest)
+        )
+    })
 }
