@@ -68,6 +68,10 @@ def main():
             got = run(plumb, [path, "--y", "y", "--x", "a", "--x", "b", "--x", "c"])["vif"]
             exog = np.column_stack([np.ones(n), X])
             bad = []
+            # One VIF per predictor, in order: an empty or short list must fail, not pass.
+            terms = [entry["term"] for entry in got]
+            if terms != ["a", "b", "c"]:
+                bad.append(f"expected a VIF for each of a, b, c; got {terms!r}")
             for j, entry in enumerate(got):
                 want = variance_inflation_factor(exog, j + 1)
                 if not close(entry["vif"], float(want), "vif"):

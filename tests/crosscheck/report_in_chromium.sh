@@ -26,12 +26,41 @@ errors = [l for l in open(log, errors="replace") if ":CONSOLE" in l]
 data = open(png, "rb").read()
 assert data[:8] == b"\x89PNG\r\n\x1a\n", "screenshot is not a PNG"
 w, h = struct.unpack(">II", data[16:24])
-# Decode the IDAT stream (8-bit RGB/RGBA, no interlace, as Chromium writes) to count colours.
+# Decode the IDAT stream (8-bit RGB or RGBA, no interlace, as Chromium writes): inflate, then
+# undo each scanline's filter (PNG spec, section 9: None, Sub, Up, Average, Paeth) so that the
+# colours counted are pixels, not filtered bytes.
+assert data[24] == 8 and data[25] in (2, 6) and data[28] == 0, "8-bit RGB(A), not interlaced"
+bpp = 3 if data[25] == 2 else 4
 idat = b"".join(data[i + 8:i + 8 + struct.unpack(">I", data[i:i + 4])[0]]
                 for i in range(8, len(data)) if data[i + 4:i + 8] == b"IDAT")
 raw = zlib.decompress(idat)
-colours = len(set(raw[k:k + 3] for k in range(1, min(len(raw), 4_000_000), 7)))
-print(f"chromium: screenshot {w}x{h}, about {colours} distinct colour samples, {len(errors)} console errors")
+stride = w * bpp
+prev = bytearray(stride)
+pixels = set()
+for row in range(h):
+    start = row * (stride + 1)
+    kind, line = raw[start], bytearray(raw[start + 1:start + 1 + stride])
+    if kind == 1:
+        for k in range(bpp, stride):
+            line[k] = (line[k] + line[k - bpp]) & 255
+    elif kind == 2:
+        line = bytearray((a + b) & 255 for a, b in zip(line, prev))
+    elif kind == 3:
+        for k in range(stride):
+            left = line[k - bpp] if k >= bpp else 0
+            line[k] = (line[k] + ((left + prev[k]) >> 1)) & 255
+    elif kind == 4:
+        for k in range(stride):
+            a = line[k - bpp] if k >= bpp else 0
+            b, c = prev[k], (prev[k - bpp] if k >= bpp else 0)
+            pa, pb, pc = abs(b - c), abs(a - c), abs(a + b - 2 * c)
+            pred = a if pa <= pb and pa <= pc else (b if pb <= pc else c)
+            line[k] = (line[k] + pred) & 255
+    if row % 4 == 0:
+        pixels.update(bytes(line[k:k + 3]) for k in range(0, stride, bpp * 3))
+    prev = line
+colours = len(pixels)
+print(f"chromium: screenshot {w}x{h}, {colours} distinct colours in the sampled pixels, {len(errors)} console errors")
 assert (w, h) == (1200, 1800), f"screenshot size {w}x{h}"
 assert colours > 50, "the page looks blank"
 assert not errors, "console errors:\n" + "".join(errors)

@@ -8,6 +8,26 @@ pub const NIST_DIR_VAR: &str = "PLUMB_NIST_DIR";
 /// Environment variable that turns a missing reference folder into a test failure (set by CI).
 pub const REQUIRE_VAR: &str = "PLUMB_REQUIRE_REFERENCE";
 
+/// Environment variable naming a file where skipped checks are listed, one per line
+/// (`scripts/check` sets it and counts them at the end, so a skip is never silent).
+pub const SKIP_LOG_VAR: &str = "PLUMB_SKIP_LOG";
+
+/// Says loudly that a check is skipped and why, and lists it in `$PLUMB_SKIP_LOG` when set.
+pub fn note_skip(what: &str) {
+    eprintln!("\n*** SKIPPED: {what} ***\n");
+    if let Some(path) = std::env::var_os(SKIP_LOG_VAR) {
+        use std::io::Write as _;
+        // A log that cannot be written leaves the loud message; the skip is still said.
+        if let Ok(mut f) = std::fs::OpenOptions::new()
+            .create(true)
+            .append(true)
+            .open(path)
+        {
+            let _ = writeln!(f, "{what}");
+        }
+    }
+}
+
 /// The NIST folder: `$PLUMB_NIST_DIR`, else `../shared/reference/nist-strd` beside the checkout.
 /// `None` (after a loud message) when absent and not required; panics when required.
 pub fn nist_dir() -> Option<PathBuf> {
@@ -24,10 +44,10 @@ pub fn nist_dir() -> Option<PathBuf> {
         "NIST StRD folder {} is missing and {REQUIRE_VAR} is set",
         dir.display()
     );
-    eprintln!(
-        "\n*** SKIPPED: NIST StRD folder {} not found; set {NIST_DIR_VAR} to run the reference checks ***\n",
+    note_skip(&format!(
+        "NIST StRD folder {} not found; set {NIST_DIR_VAR} to run the reference checks",
         dir.display()
-    );
+    ));
     None
 }
 

@@ -111,8 +111,11 @@ pub fn pair_cues(x: &[f64], y: &[f64]) -> Option<PairCues> {
 /// Pearson's chi-square test of independence on a k×k grid of quantile bins,
 /// `k = clamp(⌊√(n/5)⌋, 2, 6)` so that about five points are expected per cell:
 /// bin of a value = `⌊k·(rank − 1)/n⌋` (average ranks), `χ² = Σ(O − E)²/E` with `E` from the
-/// margins, `df = (k−1)²`, `p = Q(df/2, χ²/2)` (regularized upper incomplete gamma).
-/// `None` for fewer than 20 pairs.
+/// margins, `df = (r − 1)(c − 1)` over the r rows and c columns of the grid that hold any
+/// point (heavy ties can leave a bin empty; an empty row or column carries no information, as
+/// in scipy's `chi2_contingency` on the table without it), `p = Q(df/2, χ²/2)` (regularized
+/// upper incomplete gamma). `None` for fewer than 20 pairs, or when fewer than two rows or
+/// columns hold points (one variable takes a single value: nothing to test).
 pub fn grid_independence(x: &[f64], y: &[f64]) -> Option<(f64, usize, f64)> {
     let n = x.len();
     if n < 20 {
@@ -143,7 +146,12 @@ pub fn grid_independence(x: &[f64], y: &[f64]) -> Option<(f64, usize, f64)> {
             }
         }
     }
-    let df = (k - 1) * (k - 1);
+    let filled = |m: &[f64]| m.iter().filter(|&&v| v > 0.0).count();
+    let (r, c) = (filled(&rows), filled(&cols));
+    if r < 2 || c < 2 {
+        return None;
+    }
+    let df = (r - 1) * (c - 1);
     let p = if chi2 > 0.0 {
         statrs::function::gamma::gamma_ur(0.5 * df as f64, 0.5 * chi2)
     } else {
@@ -180,6 +188,20 @@ mod tests {
         let c = pair_cues(&x, &y).expect("defined");
         assert_eq!(c.most_influential, 12);
         assert!(c.driven_by_one_point, "{c:?}");
+    }
+
+    #[test]
+    fn an_empty_grid_margin_takes_its_degrees_of_freedom_with_it() {
+        // x takes three values (tied ranks put each in one bin of k = 6), y is spread: three
+        // rows of the grid hold points, so df = (3 − 1)(6 − 1) = 10 (by hand), not 25.
+        let x: Vec<f64> = (0..180).map(|i| f64::from(i % 3)).collect();
+        let y: Vec<f64> = (0..180).map(|i| f64::from((i * 37) % 180)).collect();
+        let (_, df, p) = grid_independence(&x, &y).expect("defined");
+        assert_eq!(df, 10);
+        assert!(p > 0.0 && p <= 1.0);
+        let flat = vec![1.0; 40];
+        let spread: Vec<f64> = (0..40).map(f64::from).collect();
+        assert_eq!(grid_independence(&flat, &spread), None, "nothing to test");
     }
 
     #[test]

@@ -54,6 +54,9 @@ fn cues(extras: &PairExtras) -> Option<Value> {
         "distance_correlation": c.distance_correlation.map(|d| d.0),
         "distance_correlation_p": c.distance_correlation.map(|d| d.1),
         "grid_independence_p": c.grid_independence.map(|g| g.2),
+        "grid_independence": c.grid_independence.map(|(chi2, df, p)| json!({
+            "chi_square": chi2, "df": df, "p_value": p,
+        })),
         "nonlinear": c.nonlinear,
         "most_influential_index": c.most_influential,
         "r_without_most_influential": c.r_without_most_influential,

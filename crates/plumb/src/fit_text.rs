@@ -59,7 +59,7 @@ fn write_z_units(out: &mut String, e: &PairExtras) -> std::fmt::Result {
             num(p.predict_low),
             num(p.predict_high)
         )?;
-        writeln!(out, "                       x is {} SDs from its mean; expected {} SDs on y (toward the mean by {})", fixed(a.z_x, 3), fixed(a.expected_z_y, 3), fixed(a.z_x - a.expected_z_y, 3))?;
+        writeln!(out, "                       x is {} SDs from its mean; expected {} SDs on y (toward the mean by {})", fixed(a.z_x, 3), fixed(a.expected_z_y, 3), fixed(a.z_x.abs() - a.expected_z_y.abs(), 3))?;
     }
     Ok(())
 }

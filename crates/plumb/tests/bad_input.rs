@@ -284,3 +284,51 @@ fn the_workbench_loader_answers_the_corpus_as_the_command_line_does() {
     }
     assert!(failures.is_empty(), "{}", failures.join("\n"));
 }
+
+/// The corpus files that load must also fit to the right numbers, not merely print an R²:
+/// slope and R² against a two-pass least-squares line computed here from the file's values
+/// (x shifted by an exact constant first, y scaled by an exact power of two, so nothing here
+/// loses digits to the files' offsets or magnitudes).
+#[test]
+fn the_files_that_load_fit_to_the_numbers_worked_here() {
+    for (name, shift, scale) in [
+        ("bom.csv", 0.0, 1.0),
+        ("near-max-values.csv", 0.0, 2f64.powi(-1000)),
+        ("tiny-spread.csv", 1.0, 1.0),
+        ("huge-offset.csv", 1e9, 1.0),
+    ] {
+        let path = corpus(name);
+        let text = std::fs::read_to_string(&path).expect("read");
+        let (x, y): (Vec<f64>, Vec<f64>) = text
+            .trim_start_matches('\u{feff}')
+            .lines()
+            .skip(1)
+            .filter(|l| !l.trim().is_empty())
+            .map(|l| {
+                let (a, b) = l.split_once(',').expect("two fields");
+                let a: f64 = a.trim().parse().expect("x");
+                let b: f64 = b.trim().parse().expect("y");
+                // Sterbenz: a − shift is exact for a within a factor 2 of shift.
+                (a - shift, b * scale)
+            })
+            .unzip();
+        let n = x.len() as f64;
+        let (mx, my) = (x.iter().sum::<f64>() / n, y.iter().sum::<f64>() / n);
+        let sxx: f64 = x.iter().map(|a| (a - mx).powi(2)).sum();
+        let sxy: f64 = x.iter().zip(&y).map(|(a, b)| (a - mx) * (b - my)).sum();
+        let syy: f64 = y.iter().map(|b| (b - my).powi(2)).sum();
+        let slope = sxy / sxx / scale;
+        let r2 = sxy * sxy / (sxx * syy);
+        let p = path.to_string_lossy().into_owned();
+        let (code, out, err) = run(&["fit", &p, "--y", "y", "--x", "x", "--format", "json"]);
+        assert_eq!(code, 0, "{name}: {err}");
+        let v: serde_json::Value = serde_json::from_str(&out).expect("json");
+        let got_slope = v["coefficients"][1]["estimate"].as_f64().expect("slope");
+        let got_r2 = v["r_squared"].as_f64().expect("R²");
+        assert!(
+            (got_slope / slope - 1.0).abs() < 1e-9,
+            "{name}: slope {got_slope} vs {slope}"
+        );
+        assert!((got_r2 - r2).abs() < 1e-9, "{name}: R² {got_r2} vs {r2}");
+    }
+}

@@ -41,6 +41,32 @@ fn demo(name: &str) -> String {
         .into_owned()
 }
 
+/// Columns `a` and `b` (0-based) of a comma-separated demo file with a header, read here
+/// without Plumbline's loader.
+fn columns_of(path: &str, a: usize, b: usize) -> (Vec<f64>, Vec<f64>) {
+    let text = std::fs::read_to_string(path).expect("demo file");
+    text.lines()
+        .skip(1)
+        .map(|l| {
+            let f: Vec<&str> = l.split(',').collect();
+            (
+                f[a].parse::<f64>().expect("number"),
+                f[b].parse::<f64>().expect("number"),
+            )
+        })
+        .unzip()
+}
+
+/// Mean and SD (n − 1) by the two-pass definition.
+fn mean_sd(v: &[f64]) -> (f64, f64) {
+    let n = v.len() as f64;
+    let m = v.iter().sum::<f64>() / n;
+    (
+        m,
+        (v.iter().map(|x| (x - m).powi(2)).sum::<f64>() / (n - 1.0)).sqrt(),
+    )
+}
+
 mod contract {
     //! Field names and shapes that later tools rely on.
     use super::*;
@@ -514,8 +540,45 @@ mod association_and_diagnostics {
                 && f("fitted") < f("mean_high")
                 && f("mean_high") < f("predict_high")
         );
-        let r = v["z_units"]["slope"].as_f64().expect("r");
-        assert!((f("expected_z_y") - r * f("z_x")).abs() < 1e-12);
+        // Independently of the code's z-units view: the means and SDs from the file itself,
+        // and the expected z of y from the fitted value at x = 35 (the least-squares line).
+        let (xs, ys) = columns_of(&demo("calibration-run.csv"), 1, 3);
+        let (mx, sx) = mean_sd(&xs);
+        let (my, sy) = mean_sd(&ys);
+        assert!((f("z_x") - (35.0 - mx) / sx).abs() < 1e-12);
+        assert!((f("expected_z_y") - (f("fitted") - my) / sy).abs() < 1e-9);
+    }
+
+    #[test]
+    fn a_falling_pair_shrinks_toward_the_mean_by_one_minus_its_size() {
+        // Species count falls with slope in the survey (r < 0): the share of a distance from
+        // the mean that vanishes is 1 − |r|, with r computed here from the file.
+        let survey = demo("field-survey.csv");
+        let (xs, ys) = columns_of(&survey, 7, 6);
+        let (mx, sx) = mean_sd(&xs);
+        let (my, sy) = mean_sd(&ys);
+        let n = xs.len() as f64;
+        let r = xs
+            .iter()
+            .zip(&ys)
+            .map(|(x, y)| (x - mx) * (y - my))
+            .sum::<f64>()
+            / ((n - 1.0) * sx * sy);
+        assert!(r < -0.2, "{r}");
+        let v = json(&plumb(&[
+            "fit",
+            &survey,
+            "--y",
+            "species_count",
+            "--x",
+            "slope_deg",
+            "--format",
+            "json",
+        ]));
+        let s = v["z_units"]["shrinkage_toward_mean"]
+            .as_f64()
+            .expect("shrinkage");
+        assert!((s - (1.0 - r.abs())).abs() < 1e-12, "{s} vs 1 − |{r}|");
     }
 
     #[test]
@@ -621,10 +684,29 @@ mod summary {
         ]);
         assert!(again.status.success(), "{}", stderr(&again));
         let read = |name: &str| std::fs::read(tmp.path().join(name)).expect(name);
-        assert_eq!(read("first-statistics.csv"), read("second-statistics.csv"));
-        assert_eq!(read("first-exclusions.csv"), read("second-exclusions.csv"));
-        assert_eq!(read("first-pair.svg"), read("second-pair.svg"));
-        let html = String::from_utf8(read("second.html")).expect("utf-8");
+        // Every companion file — CSVs, each chart's SVG and PNG — byte for byte.
+        let mut compared = 0;
+        for entry in std::fs::read_dir(tmp.path()).expect("dir") {
+            let name = entry
+                .expect("entry")
+                .file_name()
+                .to_string_lossy()
+                .into_owned();
+            if let Some(rest) = name.strip_prefix("first-") {
+                assert_eq!(read(&name), read(&format!("second-{rest}")), "{name}");
+                compared += 1;
+            }
+        }
+        assert_eq!(compared, 8, "two CSVs and three charts as SVG and PNG");
+        // The page too, but for its last line: the command that reproduces it names how it
+        // was made (the data file and flags, or the session).
+        let page = |name: &str| {
+            let html = String::from_utf8(read(name)).expect("utf-8");
+            let footer = html.find("<footer>").expect("a footer");
+            html[..footer].to_string()
+        };
+        assert_eq!(page("first.html"), page("second.html"));
+        let html = page("second.html");
         assert!(html.contains("decimal point slipped") && html.contains("no reason given"));
     }
 

@@ -24,7 +24,9 @@ fn have_xvfb() -> bool {
             std::env::var("PLUMB_REQUIRE_DISPLAY").as_deref() != Ok("1"),
             "xvfb-run is not installed and PLUMB_REQUIRE_DISPLAY=1"
         );
-        eprintln!("SKIPPED: xvfb-run not installed (apt-get install xvfb)");
+        plumb_tests::note_skip(
+            "the real-window tests: xvfb-run not installed (apt-get install xvfb)",
+        );
     }
     found
 }

@@ -120,7 +120,7 @@ pub fn views_of(
     Views {
         residual,
         residual_axis: axis,
-        leverage: cloud(|c| (c.leverage, c.studentized_internal)),
+        leverage: cloud(|c| (c.leverage, c.studentized_external)),
         quantile: quantile_cloud(cases, included),
         excluded_residuals,
         beyond: beyond.into_iter().map(|(i, (_, e))| (i, e)).collect(),

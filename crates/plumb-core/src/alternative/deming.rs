@@ -23,7 +23,8 @@ pub struct DemingFit {
 /// Deming regression with `λ = Var(error in y)/Var(error in x)` (λ = 1: orthogonal regression):
 /// `b = (s_yy − λs_xx + √((s_yy − λs_xx)² + 4λs_xy²)) / (2s_xy)`, `a = ȳ − b x̄`, with `s` the
 /// sums of squares and products about the means. Standard errors by the jackknife:
-/// `SE = √((n−1)/n · Σᵢ(θ₍ᵢ₎ − θ̄₍·₎)²)` over the n leave-one-out estimates θ₍ᵢ₎.
+/// `SE = √((n−1)/n · Σᵢ(θ₍ᵢ₎ − θ̄₍·₎)²)` over the n leave-one-out estimates θ₍ᵢ₎, each from the
+/// full sums downdated by one pair (O(n) in all; 100 000 pairs once took minutes of refits).
 ///
 /// # Errors
 /// Fewer than 3 pairs, constant x, uncorrelated data (`s_xy = 0`, slope undefined), or λ ≤ 0.
@@ -34,28 +35,16 @@ pub fn deming(x: &[f64], y: &[f64], lambda: f64) -> Result<DemingFit, Alternativ
             "Deming error-variance ratio {lambda} must be positive (1 means equal error in x and y)"
         )));
     }
-    let (slope, intercept) = line(x, y, lambda).ok_or_else(uncorrelated)?;
+    let sums = Sums::of(x, y);
+    let (slope, intercept) = sums.line(lambda).ok_or_else(uncorrelated)?;
     let n = x.len();
-    let mut loo = Vec::with_capacity(n);
-    let mut xs = Vec::with_capacity(n - 1);
-    let mut ys = Vec::with_capacity(n - 1);
-    for i in 0..n {
-        xs.clear();
-        ys.clear();
-        xs.extend(
-            x.iter()
-                .enumerate()
-                .filter(|(k, _)| *k != i)
-                .map(|(_, v)| *v),
-        );
-        ys.extend(
-            y.iter()
-                .enumerate()
-                .filter(|(k, _)| *k != i)
-                .map(|(_, v)| *v),
-        );
-        loo.push(line(&xs, &ys, lambda).ok_or_else(uncorrelated)?);
-    }
+    let loo = (0..n)
+        .map(|i| {
+            sums.without(x[i], y[i])
+                .line(lambda)
+                .ok_or_else(uncorrelated)
+        })
+        .collect::<Result<Vec<_>, _>>()?;
     let jackknife = |values: Vec<f64>| -> f64 {
         let nf = values.len() as f64;
         ((nf - 1.0) / nf * describe::sum_sq_dev(&values, None)).sqrt()
@@ -76,19 +65,59 @@ fn uncorrelated() -> AlternativeError {
     )
 }
 
-fn line(x: &[f64], y: &[f64], lambda: f64) -> Option<(f64, f64)> {
-    let (mx, my) = (describe::mean(x, None), describe::mean(y, None));
-    let sxx = describe::sum_sq_dev(x, None);
-    let syy = describe::sum_sq_dev(y, None);
-    let dx: Vec<f64> = x.iter().map(|v| v - mx).collect();
-    let dy: Vec<f64> = y.iter().map(|v| v - my).collect();
-    let sxy = crate::accurate::dot(&dx, &dy);
-    if sxy == 0.0 {
-        return None;
+/// The count, means and sums of squares and products about the means that a Deming line needs.
+#[derive(Debug, Clone, Copy)]
+struct Sums {
+    n: f64,
+    mx: f64,
+    my: f64,
+    sxx: f64,
+    syy: f64,
+    sxy: f64,
+}
+
+impl Sums {
+    /// Two passes: the means, then compensated sums about them.
+    fn of(x: &[f64], y: &[f64]) -> Self {
+        let (mx, my) = (describe::mean(x, None), describe::mean(y, None));
+        let dx: Vec<f64> = x.iter().map(|v| v - mx).collect();
+        let dy: Vec<f64> = y.iter().map(|v| v - my).collect();
+        Self {
+            n: x.len() as f64,
+            mx,
+            my,
+            sxx: describe::sum_sq_dev(x, None),
+            syy: describe::sum_sq_dev(y, None),
+            sxy: crate::accurate::dot(&dx, &dy),
+        }
     }
-    let d = syy - lambda * sxx;
-    let slope = (d + (d * d + 4.0 * lambda * sxy * sxy).sqrt()) / (2.0 * sxy);
-    Some((slope, my - slope * mx))
+
+    /// The same sums without the pair `(xi, yi)`, in O(1): with `d = xi − x̄`, `e = yi − ȳ`,
+    /// `x̄₍ᵢ₎ = x̄ − d/(n − 1)`, `s_xx₍ᵢ₎ = s_xx − d²·n/(n − 1)`, `s_xy₍ᵢ₎ = s_xy − d·e·n/(n − 1)`
+    /// (and likewise for y): the jackknife in O(n) instead of n refits.
+    fn without(&self, xi: f64, yi: f64) -> Self {
+        let (d, e) = (xi - self.mx, yi - self.my);
+        let n1 = self.n - 1.0;
+        let k = self.n / n1;
+        Self {
+            n: n1,
+            mx: self.mx - d / n1,
+            my: self.my - e / n1,
+            sxx: self.sxx - d * d * k,
+            syy: self.syy - e * e * k,
+            sxy: self.sxy - d * e * k,
+        }
+    }
+
+    /// The Deming line `(slope, intercept)`, `None` when `s_xy = 0`.
+    fn line(&self, lambda: f64) -> Option<(f64, f64)> {
+        if self.sxy == 0.0 {
+            return None;
+        }
+        let d = self.syy - lambda * self.sxx;
+        let slope = (d + (d * d + 4.0 * lambda * self.sxy * self.sxy).sqrt()) / (2.0 * self.sxy);
+        Some((slope, self.my - slope * self.mx))
+    }
 }
 
 #[cfg(test)]
@@ -131,6 +160,46 @@ mod tests {
             );
             assert!(f.slope_se > 0.0 && f.intercept_se > 0.0);
         }
+    }
+
+    #[test]
+    fn the_jackknife_by_downdating_equals_n_refits() {
+        // The O(n) leave-one-out sums against refitting each subset from scratch.
+        let x: Vec<f64> = (0..40)
+            .map(|i| 1000.0 + f64::from(i) * 0.37 + (f64::from(i) * 1.3).sin())
+            .collect();
+        let y: Vec<f64> = x
+            .iter()
+            .enumerate()
+            .map(|(i, v)| 2.0 + 1.05 * v + (i as f64 * 0.9).cos())
+            .collect();
+        let f = deming(&x, &y, 2.0).expect("defined");
+        let loo: Vec<(f64, f64)> = (0..x.len())
+            .map(|i| {
+                let keep = |v: &[f64]| -> Vec<f64> {
+                    v.iter()
+                        .enumerate()
+                        .filter(|(k, _)| *k != i)
+                        .map(|(_, a)| *a)
+                        .collect()
+                };
+                Sums::of(&keep(&x), &keep(&y)).line(2.0).expect("defined")
+            })
+            .collect();
+        let se = |v: Vec<f64>| {
+            let nf = v.len() as f64;
+            ((nf - 1.0) / nf * describe::sum_sq_dev(&v, None)).sqrt()
+        };
+        assert_relative_eq!(
+            f.slope_se,
+            se(loo.iter().map(|l| l.0).collect()),
+            max_relative = 1e-9
+        );
+        assert_relative_eq!(
+            f.intercept_se,
+            se(loo.iter().map(|l| l.1).collect()),
+            max_relative = 1e-9
+        );
     }
 
     #[test]

@@ -23,7 +23,8 @@ pub struct LoessFit {
 
 /// LOESS without robustness iterations: at each `x₀`, the `q = ⌈span·n⌉` nearest points get
 /// tricube weights `w = (1 − (d/d_max)³)³` (`d_max` the q-th smallest distance, widened by
-/// `span` when `span > 1`) and a weighted least-squares polynomial of `degree` is evaluated at `x₀`.
+/// `span` when `span > 1`) and a weighted least-squares polynomial of `degree` is evaluated at `x₀`;
+/// where fewer than `degree + 1` distinct x carry weight, the window's weighted mean is used.
 ///
 /// # Errors
 /// More than [`LOESS_MAX_N`] pairs, fewer than `degree + 2`, constant x, `span` not in (0, ∞) or giving fewer than
@@ -101,10 +102,25 @@ fn local_value(xs: &[f64], ys: &[f64], x0: f64, q: usize, span: f64, degree: u32
             }
         }
     }
+    // Too few distinct x with weight in the window for the local polynomial (fewer than its
+    // p terms): its system is singular, whatever rounding makes of it, so the weighted mean is
+    // used — decided by counting, not by whether a factorization happens to succeed (which
+    // would make the result change when x is merely rescaled).
+    let mut weighted_x: Vec<f64> = xs
+        .iter()
+        .zip(&dist)
+        .filter(|(_, w)| **w > 0.0)
+        .map(|(x, _)| *x)
+        .collect();
+    weighted_x.sort_by(f64::total_cmp);
+    weighted_x.dedup();
+    let mean = || xtwy[0] / xtwx[(0, 0)];
+    if weighted_x.len() < p {
+        return mean();
+    }
     match xtwx.clone().cholesky() {
         Some(ch) => ch.solve(&xtwy)[0],
-        // Too few distinct x in the window for the local polynomial: fall back to the weighted mean.
-        None => xtwy[0] / xtwx[(0, 0)],
+        None => mean(),
     }
 }
 
@@ -112,6 +128,24 @@ fn local_value(xs: &[f64], ys: &[f64], x0: f64, q: usize, span: f64, degree: u32
 mod tests {
     use super::*;
     use approx::assert_relative_eq;
+
+    #[test]
+    fn a_window_of_two_distinct_x_uses_the_weighted_mean_at_any_scale() {
+        // x on three values: at the ends a window of span 0.7 holds two distinct x, too few for
+        // a local quadratic. The value must not depend on the units of x (found by the
+        // cross-check: 0.3/0.7/1.1 and 3/7/11 once gave different answers).
+        let base = [0.3, 0.7, 1.1];
+        let x: Vec<f64> = (0..30).map(|i| base[i % 3]).collect();
+        let y: Vec<f64> = (0..30)
+            .map(|i| f64::from(i % 3) * 2.0 + ((i * 7) % 5) as f64 * 0.1)
+            .collect();
+        let tenfold: Vec<f64> = x.iter().map(|v| v * 10.0).collect();
+        let a = loess(&x, &y, 0.7, 2).expect("defined");
+        let b = loess(&tenfold, &y, 0.7, 2).expect("defined");
+        for (u, v) in a.fitted.iter().zip(&b.fitted) {
+            assert_relative_eq!(*u, *v, max_relative = 1e-12);
+        }
+    }
 
     #[test]
     fn reproduces_a_polynomial_of_its_own_degree() {

@@ -244,12 +244,10 @@ mod tests {
         )
         .expect("well-posed");
         assert_eq!(fit.r_squared_kind, RSquaredKind::Uncentered);
-        let tss: f64 = y.iter().map(|v| v * v).sum();
-        assert_relative_eq!(
-            fit.r_squared,
-            1.0 - fit.anova.ss_residual / tss,
-            max_relative = 1e-14
-        );
+        // By hand: b = Σxy/Σx² = 64/30, RSS = Σ(y − bx)² = 7/15, TSS = Σy² = 137, so
+        // R² = 1 − (7/15)/137 = 1 − 7/2055 (independent of the fit's own sums).
+        assert_relative_eq!(fit.anova.ss_residual, 7.0 / 15.0, max_relative = 1e-13);
+        assert_relative_eq!(fit.r_squared, 1.0 - 7.0 / 2055.0, max_relative = 1e-14);
         assert_eq!(fit.anova.df_model, 1);
     }
 

@@ -682,6 +682,11 @@ mod tests {
     use super::*;
     use proptest::prelude::*;
 
+    /// `|a − b| ≤ tol`, false when either is NaN.
+    fn within(a: f64, b: f64, tol: f64) -> bool {
+        (a - b).abs() <= tol
+    }
+
     fn close(a: f64, b: f64) -> bool {
         (a - b).abs() <= 1e-9 * a.abs().max(b.abs()) || (a - b).abs() < 1e-300
     }
@@ -702,7 +707,8 @@ mod tests {
                         (a.ci[j].0, b.ci[j].0),
                         (a.ci[j].1, b.ci[j].1),
                     ];
-                    if let Some((x, y)) = ends.iter().find(|(x, y)| (x - y).abs() > 1e-9 * scale) {
+                    // `within` is false for a NaN on either side: a disagreement, not a pass.
+                    if let Some((x, y)) = ends.iter().find(|(x, y)| !within(*x, *y, 1e-9 * scale)) {
                         return Err(format!(
                             "term {j}: live {x} vs fresh {y}\nlive {a:?}\nfresh {b:?}"
                         ));
@@ -712,7 +718,7 @@ mod tests {
                     (a.r_squared, b.r_squared),
                     (a.adj_r_squared, b.adj_r_squared),
                 ] {
-                    if (x - y).abs() > 1e-9 * x.abs().max(1.0) {
+                    if !within(x, y, 1e-9 * x.abs().max(1.0)) {
                         return Err(format!(
                             "R²: live {x} vs fresh {y}\nlive {a:?}\nfresh {b:?}"
                         ));
@@ -734,6 +740,31 @@ mod tests {
             (Err(_), Err(_)) => Ok(()),
             (a, b) => Err(format!("live {a:?} vs fresh {b:?}")),
         }
+    }
+
+    #[test]
+    fn a_nan_in_the_live_numbers_is_a_disagreement() {
+        // The comparison itself must catch a NaN (a `>` test lets it through).
+        let x: Vec<f64> = (0..12).map(f64::from).collect();
+        let y: Vec<f64> = x.iter().map(|v| 1.0 + 0.5 * v + (v * 0.7).sin()).collect();
+        let mut live = LiveFit::new(Design::linear(&[("x", &x)], true), y, FitOptions::default())
+            .expect("fits");
+        agrees_with_fresh_fit(&live).expect("agrees");
+        if let Ok(s) = &mut live.summary {
+            s.estimates[1] = f64::NAN;
+        }
+        assert!(
+            agrees_with_fresh_fit(&live).is_err(),
+            "a NaN estimate must not agree"
+        );
+        if let Ok(s) = &mut live.summary {
+            s.estimates[1] = 0.5;
+            s.r_squared = f64::NAN;
+        }
+        assert!(
+            agrees_with_fresh_fit(&live).is_err(),
+            "a NaN R² must not agree"
+        );
     }
 
     #[test]

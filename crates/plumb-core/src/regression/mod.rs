@@ -26,7 +26,7 @@ pub use compare::{
 pub use design::{polynomial_value, Design, Term, TermKind, MAX_DEGREE};
 pub use inference::{LinearFit, RSquaredKind};
 pub use influence::{
-    influence, normal_scores, CaseInfluence, InfluenceFlag, COOKS_FLAG_NUMERATOR,
+    cooks_contour, influence, normal_scores, CaseInfluence, InfluenceFlag, COOKS_FLAG_NUMERATOR,
     LEVERAGE_FLAG_FACTOR, STUDENTIZED_FLAG,
 };
 pub use line::{

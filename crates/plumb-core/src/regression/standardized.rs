@@ -37,14 +37,18 @@ impl StandardizedView {
 
     /// Expected y for a given x: `ŷ − ȳ = r·(s_y/s_x)·(x − x̄)`. For two measurements of the same
     /// quantity (before/after, test–retest) a unit that sits `z` SDs from the mean on the first
-    /// is expected at `r·z` SDs on the second: the rest, `(1 − r)·z`, is regression toward the mean.
+    /// is expected at `r·z` SDs on the second: the rest of its distance, `(1 − |r|)·|z|`, is
+    /// regression toward the mean (with a negative r the expected side flips, the distance still
+    /// shrinks by |r|).
     pub fn expected_y(&self, x: f64) -> f64 {
         self.mean_y + self.slope * self.sd_y / self.sd_x * (x - self.mean_x)
     }
 
-    /// The share of a unit's distance from the mean (in SDs) expected to vanish on remeasurement: `1 − r`.
+    /// The share of a unit's distance from the mean (in SDs) expected to vanish on
+    /// remeasurement: `1 − |r|` (for r = −0.5 a unit 2 SDs out is expected 1 SD out on the
+    /// other side: half its distance gone, not 1.5 times it).
     pub fn shrinkage(&self) -> f64 {
-        1.0 - self.slope
+        1.0 - self.slope.abs()
     }
 }
 
@@ -73,5 +77,26 @@ mod tests {
             max_relative = 1e-13
         );
         assert!(v.shrinkage() > 0.0 && v.shrinkage() < 1.0);
+    }
+
+    #[test]
+    fn a_negative_r_shrinks_the_distance_by_its_size() {
+        // y falls as x rises: r = Sxy/√(SxxSyy) = −2/√(2·3) = −0.816… (by hand, and recomputed
+        // below from the definitions). The old 1 − r would claim a shrinkage of 1.8.
+        let x = [-1.0, 0.0, 1.0, 0.0];
+        let y = [1.0, 1.0, -1.0, 1.0];
+        let n = 4.0;
+        let (mx, my) = (x.iter().sum::<f64>() / n, y.iter().sum::<f64>() / n);
+        let sxy: f64 = x.iter().zip(&y).map(|(a, b)| (a - mx) * (b - my)).sum();
+        let sxx: f64 = x.iter().map(|a| (a - mx).powi(2)).sum();
+        let syy: f64 = y.iter().map(|b| (b - my).powi(2)).sum();
+        let r = sxy / (sxx * syy).sqrt();
+        assert!(r < 0.0);
+        let v = StandardizedView::of(&x, &y).expect("defined");
+        assert_relative_eq!(v.shrinkage(), 1.0 - r.abs(), max_relative = 1e-14);
+        assert!(
+            v.shrinkage() < 1.0,
+            "a distance cannot shrink by more than all of it"
+        );
     }
 }

@@ -9,6 +9,7 @@ use plotters::coord::Shift;
 use plotters::prelude::*;
 
 use crate::{ReportError, Result};
+use plumb_core::regression::cooks_contour;
 
 mod lab;
 
@@ -361,36 +362,113 @@ impl Paint for Residuals<'_> {
 }
 
 /// Leverage against externally studentized residuals, with the curves where Cook's distance
-/// equals 0.5 and 1 for a model of `p` terms: `r = ±√(D·p·(1 − h)/h)`.
-pub fn leverage_chart(dots: &[Dot], p: usize, title: String) -> Result<Chart> {
-    render("leverage", title, &Leverage(dots, p))
+/// equals 0.5 and 1 for a model of `p` terms and `df` residual degrees of freedom, on that
+/// kind of residual ([`cooks_contour`]).
+pub fn leverage_chart(dots: &[Dot], p: usize, df: usize, title: String) -> Result<Chart> {
+    render("leverage", title, &Leverage(dots, p, df))
 }
 
-struct Leverage<'a>(&'a [Dot], usize);
+/// One branch (`sign` ±1) of the curve of Cook's distance `d` over leverages in `(0, h_max]`.
+pub fn cook_contour_points(d: f64, p: usize, df: usize, h_max: f64, sign: f64) -> Vec<(f64, f64)> {
+    (1..=60)
+        .filter_map(|k| {
+            let h = h_max * f64::from(k) / 60.0;
+            cooks_contour(d, p, df, h).map(|t| (h, sign * t))
+        })
+        .collect()
+}
+
+struct Leverage<'a>(&'a [Dot], usize, usize);
 
 impl Paint for Leverage<'_> {
     fn paint<DB: DrawingBackend>(
         &self,
         root: &DrawingArea<DB, Shift>,
     ) -> std::result::Result<(), String> {
-        let (dots, p) = (self.0, self.1);
+        let (dots, p, df) = (self.0, self.1, self.2);
         root.fill(&WHITE).map_err(|e| e.to_string())?;
         let (_, x1) = range(dots.iter().map(|d| d.x));
-        let x1 = x1.min(1.0);
+        let x1 = x1.min(0.999);
         let (y0, y1) = range(dots.iter().map(|d| d.y).chain([-3.5, 3.5]));
-        let mut chart = axes(root, 0.0..x1, y0..y1, "leverage", "studentized residual")?;
+        let mut chart = axes(
+            root,
+            0.0..x1,
+            y0..y1,
+            "leverage",
+            "studentized residual (external)",
+        )?;
         for d in [0.5, 1.0] {
             for sign in [-1.0, 1.0] {
-                let pts = (1..=60).map(|k| {
-                    let h = x1 * f64::from(k) / 60.0;
-                    (h, sign * (d * p as f64 * (1.0 - h) / h).sqrt())
-                });
-                let pts: Vec<(f64, f64)> = pts.filter(|(_, r)| *r >= y0 && *r <= y1).collect();
+                let pts: Vec<(f64, f64)> = cook_contour_points(d, p, df, x1, sign)
+                    .into_iter()
+                    .filter(|(_, r)| *r >= y0 && *r <= y1)
+                    .collect();
                 chart
                     .draw_series(DashedLineSeries::new(pts, 4, 4, GUIDE.stroke_width(1)))
                     .map_err(|e| e.to_string())?;
             }
         }
         dots_series(&mut chart, dots)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use plumb_core::regression::{fit, influence, Design, FitOptions};
+
+    #[test]
+    fn a_case_with_cooks_distance_one_lies_on_the_drawn_curve() {
+        // Nine rows on a line and a tenth far out in x and off the line; its y is tuned (by
+        // bisection on y) until its Cook's distance is 1. The summary's curve for D = 1 at that
+        // case's leverage must pass through the residual the chart plots for it.
+        let x: Vec<f64> = (1..=9).map(f64::from).chain([30.0]).collect();
+        let base: Vec<f64> = x
+            .iter()
+            .enumerate()
+            .map(|(i, v)| {
+                2.0 + 0.5 * v + [0.3, -0.2, 0.1, -0.4, 0.25, -0.1, 0.35, -0.3, 0.05, 0.0][i]
+            })
+            .collect();
+        let d = Design::linear(&[("x", &x)], true);
+        let case_at = |y_last: f64| {
+            let mut y = base.clone();
+            y[9] = y_last;
+            let f = fit(&d, &y, None, &FitOptions::default()).expect("fits");
+            influence(&d, None, &f, &FitOptions::default()).expect("influence")[9].clone()
+        };
+        let (mut lo, mut hi) = (17.0, 40.0);
+        for _ in 0..200 {
+            let mid = 0.5 * (lo + hi);
+            if case_at(mid).cooks_distance < 1.0 {
+                lo = mid;
+            } else {
+                hi = mid;
+            }
+        }
+        let c = case_at(0.5 * (lo + hi));
+        assert!(
+            (c.cooks_distance - 1.0).abs() < 1e-9,
+            "{}",
+            c.cooks_distance
+        );
+        // The curve's points at leverages h_k = h_max·k/60: choose h_max so that one of them
+        // is the case's own leverage.
+        let curve = cook_contour_points(1.0, 2, 8, c.leverage * 60.0 / 45.0, 1.0);
+        let (h, t) = curve
+            .iter()
+            .copied()
+            .min_by(|a, b| {
+                (a.0 - c.leverage)
+                    .abs()
+                    .total_cmp(&(b.0 - c.leverage).abs())
+            })
+            .expect("points");
+        assert!((h - c.leverage).abs() < 1e-12);
+        assert!(
+            (t - c.studentized_external).abs() < 1e-6 * t,
+            "{t} vs {}",
+            c.studentized_external
+        );
     }
 }

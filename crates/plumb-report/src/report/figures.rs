@@ -38,6 +38,7 @@ pub fn draw(
         leverage_chart(
             &leverage,
             outcome.fit.coefficients.len(),
+            outcome.fit.anova.df_residual,
             "leverage against studentized residual (dashed: Cook's distance 0.5 and 1)".into(),
         )?,
     ])

@@ -79,7 +79,14 @@ impl Page<'_> {
         writeln!(
             out,
             "<dt>file</dt><dd>{}</dd><dt>SHA-256</dt><dd class=\"mono\">{}</dd>",
-            html(&input.table.source().display().to_string()),
+            // The file's full path, however it was named (`../data/x.csv` or through a
+            // session): one file, one name on the page.
+            html(
+                &std::fs::canonicalize(input.table.source())
+                    .unwrap_or_else(|_| input.table.source().to_path_buf())
+                    .display()
+                    .to_string()
+            ),
             html(&input.sha256)
         )?;
         writeln!(out, "<dt>rows</dt><dd>{} in the file; {} used; {} dropped for gaps; {} excluded by the analyst</dd></dl>", input.table.n_rows(), self.outcome.fit.n, sel.dropped.len(), sel.excluded.len())?;

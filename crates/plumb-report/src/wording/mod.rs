@@ -77,7 +77,7 @@ pub fn pair_cues(c: &PairCues, row_of: impl Fn(usize) -> Option<usize>) -> Vec<C
     } else if c.nonlinear {
         let dcor = c.distance_correlation.map_or_else(
             || "not computed".into(),
-            |(d, dp)| format!("{} (permutation p {})", num(d), p(dp)),
+            |(d, dp)| format!("{} ({})", num(d), permutation_p(dp)),
         );
         let grid = c.grid_independence.map_or_else(|| "—".into(), |g| p(g.2));
         cues.push(Cue {
@@ -99,6 +99,22 @@ pub fn pair_cues(c: &PairCues, row_of: impl Fn(usize) -> Option<usize>) -> Vec<C
         });
     }
     cues
+}
+
+/// A permutation p-value of distance correlation: `permutation p 0.0350`, or at its floor
+/// `1/(R + 1)` (no permuted value reached the observed one) `permutation p ≤ 0.005 (199
+/// permutations)`, since no smaller p can come out of R permutations.
+pub fn permutation_p(v: f64) -> String {
+    let r = plumb_core::association::DISTANCE_PERMUTATIONS;
+    let floor = 1.0 / (r + 1) as f64;
+    if v <= floor * (1.0 + 1e-12) {
+        format!(
+            "permutation p ≤ {} ({r} permutations)",
+            p(floor).trim_end_matches('0')
+        )
+    } else {
+        format!("permutation p {}", p(v))
+    }
 }
 
 /// The cue of a pair that moves together mostly through a shared drift along the row order.
@@ -142,6 +158,11 @@ mod tests {
         assert_eq!(said.len(), 1);
         assert_eq!(said[0].kind, CueKind::HiddenDependence);
         assert!(said[0].text.contains("permutation p"));
+        assert_eq!(
+            permutation_p(0.005),
+            "permutation p ≤ 0.005 (199 permutations)"
+        );
+        assert_eq!(permutation_p(0.035), "permutation p 0.0350");
         assert!(line(&FIT_CAUTIONS).starts_with(NOT_CAUSATION));
     }
 }
