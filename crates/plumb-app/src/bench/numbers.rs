@@ -276,8 +276,12 @@ fn cues_ui(ui: &mut egui::Ui, scene: &Scene<'_>, diag: Option<&Diagnostics>) -> 
         ui.colored_label(warn, cue.text);
     }
     if let Some((dc, dp)) = c.distance_correlation {
-        ui.label(format!("distance correlation {} ({})", num(dc), p(dp)))
-            .on_hover_text("Detects any kind of dependence, not only linear");
+        ui.label(format!(
+            "distance correlation {} ({})",
+            num(dc),
+            wording::permutation_p(dp)
+        ))
+        .on_hover_text("Detects any kind of dependence, not only linear");
     }
     for step in d.extras.iter().flat_map(|e| e.degrees.iter().skip(1)) {
         if let Some(cmp) = &step.versus_previous {
