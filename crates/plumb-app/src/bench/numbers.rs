@@ -375,7 +375,7 @@ fn influence_table_ui(ui: &mut egui::Ui, scene: &Scene<'_>, own: &mut BenchUi) -
         SortKey::Residual => &d.top[2],
     };
     egui::Grid::new("influence").striped(true).show(ui, |ui| {
-        for h in ["row", "leverage", "stud. resid.", "Cook's D", "flags", ""] {
+        for h in ["row", "leverage", "studentized (external)", "Cook's D", "flags", ""] {
             ui.label(RichText::new(h).strong());
         }
         ui.end_row();

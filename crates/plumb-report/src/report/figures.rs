@@ -39,7 +39,7 @@ pub fn draw(
             &leverage,
             outcome.fit.coefficients.len(),
             outcome.fit.anova.df_residual,
-            "leverage against studentized residual (dashed: Cook's distance 0.5 and 1)".into(),
+            "leverage against externally studentized residual (dashed: where Cook's distance is 0.5 and 1)".into(),
         )?,
     ])
 }
