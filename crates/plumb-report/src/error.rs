@@ -44,6 +44,14 @@ pub enum ReportError {
     /// Loading the data failed.
     #[error(transparent)]
     Data(#[from] plumb_data::DataError),
+    /// A write that would destroy an input or write somewhere it should not.
+    #[error("{}: refusing to write: {why}", path.display())]
+    Unsafe {
+        /// The output.
+        path: PathBuf,
+        /// What it would overwrite, and what to do.
+        why: String,
+    },
     /// A chart could not be drawn.
     #[error("drawing chart '{chart}' failed: {detail}")]
     Chart {

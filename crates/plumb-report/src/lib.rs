@@ -9,6 +9,7 @@ mod atomic;
 pub mod charts;
 mod effects;
 mod error;
+pub mod guard;
 pub mod report;
 mod session;
 pub mod text;

@@ -467,11 +467,23 @@ impl Session {
         }
     }
 
-    /// Saves atomically (see [`write_atomically`]), as pretty-printed JSON.
+    /// Saves atomically (see [`write_atomically`]), as pretty-printed JSON, after checking that
+    /// `path` is not the session's own data file (by any name) nor anything but a regular file.
     ///
     /// # Errors
-    /// [`ReportError::Io`].
+    /// [`ReportError::Unsafe`] or [`ReportError::Io`].
     pub fn save(&self, path: &Path) -> Result<()> {
+        let data = self.data_path(path);
+        crate::guard::check_outputs(
+            &[crate::guard::Output {
+                path,
+                what: "the session",
+            }],
+            &[crate::guard::Input {
+                path: &data,
+                what: "the session's data file",
+            }],
+        )?;
         let mut text = serde_json::to_string_pretty(self).expect("a session always serializes");
         text.push('\n');
         write_atomically(path, text.as_bytes())

@@ -3,7 +3,8 @@
 use std::path::Path;
 
 use plumb_data::analysis::{AgreementRequest, CalibrationRequest, FitRequest, RowOrder};
-use plumb_report::report::{build, write, ReportInput};
+use plumb_report::guard::{check_outputs, Input, Output};
+use plumb_report::report::{build, planned_files, write, ReportInput};
 use plumb_report::{
     file_sha256, AgreementSpec, CalibrationSpec, DataSource, Exclusion, LoadSpec, ModelSpec,
     Session, SCHEMA_VERSION,
@@ -39,8 +40,38 @@ pub fn run(args: &ReportArgs) -> anyhow::Result<String> {
         agreement: lab.agreement.clone(),
         order: lab.order.clone(),
     })?;
-    let files = write(&report, &args.output)?;
-    if let (Some(path), false) = (&args.save_session, is_session) {
+    // Every name about to be written, against every file read, before anything is written.
+    let mut inputs = vec![Input {
+        path: table.source(),
+        what: "the data file",
+    }];
+    if is_session {
+        inputs.push(Input {
+            path: input,
+            what: "the session",
+        });
+    }
+    if let Some(u) = &args.unknowns.unknowns_file {
+        inputs.push(Input {
+            path: u,
+            what: "the unknowns' file",
+        });
+    }
+    let planned = planned_files(&report, &args.output);
+    let mut outputs: Vec<Output<'_>> = planned
+        .iter()
+        .map(|(path, what)| Output { path, what })
+        .collect();
+    let session_out = args.save_session.as_deref().filter(|_| !is_session);
+    if let Some(path) = session_out {
+        outputs.push(Output {
+            path,
+            what: "the session (--save-session)",
+        });
+    }
+    check_outputs(&outputs, &inputs)?;
+    let files = write(&report, &args.output, &inputs)?;
+    if let Some(path) = session_out {
         let mut session = session_of(args, &table, &request, &exclusions, sha256);
         session.comparison = comparison.as_ref().map(ModelSpec::from_request);
         lab.put_in(&mut session);
@@ -166,10 +197,11 @@ fn from_session(path: &Path, output: &Path, allow_outside: bool) -> anyhow::Resu
         .transpose()
         .map_err(|e| anyhow::anyhow!("{}: the kept model: {e}", path.display()))?;
     let lab = LabAsked::of_session(&session, &request);
+    let word = |p: &Path| plumb_report::text::shell_word(&p.display().to_string());
     let reproduce = format!(
         "plumb report {} -o {}{}",
-        path.display(),
-        output.display(),
+        word(path),
+        word(output),
         if allow_outside {
             " --allow-outside-data"
         } else {

@@ -224,3 +224,28 @@ fn questions_are_answered_by_actions() {
     assert!(wb.one_pass().and_then(|o| o.r_squared_line()).is_some());
     assert!(wb.loaded().is_none(), "the table was not loaded");
 }
+
+/// The workbench never writes onto its data file, whatever name it is reached by: a session
+/// saved to a hard link of the data file, a summary written to one, both refused with a
+/// message on the status line, and the data file unchanged.
+#[test]
+fn saving_or_writing_onto_the_data_file_is_refused() {
+    let config = tempfile::tempdir().expect("config");
+    let work = tempfile::tempdir().expect("work");
+    let data = work.path().join("calibration-run.csv");
+    std::fs::copy(demo("calibration-run.csv"), &data).expect("copy");
+    let before = std::fs::read(&data).expect("read");
+    let mut wb = calibration(config.path(), &data);
+    let session_link = work.path().join("alias.plumb");
+    std::fs::hard_link(&data, &session_link).expect("link");
+    wb.apply(Action::SaveSessionTo(session_link.clone()));
+    let status = wb.status().expect("a message");
+    assert!(status.error && status.text.contains("would overwrite"), "{status:?}");
+    let summary_link = work.path().join("alias.html");
+    std::fs::hard_link(&data, &summary_link).expect("link");
+    wb.apply(Action::ExportSummaryTo(summary_link));
+    let status = wb.status().expect("a message");
+    assert!(status.error && status.text.contains("would overwrite"), "{status:?}");
+    assert_eq!(std::fs::read(&data).expect("read"), before, "the data file is unchanged");
+    assert!(!work.path().join("alias-statistics.csv").exists(), "nothing half-written");
+}

@@ -332,3 +332,152 @@ fn the_files_that_load_fit_to_the_numbers_worked_here() {
         assert!((got_r2 - r2).abs() < 1e-9, "{name}: R² {got_r2} vs {r2}");
     }
 }
+
+/// No output may replace an input, whatever it is called: the summary onto its data file, a
+/// companion CSV named like the data file, the session onto the data file or onto itself, an
+/// output through a hard or symbolic link to the data, onto a device. Each is refused with a
+/// message naming the output and exit 1, nothing is written, and every input is unchanged.
+#[test]
+fn outputs_never_overwrite_inputs() {
+    let dir = tempfile::tempdir().expect("dir");
+    let d = |name: &str| dir.path().join(name).to_string_lossy().into_owned();
+    let table = "x,y\n1,2.1\n2,3.9\n3,6.2\n4,7.8\n5,10.1\n";
+    for name in ["data.csv", "s-statistics.csv", "d3.csv"] {
+        std::fs::write(d(name), table).expect("write");
+    }
+    std::fs::hard_link(d("data.csv"), d("hard.html")).expect("hard link");
+    #[cfg(unix)]
+    std::os::unix::fs::symlink(d("data.csv"), d("soft.html")).expect("symlink");
+    let (code, _, err) = run(&[
+        "report",
+        &d("data.csv"),
+        "--y",
+        "y",
+        "--x",
+        "x",
+        "-o",
+        &d("keep.html"),
+        "--save-session",
+        &d("keep.plumb"),
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let snapshot = |names: &[&str]| -> Vec<Vec<u8>> {
+        names
+            .iter()
+            .map(|n| std::fs::read(d(n)).expect("read"))
+            .collect()
+    };
+    let inputs = ["data.csv", "s-statistics.csv", "d3.csv", "keep.plumb"];
+    let before = snapshot(&inputs);
+    let cases: Vec<(Vec<String>, &str)> = vec![
+        (
+            vec![
+                "report".into(),
+                d("data.csv"),
+                "--y".into(),
+                "y".into(),
+                "--x".into(),
+                "x".into(),
+                "-o".into(),
+                d("data.csv"),
+            ],
+            "would overwrite the data file",
+        ),
+        (
+            vec![
+                "report".into(),
+                d("s-statistics.csv"),
+                "--y".into(),
+                "y".into(),
+                "--x".into(),
+                "x".into(),
+                "-o".into(),
+                d("s.html"),
+            ],
+            "would overwrite the data file",
+        ),
+        (
+            vec![
+                "report".into(),
+                d("d3.csv"),
+                "--y".into(),
+                "y".into(),
+                "--x".into(),
+                "x".into(),
+                "-o".into(),
+                d("r.html"),
+                "--save-session".into(),
+                d("d3.csv"),
+            ],
+            "would overwrite the data file",
+        ),
+        (
+            vec![
+                "report".into(),
+                d("keep.plumb"),
+                "-o".into(),
+                d("keep.plumb"),
+                "--allow-outside-data".into(),
+            ],
+            "would overwrite the session",
+        ),
+        (
+            vec![
+                "report".into(),
+                d("data.csv"),
+                "--y".into(),
+                "y".into(),
+                "--x".into(),
+                "x".into(),
+                "-o".into(),
+                d("hard.html"),
+            ],
+            "would overwrite the data file",
+        ),
+        #[cfg(unix)]
+        (
+            vec![
+                "report".into(),
+                d("data.csv"),
+                "--y".into(),
+                "y".into(),
+                "--x".into(),
+                "x".into(),
+                "-o".into(),
+                d("soft.html"),
+            ],
+            "symbolic link",
+        ),
+        #[cfg(unix)]
+        (
+            vec![
+                "report".into(),
+                d("data.csv"),
+                "--y".into(),
+                "y".into(),
+                "--x".into(),
+                "x".into(),
+                "-o".into(),
+                "/dev/null".into(),
+            ],
+            "not a regular file",
+        ),
+    ];
+    for (args, expect) in cases {
+        let args: Vec<&str> = args.iter().map(String::as_str).collect();
+        let (code, _, err) = run(&args);
+        assert_eq!(code, 1, "{args:?}: {err}");
+        assert!(
+            err.contains("refusing to write") && err.contains(expect),
+            "{args:?}: {err}"
+        );
+        assert!(!err.contains("panicked"));
+    }
+    assert_eq!(snapshot(&inputs), before, "every input is unchanged");
+    for never in ["s.html", "r.html", "data-statistics.csv"] {
+        assert!(
+            !dir.path().join(never).exists(),
+            "{never} was written before the refusal"
+        );
+    }
+}

@@ -238,7 +238,19 @@ impl State {
             order: self.bench.reading().order.clone(),
         })
         .map_err(|e| WorkbenchError::Report(e.to_string()))?;
-        let files = write(&report, out).map_err(|e| WorkbenchError::Report(e.to_string()))?;
+        let data_path = loaded.dataset.path();
+        let mut inputs = vec![plumb_report::guard::Input {
+            path: &data_path,
+            what: "the data file",
+        }];
+        if let Some(s) = &self.doc.session_path {
+            inputs.push(plumb_report::guard::Input {
+                path: s,
+                what: "the session",
+            });
+        }
+        let files =
+            write(&report, out, &inputs).map_err(|e| WorkbenchError::Report(e.to_string()))?;
         if Some(&session_file) != self.doc.session_path.as_ref() || self.has_unsaved_changes() {
             self.save_session_to(&session_file);
         }

@@ -16,6 +16,7 @@ use plumb_data::Table;
 
 use crate::charts::Chart;
 use crate::effects::exclusion_effects;
+use crate::guard::{check_outputs, Input, Output};
 use crate::session::Exclusion;
 use crate::{write_atomically, Result};
 
@@ -132,26 +133,61 @@ pub fn build(input: &ReportInput<'_>) -> Result<Report> {
 }
 
 /// Writes the summary: `out` (HTML) and, beside it, `STEM-statistics.csv`,
-/// `STEM-exclusions.csv`, `STEM-CHART.svg` and `STEM-CHART.png`. Every file is written atomically.
+/// `STEM-exclusions.csv`, `STEM-CHART.svg` and `STEM-CHART.png`. Before anything is written,
+/// every one of these names is checked against `inputs` (the data file, a session) and each
+/// other ([`crate::guard::check_outputs`]); then every file is written atomically.
 ///
 /// # Errors
-/// [`crate::ReportError::Io`] for the first file that could not be written.
-pub fn write(report: &Report, out: &Path) -> Result<Vec<PathBuf>> {
+/// [`crate::ReportError::Unsafe`] when a name would overwrite an input (nothing is written
+/// then), or [`crate::ReportError::Io`] for the first file that could not be written.
+pub fn write(report: &Report, out: &Path, inputs: &[Input<'_>]) -> Result<Vec<PathBuf>> {
+    let files = files_of(report, out);
+    let outputs: Vec<Output<'_>> = files
+        .iter()
+        .map(|(path, _, what)| Output { path, what })
+        .collect();
+    check_outputs(&outputs, inputs)?;
+    for (path, bytes, _) in &files {
+        write_atomically(path, bytes)?;
+    }
+    Ok(files.into_iter().map(|f| f.0).collect())
+}
+
+/// The names a summary at `out` would write, with what each is (to check them beside other
+/// outputs, such as a session saved with it, before anything is written).
+pub fn planned_files(report: &Report, out: &Path) -> Vec<(PathBuf, &'static str)> {
+    files_of(report, out)
+        .into_iter()
+        .map(|(path, _, what)| (path, what))
+        .collect()
+}
+
+/// The files of a summary at `out`: path, bytes, and what the file is.
+fn files_of<'r>(report: &'r Report, out: &Path) -> Vec<(PathBuf, &'r [u8], &'static str)> {
     let stem = out
         .file_stem()
         .map_or_else(|| "summary".into(), |s| s.to_string_lossy().into_owned());
     let beside = |suffix: &str| out.with_file_name(format!("{stem}-{suffix}"));
-    let mut files: Vec<(PathBuf, &[u8])> = vec![
-        (out.to_path_buf(), report.html.as_bytes()),
-        (beside("statistics.csv"), report.statistics_csv.as_bytes()),
-        (beside("exclusions.csv"), report.exclusions_csv.as_bytes()),
+    let mut files: Vec<(PathBuf, &[u8], &str)> = vec![
+        (out.to_path_buf(), report.html.as_bytes(), "the summary"),
+        (
+            beside("statistics.csv"),
+            report.statistics_csv.as_bytes(),
+            "the summary's statistics CSV",
+        ),
+        (
+            beside("exclusions.csv"),
+            report.exclusions_csv.as_bytes(),
+            "the summary's exclusions CSV",
+        ),
     ];
     for c in &report.charts {
-        files.push((beside(&format!("{}.svg", c.name)), c.svg.as_bytes()));
-        files.push((beside(&format!("{}.png", c.name)), &c.png));
+        files.push((
+            beside(&format!("{}.svg", c.name)),
+            c.svg.as_bytes(),
+            "a chart",
+        ));
+        files.push((beside(&format!("{}.png", c.name)), &c.png, "a chart"));
     }
-    for (path, bytes) in &files {
-        write_atomically(path, bytes)?;
-    }
-    Ok(files.into_iter().map(|f| f.0).collect())
+    files
 }
