@@ -45,7 +45,12 @@ fn the_same_inputs_give_byte_identical_files() {
     let b = build(&input_for(&table)).expect("builds");
     assert_eq!(a, b);
     let dir = tempfile::tempdir().expect("tempdir");
-    let files = write(&a, &dir.path().join("summary.html")).expect("writes");
+    let data = jar();
+    let inputs = [plumb_report::guard::Input {
+        path: &data,
+        what: "the data file",
+    }];
+    let files = write(&a, &dir.path().join("summary.html"), &inputs).expect("writes");
     assert_eq!(files.len(), 9, "html, two csv, three charts as svg and png");
     for f in &files {
         assert!(
