@@ -99,11 +99,20 @@ fn apply_after_load(wb: &mut Workbench, launch: Launch) {
     }
     wb.apply(Action::SetOverlays(launch.overlays));
     wb.apply(Action::ColourBy(launch.colour_by.clone()));
-    if !launch.exclude.is_empty() {
+    let n_rows = wb.loaded().map_or(0, |l| l.dataset.table.n_rows());
+    let (rows, missing): (Vec<usize>, Vec<usize>) =
+        launch.exclude.iter().partition(|&&r| r <= n_rows);
+    if !rows.is_empty() {
         wb.apply(Action::Exclude {
-            rows: launch.exclude.clone(),
+            rows,
             reason: Some("excluded from the command line (--exclude)".into()),
         });
+    }
+    if let (Some(first), Some(last)) = (missing.first(), missing.last()) {
+        wb.apply(Action::fail(format!(
+            "--exclude named {} row(s) the file does not have ({first} to {last}); it has {n_rows} data rows",
+            missing.len()
+        )));
     }
     if let Some(s) = launch.screen {
         wb.apply(Action::Show(s));

@@ -23,11 +23,12 @@ pub fn run(args: &AgreeArgs) -> anyhow::Result<String> {
     let request = AgreementRequest {
         reference: args.reference.clone(),
         test: args.test.clone(),
-        exclude: args
-            .exclude
-            .as_ref()
-            .map(|r| r.0.clone())
-            .unwrap_or_default(),
+        exclude: match &args.exclude {
+            Some(r) => r
+                .within(table.n_rows(), table.source())
+                .map_err(anyhow::Error::msg)?,
+            None => Vec::new(),
+        },
         level: args.level,
         deming_ratio: args.deming_ratio,
         percent: args.percent,

@@ -17,7 +17,7 @@ use crate::cli::{CalibrateArgs, Format};
 
 pub fn run(args: &CalibrateArgs) -> anyhow::Result<String> {
     let table = plumb_data::load(&args.load.data, &args.load.options())?;
-    let request = args.model.request();
+    let request = args.model.request(&table).map_err(anyhow::Error::msg)?;
     calibration_ready(&request)?;
     let unknowns = args.unknowns.read(&request.y, &args.load.options())?;
     let analysis = analyze(&table, &request, Wanted::default())?;

@@ -446,8 +446,18 @@ impl OrderArgs {
 }
 
 impl ModelArgs {
-    /// The analysis request these arguments describe.
-    pub fn request(&self) -> plumb_data::analysis::FitRequest {
+    /// The analysis request these arguments describe, on `table`.
+    ///
+    /// # Errors
+    /// Excluded rows the table does not have.
+    pub fn request(
+        &self,
+        table: &plumb_data::Table,
+    ) -> Result<plumb_data::analysis::FitRequest, String> {
+        let exclude = match &self.exclude {
+            Some(r) => r.within(table.n_rows(), table.source())?,
+            None => Vec::new(),
+        };
         let mut request = plumb_data::analysis::FitRequest {
             y: self.y.clone(),
             x: self.x.clone(),
@@ -455,16 +465,12 @@ impl ModelArgs {
             degree: self.degree,
             weights: self.weights.clone(),
             weight_rule: self.weighting,
-            exclude: self
-                .exclude
-                .as_ref()
-                .map(|r| r.0.clone())
-                .unwrap_or_default(),
+            exclude,
             level: self.level,
             ..plumb_data::analysis::FitRequest::default()
         };
         self.terms.apply(&mut request);
-        request
+        Ok(request)
     }
 }
 
@@ -765,9 +771,51 @@ pub struct StreamArgs {
     pub format: Format,
 }
 
-/// Row numbers given on the command line.
+/// Row numbers given on the command line, as ranges (`3,17,40-42` is three ranges): never
+/// expanded beyond the table they name, so `1-18446744073709551615` costs nothing.
 #[derive(Debug, Clone, PartialEq, Eq)]
-pub struct RowList(pub Vec<usize>);
+pub struct RowList(pub Vec<(usize, usize)>);
+
+impl RowList {
+    /// The rows, in order, of a table of `n_rows` data rows.
+    ///
+    /// # Errors
+    /// Rows the table does not have, named as ranges with the table's size (nothing is
+    /// expanded past the table).
+    pub fn within(&self, n_rows: usize, file: &std::path::Path) -> Result<Vec<usize>, String> {
+        let beyond: Vec<String> = self
+            .0
+            .iter()
+            .filter(|(_, b)| *b > n_rows)
+            .map(|&(a, b)| {
+                let a = a.max(n_rows + 1);
+                if a == b {
+                    a.to_string()
+                } else {
+                    format!("{a}-{b}")
+                }
+            })
+            .collect();
+        if !beyond.is_empty() {
+            return Err(format!(
+                "{}: --exclude names rows the file does not have ({}): it has {n_rows} data rows, numbered from 1 after the header",
+                file.display(),
+                beyond.join(", ")
+            ));
+        }
+        Ok(self.0.iter().flat_map(|&(a, b)| a..=b).collect())
+    }
+
+    /// The rows, in order, at most `cap` of them (`None` past that): for the workbench, whose
+    /// table is not loaded yet when the arguments are read.
+    pub fn first(&self, cap: usize) -> Option<Vec<usize>> {
+        let total = self
+            .0
+            .iter()
+            .try_fold(0usize, |n, &(a, b)| n.checked_add(b - a + 1))?;
+        (total <= cap).then(|| self.0.iter().flat_map(|&(a, b)| a..=b).collect())
+    }
+}
 
 fn parse_rows(s: &str) -> Result<RowList, String> {
     let mut rows = Vec::new();
@@ -783,14 +831,14 @@ fn parse_rows(s: &str) -> Result<RowList, String> {
                 if a == 0 || b < a {
                     return Err(bad());
                 }
-                rows.extend(a..=b);
+                rows.push((a, b));
             }
             None => {
                 let r: usize = part.parse().map_err(|_| bad())?;
                 if r == 0 {
                     return Err(bad());
                 }
-                rows.push(r);
+                rows.push((r, r));
             }
         }
     }
@@ -835,9 +883,24 @@ mod tests {
 
     #[test]
     fn row_lists_take_numbers_and_ranges() {
+        let rows = parse_rows("3, 17,40-42").expect("parses");
         assert_eq!(
-            parse_rows("3, 17,40-42"),
-            Ok(RowList(vec![3, 17, 40, 41, 42]))
+            rows.within(50, std::path::Path::new("f.csv")),
+            Ok(vec![3, 17, 40, 41, 42])
+        );
+        // A range to the end of the addressable rows costs nothing and says what is missing.
+        let huge = parse_rows("1-18446744073709551615").expect("parses");
+        let e = huge
+            .within(48, std::path::Path::new("f.csv"))
+            .expect_err("beyond");
+        assert!(
+            e.contains("49-18446744073709551615") && e.contains("48 data rows"),
+            "{e}"
+        );
+        assert_eq!(huge.first(1000), None);
+        assert_eq!(
+            parse_rows("2,5-6").expect("parses").first(10),
+            Some(vec![2, 5, 6])
         );
         assert!(parse_rows("0").is_err());
         assert!(parse_rows("5-2").is_err());

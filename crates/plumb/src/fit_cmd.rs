@@ -7,7 +7,7 @@ use crate::{fit_json, fit_text};
 
 pub fn run(args: &FitArgs) -> anyhow::Result<String> {
     let table = plumb_data::load(&args.load.data, &args.load.options())?;
-    let request = args.model.request();
+    let request = args.model.request(&table).map_err(anyhow::Error::msg)?;
     if (args.robust.is_some() || args.loess.is_some()) && request.x.len() != 1 {
         anyhow::bail!(
             "--robust and --loess draw a line for one predictor; {} were given",

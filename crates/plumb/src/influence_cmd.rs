@@ -52,7 +52,8 @@ pub fn run(args: &InfluenceArgs) -> anyhow::Result<String> {
         extras: None,
         ..Wanted::default()
     };
-    let outcome = analyze(&table, &args.model.request(), wanted)?;
+    let request = args.model.request(&table).map_err(anyhow::Error::msg)?;
+    let outcome = analyze(&table, &request, wanted)?;
     let cases = &outcome.cases;
     let n = outcome.fit.n;
     let p = outcome.fit.coefficients.len();

@@ -14,6 +14,7 @@ mod fit_text;
 mod influence_cmd;
 mod model_json;
 mod model_text;
+mod output;
 mod report_cmd;
 mod stream_cmd;
 
@@ -35,12 +36,15 @@ fn main() -> ExitCode {
         None => workbench(args.workbench),
     };
     match result {
-        Ok(text) => {
-            print!("{text}");
-            ExitCode::SUCCESS
-        }
+        Ok(text) => match output::print(&text) {
+            Ok(()) => ExitCode::SUCCESS,
+            Err(e) => {
+                eprintln!("plumb: writing the output failed: {e}");
+                ExitCode::FAILURE
+            }
+        },
         Err(e) => {
-            eprintln!("plumb: {e}");
+            eprintln!("plumb: {}", output::safe(&e.to_string()));
             ExitCode::FAILURE
         }
     }
@@ -70,13 +74,25 @@ fn reading_of(a: &cli::WorkbenchArgs) -> anyhow::Result<Option<plumb_app::Readin
     Ok(Some(reading))
 }
 
+/// Most rows `--exclude` may name when the workbench opens.
+const MAX_LAUNCH_EXCLUSIONS: usize = 10_000_000;
+
 /// Opens the desktop workbench.
 fn workbench(a: cli::WorkbenchArgs) -> anyhow::Result<String> {
     let reading = reading_of(&a)?;
     let launch = plumb_app::Launch {
         data: a.data,
         pair: a.y.zip(a.x),
-        exclude: a.exclude.map(|r| r.0).unwrap_or_default(),
+        exclude: match &a.exclude {
+            // The table is not read yet: a list longer than any table the workbench holds is a
+            // mistake, said now rather than expanded.
+            Some(r) => r.first(MAX_LAUNCH_EXCLUSIONS).ok_or_else(|| {
+                anyhow::anyhow!(
+                    "--exclude names more than {MAX_LAUNCH_EXCLUSIONS} rows; name the rows to leave out, not a range past the end of the file"
+                )
+            })?,
+            None => Vec::new(),
+        },
         screen: a.screen.map(|s| match s {
             cli::ScreenArg::Columns => plumb_app::Screen::Columns,
             cli::ScreenArg::Map => plumb_app::Screen::Map,

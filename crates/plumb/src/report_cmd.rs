@@ -234,11 +234,12 @@ fn from_data(args: &ReportArgs) -> anyhow::Result<Prepared> {
         );
     }
     let table = plumb_data::load(&args.load.data, &args.load.options())?;
-    let exclude = args
-        .exclude
-        .as_ref()
-        .map(|r| r.0.clone())
-        .unwrap_or_default();
+    let exclude = match &args.exclude {
+        Some(r) => r
+            .within(table.n_rows(), table.source())
+            .map_err(anyhow::Error::msg)?,
+        None => Vec::new(),
+    };
     if let Some((row, _)) = args.reasons.iter().find(|(r, _)| !exclude.contains(r)) {
         anyhow::bail!(
             "--reason names row {row}, which is not in --exclude; add it there or drop the reason"

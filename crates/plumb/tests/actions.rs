@@ -240,12 +240,25 @@ fn saving_or_writing_onto_the_data_file_is_refused() {
     std::fs::hard_link(&data, &session_link).expect("link");
     wb.apply(Action::SaveSessionTo(session_link.clone()));
     let status = wb.status().expect("a message");
-    assert!(status.error && status.text.contains("would overwrite"), "{status:?}");
+    assert!(
+        status.error && status.text.contains("would overwrite"),
+        "{status:?}"
+    );
     let summary_link = work.path().join("alias.html");
     std::fs::hard_link(&data, &summary_link).expect("link");
     wb.apply(Action::ExportSummaryTo(summary_link));
     let status = wb.status().expect("a message");
-    assert!(status.error && status.text.contains("would overwrite"), "{status:?}");
-    assert_eq!(std::fs::read(&data).expect("read"), before, "the data file is unchanged");
-    assert!(!work.path().join("alias-statistics.csv").exists(), "nothing half-written");
+    assert!(
+        status.error && status.text.contains("would overwrite"),
+        "{status:?}"
+    );
+    assert_eq!(
+        std::fs::read(&data).expect("read"),
+        before,
+        "the data file is unchanged"
+    );
+    assert!(
+        !work.path().join("alias-statistics.csv").exists(),
+        "nothing half-written"
+    );
 }
