@@ -31,13 +31,17 @@ pub struct Effect {
 fn headline(table: &Table, request: &FitRequest, exclude: Vec<usize>) -> Result<Headline> {
     let mut r = request.clone();
     r.exclude = exclude;
-    let fit = analyze(table, &r, Wanted::default())?.fit;
-    let slope = fit
-        .coefficients
+    let a = analyze(table, &r, Wanted::default())?;
+    // The first term that is not the intercept, by kind (a column may be called `intercept`).
+    let j = a
+        .rows
+        .design
+        .terms()
         .iter()
-        .find(|c| c.term != "intercept")
-        .or(fit.coefficients.first())
-        .expect("a fit has at least one term");
+        .position(|t| t.kind != plumb_core::regression::TermKind::Intercept)
+        .unwrap_or(0);
+    let fit = a.fit;
+    let slope = &fit.coefficients[j];
     Ok(Headline {
         r_squared: fit.r_squared,
         slope: slope.estimate,

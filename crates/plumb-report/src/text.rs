@@ -17,11 +17,20 @@ pub fn html(s: &str) -> String {
 }
 
 /// A CSV field: quoted (with doubled quotes) when it holds a comma, quote or line break.
+/// A text field that a spreadsheet would take for a formula (it starts with `=`, `+`, `-`,
+/// `@`, a tab or a carriage return: a column name or a reason such as `=HYPERLINK(…)`) gets a
+/// leading `'`, as spreadsheet-export practice neutralizes it; numbers are written with
+/// [`exact`], never through here.
 pub fn csv(s: &str) -> String {
-    if s.contains([',', '"', '\n', '\r']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
+    let neutral = if s.starts_with(['=', '+', '-', '@', '\t', '\r']) {
+        format!("'{s}")
     } else {
         s.to_string()
+    };
+    if neutral.contains([',', '"', '\n', '\r']) {
+        format!("\"{}\"", neutral.replace('"', "\"\""))
+    } else {
+        neutral
     }
 }
 
@@ -93,7 +102,7 @@ pub fn equation_terms(fit: &plumb_core::regression::LinearFit) -> Vec<String> {
         .iter()
         .enumerate()
         .map(|(j, c)| {
-            if c.term == "intercept" {
+            if j == 0 && plumb_core::regression::is_intercept_name(&c.term) {
                 format!("b{j}")
             } else {
                 format!("b{j}·{}", c.term)
@@ -126,6 +135,14 @@ mod tests {
         );
         assert_eq!(csv("plain"), "plain");
         assert_eq!(csv("a,\"b\""), "\"a,\"\"b\"\"\"");
+        // Cells a spreadsheet would run as formulas are neutralized.
+        assert_eq!(csv("=HYPERLINK(\"x\")"), "\"'=HYPERLINK(\"\"x\"\")\"");
+        for live in ["+1+1", "-2+3", "@SUM(A1)", "\tx"] {
+            assert!(
+                csv(live).trim_start_matches('"').starts_with('\''),
+                "{live}"
+            );
+        }
         assert_eq!(exact(0.1), "0.1");
         assert_eq!(exact(1.8e-21), "1.8e-21");
         assert_eq!(exact(f64::NAN), "");

@@ -273,3 +273,29 @@ fn a_method_comparison_summary_carries_both_lines_and_the_limits() {
         plumb_report::text::exact(pb.slope)
     )));
 }
+
+#[test]
+fn a_column_called_intercept_is_not_taken_for_the_intercept() {
+    // y = 1 + 2x with x in a column named "intercept": the exclusion log's slope is 2-ish
+    // (the column's coefficient), not the intercept's 1.
+    let dir = tempfile::tempdir().expect("dir");
+    let path = dir.path().join("ic.csv");
+    std::fs::write(&path, "intercept,y\n1,3.1\n2,4.9\n3,7.2\n4,8.8\n5,11.1\n").expect("write");
+    let table = load(&path, &LoadOptions::default()).expect("loads");
+    let request = FitRequest {
+        y: "y".into(),
+        x: vec!["intercept".into()],
+        exclude: vec![2],
+        ..FitRequest::default()
+    };
+    let effects = plumb_report::exclusion_effects(&table, &request).expect("effects");
+    // Least squares on rows 1, 3, 4, 5 by hand: x̄ = 3.25, ȳ = 7.55, Sxy = 17.25, Sxx = 8.75.
+    assert!(
+        (effects[0].after.slope - 17.25 / 8.75).abs() < 1e-12,
+        "{:?}",
+        effects[0]
+    );
+    let a = analyze(&table, &request, Wanted::default()).expect("fits");
+    let names: Vec<&str> = a.fit.coefficients.iter().map(|c| c.term.as_str()).collect();
+    assert_eq!(names, ["(intercept)", "intercept"]);
+}

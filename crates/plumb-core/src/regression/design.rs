@@ -2,6 +2,16 @@
 
 use crate::{CoreError, Result};
 
+/// The intercept term's name.
+pub const INTERCEPT: &str = "intercept";
+/// Its name when a column is itself called `intercept`.
+pub const INTERCEPT_ALIAS: &str = "(intercept)";
+
+/// Whether a coefficient's name is the intercept's (either form).
+pub fn is_intercept_name(name: &str) -> bool {
+    name == INTERCEPT || name == INTERCEPT_ALIAS
+}
+
 /// Highest polynomial degree accepted for a single predictor.
 pub const MAX_DEGREE: u32 = 10;
 
@@ -71,7 +81,7 @@ impl Design {
         if intercept {
             design.push(
                 Term {
-                    name: "intercept".into(),
+                    name: INTERCEPT.into(),
                     kind: TermKind::Intercept,
                 },
                 vec![1.0; n_rows],
@@ -133,12 +143,26 @@ impl Design {
     ///
     /// # Panics
     /// If the column's length is not the design's row count (a caller bug).
-    pub fn push(&mut self, term: Term, column: Vec<f64>) {
+    /// Term names stay unambiguous: a column called `intercept` renames the intercept term to
+    /// `(intercept)`, and any other repeated name gets a `′` until it is unique.
+    pub fn push(&mut self, mut term: Term, column: Vec<f64>) {
         assert_eq!(
             column.len(),
             self.n_rows,
             "column length differs from design"
         );
+        if term.kind != TermKind::Intercept && term.name == INTERCEPT {
+            if let Some(i) = self
+                .terms
+                .iter_mut()
+                .find(|t| t.kind == TermKind::Intercept)
+            {
+                i.name = INTERCEPT_ALIAS.into();
+            }
+        }
+        while self.terms.iter().any(|t| t.name == term.name) {
+            term.name.push('′');
+        }
         self.terms.push(term);
         self.columns.push(column);
     }
@@ -198,6 +222,15 @@ mod tests {
         let d = Design::polynomial("dose", &[1.0, 2.0, 3.0], 3, true).expect("valid degree");
         let names: Vec<_> = d.terms().iter().map(|t| t.name.as_str()).collect();
         assert_eq!(names, ["intercept", "dose", "dose^2", "dose^3"]);
+    }
+
+    #[test]
+    fn a_column_called_intercept_leaves_the_names_unambiguous() {
+        let a = [1.0, 2.0, 3.0];
+        let d = Design::linear(&[("intercept", &a), ("b", &a), ("b", &a)], true);
+        let names: Vec<&str> = d.terms().iter().map(|t| t.name.as_str()).collect();
+        assert_eq!(names, ["(intercept)", "intercept", "b", "b′"]);
+        assert_eq!(d.terms()[0].kind, TermKind::Intercept);
         assert_eq!(d.columns()[3], vec![1.0, 8.0, 27.0]);
     }
 

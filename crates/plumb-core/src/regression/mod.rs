@@ -23,7 +23,10 @@ pub use boxcox::{boxcox, boxcox_log_likelihood, BoxCox, LAMBDA_REACH};
 pub use compare::{
     added_variable, compare_nested, is_nested, variance_inflation, AddedVariable, NestedComparison,
 };
-pub use design::{polynomial_value, Design, Term, TermKind, MAX_DEGREE};
+pub use design::{
+    is_intercept_name, polynomial_value, Design, Term, TermKind, INTERCEPT, INTERCEPT_ALIAS,
+    MAX_DEGREE,
+};
 pub use inference::{LinearFit, RSquaredKind};
 pub use influence::{
     cooks_contour, influence, normal_scores, CaseInfluence, InfluenceFlag, COOKS_FLAG_NUMERATOR,

@@ -118,7 +118,7 @@ impl ModelRows {
                         .terms()
                         .iter()
                         .zip(design.columns())
-                        .filter(|(t, _)| t.name != "intercept")
+                        .filter(|(t, _)| t.kind != plumb_core::regression::TermKind::Intercept)
                         .map(|(t, c)| (t.name.as_str(), c.as_slice()))
                         .collect::<Vec<_>>(),
                     intercept,
