@@ -65,7 +65,7 @@ pub(crate) fn from_bytes(
         decimal,
         header,
     };
-    Ok(Table::new(path, format, names, cells, Vec::new()))
+    Ok(Table::new(path, format, names, cells, Vec::new()).with_sha256(bytes))
 }
 
 /// The non-empty records of `text`, split outside quotes.

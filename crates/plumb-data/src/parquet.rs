@@ -13,11 +13,12 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
         path: path.to_path_buf(),
         message: format!("not a readable Parquet file ({e})"),
     };
-    let file = std::fs::File::open(path).map_err(|source| DataError::Io {
+    // Read once: the hash is of the bytes the table comes from.
+    let bytes = std::fs::read(path).map_err(|source| DataError::Io {
         path: path.to_path_buf(),
         source,
     })?;
-    let mut reader = ParquetReader::new(file);
+    let mut reader = ParquetReader::new(std::io::Cursor::new(&bytes[..]));
     let rows = reader.num_rows().map_err(|e| parse_error(&e))?;
     let columns = reader.schema().map_err(|e| parse_error(&e))?.len();
     crate::budget::check_cells(
@@ -67,5 +68,5 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
         };
         cells.push(col);
     }
-    Ok(Table::new(path, SourceFormat::Parquet, names, cells, notes))
+    Ok(Table::new(path, SourceFormat::Parquet, names, cells, notes).with_sha256(&bytes))
 }

@@ -2,7 +2,7 @@
 
 use std::path::Path;
 
-use calamine::{open_workbook_auto, open_workbook_auto_from_rs, Data, Reader};
+use calamine::{open_workbook_auto_from_rs, Data, Reader};
 
 use crate::cell::{classify, Cell, DecimalMark};
 use crate::sniff::{self, HeaderMode};
@@ -11,16 +11,23 @@ use crate::{DataError, LoadOptions, Result};
 
 pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
     crate::budget::check_sheet(path, options.memory_limit)?;
-    let workbook = open_workbook_auto(path).map_err(|e| parse_error(path, &e))?;
-    from_workbook(path, workbook, options)
+    // Read once: the hash is of the bytes the table comes from.
+    let bytes = std::fs::read(path).map_err(|source| DataError::Io {
+        path: path.to_path_buf(),
+        source,
+    })?;
+    from_bytes(path, bytes, options)
 }
 
 /// A workbook already in memory (any of the formats calamine detects); `label` names it in
 /// messages.
 pub(crate) fn from_bytes(label: &Path, bytes: Vec<u8>, options: &LoadOptions) -> Result<Table> {
+    let hash = crate::table::sha256_hex(&bytes);
     let workbook = open_workbook_auto_from_rs(std::io::Cursor::new(bytes))
         .map_err(|e| parse_error(label, &e))?;
-    from_workbook(label, workbook, options)
+    let mut table = from_workbook(label, workbook, options)?;
+    table.set_sha256(hash);
+    Ok(table)
 }
 
 fn parse_error(path: &Path, e: &dyn std::fmt::Display) -> DataError {

@@ -32,8 +32,29 @@ pub(crate) struct Record {
     pub line: usize,
 }
 
-/// Splits `text` into records at line endings outside double quotes, skipping blank lines.
-/// Returns the line of an unclosed quote as the error.
+/// Whether the byte at `i` ends a line: a line feed, or a carriage return not followed by one
+/// (old spreadsheet exports end lines with a lone CR). A CR at the very end of `text` counts
+/// only when `at_eof` (in a piece of a larger file, its LF may follow in the next piece).
+pub(crate) fn ends_line(text: &[u8], i: usize, at_eof: bool) -> bool {
+    match text[i] {
+        b'\n' => true,
+        b'\r' => match text.get(i + 1) {
+            Some(&next) => next != b'\n',
+            None => at_eof,
+        },
+        _ => false,
+    }
+}
+
+/// Line breaks in `text` (LF, CRLF or a lone CR each count once).
+pub(crate) fn count_line_breaks(text: &[u8], at_eof: bool) -> usize {
+    (0..text.len())
+        .filter(|&i| ends_line(text, i, at_eof))
+        .count()
+}
+
+/// Splits `text` into records at line endings (LF, CRLF or a lone CR) outside double quotes,
+/// skipping blank lines. Returns the line of an unclosed quote as the error.
 pub(crate) fn records(text: &[u8]) -> Result<Vec<Record>, usize> {
     let mut out = Vec::new();
     let (mut start, mut line, mut start_line) = (0, 1, 1);
@@ -57,7 +78,7 @@ pub(crate) fn records(text: &[u8]) -> Result<Vec<Record>, usize> {
                     quote_line = line;
                 }
             }
-            b'\n' => {
+            b'\n' | b'\r' if ends_line(text, i, true) => {
                 if !quoted {
                     push(&mut out, start, i, start_line);
                     start = i + 1;
@@ -242,6 +263,27 @@ mod tests {
         let lines: Vec<usize> = recs.iter().map(|r| r.line).collect();
         assert_eq!(lines, [1, 3, 6]);
         assert_eq!(&text[recs[0].start..recs[0].end], b"a,b");
+    }
+
+    #[test]
+    fn a_lone_carriage_return_ends_a_line() {
+        // Old spreadsheet exports: CR only, or CR mixed with CRLF and LF.
+        let text = b"a,b\r1,2\r\n3,4\n5,\"six\rlines\"\r7,8\r";
+        let recs = records(text).expect("closed quotes");
+        let lines: Vec<&[u8]> = recs.iter().map(|r| &text[r.start..r.end]).collect();
+        assert_eq!(
+            lines,
+            [&b"a,b"[..], b"1,2", b"3,4", b"5,\"six\rlines\"", b"7,8"]
+        );
+        assert_eq!(
+            recs.iter().map(|r| r.line).collect::<Vec<_>>(),
+            [1, 2, 3, 4, 6]
+        );
+        assert_eq!(
+            count_line_breaks(b"x\ry\r\nz\r", false),
+            2,
+            "a CR at a piece's end waits"
+        );
     }
 
     #[test]

@@ -15,7 +15,7 @@ use std::path::Path;
 use rayon::prelude::*;
 
 use crate::select::{first_fault, Dropped};
-use crate::sniff::HeaderMode;
+use crate::sniff::{self, HeaderMode};
 use crate::table::{ColumnValues, SourceFormat, Table};
 use crate::{delimited, DataError, LoadOptions, Result};
 
@@ -396,30 +396,31 @@ fn read_full(file: &mut File, buf: &mut [u8]) -> std::io::Result<usize> {
 }
 
 fn count_lines(text: &[u8]) -> usize {
-    text.iter().filter(|&&b| b == b'\n').count()
+    sniff::count_line_breaks(text, false)
 }
 
-/// Position just after the last `\n` outside double quotes (the text starts outside quotes).
+/// Position just after the last line break (LF, CRLF or a lone CR) outside double quotes
+/// (the text starts outside quotes; a CR at its very end waits for the next piece).
 fn last_record_end(text: &[u8]) -> Option<usize> {
     let mut quoted = false;
     let mut last = None;
     for (i, &b) in text.iter().enumerate() {
         match b {
             b'"' => quoted = !quoted,
-            b'\n' if !quoted => last = Some(i + 1),
+            b'\n' | b'\r' if !quoted && sniff::ends_line(text, i, false) => last = Some(i + 1),
             _ => {}
         }
     }
     last
 }
 
-/// Position just after the first `\n` outside double quotes.
+/// Position just after the first line break outside double quotes.
 fn record_end(text: &[u8]) -> Option<usize> {
     let mut quoted = false;
     for (i, &b) in text.iter().enumerate() {
         match b {
             b'"' => quoted = !quoted,
-            b'\n' if !quoted => return Some(i + 1),
+            b'\n' | b'\r' if !quoted && sniff::ends_line(text, i, false) => return Some(i + 1),
             _ => {}
         }
     }

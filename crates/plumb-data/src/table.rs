@@ -45,6 +45,12 @@ pub enum ColumnValues {
     },
 }
 
+/// SHA-256 of `bytes`, lower-case hex.
+pub(crate) fn sha256_hex(bytes: &[u8]) -> String {
+    use sha2::{Digest, Sha256};
+    format!("{:x}", Sha256::digest(bytes))
+}
+
 /// A named column.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Column {
@@ -164,6 +170,8 @@ pub struct Table {
     columns: Vec<Column>,
     n_rows: usize,
     notes: Vec<String>,
+    /// SHA-256 of the very bytes the table was read from, lower-case hex.
+    sha256: String,
 }
 
 impl Table {
@@ -188,7 +196,25 @@ impl Table {
             columns,
             n_rows,
             notes,
+            sha256: String::new(),
         }
+    }
+
+    /// SHA-256 of the bytes the table was read from (not of a second read of the file, which
+    /// could differ), lower-case hex.
+    pub fn sha256(&self) -> &str {
+        &self.sha256
+    }
+
+    /// Records the hash of the bytes read.
+    pub(crate) fn with_sha256(mut self, bytes: &[u8]) -> Self {
+        self.sha256 = sha256_hex(bytes);
+        self
+    }
+
+    /// Records a hash computed by the loader.
+    pub(crate) fn set_sha256(&mut self, hex: String) {
+        self.sha256 = hex;
     }
 
     /// The file the table came from.

@@ -105,3 +105,30 @@ fn a_text_file_named_like_a_spreadsheet_is_refused_clearly() {
         "{err}"
     );
 }
+
+/// The hash a table carries is of the bytes it was read from, for every format: here it must
+/// equal a hash of the unchanged file taken independently (sha2 directly on the file).
+#[test]
+fn every_format_hashes_the_bytes_it_read() {
+    use sha2::{Digest, Sha256};
+    let dir = tempfile::tempdir().expect("tempdir");
+    let csv = dir.path().join("a.csv");
+    std::fs::write(&csv, "x,y\n1,2\n2,3\n").expect("write");
+    let parquet = dir.path().join("a.parquet");
+    let mut frame = df!("x" => [1.0f64, 2.0], "y" => [2.0f64, 3.5]).expect("frame");
+    ParquetWriter::new(std::fs::File::create(&parquet).expect("create"))
+        .finish(&mut frame)
+        .expect("write parquet");
+    let xlsx = dir.path().join("a.xlsx");
+    let mut book = Workbook::new();
+    let sheet = book.add_worksheet();
+    sheet.write(0, 0, "x").expect("cell");
+    sheet.write(1, 0, 1.5).expect("cell");
+    sheet.write(2, 0, 2.5).expect("cell");
+    book.save(&xlsx).expect("save xlsx");
+    for path in [csv, parquet, xlsx] {
+        let table = load(&path, &LoadOptions::default()).expect("loads");
+        let independent = format!("{:x}", Sha256::digest(std::fs::read(&path).expect("read")));
+        assert_eq!(table.sha256(), independent, "{}", path.display());
+    }
+}

@@ -6,8 +6,8 @@ use plumb_data::analysis::{AgreementRequest, CalibrationRequest, FitRequest, Row
 use plumb_report::guard::{check_outputs, Input, Output};
 use plumb_report::report::{build, planned_files, write, ReportInput};
 use plumb_report::{
-    file_sha256, AgreementSpec, CalibrationSpec, DataSource, Exclusion, LoadSpec, ModelSpec,
-    Session, SCHEMA_VERSION,
+    AgreementSpec, CalibrationSpec, DataSource, Exclusion, LoadSpec, ModelSpec, Session,
+    SCHEMA_VERSION,
 };
 
 use crate::cli::ReportArgs;
@@ -174,7 +174,7 @@ fn from_session(path: &Path, output: &Path, allow_outside: bool) -> anyhow::Resu
             path.display()
         )
     })?;
-    let hash = file_sha256(&data_path)?;
+    let hash = table.sha256().to_string();
     let note = (hash != session.data.sha256).then(|| {
         format!(
             "{} changed since the session was saved (SHA-256 differs; {} data rows then, {} now); the exclusions below name rows of the file as it is now",
@@ -285,7 +285,7 @@ fn from_data(args: &ReportArgs) -> anyhow::Result<Prepared> {
         .map(|a| plumb_report::text::shell_word(&a))
         .collect::<Vec<_>>()
         .join(" ");
-    let sha256 = file_sha256(table.source())?;
+    let sha256 = table.sha256().to_string();
     Ok(Prepared {
         table,
         request,

@@ -5,8 +5,6 @@
 use std::path::{Path, PathBuf};
 use std::sync::Arc;
 
-use plumb_report::file_sha256;
-
 use super::dataset::Dataset;
 use super::jobs::{Job, Waker};
 use super::marks::Marks;
@@ -144,8 +142,8 @@ impl Document {
         let job = Job::spawn(
             move |_| {
                 let dataset = Dataset::load_with_progress(&owned, &options, &shared)?;
-                let sha256 =
-                    file_sha256(&owned).map_err(|e| WorkbenchError::Load(e.to_string()))?;
+                // The hash of the bytes the table was read from, not of a second read.
+                let sha256 = dataset.table.sha256().to_string();
                 Ok(Loaded { dataset, sha256 })
             },
             waker.hook(),
