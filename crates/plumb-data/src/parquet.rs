@@ -2,7 +2,7 @@
 
 use std::path::Path;
 
-use polars::prelude::{DataType, ParquetReader, SerReader};
+use polars::prelude::{ArrowDataType, DataType, ParquetReader, SerReader};
 
 use crate::cell::{classify, Cell, DecimalMark};
 use crate::table::{SourceFormat, Table};
@@ -20,13 +20,44 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
     })?;
     let mut reader = ParquetReader::new(std::io::Cursor::new(&bytes[..]));
     let rows = reader.num_rows().map_err(|e| parse_error(&e))?;
-    let columns = reader.schema().map_err(|e| parse_error(&e))?.len();
+    let schema = reader.schema().map_err(|e| parse_error(&e))?;
+    // Only numbers and text are read (this build of polars holds no dates, decimals, lists or
+    // structs); the other columns are named in a note instead of failing the whole file.
+    let mut notes = Vec::new();
+    let mut keep = Vec::new();
+    for (k, field) in schema.iter_values().enumerate() {
+        match kind_of(&field.dtype) {
+            Some(()) => keep.push(k),
+            None => notes.push(format!(
+                "column '{}' holds {} values, which are not read from Parquet (numbers and text are); store it as a number (for times, seconds since an origin) to use it",
+                field.name,
+                type_words(&field.dtype)
+            )),
+        }
+    }
+    if keep.is_empty() {
+        return Err(DataError::Parse {
+            path: path.to_path_buf(),
+            message: format!(
+                "no column holds numbers or text ({}); store the values as numbers or text",
+                notes.len()
+            ),
+        });
+    }
+    if rows == 0 {
+        return Err(DataError::NoDataRows {
+            path: path.to_path_buf(),
+        });
+    }
     crate::budget::check_cells(
         path,
-        (rows as u64).saturating_mul(columns as u64),
+        (rows as u64).saturating_mul(keep.len() as u64),
         options.memory_limit,
     )?;
-    let frame = reader.finish().map_err(|e| parse_error(&e))?;
+    let frame = reader
+        .with_projection(Some(keep))
+        .finish()
+        .map_err(|e| parse_error(&e))?;
     if frame.height() == 0 {
         return Err(DataError::NoDataRows {
             path: path.to_path_buf(),
@@ -34,7 +65,6 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
     }
     let mut names = Vec::new();
     let mut cells = Vec::new();
-    let mut notes = Vec::new();
     for column in frame.get_columns() {
         names.push(column.name().to_string());
         let dtype = column.dtype();
@@ -69,4 +99,45 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
         cells.push(col);
     }
     Ok(Table::new(path, SourceFormat::Parquet, names, cells, notes).with_sha256(&bytes))
+}
+
+/// Whether a Parquet column's type is read: numbers, booleans and text.
+fn kind_of(dtype: &ArrowDataType) -> Option<()> {
+    use ArrowDataType as A;
+    matches!(
+        dtype,
+        A::Int8
+            | A::Int16
+            | A::Int32
+            | A::Int64
+            | A::UInt8
+            | A::UInt16
+            | A::UInt32
+            | A::UInt64
+            | A::Float16
+            | A::Float32
+            | A::Float64
+            | A::Utf8
+            | A::LargeUtf8
+            | A::Utf8View
+    )
+    .then_some(())
+}
+
+/// A column type in words, for the note.
+fn type_words(dtype: &ArrowDataType) -> &'static str {
+    use ArrowDataType as A;
+    match dtype {
+        A::Timestamp(..) => "timestamp",
+        A::Date32 | A::Date64 => "date",
+        A::Time32(_) | A::Time64(_) => "time-of-day",
+        A::Duration(_) | A::Interval(_) => "duration",
+        A::Decimal(..) | A::Decimal32(..) | A::Decimal64(..) | A::Decimal256(..) => "decimal",
+        A::List(_) | A::LargeList(_) | A::FixedSizeList(..) => "list",
+        A::Struct(_) => "struct",
+        A::Dictionary(..) => "dictionary-encoded",
+        A::Boolean => "true/false",
+        A::Binary | A::LargeBinary | A::BinaryView | A::FixedSizeBinary(_) => "binary",
+        _ => "other",
+    }
 }

@@ -90,6 +90,18 @@ const CASES: &[(&str, &[&str], i32, &str)] = &[
     ("tiny-spread.csv", &[], 0, "R² (centered)"),
     ("huge-offset.csv", &[], 0, "R² (centered)"),
     (
+        "parquet-many-types.parquet",
+        &["--y", "level", "--x", "reading"],
+        0,
+        "column 'taken_at' holds timestamp values, which are not read",
+    ),
+    (
+        "parquet-no-rows.parquet",
+        &["--y", "level", "--x", "reading"],
+        1,
+        "no data rows",
+    ),
+    (
         "blank-standard.csv",
         &["--weighting", "1/x"],
         1,
@@ -230,8 +242,15 @@ fn the_workbench_loader_answers_the_corpus_as_the_command_line_does() {
         let path = corpus(name);
         let before = std::fs::read(&path).expect("read");
         let p = path.to_string_lossy().into_owned();
-        let (cli_code, _, stderr) =
-            run(&[&["fit", p.as_str(), "--y", "y", "--x", "x"][..], extra].concat());
+        let mut args = vec!["fit", p.as_str()];
+        if !extra.contains(&"--y") {
+            args.extend(["--y", "y"]);
+        }
+        if !extra.contains(&"--x") {
+            args.extend(["--x", "x"]);
+        }
+        args.extend_from_slice(extra);
+        let (cli_code, _, stderr) = run(&args);
         let loaded = std::panic::catch_unwind(|| Dataset::load(&path, &Default::default()));
         match loaded {
             Err(_) => failures.push(format!("{name}: the workbench loader panicked")),
