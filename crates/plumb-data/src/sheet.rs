@@ -47,12 +47,14 @@ fn from_workbook<RS: std::io::Read + std::io::Seek>(
     let range = workbook
         .worksheet_range(&sheet)
         .map_err(|e| parse_error(path, &e))?;
-    let mut error_cells = 0usize;
+    let mut seen = Seen::default();
     let rows: Vec<Vec<Cell>> = range
         .rows()
-        .map(|row| {
+        .enumerate()
+        .map(|(i, row)| {
             row.iter()
-                .map(|d| to_cell(d, options, &mut error_cells))
+                .enumerate()
+                .map(|(j, d)| to_cell(d, options, &mut seen, (i, j)))
                 .collect()
         })
         .filter(|r: &Vec<Cell>| r.iter().any(|c| *c != Cell::Missing))
@@ -70,12 +72,7 @@ fn from_workbook<RS: std::io::Read + std::io::Seek>(
     if cells.first().is_none_or(Vec::is_empty) {
         return Err(empty_sheet());
     }
-    let mut notes = Vec::new();
-    if error_cells > 0 {
-        notes.push(format!(
-            "sheet '{sheet}': {error_cells} cells hold spreadsheet errors (such as #DIV/0!) and are read as missing"
-        ));
-    }
+    let notes = seen.notes(&sheet, &column_names, header);
     Ok(Table::new(
         path,
         SourceFormat::Sheet {
@@ -144,12 +141,88 @@ fn columns_of(rows: &[Vec<Cell>], header: bool) -> (Vec<String>, Vec<Vec<Cell>>)
     (names, cells)
 }
 
-fn to_cell(d: &Data, options: &LoadOptions, error_cells: &mut usize) -> Cell {
+/// What reading the cells came across, for the notes: error cells and date or duration cells.
+#[derive(Default)]
+struct Seen {
+    /// Error cells (`#DIV/0!`, `#N/A`…), with the sheet row and column of the first.
+    errors: usize,
+    first_error: Option<(usize, usize)>,
+    /// Columns (by position) holding dates, and those holding durations.
+    dates: std::collections::BTreeSet<usize>,
+    durations: std::collections::BTreeSet<usize>,
+}
+
+impl Seen {
+    /// The notes: where the error cells are, and how dates and durations were read.
+    fn notes(&self, sheet: &str, names: &[String], header: bool) -> Vec<String> {
+        let name = |j: usize| {
+            names
+                .get(j)
+                .cloned()
+                .unwrap_or_else(|| format!("column{}", j + 1))
+        };
+        let mut out = Vec::new();
+        if let Some((i, j)) = self.first_error {
+            // Data rows count from 1 after the header, as everywhere else.
+            let row = i + usize::from(!header);
+            out.push(format!(
+                "sheet '{sheet}': {} cells hold spreadsheet errors (such as #DIV/0! or #N/A) and are read as missing; the first is in column '{}', data row {row}",
+                self.errors,
+                name(j)
+            ));
+        }
+        for &j in &self.dates {
+            out.push(format!(
+                "column '{}' holds dates: read as days since 1970-01-01 (a fraction is the time of day)",
+                name(j)
+            ));
+        }
+        for &j in &self.durations {
+            out.push(format!(
+                "column '{}' holds durations: read as days",
+                name(j)
+            ));
+        }
+        out
+    }
+}
+
+/// Days from 1970-01-01 to the civil date `y-m-d` (proleptic Gregorian; H. Hinnant's
+/// `days_from_civil`, public domain, recalled from memory and checked below).
+fn days_from_civil(y: i64, m: i64, d: i64) -> i64 {
+    let y = if m <= 2 { y - 1 } else { y };
+    let era = y.div_euclid(400);
+    let yoe = y - era * 400;
+    let doy = (153 * (m + if m > 2 { -3 } else { 9 }) + 2) / 5 + d - 1;
+    let doe = yoe * 365 + yoe / 4 - yoe / 100 + doy;
+    era * 146_097 + doe - 719_468
+}
+
+/// A spreadsheet date as days since 1970-01-01, whichever epoch (1900 or 1904) the workbook
+/// counts from.
+fn unix_days(dt: &calamine::ExcelDateTime) -> f64 {
+    let (y, mo, d, h, mi, s, ms) = dt.to_ymd_hms_milli();
+    let day = days_from_civil(i64::from(y), i64::from(mo), i64::from(d)) as f64;
+    day + (f64::from(h) * 3_600_000.0
+        + f64::from(mi) * 60_000.0
+        + f64::from(s) * 1000.0
+        + f64::from(ms))
+        / 86_400_000.0
+}
+
+fn to_cell(d: &Data, options: &LoadOptions, seen: &mut Seen, (i, j): (usize, usize)) -> Cell {
     match d {
         Data::Int(i) => Cell::Number(*i as f64),
         Data::Float(f) if f.is_nan() => Cell::Missing,
         Data::Float(f) => Cell::Number(*f),
-        Data::DateTime(dt) => Cell::Number(dt.as_f64()),
+        Data::DateTime(dt) if dt.is_duration() => {
+            seen.durations.insert(j);
+            Cell::Number(dt.as_f64())
+        }
+        Data::DateTime(dt) => {
+            seen.dates.insert(j);
+            Cell::Number(unix_days(dt))
+        }
         Data::String(s) | Data::DateTimeIso(s) | Data::DurationIso(s) => classify(
             s,
             options.decimal.unwrap_or(DecimalMark::Point),
@@ -157,9 +230,24 @@ fn to_cell(d: &Data, options: &LoadOptions, error_cells: &mut usize) -> Cell {
         ),
         Data::Bool(b) => Cell::Text(b.to_string()),
         Data::Error(_) => {
-            *error_cells += 1;
+            seen.errors += 1;
+            seen.first_error.get_or_insert((i, j));
             Cell::Missing
         }
         Data::Empty => Cell::Missing,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn civil_days_count_from_1970() {
+        // By hand: 1970-01-01 is day 0, 2000-03-01 is 11017 (30 years of 365 days, 8 leap
+        // days to 2000-01-01 = 10957, then 31 + 29 days), 1969-12-31 is −1.
+        assert_eq!(days_from_civil(1970, 1, 1), 0);
+        assert_eq!(days_from_civil(2000, 3, 1), 11_017);
+        assert_eq!(days_from_civil(1969, 12, 31), -1);
     }
 }

@@ -132,3 +132,45 @@ fn every_format_hashes_the_bytes_it_read() {
         assert_eq!(table.sha256(), independent, "{}", path.display());
     }
 }
+
+/// A workbook's dates are read as days since 1970-01-01 with a note saying so, not as the
+/// workbook's opaque serial numbers.
+#[test]
+fn workbook_dates_are_days_since_1970() {
+    use rust_xlsxwriter::{ExcelDateTime, Format};
+    let dir = tempfile::tempdir().expect("tempdir");
+    let path = dir.path().join("dates.xlsx");
+    let mut book = Workbook::new();
+    let sheet = book.add_worksheet();
+    let date = Format::new().set_num_format("yyyy-mm-dd hh:mm");
+    sheet.write(0, 0, "taken").expect("cell");
+    sheet.write(0, 1, "level").expect("cell");
+    for (r, (d, h)) in [(1u8, 0u16), (2, 12), (3, 6)].iter().enumerate() {
+        let when = ExcelDateTime::from_ymd(2000, 3, *d)
+            .expect("date")
+            .and_hms(*h, 0, 0)
+            .expect("time");
+        let row = r as u32 + 1;
+        sheet
+            .write_datetime_with_format(row, 0, &when, &date)
+            .expect("date cell");
+        sheet
+            .write(row, 1, f64::from(r as u32) * 2.0)
+            .expect("cell");
+    }
+    book.save(&path).expect("save");
+    let table = load(&path, &LoadOptions::default()).expect("loads");
+    // 2000-03-01 is day 11017 after 1970-01-01 (by hand); noon adds half a day.
+    assert_eq!(
+        table.numeric("taken").expect("numeric"),
+        [Some(11_017.0), Some(11_018.5), Some(11_019.25)]
+    );
+    assert!(
+        table
+            .notes()
+            .iter()
+            .any(|n| n.contains("'taken' holds dates")),
+        "{:?}",
+        table.notes()
+    );
+}
