@@ -13,6 +13,11 @@ pub const TEXT_EXPANSION: u64 = 16;
 /// is 30–60 bytes of XML and 80–100 bytes once read and typed; not measured).
 pub const SHEET_EXPANSION: u64 = 4;
 
+/// Most XML a workbook may unpack to, whatever the memory: a spreadsheet program's own limits
+/// keep real sheets far below it (a 10 MB file whose shared strings unpack to 6 GB was met);
+/// data this large belongs in delimited text or Parquet.
+pub const SHEET_XML_MAX: u64 = 2 << 30;
+
 /// Bytes of memory per cell of a Parquet file once read and typed (estimate, not measured).
 pub const PARQUET_CELL_BYTES: u64 = 96;
 
@@ -39,8 +44,11 @@ pub(crate) fn check_text(path: &Path, limit: Option<u64>) -> Result<()> {
 }
 
 /// Refuses a zipped workbook (xlsx, xlsm, xlsb, ods) whose entries unpack to more than the
-/// budget allows — a zip bomb included — before anything is unpacked. Other files pass (the
-/// reader then says what is wrong with them).
+/// budget allows — a zip bomb included. The sizes the zip directory declares are checked
+/// first (nothing unpacked); then the entries are inflated into a counter that stops at the
+/// budget, since a directory can understate them (the spreadsheet reader would otherwise
+/// unpack them whole, shared-strings table included). Other files pass (the reader then says
+/// what is wrong with them).
 pub(crate) fn check_sheet(path: &Path, limit: Option<u64>) -> Result<()> {
     let Ok(file) = std::fs::File::open(path) else {
         return Ok(());
@@ -48,15 +56,43 @@ pub(crate) fn check_sheet(path: &Path, limit: Option<u64>) -> Result<()> {
     let Ok(mut archive) = zip::ZipArchive::new(file) else {
         return Ok(());
     };
-    let unpacked = (0..archive.len())
+    let declared = (0..archive.len())
         .filter_map(|i| archive.by_index_raw(i).ok().map(|e| e.size()))
         .fold(0u64, u64::saturating_add);
     check(
         path,
-        unpacked,
-        unpacked.saturating_mul(SHEET_EXPANSION),
+        declared,
+        declared.saturating_mul(SHEET_EXPANSION),
         limit,
-    )
+    )?;
+    let limit = limit
+        .or_else(available_memory)
+        .unwrap_or(u64::MAX)
+        .min(SHEET_XML_MAX.saturating_mul(SHEET_EXPANSION));
+    check(
+        path,
+        declared,
+        declared.saturating_mul(SHEET_EXPANSION),
+        Some(limit),
+    )?;
+    let allowed = limit / SHEET_EXPANSION;
+    let mut unpacked = 0u64;
+    for i in 0..archive.len() {
+        let Ok(entry) = archive.by_index(i) else {
+            continue; // the reader names a broken entry itself
+        };
+        let mut capped = std::io::Read::take(entry, allowed.saturating_sub(unpacked) + 1);
+        unpacked += std::io::copy(&mut capped, &mut std::io::sink()).unwrap_or(0);
+        if unpacked > allowed {
+            return check(
+                path,
+                unpacked,
+                unpacked.saturating_mul(SHEET_EXPANSION),
+                Some(limit),
+            );
+        }
+    }
+    Ok(())
 }
 
 /// Refuses a Parquet file with more cells than the budget allows.
@@ -122,6 +158,26 @@ mod tests {
             err.contains("book.xlsx") && err.contains("more than"),
             "{err}"
         );
+        // The shared-strings table counted as it is inflated, not as the directory says: a
+        // table of 20 MB in a small file is refused under a 40 MB budget (10 MB of XML).
+        let strings = dir.path().join("strings.xlsx");
+        {
+            use std::io::Write as _;
+            let mut z = zip::ZipWriter::new(std::fs::File::create(&strings).expect("create"));
+            let deflated = zip::write::SimpleFileOptions::default()
+                .compression_method(zip::CompressionMethod::Deflated);
+            z.start_file("xl/sharedStrings.xml", deflated)
+                .expect("entry");
+            let si = format!("<si><t>{}</t></si>", "A".repeat(2000));
+            for _ in 0..10_000 {
+                z.write_all(si.as_bytes()).expect("write");
+            }
+            z.finish().expect("zip");
+        }
+        assert!(std::fs::metadata(&strings).expect("size").len() < 200_000);
+        let err = check_sheet(&strings, Some(40 << 20)).expect_err("over budget");
+        assert!(err.to_string().contains("strings.xlsx"), "{err}");
+        assert!(check_sheet(&strings, Some(1 << 30)).is_ok());
         // Not a zip: left to the reader, which names the problem itself.
         std::fs::write(&path, b"not a workbook").expect("write");
         assert!(check_sheet(&path, Some(1)).is_ok());

@@ -44,6 +44,9 @@ fn from_workbook<RS: std::io::Read + std::io::Seek>(
 ) -> Result<Table> {
     let names = workbook.sheet_names();
     let sheet = chosen_sheet(path, &names, options)?;
+    if let calamine::Sheets::Xlsx(x) = &mut workbook {
+        check_extent(path, x, &sheet, options.memory_limit)?;
+    }
     let range = workbook
         .worksheet_range(&sheet)
         .map_err(|e| parse_error(path, &e))?;
@@ -83,6 +86,66 @@ fn from_workbook<RS: std::io::Read + std::io::Seek>(
         cells,
         notes,
     ))
+}
+
+/// Bytes a cell takes in the grid the spreadsheet reader builds (its `Data` value).
+const GRID_CELL_BYTES: u64 = 32;
+
+/// Refuses a sheet whose cells span a grid too large to hold (a stray cell at XFD1048576 makes
+/// the reader allocate 550 GB), found by streaming its cells before the grid is built.
+fn check_extent<RS: std::io::Read + std::io::Seek>(
+    path: &Path,
+    book: &mut calamine::Xlsx<RS>,
+    sheet: &str,
+    limit: Option<u64>,
+) -> Result<()> {
+    let Ok(mut cells) = book.worksheet_cells_reader(sheet) else {
+        return Ok(()); // the range reader names the problem itself
+    };
+    let (mut first, mut last) = ((u32::MAX, u32::MAX), (0u32, 0u32));
+    let mut far = (0u32, 0u32);
+    while let Ok(Some(cell)) = cells.next_cell() {
+        let (r, c) = cell.get_position();
+        first = (first.0.min(r), first.1.min(c));
+        if u64::from(r) * 20_000 + u64::from(c) >= u64::from(far.0) * 20_000 + u64::from(far.1) {
+            far = (r, c);
+        }
+        last = (last.0.max(r), last.1.max(c));
+    }
+    if first.0 == u32::MAX {
+        return Ok(());
+    }
+    let rows = u64::from(last.0 - first.0) + 1;
+    let cols = u64::from(last.1 - first.1) + 1;
+    let need = rows.saturating_mul(cols).saturating_mul(GRID_CELL_BYTES);
+    let limit = limit
+        .or_else(crate::budget::available_memory)
+        .unwrap_or(u64::MAX);
+    if need <= limit {
+        return Ok(());
+    }
+    Err(DataError::Parse {
+        path: path.to_path_buf(),
+        message: format!(
+            "sheet '{sheet}' has a cell at {} that makes its data span {rows} rows × {cols} columns ({} MB as a grid, more than the {} MB available); delete stray cells far from the data, or export the data range as CSV",
+            a1(far),
+            need >> 20,
+            limit >> 20
+        ),
+    })
+}
+
+/// A cell's position in A1 notation (`(0, 0)` is `A1`).
+fn a1((row, col): (u32, u32)) -> String {
+    let mut letters = Vec::new();
+    let mut c = col + 1;
+    while c > 0 {
+        let k = (c - 1) % 26;
+        letters.push(char::from(b'A' + k as u8));
+        c = (c - 1) / 26;
+    }
+    letters.reverse();
+    format!("{}{}", letters.into_iter().collect::<String>(), row + 1)
 }
 
 /// The sheet asked for, or the first.
@@ -241,6 +304,14 @@ fn to_cell(d: &Data, options: &LoadOptions, seen: &mut Seen, (i, j): (usize, usi
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn cells_are_named_as_spreadsheets_name_them() {
+        assert_eq!(a1((0, 0)), "A1");
+        assert_eq!(a1((9, 25)), "Z10");
+        assert_eq!(a1((0, 26)), "AA1");
+        assert_eq!(a1((1_048_575, 16_383)), "XFD1048576");
+    }
 
     #[test]
     fn civil_days_count_from_1970() {
