@@ -1,5 +1,6 @@
 //! A loaded table: named, typed columns over numbered data rows.
 
+use std::collections::{HashMap, HashSet};
 use std::path::{Path, PathBuf};
 
 use crate::cell::{Cell, DecimalMark};
@@ -258,6 +259,10 @@ fn shorten(s: &str) -> String {
 }
 
 fn unique_names(names: Vec<String>, notes: &mut Vec<String>) -> Vec<String> {
+    // Sets, not a scan of the names so far: a file may hold 100 000 columns, or as many
+    // repeats of one name.
+    let mut taken: HashSet<String> = HashSet::with_capacity(names.len());
+    let mut next_suffix: HashMap<String, usize> = HashMap::new();
     let mut out: Vec<String> = Vec::with_capacity(names.len());
     for (i, raw) in names.into_iter().enumerate() {
         let base = if raw.trim().is_empty() {
@@ -266,17 +271,18 @@ fn unique_names(names: Vec<String>, notes: &mut Vec<String>) -> Vec<String> {
             raw.trim().to_string()
         };
         let mut name = base.clone();
-        let mut k = 2;
-        while out.contains(&name) {
-            name = format!("{base}_{k}");
-            k += 1;
-        }
-        if name != base {
+        if taken.contains(&name) {
+            let k = next_suffix.entry(base.clone()).or_insert(2);
+            while taken.contains(&name) {
+                name = format!("{base}_{k}");
+                *k += 1;
+            }
             notes.push(format!(
                 "column {} repeats the name '{base}'; it is called '{name}' here",
                 i + 1
             ));
         }
+        taken.insert(name.clone());
         out.push(name);
     }
     out
@@ -292,6 +298,16 @@ mod tests {
         let names = unique_names(vec!["x".into(), "x".into(), " ".into()], &mut notes);
         assert_eq!(names, ["x", "x_2", "column3"]);
         assert_eq!(notes.len(), 1);
+    }
+
+    #[test]
+    fn a_name_repeated_many_times_gets_increasing_suffixes_that_skip_taken_names() {
+        let mut notes = Vec::new();
+        let mut raw: Vec<String> = vec!["x_3".into()];
+        raw.extend(std::iter::repeat_n("x".to_string(), 4));
+        let names = unique_names(raw, &mut notes);
+        assert_eq!(names, ["x_3", "x", "x_2", "x_4", "x_5"]);
+        assert_eq!(notes.len(), 3);
     }
 
     #[test]

@@ -2,7 +2,9 @@
 
 use std::fmt::Write;
 
-use plumb_core::association::{correlation_matrix, Adjustment, CorrelationMatrix, Method};
+use plumb_core::association::{
+    correlation_matrix, Adjustment, CorrelationMatrix, MatrixSize, Method,
+};
 use plumb_data::ColumnValues;
 use plumb_report::text::p;
 use plumb_report::wording;
@@ -86,6 +88,14 @@ fn columns_of(args: &CorrArgs, table: &plumb_data::Table) -> anyhow::Result<Vec<
     } else {
         args.columns.clone()
     };
+    let size = MatrixSize::of(columns.len());
+    if !size.is_allowed() {
+        anyhow::bail!(
+            "{}: {}: name the columns to compare with --columns a,b,c, or split the table",
+            table.source().display(),
+            wording::matrix_too_wide(&size)
+        );
+    }
     if columns.len() < 2 {
         anyhow::bail!(
             "{}: at least two numeric columns are needed, found {}; name them with --columns",

@@ -13,17 +13,25 @@ use crate::state::map::{MapKey, MapResult};
 use crate::state::pair::FitSpec;
 use crate::state::{Screen, State};
 
+/// Below this many points a side, cells are painted as one image instead of one shape each
+/// (a 1000-column map is a million cells).
+const IMAGE_BELOW_PX: f32 = 4.0;
+/// Below this many points a side, column names are left off (they would overlap).
+const NAMES_FROM_PX: f32 = 8.0;
+
 /// What the screen keeps between frames.
-#[derive(Debug)]
 pub struct MapUi {
     /// Order cells by similarity (else by file order).
     pub by_similarity: bool,
+    /// The dense grid as an image, for (map generation, by similarity, dark).
+    image: Option<((u64, bool, bool), egui::TextureHandle)>,
 }
 
 impl Default for MapUi {
     fn default() -> Self {
         Self {
             by_similarity: true,
+            image: None,
         }
     }
 }
@@ -37,6 +45,13 @@ pub fn map_ui(state: &State, own: &mut MapUi, ui: &mut egui::Ui) -> Actions {
     let numeric = &loaded.dataset.numeric;
     if numeric.len() < 2 {
         ui.label("The map needs at least two numeric columns.");
+        return out;
+    }
+    if let Some(why) = crate::state::map::MapModel::refused(&loaded.dataset) {
+        ui.label(format!(
+            "No map: {why}. Open a pair from the columns screen, or load an extract with \
+             fewer columns."
+        ));
         return out;
     }
     let map = state.map();
@@ -62,7 +77,7 @@ pub fn map_ui(state: &State, own: &mut MapUi, ui: &mut egui::Ui) -> Actions {
     };
     let chosen = ui
         .horizontal_top(|ui| {
-            let clicked = grid_ui(ui, result, &order);
+            let clicked = grid_ui(ui, result, &order, own);
             let listed = ui.vertical(|ui| strongest_ui(ui, result)).inner;
             clicked.or(listed)
         })
@@ -186,7 +201,12 @@ fn cell_text(r: &MapResult, i: usize, j: usize) -> String {
 }
 
 /// The grid of cells; returns the clicked pair (row column, column column).
-fn grid_ui(ui: &mut egui::Ui, r: &MapResult, order: &[usize]) -> Option<(usize, usize)> {
+fn grid_ui(
+    ui: &mut egui::Ui,
+    r: &MapResult,
+    order: &[usize],
+    own: &mut MapUi,
+) -> Option<(usize, usize)> {
     let k = order.len();
     let label_w = 120.0;
     let side = (ui.available_height() - label_w - 40.0)
@@ -197,48 +217,26 @@ fn grid_ui(ui: &mut egui::Ui, r: &MapResult, order: &[usize]) -> Option<(usize, 
         ui.allocate_painter(Vec2::new(label_w + side, label_w + side), Sense::click());
     let origin = response.rect.min + Vec2::new(label_w, label_w);
     let font = egui::FontId::proportional((cell * 0.32).clamp(8.0, 13.0));
-    let ink = ui.visuals().text_color();
-    for (a, &i) in order.iter().enumerate() {
-        let name = &r.columns[i];
-        painter.text(
-            Pos2::new(origin.x - 4.0, origin.y + (a as f32 + 0.5) * cell),
-            egui::Align2::RIGHT_CENTER,
-            name,
-            font.clone(),
-            ink,
+    if cell >= NAMES_FROM_PX {
+        names(
+            &painter,
+            r,
+            order,
+            (origin, cell),
+            &font,
+            ui.visuals().text_color(),
         );
-        let galley = painter.layout_no_wrap(name.clone(), font.clone(), ink);
-        let at = Pos2::new(
-            origin.x + (a as f32 + 0.5) * cell - galley.size().y / 2.0,
-            origin.y - 4.0,
+    }
+    if cell < IMAGE_BELOW_PX {
+        let texture = grid_image(ui, r, order, own);
+        painter.image(
+            texture.id(),
+            Rect::from_min_size(origin, Vec2::splat(side)),
+            Rect::from_min_max(Pos2::ZERO, Pos2::new(1.0, 1.0)),
+            Color32::WHITE,
         );
-        painter.add(
-            egui::epaint::TextShape::new(at, galley, ink).with_angle(-std::f32::consts::FRAC_PI_2),
-        );
-        for (b, &j) in order.iter().enumerate() {
-            let rect = Rect::from_min_size(
-                origin + Vec2::new(b as f32 * cell, a as f32 * cell),
-                Vec2::splat(cell),
-            );
-            if i == j {
-                // The diagonal says nothing; it stays neutral so it does not read as a hit.
-                painter.rect_filled(rect.shrink(0.5), 0.0, ui.visuals().faint_bg_color);
-                continue;
-            }
-            let fill = r.matrix.r[i][j].map_or(Color32::GRAY, palette::diverging);
-            painter.rect_filled(rect.shrink(0.5), 0.0, fill);
-            if cell >= 26.0 {
-                if let Some(v) = r.matrix.r[i][j] {
-                    painter.text(
-                        rect.center(),
-                        egui::Align2::CENTER_CENTER,
-                        format!("{v:.2}"),
-                        font.clone(),
-                        palette::ink_on(fill),
-                    );
-                }
-            }
-        }
+    } else {
+        cells(ui, &painter, r, order, (origin, cell), &font);
     }
     let pointer = response.hover_pos()?;
     let rel = pointer - origin;
@@ -262,6 +260,103 @@ fn grid_ui(ui: &mut egui::Ui, r: &MapResult, order: &[usize]) -> Option<(usize, 
     let clicked = response.clicked();
     response.on_hover_text_at_pointer(cell_text(r, i, j));
     (clicked && i != j).then_some((i, j))
+}
+
+/// The column names along the left and (turned) along the top.
+fn names(
+    painter: &egui::Painter,
+    r: &MapResult,
+    order: &[usize],
+    (origin, cell): (Pos2, f32),
+    font: &egui::FontId,
+    ink: Color32,
+) {
+    for (a, &i) in order.iter().enumerate() {
+        let name = &r.columns[i];
+        painter.text(
+            Pos2::new(origin.x - 4.0, origin.y + (a as f32 + 0.5) * cell),
+            egui::Align2::RIGHT_CENTER,
+            name,
+            font.clone(),
+            ink,
+        );
+        let galley = painter.layout_no_wrap(name.clone(), font.clone(), ink);
+        let at = Pos2::new(
+            origin.x + (a as f32 + 0.5) * cell - galley.size().y / 2.0,
+            origin.y - 4.0,
+        );
+        painter.add(
+            egui::epaint::TextShape::new(at, galley, ink).with_angle(-std::f32::consts::FRAC_PI_2),
+        );
+    }
+}
+
+/// The fill of cell (i, j): neutral on the diagonal (it says nothing, so it must not read as
+/// a hit), grey where undefined.
+fn cell_fill(r: &MapResult, i: usize, j: usize, visuals: &egui::Visuals) -> Color32 {
+    if i == j {
+        visuals.faint_bg_color
+    } else {
+        r.matrix.r[i][j].map_or(Color32::GRAY, palette::diverging)
+    }
+}
+
+/// The cells as shapes, with their values when there is room.
+fn cells(
+    ui: &egui::Ui,
+    painter: &egui::Painter,
+    r: &MapResult,
+    order: &[usize],
+    (origin, cell): (Pos2, f32),
+    font: &egui::FontId,
+) {
+    for (a, &i) in order.iter().enumerate() {
+        for (b, &j) in order.iter().enumerate() {
+            let rect = Rect::from_min_size(
+                origin + Vec2::new(b as f32 * cell, a as f32 * cell),
+                Vec2::splat(cell),
+            );
+            let fill = cell_fill(r, i, j, ui.visuals());
+            painter.rect_filled(rect.shrink(0.5), 0.0, fill);
+            let value = r.matrix.r[i][j].filter(|_| i != j && cell >= 26.0);
+            if let Some(v) = value {
+                painter.text(
+                    rect.center(),
+                    egui::Align2::CENTER_CENTER,
+                    format!("{v:.2}"),
+                    font.clone(),
+                    palette::ink_on(fill),
+                );
+            }
+        }
+    }
+}
+
+/// The cells as one image, one pixel a cell, made once per map, order and theme.
+fn grid_image(
+    ui: &egui::Ui,
+    r: &MapResult,
+    order: &[usize],
+    own: &mut MapUi,
+) -> egui::TextureHandle {
+    let key = (r.generation, own.by_similarity, ui.visuals().dark_mode);
+    if let Some((k, t)) = &own.image {
+        if *k == key {
+            return t.clone();
+        }
+    }
+    let k = order.len();
+    let pixels = order
+        .iter()
+        .flat_map(|&i| order.iter().map(move |&j| (i, j)))
+        .map(|(i, j)| cell_fill(r, i, j, ui.visuals()))
+        .collect();
+    let image = egui::ColorImage::new([k, k], pixels);
+    let texture = ui
+        .ctx()
+        .load_texture("map-grid", image, egui::TextureOptions::NEAREST);
+    own.image = Some((key, texture.clone()));
+    texture
 }
 
 /// The strongest pairs as buttons (readable by screen readers and tests too).

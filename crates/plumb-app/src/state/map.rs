@@ -3,7 +3,7 @@
 //! side. Computed off the UI thread whenever its settings change.
 
 use plumb_core::association::{
-    correlation_matrix, similarity_order, Adjustment, CorrelationMatrix, Method,
+    correlation_matrix, similarity_order, Adjustment, CorrelationMatrix, MatrixSize, Method,
 };
 
 use super::dataset::Dataset;
@@ -31,6 +31,8 @@ pub struct MapResult {
     pub matrix: CorrelationMatrix,
     /// Columns ordered so that those moving together sit together.
     pub similarity: Vec<usize>,
+    /// Counts the maps computed, so views can cache what they draw from one.
+    pub generation: u64,
 }
 
 /// The map's settings, its job and its latest result.
@@ -39,6 +41,7 @@ pub struct MapModel {
     key: MapKey,
     job: Option<Job<MapResult>>,
     result: Option<MapResult>,
+    computed: u64,
 }
 
 impl Default for MapKey {
@@ -72,14 +75,24 @@ impl MapModel {
         self.result.as_ref()
     }
 
+    /// Why no map is computed for `data`: a table too wide for a matrix (see
+    /// [`plumb_core::association::MATRIX_MAX_COLUMNS`]).
+    pub fn refused(data: &Dataset) -> Option<String> {
+        let size = MatrixSize::of(data.numeric.len());
+        (!size.is_allowed()).then(|| plumb_report::wording::matrix_too_wide(&size))
+    }
+
     /// Picks up a finished map; starts one when the inputs changed.
     pub fn poll(&mut self, data: &Dataset, waker: &Waker) {
-        if let Some(r) = self.job.as_mut().and_then(Job::poll) {
+        if let Some(mut r) = self.job.as_mut().and_then(Job::poll) {
             self.job = None;
+            self.computed += 1;
+            r.generation = self.computed;
             self.result = Some(r);
         }
         let current = self.result.as_ref().map(|r| &r.key) == Some(&self.key);
-        if !current && self.job.is_none() && data.numeric.len() >= 2 {
+        let wanted = data.numeric.len() >= 2 && Self::refused(data).is_none();
+        if !current && self.job.is_none() && wanted {
             let key = self.key.clone();
             let table = std::sync::Arc::clone(&data.table);
             let columns = data.numeric.clone();
@@ -105,5 +118,6 @@ pub fn compute(table: &plumb_data::Table, columns: Vec<String>, key: MapKey) -> 
         columns,
         matrix,
         similarity,
+        generation: 0,
     }
 }

@@ -69,6 +69,48 @@ pub struct CorrelationMatrix {
     pub r_detrended: Option<Vec<Vec<Option<f64>>>>,
 }
 
+/// Most columns a matrix is computed for: k columns make k² cells (1000 columns: a million
+/// cells, about 136 MB held ([`MatrixSize::bytes`]), and several times that as pretty JSON).
+/// Wider tables must name the columns to compare. A choice of this project, no source.
+pub const MATRIX_MAX_COLUMNS: usize = 1000;
+
+/// What a matrix over `k` columns would cost, estimated before it is computed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct MatrixSize {
+    /// Columns.
+    pub columns: usize,
+    /// Cells, k².
+    pub cells: u64,
+    /// Distinct pairs, k(k − 1)/2.
+    pub pairs: u64,
+    /// Bytes the filled matrix holds: cells × the size of one cell's coefficient, p-values,
+    /// count, interval, reason and trend guards (texts of reasons not counted).
+    pub bytes: u64,
+}
+
+impl MatrixSize {
+    /// The estimate for `k` columns.
+    pub fn of(k: usize) -> Self {
+        let k = k as u64;
+        let cell = 3 * size_of::<Option<f64>>()
+            + size_of::<usize>()
+            + size_of::<Option<(f64, f64)>>()
+            + size_of::<Option<String>>()
+            + 2 * size_of::<Option<f64>>();
+        Self {
+            columns: k as usize,
+            cells: k.saturating_mul(k),
+            pairs: k.saturating_mul(k.saturating_sub(1)) / 2,
+            bytes: k.saturating_mul(k).saturating_mul(cell as u64),
+        }
+    }
+
+    /// Whether the matrix is within [`MATRIX_MAX_COLUMNS`].
+    pub fn is_allowed(&self) -> bool {
+        self.columns <= MATRIX_MAX_COLUMNS
+    }
+}
+
 /// Fills the matrix with `method` over pairwise-complete rows (a row counts for a pair when
 /// both of its cells are `Some` and finite) and adjusts the p-values of all defined pairs
 /// (when more than one pair is tested). With `order`, also fills the trend guards, on rows
@@ -293,6 +335,26 @@ mod tests {
         assert_eq!(
             m.p_adjusted[0][1], m.p_value[0][1],
             "one test: nothing to adjust"
+        );
+    }
+
+    #[test]
+    fn the_size_estimate_grows_as_k_squared_and_the_cap_is_on_columns() {
+        let small = MatrixSize::of(10);
+        assert_eq!((small.cells, small.pairs), (100, 45));
+        let wide = MatrixSize::of(20_000);
+        assert_eq!(wide.cells, 400_000_000);
+        assert_eq!(wide.bytes, small.bytes * 4_000_000);
+        assert!(
+            wide.bytes > 10_000_000_000,
+            "20 000 columns need tens of GB"
+        );
+        assert!(MatrixSize::of(MATRIX_MAX_COLUMNS).is_allowed());
+        assert!(!MatrixSize::of(MATRIX_MAX_COLUMNS + 1).is_allowed());
+        assert_eq!(
+            MatrixSize::of(usize::MAX).cells,
+            u64::MAX,
+            "saturates, no overflow"
         );
     }
 }

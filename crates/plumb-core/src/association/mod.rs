@@ -18,7 +18,7 @@ pub use distance::{
     distance_correlation, distance_correlation_coefficient, DISTANCE_MAX_N, DISTANCE_PERMUTATIONS,
 };
 pub use kendall::kendall_tau_b;
-pub use matrix::{correlation_matrix, CorrelationMatrix, Method};
+pub use matrix::{correlation_matrix, CorrelationMatrix, MatrixSize, Method, MATRIX_MAX_COLUMNS};
 pub use order::similarity_order;
 pub use pearson::{pearson, pearson_from_moments};
 pub use rank::average_ranks;

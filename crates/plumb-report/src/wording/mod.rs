@@ -117,6 +117,18 @@ pub fn permutation_p(v: f64) -> String {
     }
 }
 
+/// Why no matrix is computed for a table this wide, and what to do instead.
+pub fn matrix_too_wide(size: &plumb_core::association::MatrixSize) -> String {
+    format!(
+        "{} numeric columns make {} pairs (a matrix of about {} MB); at most {} columns are \
+         compared at once",
+        size.columns,
+        size.pairs,
+        size.bytes.div_ceil(1_000_000),
+        plumb_core::association::MATRIX_MAX_COLUMNS
+    )
+}
+
 /// The cue of a pair that moves together mostly through a shared drift along the row order.
 pub fn shared_trend(a: &str, b: &str) -> String {
     format!("{a} and {b} move together mostly because both drift along the row order.")
