@@ -27,6 +27,9 @@ pub enum Action {
     },
     /// Stop reading the file being loaded.
     CancelLoad,
+    /// Read the open file again with this decimal mark (`None`: as the file suggests),
+    /// keeping the model, the exclusions and their reasons.
+    ReadWithDecimal(Option<plumb_data::DecimalMark>),
     /// Open the system's file dialog.
     PickFile(DialogPurpose),
     /// Save the session to its file (or ask where, the first time).

@@ -7,7 +7,7 @@ use polars::prelude::{CsvParseOptions, CsvReadOptions, DataFrame, SerReader};
 
 use crate::cell::{classify, Cell, DecimalMark};
 use crate::progress::{read_all, Progress, Stage};
-use crate::sniff::{self, HeaderMode, Record};
+use crate::sniff::{self, DecimalGuess, HeaderMode, Record};
 use crate::table::{SourceFormat, Table};
 use crate::{DataError, LoadOptions, Result};
 
@@ -41,12 +41,12 @@ pub(crate) fn from_bytes(
     let text = bytes.strip_prefix(BOM).unwrap_or(bytes);
     check_utf8(path, text)?;
     let recs = records_of(path, text)?;
-    let (delimiter, decimal, header) = layout(text, &recs, options);
+    let (delimiter, guess, header) = layout(text, &recs, options);
     check_field_counts(path, text, &recs, delimiter, header)?;
     let frame = parse(path, text, &recs, delimiter)?;
     stage(Stage::Typing);
     let mut columns = string_columns(path, &frame)?;
-    let names = if header {
+    let names: Vec<String> = if header {
         columns
             .iter_mut()
             .map(|c| c.remove(0).unwrap_or_default())
@@ -59,13 +59,14 @@ pub(crate) fn from_bytes(
             path: path.to_path_buf(),
         });
     }
+    let (decimal, notes) = settle_decimal(guess, delimiter, &names, &columns);
     let cells = typed(columns, decimal, &options.missing_tokens);
     let format = SourceFormat::Delimited {
         delimiter,
         decimal,
         header,
     };
-    Ok(Table::new(path, format, names, cells, Vec::new()).with_sha256(bytes))
+    Ok(Table::new(path, format, names, cells, notes).with_sha256(bytes))
 }
 
 /// The non-empty records of `text`, split outside quotes.
@@ -92,7 +93,7 @@ fn records_of(path: &Path, text: &[u8]) -> Result<Vec<Record>> {
 
 /// The delimiter, decimal mark and whether there is a header, as asked or sniffed from the
 /// first 200 records.
-fn layout(text: &[u8], recs: &[Record], options: &LoadOptions) -> (u8, DecimalMark, bool) {
+fn layout(text: &[u8], recs: &[Record], options: &LoadOptions) -> (u8, DecimalGuess, bool) {
     let delimiter = options
         .delimiter
         .unwrap_or_else(|| sniff::delimiter(text, recs));
@@ -101,15 +102,66 @@ fn layout(text: &[u8], recs: &[Record], options: &LoadOptions) -> (u8, DecimalMa
         .take(200)
         .map(|r| sniff::fields(&text[r.start..r.end], delimiter))
         .collect();
-    let decimal = options
-        .decimal
-        .unwrap_or_else(|| sniff::decimal_mark(&sample, delimiter));
+    let guess = match options.decimal {
+        Some(mark) => DecimalGuess {
+            mark,
+            ambiguous: None,
+        },
+        None => sniff::decimal_guess(sample.iter().flatten().map(String::as_str), delimiter),
+    };
     let header = match options.header {
         HeaderMode::Yes => true,
         HeaderMode::No => false,
-        HeaderMode::Auto => sniff::has_header(&sample, decimal, &options.missing_tokens),
+        HeaderMode::Auto => sniff::has_header(&sample, guess.mark, &options.missing_tokens),
     };
-    (delimiter, decimal, header)
+    (delimiter, guess, header)
+}
+
+/// The decimal mark to read with. When the sample left it open while some of its cells read
+/// as different numbers under each mark (`1,234`), every cell votes; if none settles it, the
+/// mark is assumed and a note names a cell whose value depends on it, and how to choose.
+fn settle_decimal(
+    guess: DecimalGuess,
+    delimiter: u8,
+    names: &[String],
+    columns: &[Vec<Option<String>>],
+) -> (DecimalMark, Vec<String>) {
+    if guess.ambiguous.is_none() {
+        return (guess.mark, Vec::new());
+    }
+    let cells = columns.iter().flatten().flatten().map(String::as_str);
+    let all = sniff::decimal_guess(cells, delimiter);
+    let Some(at) = all
+        .ambiguous
+        .as_ref()
+        .and_then(|_| first_ambiguous(columns))
+    else {
+        return (all.mark, Vec::new());
+    };
+    let (j, i, text, point, comma) = at;
+    let note = format!(
+        "no cell settles the decimal mark: '{text}' (column '{}', row {}) reads as {point} \
+         with a decimal point or {comma} with a decimal comma; a decimal point was assumed \
+         (choose the decimal comma to read such cells the other way: --decimal comma, or \
+         Decimal mark on the columns screen)",
+        names.get(j).map_or("?", String::as_str),
+        i + 1
+    );
+    (all.mark, vec![note])
+}
+
+/// The first cell, by row, whose number depends on the decimal mark: (column, row, text,
+/// value with a point, value with a comma).
+fn first_ambiguous(columns: &[Vec<Option<String>>]) -> Option<(usize, usize, String, f64, f64)> {
+    let n_rows = columns.first().map_or(0, Vec::len);
+    (0..n_rows).find_map(|i| {
+        columns.iter().enumerate().find_map(|(j, col)| {
+            let s = col.get(i)?.as_deref()?.trim();
+            let point = crate::cell::parse_number(s, DecimalMark::Point)?;
+            let comma = crate::cell::parse_number(s, DecimalMark::Comma)?;
+            (point != comma).then(|| (j, i, s.to_string(), point, comma))
+        })
+    })
 }
 
 /// Every cell classified: missing, a number, or text.

@@ -179,22 +179,54 @@ fn mode(counts: &[usize]) -> usize {
 /// Comma when, with a delimiter other than comma, some sampled cells read as numbers only
 /// with a decimal comma (`12,5`, `1.234,5`) and none only with a decimal point (`12.5`,
 /// `1,234.5`); point otherwise. Cells that read either way (`12`, `1,234`) do not vote.
+#[cfg(test)]
 pub(crate) fn decimal_mark(sample: &[Vec<String>], delimiter: u8) -> DecimalMark {
+    decimal_guess(sample.iter().flatten().map(String::as_str), delimiter).mark
+}
+
+/// The decimal mark cells show, and whether the choice was a guess that changes numbers.
+#[derive(Debug, Clone, PartialEq)]
+pub(crate) struct DecimalGuess {
+    /// The mark assumed.
+    pub mark: DecimalMark,
+    /// A cell that reads as two different numbers (`1,234`: 1234 or 1.234) when no cell
+    /// settles the mark; the mark was then assumed.
+    pub ambiguous: Option<String>,
+}
+
+/// [`decimal_mark`]'s vote over `cells`, keeping the first cell whose number depends on the
+/// mark when the vote is empty.
+pub(crate) fn decimal_guess<'a>(
+    cells: impl Iterator<Item = &'a str>,
+    delimiter: u8,
+) -> DecimalGuess {
     if delimiter == b',' {
-        return DecimalMark::Point;
+        return DecimalGuess {
+            mark: DecimalMark::Point,
+            ambiguous: None,
+        };
     }
-    let (mut comma, mut point) = (0usize, 0usize);
-    for cell in sample.iter().flatten() {
+    let (mut comma, mut point, mut ambiguous) = (0usize, 0usize, None);
+    for cell in cells {
         let s = cell.trim();
-        let as_comma = parse_number(s, DecimalMark::Comma).is_some();
-        let as_point = parse_number(s, DecimalMark::Point).is_some();
-        comma += usize::from(as_comma && !as_point);
-        point += usize::from(as_point && !as_comma);
+        let as_comma = parse_number(s, DecimalMark::Comma);
+        let as_point = parse_number(s, DecimalMark::Point);
+        comma += usize::from(as_comma.is_some() && as_point.is_none());
+        point += usize::from(as_point.is_some() && as_comma.is_none());
+        if let (Some(c), Some(p), None) = (as_comma, as_point, &ambiguous) {
+            if c != p {
+                ambiguous = Some(s.to_string());
+            }
+        }
     }
-    if comma > 0 && point == 0 {
+    let mark = if comma > 0 && point == 0 {
         DecimalMark::Comma
     } else {
         DecimalMark::Point
+    };
+    DecimalGuess {
+        mark,
+        ambiguous: ambiguous.filter(|_| comma == 0 && point == 0),
     }
 }
 
@@ -242,6 +274,23 @@ mod tests {
     fn decimal_commas_with_thousands_points() {
         let (d, mark, header) = sniff("x;y\n1;1.234,5\n2;2.469,0\n");
         assert_eq!((d, mark, header), (b';', DecimalMark::Comma, true));
+    }
+
+    #[test]
+    fn grouped_thousands_alone_are_ambiguous_and_a_voting_cell_settles_them() {
+        let guess = |cells: &[&str]| decimal_guess(cells.iter().copied(), b';');
+        let g = guess(&["1,234", "12"]);
+        assert_eq!(g.mark, DecimalMark::Point);
+        assert_eq!(g.ambiguous.as_deref(), Some("1,234"));
+        assert_eq!(guess(&["1,234", "7,5"]).mark, DecimalMark::Comma);
+        assert_eq!(guess(&["1,234", "7,5"]).ambiguous, None);
+        assert_eq!(guess(&["1,234", "7.5"]).ambiguous, None);
+        assert_eq!(guess(&["12", "3"]).ambiguous, None, "integers read alike");
+        assert_eq!(
+            decimal_guess(["1,234"].into_iter(), b',').ambiguous,
+            None,
+            "a comma delimiter leaves only the point"
+        );
     }
 
     #[test]

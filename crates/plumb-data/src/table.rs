@@ -28,6 +28,36 @@ pub enum SourceFormat {
     },
 }
 
+impl std::fmt::Display for SourceFormat {
+    /// How the file was read, in one line: `text, delimiter ';', decimal comma, header row`.
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        let header = |h: bool| if h { "header row" } else { "no header row" };
+        match self {
+            Self::Delimited {
+                delimiter,
+                decimal,
+                header: h,
+            } => {
+                let delimiter = match delimiter {
+                    b'\t' => "tab".to_string(),
+                    d => format!("'{}'", *d as char),
+                };
+                let decimal = match decimal {
+                    DecimalMark::Point => "point",
+                    DecimalMark::Comma => "comma",
+                };
+                write!(
+                    f,
+                    "text, delimiter {delimiter}, decimal {decimal}, {}",
+                    header(*h)
+                )
+            }
+            Self::Parquet => f.write_str("Parquet"),
+            Self::Sheet { name, header: h } => write!(f, "sheet '{name}', {}", header(*h)),
+        }
+    }
+}
+
 /// The values of one column.
 #[derive(Debug, Clone, PartialEq)]
 pub enum ColumnValues {

@@ -191,3 +191,42 @@ fn quoted_fields_keep_their_delimiters() {
     assert_eq!(values[0].as_deref(), Some("A, north"));
     assert_eq!(numbers(&table, "value"), [Some(1.5), Some(2.5)]);
 }
+
+#[test]
+fn an_unsettled_decimal_mark_is_assumed_with_a_note_and_a_late_cell_settles_it() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    // Only grouped thousands: 1,234 is 1234 with a point or 1.234 with a comma.
+    let path = write(&dir, "open.csv", b"mass;n\n1,234;1\n2,5;2\n");
+    let table = load(&path, &LoadOptions::default()).expect("loads");
+    // 2,5 votes for the comma, so nothing is left open.
+    assert_eq!(numbers(&table, "mass"), [Some(1.234), Some(2.5)]);
+    assert!(table.notes().is_empty(), "{:?}", table.notes());
+
+    let path = write(&dir, "open.csv", b"mass;n\n12;1\n1,234;2\n");
+    let table = load(&path, &LoadOptions::default()).expect("loads");
+    assert_eq!(numbers(&table, "mass"), [Some(12.0), Some(1234.0)]);
+    let note = table.notes().join("\n");
+    assert!(
+        note.contains("'1,234' (column 'mass', row 2) reads as 1234 with a decimal point or 1.234 with a decimal comma"),
+        "{note}"
+    );
+    assert!(note.contains("--decimal comma"), "{note}");
+    let asked = LoadOptions {
+        decimal: Some(DecimalMark::Comma),
+        ..LoadOptions::default()
+    };
+    let table = load(&path, &asked).expect("loads");
+    assert_eq!(numbers(&table, "mass"), [Some(12.0), Some(1.234)]);
+    assert!(table.notes().is_empty(), "a chosen mark is no guess");
+
+    // Past the 200 sniffed rows, a 7,5 settles the mark for the whole file.
+    let mut text = String::from("mass;n\n");
+    for i in 0..250 {
+        text.push_str(&format!("{};{i}\n", if i == 240 { "7,5" } else { "1,250" }));
+    }
+    let path = write(&dir, "late.csv", text.as_bytes());
+    let table = load(&path, &LoadOptions::default()).expect("loads");
+    assert_eq!(numbers(&table, "mass")[0], Some(1.25));
+    assert_eq!(numbers(&table, "mass")[240], Some(7.5));
+    assert!(table.notes().is_empty(), "{:?}", table.notes());
+}

@@ -6,7 +6,7 @@ use clap::{Args as ClapArgs, Parser, Subcommand, ValueEnum};
 use plumb_core::calibration::WeightRule;
 use plumb_core::regression::Transform;
 use plumb_data::analysis::{Factor, ResponseScale};
-use plumb_data::{DecimalMark, HeaderMode, LoadOptions};
+use plumb_data::{DecimalMark, HeaderMode, LoadOptions, RowList};
 
 /// Plumbline: exploratory fitting with honest numbers.
 #[derive(Debug, Parser)]
@@ -771,78 +771,9 @@ pub struct StreamArgs {
     pub format: Format,
 }
 
-/// Row numbers given on the command line, as ranges (`3,17,40-42` is three ranges): never
-/// expanded beyond the table they name, so `1-18446744073709551615` costs nothing.
-#[derive(Debug, Clone, PartialEq, Eq)]
-pub struct RowList(pub Vec<(usize, usize)>);
-
-impl RowList {
-    /// The rows, in order, of a table of `n_rows` data rows.
-    ///
-    /// # Errors
-    /// Rows the table does not have, named as ranges with the table's size (nothing is
-    /// expanded past the table).
-    pub fn within(&self, n_rows: usize, file: &std::path::Path) -> Result<Vec<usize>, String> {
-        let beyond: Vec<String> = self
-            .0
-            .iter()
-            .filter(|(_, b)| *b > n_rows)
-            .map(|&(a, b)| {
-                let a = a.max(n_rows + 1);
-                if a == b {
-                    a.to_string()
-                } else {
-                    format!("{a}-{b}")
-                }
-            })
-            .collect();
-        if !beyond.is_empty() {
-            return Err(format!(
-                "{}: --exclude names rows the file does not have ({}): it has {n_rows} data rows, numbered from 1 after the header",
-                file.display(),
-                beyond.join(", ")
-            ));
-        }
-        Ok(self.0.iter().flat_map(|&(a, b)| a..=b).collect())
-    }
-
-    /// The rows, in order, at most `cap` of them (`None` past that): for the workbench, whose
-    /// table is not loaded yet when the arguments are read.
-    pub fn first(&self, cap: usize) -> Option<Vec<usize>> {
-        let total = self
-            .0
-            .iter()
-            .try_fold(0usize, |n, &(a, b)| n.checked_add(b - a + 1))?;
-        (total <= cap).then(|| self.0.iter().flat_map(|&(a, b)| a..=b).collect())
-    }
-}
-
+/// `--exclude ROWS`: parsed by the data layer, where it is fuzzed.
 fn parse_rows(s: &str) -> Result<RowList, String> {
-    let mut rows = Vec::new();
-    for part in s.split(',').map(str::trim).filter(|p| !p.is_empty()) {
-        let bad =
-            || format!("'{part}' is not a row number or range such as 40-42 (rows count from 1)");
-        match part.split_once('-') {
-            Some((a, b)) => {
-                let (a, b): (usize, usize) = (
-                    a.trim().parse().map_err(|_| bad())?,
-                    b.trim().parse().map_err(|_| bad())?,
-                );
-                if a == 0 || b < a {
-                    return Err(bad());
-                }
-                rows.push((a, b));
-            }
-            None => {
-                let r: usize = part.parse().map_err(|_| bad())?;
-                if r == 0 {
-                    return Err(bad());
-                }
-                rows.push((r, r));
-            }
-        }
-    }
-    Ok(RowList(rows))
+    RowList::parse(s)
 }
 
 fn parse_robust(s: &str) -> Result<plumb_data::analysis::Robust, String> {
@@ -880,32 +811,6 @@ fn parse_delimiter(s: &str) -> Result<u8, String> {
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn row_lists_take_numbers_and_ranges() {
-        let rows = parse_rows("3, 17,40-42").expect("parses");
-        assert_eq!(
-            rows.within(50, std::path::Path::new("f.csv")),
-            Ok(vec![3, 17, 40, 41, 42])
-        );
-        // A range to the end of the addressable rows costs nothing and says what is missing.
-        let huge = parse_rows("1-18446744073709551615").expect("parses");
-        let e = huge
-            .within(48, std::path::Path::new("f.csv"))
-            .expect_err("beyond");
-        assert!(
-            e.contains("49-18446744073709551615") && e.contains("48 data rows"),
-            "{e}"
-        );
-        assert_eq!(huge.first(1000), None);
-        assert_eq!(
-            parse_rows("2,5-6").expect("parses").first(10),
-            Some(vec![2, 5, 6])
-        );
-        assert!(parse_rows("0").is_err());
-        assert!(parse_rows("5-2").is_err());
-        assert!(parse_rows("x").is_err());
-    }
 
     #[test]
     fn robust_methods_parse() {

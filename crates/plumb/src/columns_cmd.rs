@@ -12,7 +12,7 @@ pub fn run(args: &ColumnsArgs) -> anyhow::Result<String> {
         "{} · {} data rows · read as {}",
         table.source().display(),
         table.n_rows(),
-        describe_format(table.format())
+        table.format()
     )?;
     writeln!(out)?;
     writeln!(
@@ -37,41 +37,4 @@ pub fn run(args: &ColumnsArgs) -> anyhow::Result<String> {
         writeln!(out, "note: {note}")?;
     }
     Ok(out)
-}
-
-/// One line describing how a file was read.
-pub fn describe_format(format: &plumb_data::SourceFormat) -> String {
-    match format {
-        plumb_data::SourceFormat::Delimited {
-            delimiter,
-            decimal,
-            header,
-        } => format!(
-            "text, delimiter {}, decimal {}, {}",
-            match delimiter {
-                b'\t' => "tab".to_string(),
-                d => format!("'{}'", *d as char),
-            },
-            match decimal {
-                plumb_data::DecimalMark::Point => "point",
-                plumb_data::DecimalMark::Comma => "comma",
-            },
-            if *header {
-                "header row"
-            } else {
-                "no header row"
-            }
-        ),
-        plumb_data::SourceFormat::Parquet => "Parquet".to_string(),
-        plumb_data::SourceFormat::Sheet { name, header } => {
-            format!(
-                "sheet '{name}', {}",
-                if *header {
-                    "header row"
-                } else {
-                    "no header row"
-                }
-            )
-        }
-    }
 }

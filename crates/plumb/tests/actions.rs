@@ -7,7 +7,7 @@ mod common;
 
 use std::path::Path;
 
-use common::{assert_same_numbers, cli_fit, close, demo, live, settle};
+use common::{assert_same_numbers, cli_fit, cli_fit_with, close, demo, live, settle};
 
 use plumb_app::{Action, Ask, FitSpec, Screen, Workbench};
 
@@ -260,5 +260,55 @@ fn saving_or_writing_onto_the_data_file_is_refused() {
     assert!(
         !work.path().join("alias-statistics.csv").exists(),
         "nothing half-written"
+    );
+}
+
+#[test]
+fn choosing_the_decimal_mark_rereads_the_file_and_keeps_the_work() {
+    let config = tempfile::tempdir().expect("config");
+    let data =
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("../../tests/bad-input/decimal-ambiguous.csv");
+    let mut wb = Workbench::new(Some(config.path().to_path_buf()));
+    wb.apply(Action::Open(data.clone()));
+    settle(&mut wb);
+    let table = &wb.loaded().expect("loaded").dataset.table;
+    assert!(table
+        .notes()
+        .iter()
+        .any(|n| n.contains("no cell settles the decimal mark")));
+    assert_eq!(table.numeric("y").expect("y")[0], Some(1234.0));
+    wb.apply(Action::OpenPair(FitSpec::line("y", "x")));
+    wb.apply(Action::Exclude {
+        rows: vec![3],
+        reason: Some("cuvette cracked".into()),
+    });
+    settle(&mut wb);
+
+    wb.apply(Action::ReadWithDecimal(Some(
+        plumb_data::DecimalMark::Comma,
+    )));
+    settle(&mut wb);
+    let dataset = &wb.loaded().expect("loaded").dataset;
+    assert_eq!(dataset.table.numeric("y").expect("y")[0], Some(1.234));
+    assert!(dataset.table.notes().is_empty());
+    assert_eq!(wb.marks().excluded.len(), 1, "the exclusion stays");
+    // Every number, estimates included (R² alone would not see y scaled by 1000).
+    let comma = [
+        "--y",
+        "y",
+        "--x",
+        "x",
+        "--exclude",
+        "3",
+        "--decimal",
+        "comma",
+    ];
+    assert_same_numbers(&live(&wb), &cli_fit_with(&data, &comma));
+    let session = config.path().join("read.plumb");
+    wb.apply(Action::SaveSessionTo(session.clone()));
+    let saved = std::fs::read_to_string(&session).expect("session");
+    assert!(
+        saved.contains("decimal = \"comma\"") || saved.contains("\"decimal\": \"comma\""),
+        "{saved}"
     );
 }

@@ -63,6 +63,12 @@ const CASES: &[(&str, &[&str], i32, &str)] = &[
     ("quoted-delimiters.csv", &[], 0, "4 used of 4"),
     ("crlf.csv", &[], 0, "4 used of 4"),
     ("decimal-comma-thousands.csv", &[], 0, "1234.46"),
+    (
+        "decimal-ambiguous.csv",
+        &[],
+        0,
+        "no cell settles the decimal mark: '1,234' (column 'y', row 1) reads as 1234",
+    ),
     ("unclosed-quote.csv", &[], 1, "never closes"),
     ("text-predictor.csv", &[], 1, "row 1 holds 'low'"),
     (

@@ -329,7 +329,10 @@ mod bad_input {
         refused(
             "x,y\n1,2\n2,3\n3,5\n4,4\n",
             &["--y", "y", "--x", "x", "--exclude", "7"],
-            &["row 7 does not exist"],
+            &[
+                "--exclude names rows the file does not have (7)",
+                "it has 4 data rows",
+            ],
         );
     }
 
@@ -708,6 +711,30 @@ mod summary {
         assert_eq!(page("first.html"), page("second.html"));
         let html = page("second.html");
         assert!(html.contains("decimal point slipped") && html.contains("no reason given"));
+    }
+
+    #[test]
+    fn the_summary_says_how_the_file_was_read_and_any_assumed_decimal_mark() {
+        let tmp = tempfile::tempdir().expect("tempdir");
+        let out = tmp.path().join("s.html");
+        let data = Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("../../tests/bad-input/decimal-ambiguous.csv");
+        let run = plumb(&[
+            "report",
+            &data.to_string_lossy(),
+            "--y",
+            "y",
+            "--x",
+            "x",
+            "-o",
+            &out.to_string_lossy(),
+        ]);
+        assert!(run.status.success(), "{}", stderr(&run));
+        let html = std::fs::read_to_string(&out).expect("page");
+        let read_as =
+            "<dt>read as</dt><dd>text, delimiter &#39;;&#39;, decimal point, header row</dd>";
+        assert!(html.contains(read_as), "{html}");
+        assert!(html.contains("Reading note: no cell settles the decimal mark"));
     }
 
     #[test]

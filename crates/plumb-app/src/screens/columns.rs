@@ -26,7 +26,7 @@ pub fn columns_ui(state: &State, own: &mut ColumnsUi, ui: &mut egui::Ui) -> Acti
         ui.label("No file open yet.");
         return out;
     };
-    file_facts_ui(loaded, ui);
+    out.extend(file_facts_ui(loaded, ui));
     egui::ScrollArea::vertical().show(ui, |ui| {
         column_table_ui(loaded, ui);
         out.extend(next_steps_ui(loaded, ui));
@@ -85,7 +85,7 @@ fn recent_ui(recent: &[PathBuf], ui: &mut egui::Ui) -> Actions {
     out
 }
 
-fn file_facts_ui(loaded: &Loaded, ui: &mut egui::Ui) {
+fn file_facts_ui(loaded: &Loaded, ui: &mut egui::Ui) -> Actions {
     let d = &loaded.dataset;
     ui.heading(d.file_name());
     ui.label(format!(
@@ -95,9 +95,46 @@ fn file_facts_ui(loaded: &Loaded, ui: &mut egui::Ui) {
         d.numeric.len(),
         &loaded.sha256[..12.min(loaded.sha256.len())]
     ));
+    ui.label(format!("Read as {}.", d.table.format()));
+    let out = decimal_ui(loaded, ui);
     for note in d.table.notes() {
         ui.label(format!("note: {note}"));
     }
+    out
+}
+
+/// The decimal mark of a text file: as the file suggests, or the analyst's choice (the file
+/// is read again; the work stays).
+fn decimal_ui(loaded: &Loaded, ui: &mut egui::Ui) -> Actions {
+    use plumb_data::DecimalMark;
+    let mut out = Actions::none();
+    if !matches!(
+        loaded.dataset.table.format(),
+        plumb_data::SourceFormat::Delimited { .. }
+    ) {
+        return out;
+    }
+    let current = loaded.dataset.options.decimal;
+    let name = |m: Option<DecimalMark>| match m {
+        None => "as the file suggests",
+        Some(DecimalMark::Point) => "point (3.14)",
+        Some(DecimalMark::Comma) => "comma (3,14)",
+    };
+    ui.horizontal(|ui| {
+        let label = ui.label("Decimal mark:");
+        egui::ComboBox::from_id_salt("decimal-mark")
+            .selected_text(name(current))
+            .show_ui(ui, |ui| {
+                for m in [None, Some(DecimalMark::Point), Some(DecimalMark::Comma)] {
+                    if ui.selectable_label(current == m, name(m)).clicked() && current != m {
+                        out.push(Action::ReadWithDecimal(m));
+                    }
+                }
+            })
+            .response
+            .labelled_by(label.id);
+    });
+    out
 }
 
 fn column_table_ui(loaded: &Loaded, ui: &mut egui::Ui) {

@@ -72,6 +72,29 @@ impl State {
         self.start_load(&data, session.data.load.to_options(), then);
     }
 
+    /// Reads the open file again with another decimal mark; the model, exclusions, reasons
+    /// and reading stay, and the work counts as unsaved (the session records how the file
+    /// is read).
+    pub(crate) fn read_with_decimal(&mut self, mark: Option<plumb_data::DecimalMark>) {
+        let Some(loaded) = &self.doc.loaded else {
+            return self.fail("open a data file first");
+        };
+        let path = loaded.dataset.path();
+        let options = plumb_data::LoadOptions {
+            decimal: mark,
+            ..loaded.dataset.options.clone()
+        };
+        let then = AfterLoad {
+            pair: self.bench.spec().cloned(),
+            kept: self.bench.kept().cloned(),
+            marks: Some(self.marks().clone()),
+            session: self.doc.session_path.clone(),
+            restoring: true,
+            reading: Some(self.bench.reading().clone()),
+        };
+        self.start_load(&path, options, then);
+    }
+
     fn start_load(&mut self, path: &Path, options: plumb_data::LoadOptions, then: AfterLoad) {
         self.doc.start_load(path, options, then, &self.waker);
         self.say(format!("reading {}…", path.display()));

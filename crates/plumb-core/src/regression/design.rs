@@ -226,8 +226,8 @@ mod tests {
 
     #[test]
     fn a_column_called_intercept_leaves_the_names_unambiguous() {
-        let a = [1.0, 2.0, 3.0];
-        let d = Design::linear(&[("intercept", &a), ("b", &a), ("b", &a)], true);
+        let (a, cubes) = ([1.0, 2.0, 3.0], [1.0, 8.0, 27.0]);
+        let d = Design::linear(&[("intercept", &a), ("b", &a), ("b", &cubes)], true);
         let names: Vec<&str> = d.terms().iter().map(|t| t.name.as_str()).collect();
         assert_eq!(names, ["(intercept)", "intercept", "b", "b′"]);
         assert_eq!(d.terms()[0].kind, TermKind::Intercept);

@@ -89,7 +89,15 @@ impl Page<'_> {
             ),
             html(&input.sha256)
         )?;
+        writeln!(
+            out,
+            "<dt>read as</dt><dd>{}</dd>",
+            html(&input.table.format().to_string())
+        )?;
         writeln!(out, "<dt>rows</dt><dd>{} in the file; {} used; {} dropped for gaps; {} excluded by the analyst</dd></dl>", input.table.n_rows(), self.outcome.fit.n, sel.dropped.len(), sel.excluded.len())?;
+        for note in input.table.notes() {
+            writeln!(out, "<p class=\"small\">Reading note: {}.</p>", html(note))?;
+        }
         if !sel.dropped.is_empty() {
             let listed: Vec<String> = sel
                 .dropped
