@@ -6,7 +6,7 @@ use std::path::Path;
 fn main() {
     let root = Path::new(env!("CARGO_MANIFEST_DIR"));
     let corpus = root.join("corpus");
-    for t in ["delimited", "sheet", "session"] {
+    for t in ["delimited", "sheet", "session", "parquet", "rows"] {
         std::fs::create_dir_all(corpus.join(t)).expect("corpus folder");
     }
     let sources = [root.join("../tests/bad-input"), root.join("../demo-scenarios/data")];
@@ -21,6 +21,7 @@ fn main() {
             let target = match path.extension().and_then(|e| e.to_str()) {
                 Some("plumb") => "session",
                 Some("xlsx") => "sheet",
+                Some("parquet") => "parquet",
                 Some("csv" | "tsv" | "txt") => "delimited",
                 _ => continue,
             };
@@ -46,6 +47,13 @@ fn main() {
         }
         let bytes = book.save_to_buffer().expect("workbook");
         std::fs::write(corpus.join("sheet").join(format!("made-{k}.xlsx")), bytes).expect("write");
+    }
+    // Row lists: two bytes of table size (little-endian), then the list.
+    let lists = ["3,17,40-42", "1-18446744073709551615", " , 4 ,", "5-2", "0", "7-7,1"];
+    for (k, list) in lists.iter().enumerate() {
+        let mut seed = 50u16.to_le_bytes().to_vec();
+        seed.extend_from_slice(list.as_bytes());
+        std::fs::write(corpus.join("rows").join(format!("list-{k}")), seed).expect("write");
     }
     println!("seeds written to {}", corpus.display());
 }

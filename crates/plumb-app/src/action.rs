@@ -27,9 +27,14 @@ pub enum Action {
     },
     /// Stop reading the file being loaded.
     CancelLoad,
-    /// Read the open file again with this decimal mark (`None`: as the file suggests),
-    /// keeping the model, the exclusions and their reasons.
-    ReadWithDecimal(Option<plumb_data::DecimalMark>),
+    /// Read the open file again with this decimal mark and text encoding (`None`: as the
+    /// file suggests), keeping the model, the exclusions and their reasons.
+    ReadAs {
+        /// Decimal mark.
+        decimal: Option<plumb_data::DecimalMark>,
+        /// Text encoding.
+        encoding: Option<plumb_data::TextEncoding>,
+    },
     /// Open the system's file dialog.
     PickFile(DialogPurpose),
     /// Save the session to its file (or ask where, the first time).

@@ -6,7 +6,7 @@ use std::path::Path;
 use polars::prelude::{CsvParseOptions, CsvReadOptions, DataFrame, SerReader};
 
 use crate::cell::{classify, Cell, DecimalMark};
-use crate::progress::{read_all, Progress, Stage};
+use crate::progress::{read_all, Progress, ReadStop, Stage};
 use crate::sniff::{self, DecimalGuess, HeaderMode, Record};
 use crate::table::{SourceFormat, Table};
 use crate::{DataError, LoadOptions, Result};
@@ -20,8 +20,16 @@ pub(crate) fn load(
     options: &LoadOptions,
     progress: Option<&Progress>,
 ) -> Result<Table> {
-    crate::budget::check_text(path, options.memory_limit)?;
-    let bytes = read_all(path, progress)?;
+    let cap = crate::budget::text_read_cap(path, options.memory_limit)?;
+    let bytes = read_all(path, progress, cap).map_err(|stop| match stop {
+        ReadStop::Failed(e) => e,
+        ReadStop::PastCap(read) => {
+            crate::budget::unsized_too_large(path, read, options.memory_limit)
+        }
+    })?;
+    if cap.is_some() {
+        crate::budget::check_text_read(path, &bytes, options.memory_limit)?;
+    }
     from_bytes(path, &bytes, options, progress)
 }
 
@@ -38,8 +46,8 @@ pub(crate) fn from_bytes(
         }
     };
     stage(Stage::Parsing);
-    let text = bytes.strip_prefix(BOM).unwrap_or(bytes);
-    check_utf8(path, text)?;
+    let decoded = crate::encoding::decode(path, bytes, options.encoding)?;
+    let text: &[u8] = &decoded.text;
     let recs = records_of(path, text)?;
     let (delimiter, guess, header) = layout(text, &recs, options);
     check_field_counts(path, text, &recs, delimiter, header)?;
@@ -59,9 +67,11 @@ pub(crate) fn from_bytes(
             path: path.to_path_buf(),
         });
     }
-    let (decimal, notes) = settle_decimal(guess, delimiter, &names, &columns);
+    let (decimal, mut notes) = settle_decimal(guess, delimiter, &names, &columns);
+    notes.extend(decoded.note);
     let cells = typed(columns, decimal, &options.missing_tokens);
     let format = SourceFormat::Delimited {
+        encoding: decoded.encoding,
         delimiter,
         decimal,
         header,
@@ -181,22 +191,6 @@ fn typed(
                 .collect()
         })
         .collect()
-}
-
-fn check_utf8(path: &Path, text: &[u8]) -> Result<()> {
-    match std::str::from_utf8(text) {
-        Ok(_) => Ok(()),
-        Err(e) => {
-            let line = 1 + text[..e.valid_up_to()]
-                .iter()
-                .filter(|&&b| b == b'\n')
-                .count();
-            Err(DataError::NotUtf8 {
-                path: path.to_path_buf(),
-                line,
-            })
-        }
-    }
 }
 
 fn check_field_counts(

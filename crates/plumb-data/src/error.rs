@@ -50,7 +50,7 @@ pub enum DataError {
         available: String,
     },
     /// Bytes that are not UTF-8.
-    #[error("{}, line {line}: the bytes are not valid UTF-8 (perhaps a legacy encoding such as Windows-1252); re-save the file as UTF-8", path.display())]
+    #[error("{}, line {line}: the bytes are not valid UTF-8, which was asked for; choose the file's encoding (--encoding windows-1252, or utf-16le/utf-16be), or re-save the file as UTF-8", path.display())]
     NotUtf8 {
         /// File.
         path: PathBuf,

@@ -12,6 +12,7 @@ pub mod analysis;
 mod budget;
 mod cell;
 mod delimited;
+mod encoding;
 mod error;
 mod parquet;
 mod progress;
@@ -22,8 +23,9 @@ mod sniff;
 mod stream;
 mod table;
 
-pub use budget::{available_memory, TEXT_EXPANSION};
+pub use budget::{available_memory, text_need, TEXT_BYTE_FACTOR, TEXT_CELL_BYTES};
 pub use cell::{Cell, DecimalMark, DEFAULT_MISSING_TOKENS};
+pub use encoding::TextEncoding;
 pub use error::{DataError, Result};
 pub use progress::{Progress, Stage};
 pub use rows::RowList;
@@ -43,6 +45,9 @@ pub struct LoadOptions {
     pub header: HeaderMode,
     /// Decimal mark of numbers in text files; `None` detects it.
     pub decimal: Option<DecimalMark>,
+    /// Text encoding of text files; `None` detects it (byte-order mark, then UTF-16 by its
+    /// zero bytes, then UTF-8, then Windows-1252 with a note).
+    pub encoding: Option<TextEncoding>,
     /// Extra cell values that mean "missing" (e.g. `-999`), beside [`DEFAULT_MISSING_TOKENS`].
     pub missing_tokens: Vec<String>,
     /// Spreadsheet sheet to read; `None` reads the first.
@@ -94,6 +99,15 @@ pub fn load_bytes(
     }
 }
 
+/// Reads a Parquet file from bytes already in memory; `label` stands for the file in
+/// messages.
+///
+/// # Errors
+/// As [`load`].
+pub fn load_parquet_bytes(label: &Path, bytes: &[u8], options: &LoadOptions) -> Result<Table> {
+    parquet::from_bytes(label, bytes, options)
+}
+
 /// Whether [`load`] would accept `path` under its memory cap (see `LoadOptions::memory_limit`),
 /// checked from the file's size (and a workbook's directory) without reading the data.
 ///
@@ -103,7 +117,7 @@ pub fn fits_in_memory(path: &Path, options: &LoadOptions) -> Result<()> {
     match extension_of(path).as_str() {
         "parquet" | "pq" => Ok(()), // checked from the file's metadata when it is opened
         "xlsx" | "xlsm" | "xlsb" | "xls" | "ods" => budget::check_sheet(path, options.memory_limit),
-        _ => budget::check_text(path, options.memory_limit),
+        _ => budget::text_read_cap(path, options.memory_limit).map(|_| ()),
     }
 }
 

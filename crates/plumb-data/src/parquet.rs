@@ -9,16 +9,18 @@ use crate::table::{SourceFormat, Table};
 use crate::{DataError, LoadOptions, Result};
 
 pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
+    // Read once: the hash is of the bytes the table comes from.
+    let bytes = crate::budget::read_binary(path, options.memory_limit)?;
+    from_bytes(path, &bytes, options)
+}
+
+/// A Parquet file already in memory; `path` names it in messages.
+pub(crate) fn from_bytes(path: &Path, bytes: &[u8], options: &LoadOptions) -> Result<Table> {
     let parse_error = |e: &dyn std::fmt::Display| DataError::Parse {
         path: path.to_path_buf(),
         message: format!("not a readable Parquet file ({e})"),
     };
-    // Read once: the hash is of the bytes the table comes from.
-    let bytes = std::fs::read(path).map_err(|source| DataError::Io {
-        path: path.to_path_buf(),
-        source,
-    })?;
-    let mut reader = ParquetReader::new(std::io::Cursor::new(&bytes[..]));
+    let mut reader = ParquetReader::new(std::io::Cursor::new(bytes));
     let rows = reader.num_rows().map_err(|e| parse_error(&e))?;
     let schema = reader.schema().map_err(|e| parse_error(&e))?;
     // Only numbers and text are read (this build of polars holds no dates, decimals, lists or
@@ -98,7 +100,7 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
         };
         cells.push(col);
     }
-    Ok(Table::new(path, SourceFormat::Parquet, names, cells, notes).with_sha256(&bytes))
+    Ok(Table::new(path, SourceFormat::Parquet, names, cells, notes).with_sha256(bytes))
 }
 
 /// Whether a Parquet column's type is read: numbers, booleans and text.

@@ -4,7 +4,7 @@ use std::io::Read;
 use std::path::Path;
 use std::sync::atomic::{AtomicU64, AtomicU8, Ordering};
 
-use crate::{DataError, Result};
+use crate::DataError;
 
 /// Stage of a load.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -48,13 +48,27 @@ impl Progress {
 const CHUNK: usize = 1 << 20;
 
 /// Reads the whole file, counting bytes into `progress`.
-pub(crate) fn read_all(path: &Path, progress: Option<&Progress>) -> Result<Vec<u8>> {
-    let io = |source| DataError::Io {
-        path: path.to_path_buf(),
-        source,
-    };
-    let Some(progress) = progress else {
-        return std::fs::read(path).map_err(io);
+/// Why a read stopped.
+#[derive(Debug)]
+pub(crate) enum ReadStop {
+    /// The operating system refused it.
+    Failed(DataError),
+    /// More bytes than the cap were read (this many).
+    PastCap(u64),
+}
+
+/// Reads the whole file, counting bytes into `progress`; with `cap`, stops past that many
+/// bytes (an input of unknown size: a pipe, a device).
+pub(crate) fn read_all(
+    path: &Path,
+    progress: Option<&Progress>,
+    cap: Option<u64>,
+) -> std::result::Result<Vec<u8>, ReadStop> {
+    let io = |source| {
+        ReadStop::Failed(DataError::Io {
+            path: path.to_path_buf(),
+            source,
+        })
     };
     let mut file = std::fs::File::open(path).map_err(io)?;
     let size = file.metadata().map(|m| m.len()).unwrap_or(0);
@@ -66,7 +80,12 @@ pub(crate) fn read_all(path: &Path, progress: Option<&Progress>) -> Result<Vec<u
             break;
         }
         bytes.extend_from_slice(&chunk[..n]);
-        progress.bytes_read.fetch_add(n as u64, Ordering::Relaxed);
+        if let Some(p) = progress {
+            p.bytes_read.fetch_add(n as u64, Ordering::Relaxed);
+        }
+        if cap.is_some_and(|c| bytes.len() as u64 > c) {
+            return Err(ReadStop::PastCap(bytes.len() as u64));
+        }
     }
     Ok(bytes)
 }
@@ -83,7 +102,7 @@ mod tests {
         std::fs::write(&path, &text).expect("write");
         let p = Progress::default();
         assert_eq!(p.stage(), Stage::Reading);
-        let bytes = read_all(&path, Some(&p)).expect("read");
+        let bytes = read_all(&path, Some(&p), None).expect("read");
         assert_eq!(bytes.len(), text.len());
         assert_eq!(p.bytes_read(), text.len() as u64);
         p.enter(Stage::Typing);

@@ -12,10 +12,7 @@ use crate::{DataError, LoadOptions, Result};
 pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
     crate::budget::check_sheet(path, options.memory_limit)?;
     // Read once: the hash is of the bytes the table comes from.
-    let bytes = std::fs::read(path).map_err(|source| DataError::Io {
-        path: path.to_path_buf(),
-        source,
-    })?;
+    let bytes = crate::budget::read_binary(path, options.memory_limit)?;
     from_bytes(path, bytes, options)
 }
 

@@ -14,6 +14,7 @@ use std::path::Path;
 
 use rayon::prelude::*;
 
+use crate::encoding::TextEncoding;
 use crate::select::{first_fault, Dropped};
 use crate::sniff::{self, HeaderMode};
 use crate::table::{ColumnValues, SourceFormat, Table};
@@ -116,6 +117,7 @@ pub fn stream_columns(
     let first = reader.next_chunk().map_err(io)?.unwrap_or_default();
     // The first chunk settles the format (and the header, when there is one).
     let head = delimited::from_bytes(path, &first.text, &options.load, None)?;
+    refuse_two_byte_text(path, &head)?;
     for name in names {
         head.numeric(name)?;
     }
@@ -157,6 +159,25 @@ pub fn stream_columns(
     Ok(pass.summary)
 }
 
+/// Chunks are cut at line-break bytes, which in UTF-16 are half of a character: such files
+/// are read whole, not streamed.
+fn refuse_two_byte_text(path: &Path, head: &Table) -> Result<()> {
+    match head.format() {
+        SourceFormat::Delimited {
+            encoding: e @ (TextEncoding::Utf16Le | TextEncoding::Utf16Be),
+            ..
+        } => Err(DataError::Parse {
+            path: path.to_path_buf(),
+            message: format!(
+                "{} text is not read in one pass; re-save the file as UTF-8, or open it whole \
+                 (plumb fit, or the workbench) if it fits in memory",
+                e.as_str()
+            ),
+        }),
+        _ => Ok(()),
+    }
+}
+
 /// One pass over the file: the settled format, where the next chunk starts, and the account.
 struct Pass<'a> {
     path: &'a Path,
@@ -179,6 +200,7 @@ impl<'a> Pass<'a> {
     ) -> Self {
         let format = head.format().clone();
         let SourceFormat::Delimited {
+            encoding,
             delimiter,
             decimal,
             header,
@@ -187,6 +209,7 @@ impl<'a> Pass<'a> {
             unreachable!("delimited text");
         };
         let fixed = LoadOptions {
+            encoding: Some(encoding),
             delimiter: Some(delimiter),
             decimal: Some(decimal),
             header: if header {

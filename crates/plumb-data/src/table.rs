@@ -4,12 +4,15 @@ use std::collections::{HashMap, HashSet};
 use std::path::{Path, PathBuf};
 
 use crate::cell::{Cell, DecimalMark};
+use crate::encoding::TextEncoding;
 
 /// How the file was read, so that the same reading can be repeated and reported.
 #[derive(Debug, Clone, PartialEq)]
 pub enum SourceFormat {
     /// Delimited text.
     Delimited {
+        /// The text encoding read.
+        encoding: TextEncoding,
         /// Field delimiter.
         delimiter: u8,
         /// Decimal mark of numbers.
@@ -29,11 +32,12 @@ pub enum SourceFormat {
 }
 
 impl std::fmt::Display for SourceFormat {
-    /// How the file was read, in one line: `text, delimiter ';', decimal comma, header row`.
+    /// How the file was read, in one line: `text (utf-8), delimiter ';', decimal comma, header row`.
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         let header = |h: bool| if h { "header row" } else { "no header row" };
         match self {
             Self::Delimited {
+                encoding,
                 delimiter,
                 decimal,
                 header: h,
@@ -48,7 +52,8 @@ impl std::fmt::Display for SourceFormat {
                 };
                 write!(
                     f,
-                    "text, delimiter {delimiter}, decimal {decimal}, {}",
+                    "text ({}), delimiter {delimiter}, decimal {decimal}, {}",
+                    encoding.as_str(),
                     header(*h)
                 )
             }

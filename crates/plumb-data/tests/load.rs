@@ -31,6 +31,7 @@ fn semicolon_export_with_bom_decimal_commas_and_crlf() {
     assert_eq!(
         table.format(),
         &SourceFormat::Delimited {
+            encoding: plumb_data::TextEncoding::Utf8,
             delimiter: b';',
             decimal: DecimalMark::Comma,
             header: true
@@ -103,10 +104,26 @@ fn ragged_row_names_line_and_row() {
 }
 
 #[test]
-fn non_utf8_bytes_name_the_line() {
+fn legacy_bytes_are_read_as_windows_1252_with_a_note_naming_the_line() {
     let dir = tempfile::tempdir().expect("tempdir");
     let path = write(&dir, "latin1.csv", b"site,value\nA,1\nM\xFCnchen,2\n");
-    let err = load(&path, &LoadOptions::default()).expect_err("not UTF-8");
+    let table = load(&path, &LoadOptions::default()).expect("read as Windows-1252");
+    assert!(matches!(
+        table.columns()[0].values,
+        ColumnValues::Text { ref values, .. } if values[1].as_deref() == Some("München")
+    ));
+    let notes = table.notes().join("\n");
+    assert!(notes.contains("not UTF-8 (first at line 3)"), "{notes}");
+    assert!(table
+        .format()
+        .to_string()
+        .starts_with("text (windows-1252)"));
+    // Asked for UTF-8, the same bytes are refused with their line.
+    let utf8 = LoadOptions {
+        encoding: Some(plumb_data::TextEncoding::Utf8),
+        ..LoadOptions::default()
+    };
+    let err = load(&path, &utf8).expect_err("not UTF-8");
     assert!(matches!(err, DataError::NotUtf8 { line: 3, .. }), "{err}");
 }
 
@@ -229,4 +246,57 @@ fn an_unsettled_decimal_mark_is_assumed_with_a_note_and_a_late_cell_settles_it()
     assert_eq!(numbers(&table, "mass")[0], Some(1.25));
     assert_eq!(numbers(&table, "mass")[240], Some(7.5));
     assert!(table.notes().is_empty(), "{:?}", table.notes());
+}
+
+#[test]
+fn inputs_of_unknown_size_are_read_up_to_the_budget() {
+    let small = LoadOptions {
+        memory_limit: Some(16 << 20),
+        ..LoadOptions::default()
+    };
+    // /dev/zero reports a size of 0 and never ends: refused after 1 MB, not read forever.
+    for name in ["/dev/zero", "zeros.parquet", "zeros.xlsx"] {
+        let dir = tempfile::tempdir().expect("tempdir");
+        let path = if name.starts_with('/') {
+            PathBuf::from(name)
+        } else {
+            let link = dir.path().join(name);
+            std::os::unix::fs::symlink("/dev/zero", &link).expect("symlink");
+            link
+        };
+        let err = load(&path, &small).expect_err("endless");
+        assert!(matches!(err, DataError::TooLarge { .. }), "{name}: {err}");
+        assert!(err.to_string().contains(name), "{err}");
+    }
+    // A pipe: a small table written into it loads; a large one is refused by bytes read.
+    let dir = tempfile::tempdir().expect("tempdir");
+    let fifo = dir.path().join("feed.csv");
+    let made = std::process::Command::new("mkfifo").arg(&fifo).status();
+    assert!(
+        made.is_ok_and(|s| s.success()),
+        "mkfifo (coreutils) makes the pipe"
+    );
+    for (rows, fits) in [(100usize, true), (400_000, false)] {
+        let writer = {
+            let fifo = fifo.clone();
+            std::thread::spawn(move || {
+                let mut f = std::fs::OpenOptions::new()
+                    .write(true)
+                    .open(&fifo)
+                    .expect("open pipe");
+                let _ = f.write_all(b"x,y\n");
+                for i in 0..rows {
+                    if f.write_all(format!("{i},{}\n", i * 2).as_bytes()).is_err() {
+                        break; // the reader stopped: refused
+                    }
+                }
+            })
+        };
+        let read = load(&fifo, &small);
+        writer.join().expect("writer");
+        match read {
+            Ok(t) => assert!(fits && t.n_rows() == rows, "{rows} rows"),
+            Err(e) => assert!(!fits && matches!(e, DataError::TooLarge { .. }), "{e}"),
+        }
+    }
 }

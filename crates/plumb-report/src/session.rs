@@ -78,6 +78,10 @@ pub struct LoadSpec {
     /// "auto", "point" or "comma".
     #[serde(default = "auto")]
     pub decimal: String,
+    /// "auto", or the text encoding to read ("utf-8", "utf-16le", "utf-16be",
+    /// "windows-1252"); a saved session names the encoding the file was read in.
+    #[serde(default = "auto")]
+    pub encoding: String,
     /// Extra missing-value tokens.
     #[serde(default)]
     pub missing: Vec<String>,
@@ -104,10 +108,21 @@ impl LoadSpec {
                 "comma" => Some(DecimalMark::Comma),
                 _ => None,
             },
+            encoding: plumb_data::TextEncoding::parse(&self.encoding),
             missing_tokens: self.missing.clone(),
             sheet: self.sheet.clone(),
             memory_limit: None,
         }
+    }
+
+    /// The spec of `options` with the encoding `table` was actually read in, so a rerun on
+    /// another machine reads the file the same way.
+    pub fn as_read(options: &LoadOptions, table: &plumb_data::Table) -> Self {
+        let mut spec = Self::from_options(options);
+        if let plumb_data::SourceFormat::Delimited { encoding, .. } = table.format() {
+            spec.encoding = encoding.as_str().into();
+        }
+        spec
     }
 
     /// The spec that records `options`.
@@ -126,6 +141,10 @@ impl LoadSpec {
                 Some(DecimalMark::Comma) => "comma",
             }
             .into(),
+            encoding: options
+                .encoding
+                .map_or("auto", plumb_data::TextEncoding::as_str)
+                .into(),
             missing: options.missing_tokens.clone(),
             sheet: options.sheet.clone(),
         }
@@ -669,6 +688,7 @@ mod tests {
             delimiter: Some(b';'),
             header: HeaderMode::No,
             decimal: Some(DecimalMark::Comma),
+            encoding: Some(plumb_data::TextEncoding::Windows1252),
             missing_tokens: vec!["-999".into()],
             sheet: Some("runs".into()),
             memory_limit: None,

@@ -6,7 +6,7 @@ use clap::{Args as ClapArgs, Parser, Subcommand, ValueEnum};
 use plumb_core::calibration::WeightRule;
 use plumb_core::regression::Transform;
 use plumb_data::analysis::{Factor, ResponseScale};
-use plumb_data::{DecimalMark, HeaderMode, LoadOptions, RowList};
+use plumb_data::{DecimalMark, HeaderMode, LoadOptions, RowList, TextEncoding};
 
 /// Plumbline: exploratory fitting with honest numbers.
 #[derive(Debug, Parser)]
@@ -241,6 +241,11 @@ pub struct LoadArgs {
     /// Decimal mark of numbers in a text file.
     #[arg(long, value_enum, default_value_t = DecimalArg::Auto)]
     pub decimal: DecimalArg,
+    /// Text encoding of a text file: utf-8, utf-16le, utf-16be or windows-1252 (also
+    /// latin-1); by default the byte-order mark, then UTF-16 by its zero bytes, then UTF-8, then Windows-1252
+    /// with a note.
+    #[arg(long, value_parser = parse_encoding)]
+    pub encoding: Option<TextEncoding>,
     /// A cell value that means "missing" (repeatable), beside empty, NA, N/A, NaN and ".".
     #[arg(long = "missing", value_name = "TOKEN")]
     pub missing: Vec<String>,
@@ -264,6 +269,7 @@ impl LoadArgs {
                 DecimalArg::Point => Some(DecimalMark::Point),
                 DecimalArg::Comma => Some(DecimalMark::Comma),
             },
+            encoding: self.encoding,
             missing_tokens: self.missing.clone(),
             sheet: self.sheet.clone(),
             memory_limit: None,
@@ -769,6 +775,12 @@ pub struct StreamArgs {
     /// Output format.
     #[arg(long, value_enum, default_value_t = Format::Text)]
     pub format: Format,
+}
+
+fn parse_encoding(s: &str) -> Result<TextEncoding, String> {
+    TextEncoding::parse(s).ok_or_else(|| {
+        format!("'{s}' is not an encoding read here: utf-8, utf-16le, utf-16be or windows-1252")
+    })
 }
 
 /// `--exclude ROWS`: parsed by the data layer, where it is fuzzed.

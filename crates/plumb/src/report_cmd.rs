@@ -314,7 +314,7 @@ fn session_of(
             ),
             sha256,
             rows: table.n_rows(),
-            load: LoadSpec::from_options(&args.load.options()),
+            load: LoadSpec::as_read(&args.load.options(), table),
         },
         models: vec![ModelSpec::from_request(request)],
         exclusions: exclusions.to_vec(),

@@ -284,9 +284,10 @@ fn choosing_the_decimal_mark_rereads_the_file_and_keeps_the_work() {
     });
     settle(&mut wb);
 
-    wb.apply(Action::ReadWithDecimal(Some(
-        plumb_data::DecimalMark::Comma,
-    )));
+    wb.apply(Action::ReadAs {
+        decimal: Some(plumb_data::DecimalMark::Comma),
+        encoding: None,
+    });
     settle(&mut wb);
     let dataset = &wb.loaded().expect("loaded").dataset;
     assert_eq!(dataset.table.numeric("y").expect("y")[0], Some(1.234));
@@ -311,4 +312,33 @@ fn choosing_the_decimal_mark_rereads_the_file_and_keeps_the_work() {
         saved.contains("decimal = \"comma\"") || saved.contains("\"decimal\": \"comma\""),
         "{saved}"
     );
+}
+
+#[test]
+fn a_pipe_with_no_writer_does_not_hold_the_workbench() {
+    let config = tempfile::tempdir().expect("config");
+    let dir = tempfile::tempdir().expect("data");
+    let fifo = dir.path().join("feed.csv");
+    let made = std::process::Command::new("mkfifo").arg(&fifo).status();
+    assert!(
+        made.is_ok_and(|s| s.success()),
+        "mkfifo (coreutils) makes the pipe"
+    );
+    let mut wb = Workbench::new(Some(config.path().to_path_buf()));
+    // The read blocks on its own thread (as `cat` would); the workbench answers and can stop it.
+    wb.apply(Action::Open(fifo.clone()));
+    assert!(wb.is_busy(), "reading");
+    assert!(
+        !wb.settle(std::time::Duration::from_millis(300)),
+        "no writer: still reading"
+    );
+    wb.apply(Action::CancelLoad);
+    assert!(!wb.is_busy());
+    assert!(
+        wb.status()
+            .is_some_and(|s| format!("{s:?}").contains("stopped reading")),
+        "{:?}",
+        wb.status()
+    );
+    assert!(wb.loaded().is_none());
 }

@@ -53,7 +53,16 @@ const CASES: &[(&str, &[&str], i32, &str)] = &[
         1,
         "3 complete rows for 4 parameters",
     ),
-    ("non-utf8.csv", &[], 1, "not valid UTF-8"),
+    ("non-utf8.csv", &[], 0, "read as Windows-1252"),
+    (
+        "non-utf8.csv",
+        &["--encoding", "utf-8"],
+        1,
+        "line 2: the bytes are not valid UTF-8, which was asked for",
+    ),
+    ("utf16le-bom.csv", &[], 0, "4 used of 4"),
+    ("utf16be-bom.csv", &[], 0, "4 used of 4"),
+    ("windows-1252-units.csv", &[], 0, "read as Windows-1252"),
     (
         "duplicate-names.csv",
         &["--x", "x_2"],

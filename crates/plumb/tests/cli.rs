@@ -732,7 +732,7 @@ mod summary {
         assert!(run.status.success(), "{}", stderr(&run));
         let html = std::fs::read_to_string(&out).expect("page");
         let read_as =
-            "<dt>read as</dt><dd>text, delimiter &#39;;&#39;, decimal point, header row</dd>";
+            "<dt>read as</dt><dd>text (utf-8), delimiter &#39;;&#39;, decimal point, header row</dd>";
         assert!(html.contains(read_as), "{html}");
         assert!(html.contains("Reading note: no cell settles the decimal mark"));
     }

@@ -103,10 +103,10 @@ fn file_facts_ui(loaded: &Loaded, ui: &mut egui::Ui) -> Actions {
     out
 }
 
-/// The decimal mark of a text file: as the file suggests, or the analyst's choice (the file
-/// is read again; the work stays).
+/// How a text file is read: its decimal mark and encoding, as the file suggests or as the
+/// analyst chooses (the file is read again; the work stays).
 fn decimal_ui(loaded: &Loaded, ui: &mut egui::Ui) -> Actions {
-    use plumb_data::DecimalMark;
+    use plumb_data::{DecimalMark, TextEncoding};
     let mut out = Actions::none();
     if !matches!(
         loaded.dataset.table.format(),
@@ -114,27 +114,58 @@ fn decimal_ui(loaded: &Loaded, ui: &mut egui::Ui) -> Actions {
     ) {
         return out;
     }
-    let current = loaded.dataset.options.decimal;
-    let name = |m: Option<DecimalMark>| match m {
+    let options = &loaded.dataset.options;
+    let (decimal, encoding) = (options.decimal, options.encoding);
+    let mark_name = |m: Option<DecimalMark>| match m {
         None => "as the file suggests",
         Some(DecimalMark::Point) => "point (3.14)",
         Some(DecimalMark::Comma) => "comma (3,14)",
     };
+    let encoding_name =
+        |e: Option<TextEncoding>| e.map_or("as the file suggests", TextEncoding::as_str);
     ui.horizontal(|ui| {
-        let label = ui.label("Decimal mark:");
-        egui::ComboBox::from_id_salt("decimal-mark")
-            .selected_text(name(current))
-            .show_ui(ui, |ui| {
-                for m in [None, Some(DecimalMark::Point), Some(DecimalMark::Comma)] {
-                    if ui.selectable_label(current == m, name(m)).clicked() && current != m {
-                        out.push(Action::ReadWithDecimal(m));
-                    }
-                }
-            })
-            .response
-            .labelled_by(label.id);
+        let marks = [None, Some(DecimalMark::Point), Some(DecimalMark::Comma)];
+        if let Some(m) = choice(ui, "Decimal mark:", decimal, &marks, mark_name) {
+            out.push(Action::ReadAs {
+                decimal: m,
+                encoding,
+            });
+        }
+        let encodings: Vec<Option<TextEncoding>> = std::iter::once(None)
+            .chain(TextEncoding::ALL.map(Some))
+            .collect();
+        if let Some(e) = choice(ui, "Encoding:", encoding, &encodings, encoding_name) {
+            out.push(Action::ReadAs {
+                decimal,
+                encoding: e,
+            });
+        }
     });
     out
+}
+
+/// A labelled drop-down of `options`; the one picked, when it differs from `current`.
+fn choice<T: Copy + PartialEq>(
+    ui: &mut egui::Ui,
+    label: &str,
+    current: T,
+    options: &[T],
+    name: impl Fn(T) -> &'static str,
+) -> Option<T> {
+    let mut picked = None;
+    let label = ui.label(label);
+    egui::ComboBox::from_id_salt(label.id)
+        .selected_text(name(current))
+        .show_ui(ui, |ui| {
+            for &o in options {
+                if ui.selectable_label(current == o, name(o)).clicked() && current != o {
+                    picked = Some(o);
+                }
+            }
+        })
+        .response
+        .labelled_by(label.id);
+    picked
 }
 
 fn column_table_ui(loaded: &Loaded, ui: &mut egui::Ui) {

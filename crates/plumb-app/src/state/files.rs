@@ -72,16 +72,21 @@ impl State {
         self.start_load(&data, session.data.load.to_options(), then);
     }
 
-    /// Reads the open file again with another decimal mark; the model, exclusions, reasons
-    /// and reading stay, and the work counts as unsaved (the session records how the file
-    /// is read).
-    pub(crate) fn read_with_decimal(&mut self, mark: Option<plumb_data::DecimalMark>) {
+    /// Reads the open file again with another decimal mark or encoding; the model,
+    /// exclusions, reasons and reading stay, and the work counts as unsaved (the session
+    /// records how the file is read).
+    pub(crate) fn read_as(
+        &mut self,
+        decimal: Option<plumb_data::DecimalMark>,
+        encoding: Option<plumb_data::TextEncoding>,
+    ) {
         let Some(loaded) = &self.doc.loaded else {
             return self.fail("open a data file first");
         };
         let path = loaded.dataset.path();
         let options = plumb_data::LoadOptions {
-            decimal: mark,
+            decimal,
+            encoding,
             ..loaded.dataset.options.clone()
         };
         let then = AfterLoad {

@@ -33,7 +33,7 @@ pub fn session_of(
             path: Session::data_path_for(data.table.source(), session_path),
             sha256: sha256.to_string(),
             rows: data.table.n_rows(),
-            load: LoadSpec::from_options(&data.options),
+            load: LoadSpec::as_read(&data.options, &data.table),
         },
         models: spec
             .map(|s| ModelSpec::from_request(&s.model()))

@@ -14,7 +14,7 @@ impl Workbench {
             Action::Open(path) => s.open_path(&path),
             Action::OpenOnePass { path, pair } => s.open_one_pass(&path, pair),
             Action::CancelLoad => s.cancel_load(),
-            Action::ReadWithDecimal(mark) => s.read_with_decimal(mark),
+            Action::ReadAs { decimal, encoding } => s.read_as(decimal, encoding),
             Action::PickFile(purpose) => s.pick_file(purpose),
             Action::SaveSession => s.save_session(),
             Action::SaveSessionTo(path) => s.save_session_to(&path),
