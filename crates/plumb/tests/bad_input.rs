@@ -2,8 +2,11 @@
 //! the command line and must give the expected exit code and a message that names the file and
 //! says what is wrong; nothing panics, and no input file is ever written.
 
+mod common;
+
 use std::path::{Path, PathBuf};
-use std::process::Command;
+
+use common::run_plumb;
 
 fn corpus(name: &str) -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR"))
@@ -144,22 +147,10 @@ const SESSIONS: &[(&str, &str)] = &[
     ("no-model.plumb", "names no model"),
 ];
 
-fn run(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_plumb"))
-        .args(args)
-        .output()
-        .expect("plumb runs");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
-}
-
 fn check(name: &str, args: &[&str], code: i32, expect: &str) -> Result<(), String> {
     let path = corpus(name);
     let before = std::fs::read(&path).map_err(|e| format!("{name}: {e}"))?;
-    let (got, stdout, stderr) = run(args);
+    let (got, stdout, stderr) = run_plumb(args);
     let after = std::fs::read(&path).map_err(|e| format!("{name}: {e}"))?;
     let shown = if code == 0 { &stdout } else { &stderr };
     let mut problems = Vec::new();
@@ -236,7 +227,7 @@ fn a_ten_megabyte_line_is_refused_with_a_short_message() {
     text.push_str(&"z".repeat(10 * 1024 * 1024));
     text.push_str("\n2,3\n3,4\n");
     std::fs::write(&path, &text).expect("write");
-    let (code, _, stderr) = run(&["fit", &path.to_string_lossy(), "--y", "y", "--x", "x"]);
+    let (code, _, stderr) = run_plumb(&["fit", &path.to_string_lossy(), "--y", "y", "--x", "x"]);
     assert_eq!(code, 1, "{}", &stderr[..stderr.len().min(300)]);
     assert!(
         stderr.contains("not a number") && stderr.len() < 1000,
@@ -265,7 +256,7 @@ fn the_workbench_loader_answers_the_corpus_as_the_command_line_does() {
             args.extend(["--x", "x"]);
         }
         args.extend_from_slice(extra);
-        let (cli_code, _, stderr) = run(&args);
+        let (cli_code, _, stderr) = run_plumb(&args);
         let loaded = std::panic::catch_unwind(|| Dataset::load(&path, &Default::default()));
         match loaded {
             Err(_) => failures.push(format!("{name}: the workbench loader panicked")),
@@ -354,7 +345,7 @@ fn the_files_that_load_fit_to_the_numbers_worked_here() {
         let slope = sxy / sxx / scale;
         let r2 = sxy * sxy / (sxx * syy);
         let p = path.to_string_lossy().into_owned();
-        let (code, out, err) = run(&["fit", &p, "--y", "y", "--x", "x", "--format", "json"]);
+        let (code, out, err) = run_plumb(&["fit", &p, "--y", "y", "--x", "x", "--format", "json"]);
         assert_eq!(code, 0, "{name}: {err}");
         let v: serde_json::Value = serde_json::from_str(&out).expect("json");
         let got_slope = v["coefficients"][1]["estimate"].as_f64().expect("slope");
@@ -382,7 +373,7 @@ fn outputs_never_overwrite_inputs() {
     std::fs::hard_link(d("data.csv"), d("hard.html")).expect("hard link");
     #[cfg(unix)]
     std::os::unix::fs::symlink(d("data.csv"), d("soft.html")).expect("symlink");
-    let (code, _, err) = run(&[
+    let (code, _, err) = run_plumb(&[
         "report",
         &d("data.csv"),
         "--y",
@@ -499,7 +490,7 @@ fn outputs_never_overwrite_inputs() {
     ];
     for (args, expect) in cases {
         let args: Vec<&str> = args.iter().map(String::as_str).collect();
-        let (code, _, err) = run(&args);
+        let (code, _, err) = run_plumb(&args);
         assert_eq!(code, 1, "{args:?}: {err}");
         assert!(
             err.contains("refusing to write") && err.contains(expect),

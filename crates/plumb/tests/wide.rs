@@ -2,14 +2,17 @@
 //! map refuse with the size they would need instead of exhausting memory; below it, a map too
 //! dense for one shape a cell is drawn as an image and still counts its pairs.
 
+mod common;
+
 use std::path::{Path, PathBuf};
-use std::process::Command;
 use std::time::{Duration, Instant};
 
 use eframe::egui;
 use egui_kittest::kittest::Queryable;
 use egui_kittest::Harness;
 use plumb_app::{Action, Workbench};
+
+use common::run_plumb;
 
 /// A CSV of `k` numeric columns `c0…` and 6 rows of varied values.
 fn wide_csv(dir: &Path, k: usize) -> PathBuf {
@@ -26,25 +29,13 @@ fn wide_csv(dir: &Path, k: usize) -> PathBuf {
     path
 }
 
-fn plumb(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_plumb"))
-        .args(args)
-        .output()
-        .expect("plumb runs");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
-}
-
 #[test]
 fn corr_refuses_a_matrix_past_the_cap_and_says_how_to_name_columns() {
     let dir = tempfile::tempdir().expect("tempdir");
     let k = plumb_core::association::MATRIX_MAX_COLUMNS + 1;
     let data = wide_csv(dir.path(), k);
     let file = data.to_string_lossy().into_owned();
-    let (code, _, stderr) = plumb(&["corr", &file]);
+    let (code, _, stderr) = run_plumb(&["corr", &file]);
     assert_eq!(code, 1, "{stderr}");
     assert!(!stderr.contains("panicked"), "{stderr}");
     let pairs = k * (k - 1) / 2;
@@ -55,7 +46,7 @@ fn corr_refuses_a_matrix_past_the_cap_and_says_how_to_name_columns() {
     ] {
         assert!(stderr.contains(part), "missing '{part}' in: {stderr}");
     }
-    let (code, stdout, stderr) = plumb(&["corr", &file, "--columns", "c0,c1,c2"]);
+    let (code, stdout, stderr) = run_plumb(&["corr", &file, "--columns", "c0,c1,c2"]);
     assert_eq!(code, 0, "{stderr}");
     assert!(stdout.contains("3 pairs of 3 columns"), "{stdout}");
 }

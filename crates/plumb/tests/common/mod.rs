@@ -10,6 +10,19 @@ use std::time::Duration;
 use plumb_app::Workbench;
 use plumb_core::regression::LiveSummary;
 
+/// `plumb ARGS…`: exit code, standard output, standard error.
+pub fn run_plumb(args: &[&str]) -> (i32, String, String) {
+    let out = Command::new(env!("CARGO_BIN_EXE_plumb"))
+        .args(args)
+        .output()
+        .expect("plumb runs");
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
 /// A demo scenario's data file.
 pub fn demo(name: &str) -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR"))
