@@ -8,7 +8,7 @@ use thiserror::Error;
 #[derive(Debug, Error)]
 pub enum DataError {
     /// Loading the file would need more memory than is available.
-    #[error("{}: {bytes} bytes of text need about {} MB of memory to load, more than the {} MB available; load a smaller extract (fewer rows or columns), or convert the columns you need to Parquet", path.display(), need / 1_000_000, limit / 1_000_000)]
+    #[error("{}: {bytes} bytes need about {} MB of memory to load, more than the {} MB allowed (the memory available, or the cap for this kind of file); load a smaller extract (fewer rows or columns), or convert the columns you need to Parquet", path.display(), need / 1_000_000, limit / 1_000_000)]
     TooLarge {
         /// File.
         path: PathBuf,
