@@ -33,12 +33,44 @@ pub(crate) fn load(
     from_bytes(path, &bytes, options, progress)
 }
 
-/// Delimited text already in memory; `path` names it in messages.
+/// Delimited text already in memory; `path` names it in messages. The table carries the
+/// bytes' hash.
 pub(crate) fn from_bytes(
     path: &Path,
     bytes: &[u8],
     options: &LoadOptions,
     progress: Option<&Progress>,
+) -> Result<Table> {
+    Ok(read_text(path, bytes, options, progress, None)?.with_sha256(bytes))
+}
+
+/// Which columns of a piece of a streamed file are split out and typed: those at these
+/// positions (file order), under the names the whole file gives them.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct Only<'a> {
+    /// 0-based positions, rising.
+    pub at: &'a [usize],
+    /// Their names (as the first piece's table has them: duplicates already told apart).
+    pub names: &'a [String],
+}
+
+/// One piece of a file being streamed: only the columns of `only` are split out and typed,
+/// and no hash is taken.
+pub(crate) fn piece_of(
+    path: &Path,
+    bytes: &[u8],
+    options: &LoadOptions,
+    only: Only<'_>,
+) -> Result<Table> {
+    read_text(path, bytes, options, None, Some(only))
+}
+
+fn read_text(
+    path: &Path,
+    bytes: &[u8],
+    options: &LoadOptions,
+    progress: Option<&Progress>,
+    only: Option<Only<'_>>,
 ) -> Result<Table> {
     let stage = |s| {
         if let Some(p) = progress {
@@ -51,10 +83,10 @@ pub(crate) fn from_bytes(
     let recs = records_of(path, text)?;
     let (delimiter, guess, header) = layout(text, &recs, options);
     check_field_counts(path, text, &recs, delimiter, header)?;
-    let frame = parse(path, text, &recs, delimiter)?;
+    let frame = parse(path, text, &recs, delimiter, only.map(|o| o.at))?;
     stage(Stage::Typing);
     let mut columns = string_columns(path, &frame)?;
-    let names: Vec<String> = if header {
+    let from_file: Vec<String> = if header {
         columns
             .iter_mut()
             .map(|c| c.remove(0).unwrap_or_default())
@@ -62,6 +94,7 @@ pub(crate) fn from_bytes(
     } else {
         (1..=columns.len()).map(|j| format!("column{j}")).collect()
     };
+    let names = only.map_or(from_file, |o| o.names.to_vec());
     if columns.first().is_none_or(Vec::is_empty) {
         return Err(DataError::NoDataRows {
             path: path.to_path_buf(),
@@ -76,7 +109,7 @@ pub(crate) fn from_bytes(
         decimal,
         header,
     };
-    Ok(Table::new(path, format, names, cells, notes).with_sha256(bytes))
+    Ok(Table::new(path, format, names, cells, notes))
 }
 
 /// The non-empty records of `text`, split outside quotes.
@@ -228,7 +261,13 @@ fn printable(d: u8) -> String {
 
 /// Hands polars the records alone (no blank lines), every column as text: typing is ours,
 /// so that a stray word in a numeric column is reported by row instead of silently nulled.
-fn parse(path: &Path, text: &[u8], recs: &[Record], delimiter: u8) -> Result<DataFrame> {
+fn parse(
+    path: &Path,
+    text: &[u8],
+    recs: &[Record],
+    delimiter: u8,
+    keep: Option<&[usize]>,
+) -> Result<DataFrame> {
     let mut clean = Vec::with_capacity(text.len() + recs.len());
     for r in recs {
         clean.extend_from_slice(&text[r.start..r.end]);
@@ -243,6 +282,7 @@ fn parse(path: &Path, text: &[u8], recs: &[Record], delimiter: u8) -> Result<Dat
             .with_has_header(false)
             .with_infer_schema_length(Some(0))
             .with_raise_if_empty(false)
+            .with_projection(keep.map(|k| std::sync::Arc::new(k.to_vec())))
             .with_parse_options(parse_options)
             .into_reader_with_file_handle(Cursor::new(clean))
             .finish()

@@ -186,6 +186,8 @@ struct Pass<'a> {
     fixed: LoadOptions,
     /// The header line put in front of every later chunk (when the file has one).
     header_line: Option<Vec<u8>>,
+    /// Positions and names of the columns asked for: later chunks read only those.
+    keep: (Vec<usize>, Vec<String>),
     offset: Offset,
     summary: StreamSummary,
 }
@@ -219,11 +221,19 @@ impl<'a> Pass<'a> {
             },
             ..options.load.clone()
         };
+        let keep = head
+            .columns()
+            .iter()
+            .enumerate()
+            .filter(|(_, c)| names.contains(&c.name.as_str()))
+            .map(|(j, c)| (j, c.name.clone()))
+            .unzip();
         Self {
             path,
             names,
             fixed,
             header_line: header.then(|| first_record(&first.text)),
+            keep,
             offset: Offset::default(),
             summary: StreamSummary {
                 rows: 0,
@@ -272,7 +282,11 @@ impl<'a> Pass<'a> {
             .map(|(c, &at_line)| {
                 let mut text = self.header_line.clone().unwrap_or_default();
                 text.extend_from_slice(&c.text);
-                delimited::from_bytes(self.path, &text, &self.fixed, None)
+                let only = delimited::Only {
+                    at: &self.keep.0,
+                    names: &self.keep.1,
+                };
+                delimited::piece_of(self.path, &text, &self.fixed, only)
                     .map_err(|e| e.shifted(at_line, self.header_line.is_some()))
             })
             .collect()
@@ -506,6 +520,27 @@ mod tests {
         );
         assert!(summary.bytes as usize == text.len());
         assert!(!summary.stopped);
+    }
+
+    #[test]
+    fn later_pieces_read_only_the_columns_asked_for_under_the_files_names() {
+        // Repeated names, a text column between, the asked columns out of file order.
+        let mut text = String::from("x,label,x,y\n");
+        for i in 0..30_000 {
+            text.push_str(&format!("{i},tag {i},{},{}\n", i * 2, i % 7));
+        }
+        let f = file_with(&text);
+        let mut seen = Vec::new();
+        let summary = stream_columns(f.path(), &["y", "x_2"], &small_chunks(), |p| {
+            seen.extend(p.columns[0].iter().zip(&p.columns[1]).map(|(&a, &b)| (a, b)));
+            ControlFlow::Continue(())
+        })
+        .expect("streams");
+        assert_eq!(summary.rows, 30_000);
+        assert!(seen.len() == 30_000, "{} rows", seen.len());
+        for (i, &(y, x2)) in seen.iter().enumerate() {
+            assert_eq!((y, x2), ((i % 7) as f64, (i * 2) as f64), "row {}", i + 1);
+        }
     }
 
     #[test]
