@@ -532,7 +532,12 @@ mod tests {
         let f = file_with(&text);
         let mut seen = Vec::new();
         let summary = stream_columns(f.path(), &["y", "x_2"], &small_chunks(), |p| {
-            seen.extend(p.columns[0].iter().zip(&p.columns[1]).map(|(&a, &b)| (a, b)));
+            seen.extend(
+                p.columns[0]
+                    .iter()
+                    .zip(&p.columns[1])
+                    .map(|(&a, &b)| (a, b)),
+            );
             ControlFlow::Continue(())
         })
         .expect("streams");
