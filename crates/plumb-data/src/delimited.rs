@@ -277,7 +277,8 @@ fn parse(
         .with_separator(delimiter)
         .with_quote_char(Some(b'"'))
         .with_missing_is_null(true);
-    let read = || {
+    // A panic inside the CSV parser becomes a message naming the file, not a crash.
+    crate::guard::contain(path, "CSV", || {
         CsvReadOptions::default()
             .with_has_header(false)
             .with_infer_schema_length(Some(0))
@@ -286,19 +287,11 @@ fn parse(
             .with_parse_options(parse_options)
             .into_reader_with_file_handle(Cursor::new(clean))
             .finish()
-    };
-    let failed = |message: String| DataError::Parse {
-        path: path.to_path_buf(),
-        message,
-    };
-    // Defence in depth: a panic inside the CSV parser becomes a message, not a crash.
-    match std::panic::catch_unwind(std::panic::AssertUnwindSafe(read)) {
-        Ok(Ok(frame)) => Ok(frame),
-        Ok(Err(e)) => Err(failed(format!("the text could not be split into fields ({e})"))),
-        Err(_) => Err(failed(
-            "the CSV parser failed on this file (an internal error); check the file's line endings and quoting, or re-export it".into(),
-        )),
-    }
+            .map_err(|e| DataError::Parse {
+                path: path.to_path_buf(),
+                message: format!("the text could not be split into fields ({e})"),
+            })
+    })
 }
 
 fn string_columns(path: &Path, frame: &DataFrame) -> Result<Vec<Vec<Option<String>>>> {

@@ -14,6 +14,7 @@ mod cell;
 mod delimited;
 mod encoding;
 mod error;
+mod guard;
 mod parquet;
 mod progress;
 mod rows;
@@ -27,6 +28,7 @@ pub use budget::{available_memory, text_need, TEXT_BYTE_FACTOR, TEXT_CELL_BYTES}
 pub use cell::{Cell, DecimalMark, DEFAULT_MISSING_TOKENS};
 pub use encoding::TextEncoding;
 pub use error::{DataError, Result};
+pub use guard::quiet_reader_panics;
 pub use progress::{Progress, Stage};
 pub use rows::RowList;
 pub use select::{DropReason, Dropped, Selection};

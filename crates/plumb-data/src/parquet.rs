@@ -14,8 +14,13 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
     from_bytes(path, &bytes, options)
 }
 
-/// A Parquet file already in memory; `path` names it in messages.
+/// A Parquet file already in memory; `path` names it in messages. A damaged file that makes the
+/// reader panic is reported as unreadable ([`crate::guard::contain`]).
 pub(crate) fn from_bytes(path: &Path, bytes: &[u8], options: &LoadOptions) -> Result<Table> {
+    crate::guard::contain(path, "Parquet", || read(path, bytes, options))
+}
+
+fn read(path: &Path, bytes: &[u8], options: &LoadOptions) -> Result<Table> {
     let parse_error = |e: &dyn std::fmt::Display| DataError::Parse {
         path: path.to_path_buf(),
         message: format!("not a readable Parquet file ({e})"),

@@ -20,9 +20,11 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
 /// messages.
 pub(crate) fn from_bytes(label: &Path, bytes: Vec<u8>, options: &LoadOptions) -> Result<Table> {
     let hash = crate::table::sha256_hex(&bytes);
-    let workbook = open_workbook_auto_from_rs(std::io::Cursor::new(bytes))
-        .map_err(|e| parse_error(label, &e))?;
-    let mut table = from_workbook(label, workbook, options)?;
+    let mut table = crate::guard::contain(label, "spreadsheet", || {
+        let workbook = open_workbook_auto_from_rs(std::io::Cursor::new(bytes))
+            .map_err(|e| parse_error(label, &e))?;
+        from_workbook(label, workbook, options)
+    })?;
     table.set_sha256(hash);
     Ok(table)
 }

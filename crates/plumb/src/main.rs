@@ -23,6 +23,8 @@ use std::process::ExitCode;
 use clap::Parser;
 
 fn main() -> ExitCode {
+    // A damaged input that trips a reader library is reported as a message, without its panic text.
+    plumb_data::quiet_reader_panics();
     let args = cli::Args::parse();
     let result = match args.command {
         Some(cli::Command::Fit(a)) => fit_cmd::run(&a),
