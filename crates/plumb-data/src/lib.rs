@@ -16,6 +16,7 @@ mod encoding;
 mod error;
 mod guard;
 mod parquet;
+mod parquet_pages;
 mod progress;
 mod rows;
 mod select;

@@ -17,7 +17,10 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
 /// A Parquet file already in memory; `path` names it in messages. A damaged file that makes the
 /// reader panic is reported as unreadable ([`crate::guard::contain`]).
 pub(crate) fn from_bytes(path: &Path, bytes: &[u8], options: &LoadOptions) -> Result<Table> {
-    crate::guard::contain(path, "Parquet", || read(path, bytes, options))
+    crate::guard::contain(path, "Parquet", || {
+        crate::parquet_pages::check(path, bytes)?;
+        read(path, bytes, options)
+    })
 }
 
 fn read(path: &Path, bytes: &[u8], options: &LoadOptions) -> Result<Table> {
