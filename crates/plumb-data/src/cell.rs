@@ -25,14 +25,28 @@ pub enum Cell {
 
 /// Classifies cell text: missing token, number, or text.
 pub(crate) fn classify(raw: &str, decimal: DecimalMark, extra_missing: &[String]) -> Cell {
+    match read_cell(raw, decimal, extra_missing) {
+        Ok(None) => Cell::Missing,
+        Ok(Some(v)) => Cell::Number(v),
+        Err(text) => Cell::Text(text.to_string()),
+    }
+}
+
+/// Reads cell text without copying it: `Ok(None)` when missing (a token, or NaN), `Ok(Some)`
+/// for a number, `Err` with the trimmed text otherwise.
+pub(crate) fn read_cell<'a>(
+    raw: &'a str,
+    decimal: DecimalMark,
+    extra_missing: &[String],
+) -> Result<Option<f64>, &'a str> {
     let s = raw.trim();
     if is_missing(s, extra_missing) {
-        return Cell::Missing;
+        return Ok(None);
     }
     match parse_number(s, decimal) {
-        Some(v) if v.is_nan() => Cell::Missing,
-        Some(v) => Cell::Number(v),
-        None => Cell::Text(s.to_string()),
+        Some(v) if v.is_nan() => Ok(None),
+        Some(v) => Ok(Some(v)),
+        None => Err(s),
     }
 }
 

@@ -1,14 +1,15 @@
 //! Delimited text (CSV, TSV, semicolon-separated): sniffing, validation, then polars.
 
+use std::borrow::Cow;
 use std::io::Cursor;
 use std::path::Path;
 
-use polars::prelude::{CsvParseOptions, CsvReadOptions, DataFrame, SerReader};
+use polars::prelude::{CsvParseOptions, CsvReadOptions, DataFrame, SerReader, StringChunked};
 
-use crate::cell::{classify, Cell, DecimalMark};
+use crate::cell::DecimalMark;
 use crate::progress::{read_all, Progress, ReadStop, Stage};
 use crate::sniff::{self, DecimalGuess, HeaderMode, Record};
-use crate::table::{SourceFormat, Table};
+use crate::table::{ColumnValues, SourceFormat, Table};
 use crate::{DataError, LoadOptions, Result};
 
 const BOM: &[u8] = b"\xEF\xBB\xBF";
@@ -72,6 +73,26 @@ fn read_text(
     progress: Option<&Progress>,
     only: Option<Only<'_>>,
 ) -> Result<Table> {
+    read_text_by(path, bytes, options, progress, only, Way::Typed)
+}
+
+/// Whether polars may type the numbers ([`crate::typed`]) or every cell goes through
+/// [`ColumnValues::from_texts`]; the two must give the same table (tested).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) enum Way {
+    Typed,
+    #[cfg(test)]
+    CellByCell,
+}
+
+pub(crate) fn read_text_by(
+    path: &Path,
+    bytes: &[u8],
+    options: &LoadOptions,
+    progress: Option<&Progress>,
+    only: Option<Only<'_>>,
+    way: Way,
+) -> Result<Table> {
     let stage = |s| {
         if let Some(p) = progress {
             p.enter(s);
@@ -81,35 +102,78 @@ fn read_text(
     let decoded = crate::encoding::decode(path, bytes, options.encoding)?;
     let text: &[u8] = &decoded.text;
     let recs = records_of(path, text)?;
-    let (delimiter, guess, header) = layout(text, &recs, options);
+    let shape = layout(text, &recs, options);
+    let (delimiter, header) = (shape.delimiter, shape.header);
     check_field_counts(path, text, &recs, delimiter, header)?;
+    let format = SourceFormat::Delimited {
+        encoding: decoded.encoding,
+        delimiter,
+        decimal: shape.guess.mark,
+        header,
+    };
+    let fast = (way == Way::Typed)
+        .then(|| crate::typed::read(path, text, &recs, &shape, options, only.map(|o| o.at)))
+        .flatten();
+    if let Some(values) = fast {
+        stage(Stage::Typing);
+        let names = match only {
+            Some(o) => o.names.to_vec(),
+            None => names_of(path, text, &recs, &shape, values.len())?,
+        };
+        let notes = decoded.note.into_iter().collect();
+        return Ok(Table::from_values(path, format, names, values, notes));
+    }
+    let guess = shape.guess;
     let frame = parse(path, text, &recs, delimiter, only.map(|o| o.at))?;
     stage(Stage::Typing);
-    let mut columns = string_columns(path, &frame)?;
+    let texts = text_columns(path, frame)?;
+    let skip = usize::from(header);
     let from_file: Vec<String> = if header {
-        columns
-            .iter_mut()
-            .map(|c| c.remove(0).unwrap_or_default())
+        texts
+            .iter()
+            .map(|c| c.get(0).unwrap_or_default().to_string())
             .collect()
     } else {
-        (1..=columns.len()).map(|j| format!("column{j}")).collect()
+        (1..=texts.len()).map(|j| format!("column{j}")).collect()
     };
     let names = only.map_or(from_file, |o| o.names.to_vec());
-    if columns.first().is_none_or(Vec::is_empty) {
+    if texts.first().is_none_or(|c| c.len() <= skip) {
         return Err(DataError::NoDataRows {
             path: path.to_path_buf(),
         });
     }
-    let (decimal, mut notes) = settle_decimal(guess, delimiter, &names, &columns);
+    let (decimal, mut notes) = settle_decimal(guess, delimiter, &names, &texts, skip);
     notes.extend(decoded.note);
-    let cells = typed(columns, decimal, &options.missing_tokens);
+    // Each column's text is dropped as soon as the column is typed.
+    let values = texts
+        .into_iter()
+        .map(|c| ColumnValues::from_texts(|| c.iter().skip(skip), decimal, &options.missing_tokens))
+        .collect();
     let format = SourceFormat::Delimited {
         encoding: decoded.encoding,
         delimiter,
         decimal,
         header,
     };
-    Ok(Table::new(path, format, names, cells, notes))
+    Ok(Table::from_values(path, format, names, values, notes))
+}
+
+/// Column names: the header record's fields as the CSV parser reads them, or `columnN`.
+fn names_of(
+    path: &Path,
+    text: &[u8],
+    recs: &[Record],
+    shape: &Layout,
+    count: usize,
+) -> Result<Vec<String>> {
+    if !shape.header {
+        return Ok((1..=count).map(|j| format!("column{j}")).collect());
+    }
+    let frame = parse(path, text, &recs[..1], shape.delimiter, None)?;
+    Ok(text_columns(path, frame)?
+        .iter()
+        .map(|c| c.get(0).unwrap_or_default().to_string())
+        .collect())
 }
 
 /// The non-empty records of `text`, split outside quotes.
@@ -134,9 +198,21 @@ fn records_of(path: &Path, text: &[u8]) -> Result<Vec<Record>> {
     Ok(recs)
 }
 
+/// How a delimited file is written, as asked or sniffed from its first records.
+pub(crate) struct Layout {
+    /// Field delimiter.
+    pub delimiter: u8,
+    /// Decimal mark, and whether some sampled cell leaves it open.
+    pub guess: DecimalGuess,
+    /// Whether the first record names the columns.
+    pub header: bool,
+    /// The first 200 records' fields (the header among them).
+    pub sample: Vec<Vec<String>>,
+}
+
 /// The delimiter, decimal mark and whether there is a header, as asked or sniffed from the
 /// first 200 records.
-fn layout(text: &[u8], recs: &[Record], options: &LoadOptions) -> (u8, DecimalGuess, bool) {
+pub(crate) fn layout(text: &[u8], recs: &[Record], options: &LoadOptions) -> Layout {
     let delimiter = options
         .delimiter
         .unwrap_or_else(|| sniff::delimiter(text, recs));
@@ -157,7 +233,12 @@ fn layout(text: &[u8], recs: &[Record], options: &LoadOptions) -> (u8, DecimalGu
         HeaderMode::No => false,
         HeaderMode::Auto => sniff::has_header(&sample, guess.mark, &options.missing_tokens),
     };
-    (delimiter, guess, header)
+    Layout {
+        delimiter,
+        guess,
+        header,
+        sample,
+    }
 }
 
 /// The decimal mark to read with. When the sample left it open while some of its cells read
@@ -167,21 +248,22 @@ fn settle_decimal(
     guess: DecimalGuess,
     delimiter: u8,
     names: &[String],
-    columns: &[Vec<Option<String>>],
+    columns: &[StringChunked],
+    skip: usize,
 ) -> (DecimalMark, Vec<String>) {
     if guess.ambiguous.is_none() {
         return (guess.mark, Vec::new());
     }
-    let cells = columns.iter().flatten().flatten().map(String::as_str);
+    let cells = columns.iter().flat_map(|c| c.iter().skip(skip).flatten());
     let all = sniff::decimal_guess(cells, delimiter);
     let Some(at) = all
         .ambiguous
         .as_ref()
-        .and_then(|_| first_ambiguous(columns))
+        .and_then(|_| first_ambiguous(columns, skip))
     else {
         return (all.mark, Vec::new());
     };
-    let (j, i, text, point, comma) = at;
+    let (i, j, text, point, comma) = at;
     let note = format!(
         "no cell settles the decimal mark: '{text}' (column '{}', row {}) reads as {point} \
          with a decimal point or {comma} with a decimal comma; a decimal point was assumed \
@@ -193,37 +275,24 @@ fn settle_decimal(
     (all.mark, vec![note])
 }
 
-/// The first cell, by row, whose number depends on the decimal mark: (column, row, text,
-/// value with a point, value with a comma).
-fn first_ambiguous(columns: &[Vec<Option<String>>]) -> Option<(usize, usize, String, f64, f64)> {
-    let n_rows = columns.first().map_or(0, Vec::len);
-    (0..n_rows).find_map(|i| {
-        columns.iter().enumerate().find_map(|(j, col)| {
-            let s = col.get(i)?.as_deref()?.trim();
-            let point = crate::cell::parse_number(s, DecimalMark::Point)?;
-            let comma = crate::cell::parse_number(s, DecimalMark::Comma)?;
-            (point != comma).then(|| (j, i, s.to_string(), point, comma))
-        })
-    })
-}
-
-/// Every cell classified: missing, a number, or text.
-fn typed(
-    columns: Vec<Vec<Option<String>>>,
-    decimal: DecimalMark,
-    tokens: &[String],
-) -> Vec<Vec<Cell>> {
+/// The first cell, by row and then column, whose number depends on the decimal mark: (row,
+/// column, text, value with a point, value with a comma).
+fn first_ambiguous(
+    columns: &[StringChunked],
+    skip: usize,
+) -> Option<(usize, usize, String, f64, f64)> {
     columns
-        .into_iter()
-        .map(|col| {
-            col.into_iter()
-                .map(|v| match v {
-                    None => Cell::Missing,
-                    Some(s) => classify(&s, decimal, tokens),
-                })
-                .collect()
+        .iter()
+        .enumerate()
+        .filter_map(|(j, col)| {
+            col.iter().skip(skip).enumerate().find_map(|(i, cell)| {
+                let s = cell?.trim();
+                let point = crate::cell::parse_number(s, DecimalMark::Point)?;
+                let comma = crate::cell::parse_number(s, DecimalMark::Comma)?;
+                (point != comma).then(|| (i, j, s.to_string(), point, comma))
+            })
         })
-        .collect()
+        .min_by_key(|&(i, j, ..)| (i, j))
 }
 
 fn check_field_counts(
@@ -268,11 +337,7 @@ fn parse(
     delimiter: u8,
     keep: Option<&[usize]>,
 ) -> Result<DataFrame> {
-    let mut clean = Vec::with_capacity(text.len() + recs.len());
-    for r in recs {
-        clean.extend_from_slice(&text[r.start..r.end]);
-        clean.push(b'\n');
-    }
+    let clean = records_alone(text, recs);
     let parse_options = CsvParseOptions::default()
         .with_separator(delimiter)
         .with_quote_char(Some(b'"'))
@@ -294,16 +359,37 @@ fn parse(
     })
 }
 
-fn string_columns(path: &Path, frame: &DataFrame) -> Result<Vec<Vec<Option<String>>>> {
+/// The records one to a line, without blank lines: the text itself when it is already that
+/// (records separated by single LFs), else a copy.
+pub(crate) fn records_alone<'a>(text: &'a [u8], recs: &[Record]) -> Cow<'a, [u8]> {
+    let (Some(first), Some(last)) = (recs.first(), recs.last()) else {
+        return Cow::Borrowed(&[]);
+    };
+    let lf_separated = recs
+        .windows(2)
+        .all(|w| text.get(w[0].end) == Some(&b'\n') && w[1].start == w[0].end + 1);
+    if lf_separated {
+        return Cow::Borrowed(&text[first.start..last.end]);
+    }
+    let mut clean = Vec::with_capacity(text.len() + recs.len());
+    for r in recs {
+        clean.extend_from_slice(&text[r.start..r.end]);
+        clean.push(b'\n');
+    }
+    Cow::Owned(clean)
+}
+
+/// The frame's columns as text (every column was read as text), one chunk each.
+fn text_columns(path: &Path, frame: DataFrame) -> Result<Vec<StringChunked>> {
     frame
-        .get_columns()
-        .iter()
+        .take_columns()
+        .into_iter()
         .map(|c| {
             let strings = c.str().map_err(|e| DataError::Parse {
                 path: path.to_path_buf(),
                 message: format!("column {} was not read as text ({e})", c.name()),
             })?;
-            Ok(strings.into_iter().map(|v| v.map(str::to_string)).collect())
+            Ok(strings.rechunk().into_owned())
         })
         .collect()
 }

@@ -24,6 +24,7 @@ mod sheet;
 mod sniff;
 mod stream;
 mod table;
+mod typed;
 
 pub use budget::{available_memory, text_need, TEXT_BYTE_FACTOR, TEXT_CELL_BYTES};
 pub use cell::{Cell, DecimalMark, DEFAULT_MISSING_TOKENS};

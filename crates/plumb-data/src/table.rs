@@ -3,7 +3,7 @@
 use std::collections::{HashMap, HashSet};
 use std::path::{Path, PathBuf};
 
-use crate::cell::{Cell, DecimalMark};
+use crate::cell::{classify, read_cell, Cell, DecimalMark};
 use crate::encoding::TextEncoding;
 
 /// How the file was read, so that the same reading can be repeated and reported.
@@ -111,12 +111,11 @@ pub struct ColumnSummary {
     pub max: Option<f64>,
 }
 
-impl Column {
+impl ColumnValues {
     /// Types a column of cells: numeric unless some non-missing cell is text.
-    pub(crate) fn from_cells(name: String, cells: Vec<Cell>) -> Self {
-        let first_text = cells.iter().position(|c| matches!(c, Cell::Text(_)));
-        let values = match first_text {
-            None => ColumnValues::Numeric(
+    pub(crate) fn from_cells(cells: Vec<Cell>) -> Self {
+        let Some(i) = cells.iter().position(|c| matches!(c, Cell::Text(_))) else {
+            return Self::Numeric(
                 cells
                     .into_iter()
                     .map(|c| match c {
@@ -124,31 +123,57 @@ impl Column {
                         _ => None,
                     })
                     .collect(),
-            ),
-            Some(i) => {
-                let text_count = cells.iter().filter(|c| matches!(c, Cell::Text(_))).count();
-                let first = match &cells[i] {
-                    Cell::Text(s) => shorten(s),
-                    _ => unreachable!("position found a text cell"),
-                };
-                ColumnValues::Text {
-                    values: cells
-                        .into_iter()
-                        .map(|c| match c {
-                            Cell::Missing => None,
-                            Cell::Number(v) => Some(v.to_string()),
-                            Cell::Text(s) => Some(s),
-                        })
-                        .collect(),
-                    first_text_row: i + 1,
-                    first_text: first,
-                    text_count,
-                }
-            }
+            );
         };
-        Self { name, values }
+        let text_count = cells.iter().filter(|c| matches!(c, Cell::Text(_))).count();
+        let first = match &cells[i] {
+            Cell::Text(s) => shorten(s),
+            _ => unreachable!("position found a text cell"),
+        };
+        Self::Text {
+            values: cells
+                .into_iter()
+                .map(|c| match c {
+                    Cell::Missing => None,
+                    Cell::Number(v) => Some(v.to_string()),
+                    Cell::Text(s) => Some(s),
+                })
+                .collect(),
+            first_text_row: i + 1,
+            first_text: first,
+            text_count,
+        }
     }
 
+    /// Types a column straight from its cell texts (`None` for an empty field), as
+    /// [`ColumnValues::from_cells`] would after [`classify`] — without a string per cell for a
+    /// numeric column. `cells` is called again only when a cell turns out to be text.
+    pub(crate) fn from_texts<'a, I>(
+        cells: impl Fn() -> I,
+        decimal: DecimalMark,
+        tokens: &[String],
+    ) -> Self
+    where
+        I: Iterator<Item = Option<&'a str>>,
+    {
+        let mut numbers = Vec::with_capacity(cells().size_hint().0);
+        for raw in cells() {
+            match raw.map_or(Ok(None), |s| read_cell(s, decimal, tokens)) {
+                Ok(v) => numbers.push(v),
+                Err(_) => {
+                    drop(numbers);
+                    let all = cells()
+                        .map(|raw| raw.map_or(Cell::Missing, |s| classify(s, decimal, tokens)))
+                        .collect();
+                    return Self::from_cells(all);
+                }
+            }
+        }
+        Self::Numeric(numbers)
+    }
+}
+
+impl Column {
     /// Number of data rows.
     pub fn len(&self) -> usize {
         match &self.values {
@@ -217,15 +242,28 @@ impl Table {
         format: SourceFormat,
         names: Vec<String>,
         cells: Vec<Vec<Cell>>,
+        notes: Vec<String>,
+    ) -> Self {
+        let values = cells.into_iter().map(ColumnValues::from_cells).collect();
+        Self::from_values(source, format, names, values, notes)
+    }
+
+    /// Builds a table from typed columns, making duplicate or blank column names unique
+    /// (with a note).
+    pub(crate) fn from_values(
+        source: &Path,
+        format: SourceFormat,
+        names: Vec<String>,
+        values: Vec<ColumnValues>,
         mut notes: Vec<String>,
     ) -> Self {
-        let n_rows = cells.first().map_or(0, Vec::len);
         let names = unique_names(names, &mut notes);
-        let columns = names
+        let columns: Vec<Column> = names
             .into_iter()
-            .zip(cells)
-            .map(|(name, c)| Column::from_cells(name, c))
+            .zip(values)
+            .map(|(name, values)| Column { name, values })
             .collect();
+        let n_rows = columns.first().map_or(0, Column::len);
         Self {
             source: source.to_path_buf(),
             format,
@@ -347,15 +385,16 @@ mod tests {
 
     #[test]
     fn one_text_cell_makes_a_text_column_that_remembers_where() {
-        let c = Column::from_cells(
-            "dose".into(),
-            vec![Cell::Number(1.0), Cell::Missing, Cell::Text("n.d.".into())],
-        );
+        let values = ColumnValues::from_cells(vec![
+            Cell::Number(1.0),
+            Cell::Missing,
+            Cell::Text("n.d.".into()),
+        ]);
         let ColumnValues::Text {
             first_text_row,
             text_count,
             ..
-        } = c.values
+        } = values
         else {
             panic!("expected text");
         };

@@ -1,0 +1,269 @@
+//! The fast way through a delimited file: polars parses the numbers itself, on all cores.
+//!
+//! For files with a decimal point, columns whose sampled cells are all plain numbers (or
+//! missing) are read as 64-bit floats, with the missing tokens as nulls; the others are read as text
+//! and typed by [`ColumnValues::from_texts`]. Any cell polars cannot read as a number makes
+//! the whole read give way to the cell-by-cell path, which names that cell's row and column —
+//! so the fast way changes how fast a file is read, never what is read or said.
+
+use std::io::Cursor;
+use std::path::Path;
+use std::sync::Arc;
+
+use polars::prelude::{
+    CsvParseOptions, CsvReadOptions, DataFrame, DataType, NullValues, PlSmallStr, Schema, SerReader,
+};
+
+use crate::cell::{read_cell, DecimalMark, DEFAULT_MISSING_TOKENS};
+use crate::delimited::{records_alone, Layout};
+use crate::sniff::Record;
+use crate::table::ColumnValues;
+use crate::LoadOptions;
+
+/// The columns of the file (or those at `keep`), typed; `None` when the file needs the
+/// cell-by-cell path: the decimal mark is still open, or some cell is not a plain number in a
+/// column whose sample held only numbers.
+pub(crate) fn read(
+    path: &Path,
+    text: &[u8],
+    recs: &[Record],
+    shape: &Layout,
+    options: &LoadOptions,
+    keep: Option<&[usize]>,
+) -> Option<Vec<ColumnValues>> {
+    let mark = shape.guess.mark;
+    // With a comma delimiter a decimal comma can only sit in quoted cells: leave those to the
+    // cell-by-cell path, as an open decimal mark is.
+    if shape.guess.ambiguous.is_some() || (mark == DecimalMark::Comma && shape.delimiter == b',') {
+        return None;
+    }
+    let data = recs
+        .get(usize::from(shape.header)..)
+        .filter(|r| !r.is_empty())?;
+    let numeric = numeric_in_sample(shape, &options.missing_tokens);
+    let frame = polars_read(path, text, data, shape, &numeric, options, keep)?;
+    let tokens = &options.missing_tokens;
+    // A token that is a number ("-999") is missing only when written exactly so, after
+    // trimming; polars sees " -999" as a number. Any such value sends the file the other way.
+    let token_values: Vec<f64> = tokens
+        .iter()
+        .filter_map(|t| crate::cell::parse_number(t.trim(), mark))
+        .collect();
+    frame
+        .take_columns()
+        .into_iter()
+        .map(|c| match c.dtype() {
+            DataType::Float64 => numbers(&c, &token_values),
+            _ => {
+                let strings = c.str().ok()?.rechunk();
+                Some(ColumnValues::from_texts(|| strings.iter(), mark, tokens))
+            }
+        })
+        .collect::<Option<Vec<_>>>()
+}
+
+/// Whether each column's sampled cells (below the header) are all plain numbers or missing,
+/// with at least one number: written as polars reads them, with no leading or trailing blanks
+/// and no thousands separators.
+fn numeric_in_sample(shape: &Layout, tokens: &[String]) -> Vec<bool> {
+    let rows = &shape.sample[usize::from(shape.header).min(shape.sample.len())..];
+    let width = shape.sample.first().map_or(0, Vec::len);
+    let grouping = match shape.guess.mark {
+        DecimalMark::Point => ',',
+        DecimalMark::Comma => '.',
+    };
+    (0..width)
+        .map(|j| {
+            let mut any = false;
+            let all_plain = rows.iter().filter_map(|r| r.get(j)).all(|cell| {
+                match read_cell(cell, shape.guess.mark, tokens) {
+                    Ok(None) => cell.trim() == cell || cell.trim().is_empty(),
+                    Ok(Some(_)) => {
+                        any = true;
+                        cell.trim() == cell && !cell.contains(grouping)
+                    }
+                    Err(_) => false,
+                }
+            });
+            all_plain && any
+        })
+        .collect()
+}
+
+/// Reads the data records with the numeric columns as floats. `None` when polars refuses a
+/// cell (or fails in any other way: the cell-by-cell path then says what is wrong).
+fn polars_read(
+    path: &Path,
+    text: &[u8],
+    data: &[Record],
+    shape: &Layout,
+    numeric: &[bool],
+    options: &LoadOptions,
+    keep: Option<&[usize]>,
+) -> Option<DataFrame> {
+    let schema: Schema = numeric
+        .iter()
+        .enumerate()
+        .map(|(j, &is_number)| {
+            let dtype = if is_number {
+                DataType::Float64
+            } else {
+                DataType::String
+            };
+            (PlSmallStr::from(format!("c{j}")), dtype)
+        })
+        .collect();
+    let nulls: Vec<PlSmallStr> = DEFAULT_MISSING_TOKENS
+        .iter()
+        .map(|t| PlSmallStr::from(*t))
+        .chain(options.missing_tokens.iter().map(|t| t.trim().into()))
+        .collect();
+    let parse_options = CsvParseOptions::default()
+        .with_separator(shape.delimiter)
+        .with_quote_char(Some(b'"'))
+        .with_missing_is_null(true)
+        .with_null_values(Some(NullValues::AllColumns(nulls)));
+    let input = records_alone(text, data);
+    crate::guard::contain(path, "CSV", || {
+        Ok(CsvReadOptions::default()
+            .with_has_header(false)
+            .with_schema(Some(Arc::new(schema)))
+            .with_raise_if_empty(false)
+            .with_projection(keep.map(|k| Arc::new(k.to_vec())))
+            .with_parse_options(parse_options)
+            .into_reader_with_file_handle(Cursor::new(input))
+            .finish()
+            .ok())
+    })
+    .ok()
+    .flatten()
+}
+
+/// A float column as numbers, NaN counting as missing (as in the cell-by-cell path); `None`
+/// when a value equals a numeric missing token.
+fn numbers(column: &polars::prelude::Column, token_values: &[f64]) -> Option<ColumnValues> {
+    let floats = column.f64().ok()?;
+    let values: Vec<Option<f64>> = floats.iter().map(|v| v.filter(|x| !x.is_nan())).collect();
+    let token_like = values.iter().flatten().any(|v| token_values.contains(v));
+    (!token_like).then_some(ColumnValues::Numeric(values))
+}
+
+#[cfg(test)]
+mod tests {
+    use std::path::Path;
+
+    use crate::delimited::{read_text_by, Way};
+    use crate::{DecimalMark, LoadOptions};
+
+    /// The table each way, or the message each way gives.
+    fn same(text: &str, options: &LoadOptions) {
+        let path = Path::new("t.csv");
+        let read = |way| read_text_by(path, text.as_bytes(), options, None, None, way);
+        match (read(Way::Typed), read(Way::CellByCell)) {
+            (Ok(fast), Ok(slow)) => {
+                assert_eq!(fast.columns(), slow.columns(), "{text}");
+                assert_eq!(fast.notes(), slow.notes(), "{text}");
+                assert_eq!(fast.format(), slow.format(), "{text}");
+            }
+            (fast, slow) => assert_eq!(
+                fast.map(|t| t.n_rows()).map_err(|e| e.to_string()),
+                slow.map(|t| t.n_rows()).map_err(|e| e.to_string()),
+                "{text}"
+            ),
+        }
+    }
+
+    #[test]
+    fn plain_numbers_with_every_missing_form_read_the_same_both_ways() {
+        let mut text = String::from("a,b,site\n");
+        for i in 0..300 {
+            text.push_str(&format!("{}.25,{}e-3,s{}\n", i, i * 7, i % 3));
+        }
+        text.push_str("NA,,n/a\n. ,  4.5,x\n\"7\",nan,\"q, r\"\n1e400,-Inf,+\n-0.0,NaN,NA\n");
+        same(&text, &LoadOptions::default());
+    }
+
+    #[test]
+    fn cells_the_two_number_parsers_might_read_differently_give_the_same_table() {
+        // Each tricky cell sits below 250 plain rows, past the sample, so polars meets it.
+        let tricky = [
+            "5 ",
+            " 5",
+            "1.",
+            ".5",
+            "+.5",
+            "1e",
+            "e5",
+            "1E5",
+            "inf",
+            "Infinity",
+            "-nan",
+            "NAN",
+            "0x10",
+            "1_000",
+            "1,5",
+            "1,234.5",
+            "١٢",
+            "1e-400",
+            "  ",
+            "-",
+            "+",
+            "--1",
+            "1d3",
+            "INF",
+            "+inf",
+            "infinit",
+            "9007199254740993",
+            "0.1e+",
+            "1.5.2",
+        ];
+        for cell in tricky {
+            let mut text = String::from("x,y\n");
+            for i in 0..250 {
+                text.push_str(&format!("{i},{}\n", i * 2));
+            }
+            text.push_str(&format!("\"{cell}\",1\n{cell},2\n"));
+            same(&text, &LoadOptions::default());
+        }
+    }
+
+    #[test]
+    fn a_numeric_missing_token_written_with_blanks_is_still_missing() {
+        let mut text = String::from("x,y\n");
+        for i in 0..250 {
+            text.push_str(&format!("{i},{}\n", i * 2));
+        }
+        text.push_str(" -999,1\n-999,2\n-999.0,3\n");
+        let options = LoadOptions {
+            missing_tokens: vec!["-999".into()],
+            ..LoadOptions::default()
+        };
+        same(&text, &options);
+    }
+
+    #[test]
+    fn decimal_comma_files_read_the_same_both_ways() {
+        let mut text = String::from("a;b\n");
+        for i in 0..250 {
+            text.push_str(&format!("{i},5;{i}\n"));
+        }
+        for cell in ["1.5", "1.234,5", "2,5", " 3,5", "4,", ",5"] {
+            let t = format!("{text}{cell};1\n");
+            let options = LoadOptions {
+                decimal: Some(DecimalMark::Comma),
+                ..LoadOptions::default()
+            };
+            same(&t, &options);
+        }
+    }
+
+    #[test]
+    fn the_typed_way_is_taken_for_a_plain_file() {
+        let text = "x,y\n1,2\n3,4\n";
+        let path = Path::new("t.csv");
+        let options = LoadOptions::default();
+        let recs = crate::sniff::records(text.as_bytes()).expect("records");
+        let shape = crate::delimited::layout(text.as_bytes(), &recs, &options);
+        assert!(super::read(path, text.as_bytes(), &recs, &shape, &options, None).is_some());
+    }
+}
