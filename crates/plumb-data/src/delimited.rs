@@ -42,7 +42,16 @@ pub(crate) fn from_bytes(
     options: &LoadOptions,
     progress: Option<&Progress>,
 ) -> Result<Table> {
-    Ok(read_text(path, bytes, options, progress, None)?.with_sha256(bytes))
+    // The hash is taken beside the parse, on another thread.
+    std::thread::scope(|scope| {
+        let hash = scope.spawn(|| crate::table::sha256_hex(bytes));
+        let table = read_text(path, bytes, options, progress, None);
+        let hash = hash.join().unwrap_or_else(|p| std::panic::resume_unwind(p));
+        table.map(|mut t| {
+            t.set_sha256(hash);
+            t
+        })
+    })
 }
 
 /// Which columns of a piece of a streamed file are split out and typed: those at these
@@ -302,21 +311,21 @@ fn check_field_counts(
     delimiter: u8,
     header: bool,
 ) -> Result<()> {
-    let expected = sniff::field_count(&text[recs[0].start..recs[0].end], delimiter);
-    for (i, r) in recs.iter().enumerate() {
-        let found = sniff::field_count(&text[r.start..r.end], delimiter);
-        if found != expected {
-            return Err(DataError::Ragged {
-                path: path.to_path_buf(),
-                line: r.line,
-                row: i + usize::from(!header),
-                found,
-                expected,
-                delimiter: printable(delimiter),
-            });
-        }
-    }
-    Ok(())
+    use rayon::prelude::*;
+    let count = |r: &Record| sniff::field_count(&text[r.start..r.end], delimiter);
+    let expected = count(&recs[0]);
+    // Counted on all cores; the first record (in file order) that differs is the one named.
+    let Some(i) = recs.par_iter().position_first(|r| count(r) != expected) else {
+        return Ok(());
+    };
+    Err(DataError::Ragged {
+        path: path.to_path_buf(),
+        line: recs[i].line,
+        row: i + usize::from(!header),
+        found: count(&recs[i]),
+        expected,
+        delimiter: printable(delimiter),
+    })
 }
 
 fn printable(d: u8) -> String {
