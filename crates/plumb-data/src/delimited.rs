@@ -120,6 +120,11 @@ pub(crate) fn read_text_by(
         decimal: shape.guess.mark,
         header,
     };
+    let asked = match only {
+        Some(_) => None,
+        None => asked_columns(path, text, &recs, &shape, options)?,
+    };
+    let only = only.or(asked.as_ref().map(|(at, names)| Only { at, names }));
     let fast = (way == Way::Typed)
         .then(|| crate::typed::read(path, text, &recs, &shape, options, only.map(|o| o.at)))
         .flatten();
@@ -165,6 +170,44 @@ pub(crate) fn read_text_by(
         header,
     };
     Ok(Table::from_values(path, format, names, values, notes))
+}
+
+/// The positions and names of the columns in [`LoadOptions::only`], when reading only those
+/// cannot change what is read or said: the header names every column once (no blanks, no
+/// repeats: no renaming), it holds every name asked for, and the sample settled the decimal
+/// mark (an open mark is decided by a vote of every cell).
+fn asked_columns(
+    path: &Path,
+    text: &[u8],
+    recs: &[Record],
+    shape: &Layout,
+    options: &LoadOptions,
+) -> Result<Option<(Vec<usize>, Vec<String>)>> {
+    let Some(wanted) = options.only.as_ref() else {
+        return Ok(None);
+    };
+    if !shape.header || shape.guess.ambiguous.is_some() {
+        return Ok(None);
+    }
+    let header = names_of(path, text, recs, shape, 0)?;
+    let mut seen = std::collections::HashSet::new();
+    if header
+        .iter()
+        .any(|n| n.trim().is_empty() || !seen.insert(n.as_str()))
+    {
+        return Ok(None);
+    }
+    let mut at = Vec::new();
+    for name in wanted {
+        match header.iter().position(|h| h == name) {
+            Some(j) => at.push(j),
+            None => return Ok(None),
+        }
+    }
+    at.sort_unstable();
+    at.dedup();
+    let names = at.iter().map(|&j| header[j].clone()).collect();
+    Ok(Some((at, names)))
 }
 
 /// Column names: the header record's fields as the CSV parser reads them, or `columnN`.

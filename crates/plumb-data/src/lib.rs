@@ -58,6 +58,11 @@ pub struct LoadOptions {
     pub sheet: Option<String>,
     /// Most memory a text load may need (bytes); `None`: what the system reports available.
     pub memory_limit: Option<u64>,
+    /// Read only these columns (by header name) of a delimited text file — when its header
+    /// names every column once, holds each name asked for, and its first rows settle the
+    /// decimal mark; otherwise every column is read, so that a message about an unknown
+    /// column still lists them all. `None`: every column. Other formats read every column.
+    pub only: Option<Vec<String>>,
 }
 
 /// Opens `path`, choosing the reader by the file's extension (`.parquet`/`.pq`;

@@ -112,6 +112,7 @@ impl LoadSpec {
             missing_tokens: self.missing.clone(),
             sheet: self.sheet.clone(),
             memory_limit: None,
+            only: None,
         }
     }
 
@@ -692,6 +693,7 @@ mod tests {
             missing_tokens: vec!["-999".into()],
             sheet: Some("runs".into()),
             memory_limit: None,
+            only: None,
         };
         assert_eq!(LoadSpec::from_options(&options).to_options(), options);
         assert_eq!(LoadSpec::default().to_options(), LoadOptions::default());

@@ -13,7 +13,8 @@ use serde_json::{json, Value};
 use crate::cli::{AgreeArgs, Format};
 
 pub fn run(args: &AgreeArgs) -> anyhow::Result<String> {
-    let table = plumb_data::load(&args.load.data, &args.load.options())?;
+    let columns = vec![args.reference.clone(), args.test.clone()];
+    let table = plumb_data::load(&args.load.data, &args.load.options_for(columns))?;
     if !(args.deming_ratio.is_finite() && args.deming_ratio > 0.0) {
         anyhow::bail!(
             "--deming-ratio {} must be a positive number (1 means equal error in both methods)",

@@ -16,7 +16,9 @@ use serde_json::{json, Value};
 use crate::cli::{CalibrateArgs, Format};
 
 pub fn run(args: &CalibrateArgs) -> anyhow::Result<String> {
-    let table = plumb_data::load(&args.load.data, &args.load.options())?;
+    let mut columns = args.model.columns();
+    columns.extend(args.order.order.iter().cloned());
+    let table = plumb_data::load(&args.load.data, &args.load.options_for(columns))?;
     let request = args.model.request(&table).map_err(anyhow::Error::msg)?;
     calibration_ready(&request)?;
     let unknowns = args.unknowns.read(&request.y, &args.load.options())?;

@@ -273,6 +273,7 @@ impl LoadArgs {
             missing_tokens: self.missing.clone(),
             sheet: self.sheet.clone(),
             memory_limit: None,
+            only: None,
         }
     }
 }
@@ -420,6 +421,28 @@ pub struct ModelArgs {
     /// Grouping and transforms.
     #[command(flatten)]
     pub terms: TermArgs,
+}
+
+impl ModelArgs {
+    /// Every column the model names (response, predictors, weights, grouping).
+    pub fn columns(&self) -> Vec<String> {
+        let mut names = vec![self.y.clone()];
+        names.extend(self.x.iter().cloned());
+        names.extend(self.weights.iter().cloned());
+        names.extend(self.terms.group.iter().cloned());
+        names
+    }
+}
+
+impl LoadArgs {
+    /// The loader's options, reading only `columns` from a text file (all of them when that
+    /// could change what is read or said; see `LoadOptions::only`).
+    pub fn options_for(&self, columns: Vec<String>) -> LoadOptions {
+        LoadOptions {
+            only: Some(columns),
+            ..self.options()
+        }
+    }
 }
 
 fn parse_weight_rule(s: &str) -> Result<WeightRule, String> {

@@ -6,7 +6,9 @@ use crate::cli::{FitArgs, Format};
 use crate::{fit_json, fit_text};
 
 pub fn run(args: &FitArgs) -> anyhow::Result<String> {
-    let table = plumb_data::load(&args.load.data, &args.load.options())?;
+    let mut columns = args.model.columns();
+    columns.extend(args.order.order.iter().cloned());
+    let table = plumb_data::load(&args.load.data, &args.load.options_for(columns))?;
     let request = args.model.request(&table).map_err(anyhow::Error::msg)?;
     if (args.robust.is_some() || args.loess.is_some()) && request.x.len() != 1 {
         anyhow::bail!(

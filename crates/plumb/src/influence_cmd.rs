@@ -46,7 +46,10 @@ struct RowJson<'a> {
 }
 
 pub fn run(args: &InfluenceArgs) -> anyhow::Result<String> {
-    let table = plumb_data::load(&args.load.data, &args.load.options())?;
+    let table = plumb_data::load(
+        &args.load.data,
+        &args.load.options_for(args.model.columns()),
+    )?;
     let wanted = Wanted {
         influence: true,
         extras: None,

@@ -121,6 +121,7 @@ impl Document {
     pub fn load_options(&self) -> plumb_data::LoadOptions {
         plumb_data::LoadOptions {
             memory_limit: self.memory_limit,
+            only: None,
             ..plumb_data::LoadOptions::default()
         }
     }
