@@ -3,7 +3,7 @@
 
 use crate::alternative::loess;
 use crate::association::{distance_correlation, pearson};
-use crate::regression::{fit, influence, Design, FitOptions};
+use crate::regression::{fit, influence, Design, FitOptions, LinearFit};
 
 /// A curve counts as clearly better than the line when its R² exceeds the line's by this much
 /// and reaches [`CURVE_R2_STRONG`]. Plumbline's own rule of thumb, no source.
@@ -52,6 +52,22 @@ pub struct PairCues {
 
 /// Computes the cues; `None` when Pearson's r itself is undefined or n < 5.
 pub fn pair_cues(x: &[f64], y: &[f64]) -> Option<PairCues> {
+    pair_cues_given(x, y, KnownFits::default())
+}
+
+/// Fits of the same `x` and `y` the caller already has, so that [`pair_cues_given`] need not
+/// repeat them: each must be by least squares with an intercept, unweighted, with
+/// [`FitOptions::default`] (the answer is then the same as [`pair_cues`]'s, to the bit).
+#[derive(Debug, Clone, Copy, Default)]
+pub struct KnownFits<'a> {
+    /// The straight line.
+    pub line: Option<&'a LinearFit>,
+    /// The cubic polynomial (degree 3).
+    pub cubic: Option<&'a LinearFit>,
+}
+
+/// [`pair_cues`], reusing the fits in `known`.
+pub fn pair_cues_given(x: &[f64], y: &[f64], known: KnownFits<'_>) -> Option<PairCues> {
     let pearson_fit = pearson(x, y, 0.95).ok()?;
     let r = pearson_fit.r;
     let n = x.len();
@@ -60,11 +76,21 @@ pub fn pair_cues(x: &[f64], y: &[f64]) -> Option<PairCues> {
     }
     let options = FitOptions::default();
     let line_design = Design::linear(&[("x", x)], true);
-    let line = fit(&line_design, y, None, &options).ok()?;
-    let cubic = Design::polynomial("x", x, 3, true)
-        .ok()
-        .and_then(|d| fit(&d, y, None, &options).ok())
-        .map(|f| f.r_squared);
+    let fresh_line;
+    let line = match known.line {
+        Some(line) => line,
+        None => {
+            fresh_line = fit(&line_design, y, None, &options).ok()?;
+            &fresh_line
+        }
+    };
+    let cubic = match known.cubic {
+        Some(c) => Some(c.r_squared),
+        None => Design::polynomial("x", x, 3, true)
+            .ok()
+            .and_then(|d| fit(&d, y, None, &options).ok())
+            .map(|f| f.r_squared),
+    };
     let smooth = loess(x, y, 0.75, 2).ok().map(|l| l.r_squared);
     let curve_r_squared = match (cubic, smooth) {
         (Some(a), Some(b)) => Some(a.max(b)),
@@ -80,7 +106,7 @@ pub fn pair_cues(x: &[f64], y: &[f64]) -> Option<PairCues> {
     let dependent =
         distance.is_some_and(|(_, p)| p <= DCOR_P) || grid.is_some_and(|(_, _, p)| p <= DCOR_P);
     let hidden = dependent && pearson_fit.p_value > PEARSON_QUIET_P;
-    let cases = influence(&line_design, None, &line, &options).ok()?;
+    let cases = influence(&line_design, None, line, &options).ok()?;
     let most_influential = cases
         .iter()
         .enumerate()
@@ -163,6 +189,28 @@ pub fn grid_independence(x: &[f64], y: &[f64]) -> Option<(f64, usize, f64)> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn cues_from_fits_the_caller_has_are_the_cues_computed_afresh() {
+        let x: Vec<f64> = (0..200).map(|k| f64::from(k) * 0.05).collect();
+        let y: Vec<f64> = x.iter().map(|v| (v * 1.7).sin() + 0.1 * v * v).collect();
+        let options = FitOptions::default();
+        let line = fit(&Design::linear(&[("t", &x)], true), &y, None, &options).expect("line");
+        let cubic_design = Design::polynomial("t", &x, 3, true).expect("cubic design");
+        let cubic = fit(&cubic_design, &y, None, &options).expect("cubic");
+        let known = KnownFits {
+            line: Some(&line),
+            cubic: Some(&cubic),
+        };
+        assert_eq!(pair_cues_given(&x, &y, known), pair_cues(&x, &y));
+        let wrong = fit(&Design::linear(&[("t", &x)], false), &y, None, &options).expect("fit");
+        let misled = KnownFits {
+            line: Some(&wrong),
+            cubic: None,
+        };
+        // The test can fail: a fit of another kind changes the answer.
+        assert_ne!(pair_cues_given(&x, &y, misled), pair_cues(&x, &y));
+    }
 
     #[test]
     fn a_ring_is_flagged_as_non_linear() {

@@ -4,7 +4,7 @@
 use plumb_core::alternative::{
     deming, loess, theil_sen, AlternativeError, DemingFit, LoessFit, TheilSenFit,
 };
-use plumb_core::cues::{pair_cues, PairCues};
+use plumb_core::cues::{pair_cues_given, KnownFits, PairCues};
 use plumb_core::regression::{
     bands_at, compare_nested, fit, BandPoint, Design, FitOptions, LinearFit, NestedComparison,
     StandardizedView,
@@ -146,6 +146,25 @@ pub(super) fn pair_extras(
     let (y, x) = (rows.y(), rows.predictors[0].as_slice());
     let z_view = StandardizedView::of(x, y);
     let read_at = at.and_then(|a| read_at(rows, fitted, z_view, a));
+    let degrees = if request.weights.is_none() && rows.levels.is_none() {
+        degree_ladder(x, y, request)
+    } else {
+        Vec::new()
+    };
+    // The ladder's line and cubic are the cues' own fits when they are fitted the same way
+    // (with an intercept, at the default options): each is fitted once.
+    let same_way =
+        request.intercept && request.level.to_bits() == FitOptions::default().level.to_bits();
+    let step = |d: u32| {
+        same_way
+            .then(|| degrees.iter().find(|s| s.degree == d))
+            .flatten()
+            .map(|s| &s.fit)
+    };
+    let known = KnownFits {
+        line: step(1),
+        cubic: step(3),
+    };
     Some(PairExtras {
         read_at,
         robust: robust.map(|r| match r {
@@ -153,14 +172,10 @@ pub(super) fn pair_extras(
             Robust::Deming(lambda) => deming(x, y, lambda).map(RobustFit::Deming),
         }),
         loess: loess_span.map(|span| loess(x, y, span, 2)),
-        cues: pair_cues(x, y),
+        cues: pair_cues_given(x, y, known),
         z_view,
-        degrees: if request.weights.is_none() && rows.levels.is_none() {
-            degree_ladder(x, y, request)
-        } else {
-            Vec::new()
-        },
         curves: curves(rows, fitted),
+        degrees,
     })
 }
 
