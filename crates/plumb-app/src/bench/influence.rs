@@ -55,7 +55,8 @@ pub fn influence_ui(
         &VIEW,
         |d| Some((&d.views.leverage, None)),
         |pu, cloud, v| {
-            let h_max = cloud.points.iter().map(|q| q.0).fold(0.0_f64, f64::max);
+            // From the bounds kept with the cloud: no pass over the points each frame.
+            let h_max = cloud.bounds.map_or(0.0, |b| b.x_max.max(0.0));
             let df = cloud.points.len().saturating_sub(p);
             let styles = [LineStyle::dashed_loose(), LineStyle::dashed_dense()];
             for (d, style) in COOK_CURVES.iter().zip(styles) {

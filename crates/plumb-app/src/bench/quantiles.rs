@@ -19,11 +19,10 @@ const VIEW: Diagnostic<'static> = Diagnostic {
 
 /// The diagonal `y = x` over the widest normal score (at least ±1).
 pub fn diagonal(points: &Cloud) -> [[f64; 2]; 2] {
+    // From the bounds kept with the cloud: no pass over the points each frame.
     let m = points
-        .points
-        .iter()
-        .map(|q| q.0.abs())
-        .fold(1.0_f64, f64::max);
+        .bounds
+        .map_or(1.0, |b| b.x_min.abs().max(b.x_max.abs()).max(1.0));
     [[-m, -m], [m, m]]
 }
 

@@ -17,6 +17,9 @@ pub struct Cloud {
     /// The smallest rectangle holding every finite point.
     pub bounds: Option<Bounds>,
     index: Option<PointIndex>,
+    /// Positions ordered by entry, when the entries are not ascending (the quantile view):
+    /// finds a point by its entry without a scan.
+    by_entry: Option<Vec<usize>>,
 }
 
 impl Cloud {
@@ -25,11 +28,18 @@ impl Cloud {
         let index = (points.len() > INDEX_FROM)
             .then(|| PointIndex::new(&points))
             .flatten();
+        let ascending = entries.windows(2).all(|w| w[0] < w[1]);
+        let by_entry = (!ascending).then(|| {
+            let mut order: Vec<usize> = (0..entries.len()).collect();
+            order.sort_unstable_by_key(|&k| entries[k]);
+            order
+        });
         Self {
             bounds: Bounds::around(points.iter().copied()),
             points,
             entries,
             index,
+            by_entry,
         }
     }
 
@@ -81,15 +91,35 @@ impl Cloud {
 
     /// Position of `entry` in this view, if it is drawn here.
     pub fn position_of(&self, entry: usize) -> Option<(f64, f64)> {
-        // Entries are ascending in every cloud but the quantile view's; scan is fine for a
-        // single lookup per frame.
-        match self.entries.binary_search(&entry) {
-            Ok(k) => Some(self.points[k]),
-            Err(_) => self
-                .entries
-                .iter()
-                .position(|&e| e == entry)
-                .map(|k| self.points[k]),
-        }
+        // Entries are ascending in every cloud but the quantile view's, which keeps its
+        // positions ordered by entry.
+        let k = match &self.by_entry {
+            None => self.entries.binary_search(&entry).ok()?,
+            Some(order) => {
+                let at = order
+                    .binary_search_by_key(&entry, |&k| self.entries[k])
+                    .ok()?;
+                order[at]
+            }
+        };
+        Some(self.points[k])
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_point_is_found_by_its_entry_whether_or_not_entries_ascend() {
+        let points = vec![(0.0, 1.0), (2.0, 3.0), (4.0, 5.0), (6.0, 7.0)];
+        let ascending = Cloud::new(points.clone(), vec![1, 4, 7, 9]);
+        assert_eq!(ascending.position_of(7), Some((4.0, 5.0)));
+        assert_eq!(ascending.position_of(5), None);
+        // The quantile view orders its points by residual, not by entry.
+        let shuffled = Cloud::new(points, vec![9, 1, 7, 4]);
+        assert_eq!(shuffled.position_of(9), Some((0.0, 1.0)));
+        assert_eq!(shuffled.position_of(4), Some((6.0, 7.0)));
+        assert_eq!(shuffled.position_of(5), None);
     }
 }
