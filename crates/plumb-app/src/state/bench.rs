@@ -297,7 +297,8 @@ impl BenchModel {
                 if self.opening.is_none() {
                     self.follow_lambda(data, d.boxcox, waker);
                 }
-                self.diag = Some(Arc::new(d));
+                // The diagnostics replaced are freed off the UI thread too.
+                drop_aside((None, self.diag.replace(Arc::new(d))));
                 self.diag_generation += 1;
             }
         }
