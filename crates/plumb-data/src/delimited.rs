@@ -142,14 +142,7 @@ pub(crate) fn read_text_by(
     stage(Stage::Typing);
     let texts = text_columns(path, frame)?;
     let skip = usize::from(header);
-    let from_file: Vec<String> = if header {
-        texts
-            .iter()
-            .map(|c| c.get(0).unwrap_or_default().to_string())
-            .collect()
-    } else {
-        (1..=texts.len()).map(|j| format!("column{j}")).collect()
-    };
+    let from_file = column_names(header, &texts);
     let names = only.map_or(from_file, |o| o.names.to_vec());
     if texts.first().is_none_or(|c| c.len() <= skip) {
         return Err(DataError::NoDataRows {
@@ -222,10 +215,18 @@ fn names_of(
         return Ok((1..=count).map(|j| format!("column{j}")).collect());
     }
     let frame = parse(path, text, &recs[..1], shape.delimiter, None)?;
-    Ok(text_columns(path, frame)?
+    Ok(column_names(true, &text_columns(path, frame)?))
+}
+
+/// The first cell of each column when the first record is a header, else `columnN`.
+fn column_names(header: bool, texts: &[StringChunked]) -> Vec<String> {
+    if !header {
+        return (1..=texts.len()).map(|j| format!("column{j}")).collect();
+    }
+    texts
         .iter()
         .map(|c| c.get(0).unwrap_or_default().to_string())
-        .collect())
+        .collect()
 }
 
 /// The non-empty records of `text`, split outside quotes.

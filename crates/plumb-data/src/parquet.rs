@@ -3,6 +3,7 @@
 use std::path::Path;
 
 use polars::prelude::{ArrowDataType, DataType, ParquetReader, SerReader};
+use polars_utils::mmap::MemSlice;
 
 use crate::cell::{classify, Cell, DecimalMark};
 use crate::table::{SourceFormat, Table};
@@ -11,15 +12,20 @@ use crate::{DataError, LoadOptions, Result};
 pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
     // Read once: the hash is of the bytes the table comes from.
     let bytes = crate::budget::read_binary(path, options.memory_limit)?;
-    from_bytes(path, &bytes, options)
+    from_slice(path, MemSlice::from_vec(bytes), options)
 }
 
-/// A Parquet file already in memory; `path` names it in messages. A damaged file that makes the
-/// reader panic is reported as unreadable ([`crate::guard::contain`]).
+/// A Parquet file already in memory; `path` names it in messages.
 pub(crate) fn from_bytes(path: &Path, bytes: &[u8], options: &LoadOptions) -> Result<Table> {
+    from_slice(path, MemSlice::from_vec(bytes.to_vec()), options)
+}
+
+/// The file's bytes, held once for the page check and the read. A damaged file that makes
+/// the reader panic is reported as unreadable ([`crate::guard::contain`]).
+fn from_slice(path: &Path, bytes: MemSlice, options: &LoadOptions) -> Result<Table> {
     crate::guard::contain(path, "Parquet", || {
-        crate::parquet_pages::check(path, bytes)?;
-        read(path, bytes, options)
+        crate::parquet_pages::check(path, &bytes)?;
+        read(path, &bytes, options)
     })
 }
 

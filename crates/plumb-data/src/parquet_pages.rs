@@ -16,11 +16,11 @@ use crate::{DataError, Result};
 
 /// Refuses a file whose page headers claim value counts outside their column chunk's. A file
 /// whose metadata or pages cannot be read at all is left for the reader to report.
-pub(crate) fn check(path: &Path, bytes: &[u8]) -> Result<()> {
+pub(crate) fn check(path: &Path, whole: &MemSlice) -> Result<()> {
+    let bytes: &[u8] = whole;
     let Ok(meta) = read_metadata(&mut Cursor::new(bytes)) else {
         return Ok(());
     };
-    let whole = MemSlice::from_vec(bytes.to_vec());
     for (g, group) in meta.row_groups.iter().enumerate() {
         for chunk in group.parquet_columns() {
             let total = chunk.num_values();
@@ -58,9 +58,12 @@ pub(crate) fn check(path: &Path, bytes: &[u8]) -> Result<()> {
 
 /// The first count in a data page header that is negative or more than the chunk holds.
 fn bad_count(header: &DataPageHeader, total: i64) -> Option<i64> {
-    let counts: Vec<i64> = match header {
-        DataPageHeader::V1(h) => vec![h.num_values.into()],
-        DataPageHeader::V2(h) => vec![h.num_values.into(), h.num_rows.into(), h.num_nulls.into()],
+    let counts: [i32; 3] = match header {
+        DataPageHeader::V1(h) => [h.num_values, 0, 0],
+        DataPageHeader::V2(h) => [h.num_values, h.num_rows, h.num_nulls],
     };
-    counts.into_iter().find(|&n| n < 0 || n > total.max(0))
+    counts
+        .into_iter()
+        .map(i64::from)
+        .find(|&n| n < 0 || n > total.max(0))
 }
