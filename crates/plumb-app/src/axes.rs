@@ -7,6 +7,10 @@ use egui_plot::{AxisHints, GridInput, GridMark, Plot};
 
 /// Fewest and most labelled ticks on an axis.
 pub const TICKS: (usize, usize) = (3, 5);
+/// Room left right of a plot, so that the last x tick's label is never cut at the edge.
+const RIGHT_ROOM: f32 = 14.0;
+/// Width kept for every y axis's tick labels, so that views stacked on one x axis line up.
+pub const Y_AXIS_WIDTH: f32 = 44.0;
 /// Room each label needs along the axis, in points (x: a number's width; y: its height).
 const LABEL_ROOM: (f64, f64) = (64.0, 28.0);
 
@@ -72,6 +76,61 @@ pub fn label(value: f64, step: f64) -> String {
     format!("{value:.decimals$}")
 }
 
+/// A value under the pointer, written to about a thousandth of the view's `span`: enough to
+/// read a point off, no digits the screen cannot resolve.
+pub fn readout(value: f64, span: f64) -> String {
+    if !(value.is_finite() && span.is_finite() && span > 0.0) {
+        return "—".into();
+    }
+    let resolution = span / 1000.0;
+    if !(1e-6..1e7).contains(&resolution) || value.abs() >= 1e9 {
+        let digits = (value.abs().max(resolution).log10() - resolution.log10()).ceil() + 1.0;
+        return plumb_report::text::sig(value, digits.clamp(2.0, 12.0) as u32);
+    }
+    let decimals = (-resolution.log10().floor()).max(0.0) as usize;
+    let text = format!("{value:.decimals$}");
+    if text
+        .trim_start_matches('-')
+        .chars()
+        .all(|c| c == '0' || c == '.')
+    {
+        text.trim_start_matches('-').to_string()
+    } else {
+        text
+    }
+}
+
+/// Writes the pointer's position in data units in the top-left corner of a hovered plot.
+pub fn readout_ui(ui: &egui::Ui, response: &egui::Response, transform: &egui_plot::PlotTransform) {
+    let Some(pos) = response.hover_pos() else {
+        return;
+    };
+    let v = transform.value_from_position(pos);
+    let b = transform.bounds();
+    let text = format!(
+        "x {}   y {}",
+        readout(v.x, b.width()),
+        readout(v.y, b.height())
+    );
+    let frame = transform.frame();
+    let font = egui::TextStyle::Small.resolve(ui.style());
+    let painter = ui.painter().with_clip_rect(*frame);
+    let galley = painter.layout_no_wrap(text, font, ui.visuals().text_color());
+    let at = frame.left_top() + Vec2::new(6.0, 4.0);
+    let back = egui::Rect::from_min_size(at, galley.size()).expand(3.0);
+    painter.rect_filled(
+        back,
+        3.0,
+        ui.visuals().extreme_bg_color.gamma_multiply(0.85),
+    );
+    painter.galley(at, galley, ui.visuals().text_color());
+}
+
+/// Names a plot for assistive technology (and for the tests that find it): `name`.
+pub fn name_plot(response: &egui::Response, name: &str) {
+    response.widget_info(|| egui::WidgetInfo::labeled(egui::Role::Figure, true, name));
+}
+
 /// The grid spacer of one axis: [`ticks`] for the axis' length in points.
 fn spacer(room: f64) -> impl Fn(GridInput) -> Vec<GridMark> {
     move |input: GridInput| {
@@ -96,7 +155,7 @@ pub fn plot<'a>(id: impl egui::AsIdSalt, size: Vec2, (x, y): (&str, &str)) -> Pl
     let formatter =
         |mark: GridMark, _: &std::ops::RangeInclusive<f64>| label(mark.value, mark.step_size);
     Plot::new(id)
-        .width(size.x)
+        .width((size.x - RIGHT_ROOM).max(60.0))
         .height(size.y)
         .custom_x_axes(vec![AxisHints::new_x()
             .label(x.to_string())
@@ -108,6 +167,7 @@ pub fn plot<'a>(id: impl egui::AsIdSalt, size: Vec2, (x, y): (&str, &str)) -> Pl
             .label_spacing(12.0..=16.0)])
         .x_grid_spacer(spacer(LABEL_ROOM.0))
         .y_grid_spacer(spacer(LABEL_ROOM.1))
+        .y_axis_min_width(Y_AXIS_WIDTH)
         .show_x(false)
         .show_y(false)
         .allow_double_click_reset(true)
@@ -156,6 +216,18 @@ mod tests {
         assert_eq!(t, vec![0.0, 50.0, 100.0], "step {step}");
         assert!(ticks(1.0, 1.0, 5).0.is_empty());
         assert!(ticks(f64::NAN, 1.0, 5).0.is_empty());
+    }
+
+    #[test]
+    fn the_readout_resolves_a_thousandth_of_the_view() {
+        assert_eq!(readout(12.345678, 10.0), "12.35");
+        assert_eq!(readout(12.345678, 1000.0), "12");
+        assert_eq!(readout(-0.0004, 1.0), "0.000", "no minus sign on a zero");
+        assert_eq!(readout(0.5, 0.001), "0.500000");
+        let big: f64 = readout(2.5e9, 1e9).parse().expect("a number");
+        assert!((big - 2.5e9).abs() <= 1e6, "{big}");
+        assert_eq!(readout(f64::NAN, 1.0), "—");
+        assert_eq!(readout(1.0, 0.0), "—");
     }
 
     #[test]

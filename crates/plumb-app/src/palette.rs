@@ -112,6 +112,52 @@ pub fn density(t: f32, v: &Visuals) -> Color32 {
     Color32::from_rgba_unmultiplied(base.r(), base.g(), base.b(), alpha)
 }
 
+/// The pooled fitted line: the fit's blue, or the text's ink when the points are coloured by
+/// group (the group colours include blues, and the pooled line must not read as a group's).
+pub fn fit_line(v: &Visuals, grouped: bool) -> Color32 {
+    if grouped {
+        v.strong_text_color()
+    } else {
+        fit(v)
+    }
+}
+
+/// The Theil–Sen line (long dashes): a warm brown, apart from the group colours.
+pub fn theil_sen(v: &Visuals) -> Color32 {
+    if v.dark_mode {
+        Color32::from_rgb(0xD9, 0xA7, 0x7E)
+    } else {
+        Color32::from_rgb(0x7A, 0x4A, 0x1E)
+    }
+}
+
+/// The Deming line (dotted): a slate grey-green, apart from Theil–Sen and the groups.
+pub fn deming(v: &Visuals) -> Color32 {
+    if v.dark_mode {
+        Color32::from_rgb(0x9F, 0xB8, 0xAD)
+    } else {
+        Color32::from_rgb(0x3D, 0x57, 0x4C)
+    }
+}
+
+/// Opacity of plain markers among `n` points: opaque up to a few hundred, fading towards a
+/// quarter at the density image's threshold, so that a crowd shows where it is thick instead
+/// of merging into one blot.
+pub fn marker_alpha(n: usize) -> f32 {
+    ((400.0 / n.max(1) as f32).powf(0.45)).clamp(0.25, 1.0)
+}
+
+/// Influence classes by Cook's distance, from ordinary to strong.
+pub fn influence(class: usize, v: &Visuals) -> Color32 {
+    match (class, v.dark_mode) {
+        (0, _) => point(v),
+        (1, true) => Color32::from_rgb(0xF2, 0xB7, 0x5B),
+        (1, false) => Color32::from_rgb(0xB3, 0x6B, 0x00),
+        (_, true) => Color32::from_rgb(0xFF, 0x7A, 0x59),
+        (_, false) => Color32::from_rgb(0xB0, 0x24, 0x0C),
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

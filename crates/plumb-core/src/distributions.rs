@@ -137,6 +137,44 @@ pub fn f_upper_tail(f: f64, d1: f64, d2: f64) -> f64 {
     beta_reg(0.5 * d2, 0.5 * d1, d2 / (d2 + d1 * f))
 }
 
+/// Median of Fisher's F with `(d1, d2)` degrees of freedom: the `f` with
+/// `P(F ≥ f) = ½`, found by bisection on [`f_upper_tail`] (monotone in `f`) to 1e-12
+/// relative. `NaN` for non-positive degrees of freedom.
+pub fn f_median(d1: f64, d2: f64) -> f64 {
+    if !(d1 > 0.0 && d2 > 0.0) {
+        return f64::NAN;
+    }
+    let (mut lo, mut hi) = (0.0f64, 1.0f64);
+    while f_upper_tail(hi, d1, d2) > 0.5 {
+        hi *= 2.0;
+    }
+    for _ in 0..200 {
+        let mid = 0.5 * (lo + hi);
+        if f_upper_tail(mid, d1, d2) > 0.5 {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+        if hi - lo <= 1e-12 * hi {
+            break;
+        }
+    }
+    0.5 * (lo + hi)
+}
+
+/// Where the `i`-th smallest of `n` independent standard normal values lies with probability
+/// `1 − alpha`, pointwise: its uniform counterpart `U₍ᵢ₎` follows `Beta(i, n + 1 − i)`, so the
+/// interval is `[Φ⁻¹(B⁻¹(α/2)), Φ⁻¹(B⁻¹(1 − α/2))]`. `None` unless `1 ≤ i ≤ n` and
+/// `0 < alpha < 1`.
+pub fn normal_order_band(i: usize, n: usize, alpha: f64) -> Option<(f64, f64)> {
+    if i == 0 || i > n || !(alpha > 0.0 && alpha < 1.0) {
+        return None;
+    }
+    let b = statrs::distribution::Beta::new(i as f64, (n + 1 - i) as f64).ok()?;
+    let z = |q: f64| -normal_upper_quantile(b.inverse_cdf(q));
+    Some((z(alpha / 2.0), z(1.0 - alpha / 2.0)))
+}
+
 /// Upper tail of the standard normal: `Q(z) = P(Z ≥ z) = ½·Γ(½, z²/2)/Γ(½)` for `z ≥ 0`
 /// (the regularized upper incomplete gamma, accurate to a few ulps in statrs, where its
 /// `erfc` is good to about 1e-11 only) and `Q(z) = ½ + ½·P(½, z²/2)` for `z < 0`.
@@ -207,6 +245,43 @@ pub fn normal_upper_quantile(alpha: f64) -> f64 {
         }
     }
     z
+}
+
+#[cfg(test)]
+mod median_tests {
+    use super::*;
+
+    #[test]
+    fn f_medians_match_scipy() {
+        // scipy.stats.f.median(d1, d2), printed by scipy 1.14.1 in this repository's venv.
+        for (d1, d2, want) in [
+            (2.0, 10.0, 0.743_491_774_985_175_2),
+            (1.0, 1.0, 1.0),
+            (3.0, 100.0, 0.794_068_738_114_036_2),
+        ] {
+            let got = f_median(d1, d2);
+            assert!((got - want).abs() <= 1e-9 * want, "F({d1}, {d2}): {got}");
+        }
+        assert!(f_median(0.0, 3.0).is_nan());
+    }
+
+    #[test]
+    fn normal_order_bands_match_scipy() {
+        // norm.ppf(beta.ppf([0.025, 0.975], i, n + 1 - i)), scipy 1.14.1 in this repository's venv.
+        for (i, n, lo, hi) in [
+            (1, 20, -3.019_708_708_861_97, -0.960_374_152_634_741_4),
+            (10, 20, -0.606_902_379_169_195_4, 0.480_944_047_403_354_67),
+            (100, 100, 1.796_384_512_330_064_6, 3.477_405_192_764_768_2),
+        ] {
+            let (a, b) = normal_order_band(i, n, 0.05).expect("band");
+            assert!(
+                (a - lo).abs() < 1e-7 && (b - hi).abs() < 1e-7,
+                "{i} of {n}: {a} {b}"
+            );
+        }
+        assert!(normal_order_band(0, 5, 0.05).is_none());
+        assert!(normal_order_band(6, 5, 0.05).is_none());
+    }
 }
 
 #[cfg(test)]

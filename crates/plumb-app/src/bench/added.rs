@@ -58,6 +58,7 @@ pub fn added_ui(
         tip: TIP,
         x_label: &x_label,
         y_label: &y_label,
+        shares_scatter_x: false,
     };
     let pick = Pick(k);
     diagnostic_ui(
@@ -76,6 +77,7 @@ pub fn added_ui(
                 pu.line(guide(&name, slope_line(a), v).width(1.5));
             }
         },
+        None,
     )
 }
 

@@ -38,6 +38,7 @@ pub fn differences_ui(
         tip: TIP,
         x_label: "mean of the two methods",
         y_label: &y_label,
+        shares_scatter_x: false,
     };
     let limits = scene
         .bench
@@ -71,6 +72,7 @@ pub fn differences_ui(
                 agreement_guides(pu, cloud, l, v);
             }
         },
+        None,
     );
     if !beyond.is_empty() {
         ui.weak(beyond);

@@ -1,72 +1,118 @@
-//! The influence view: leverage against the externally studentized residual (the kind the
-//! quantile view and the influence table show too), with the curves of constant Cook's
-//! distance at 0.5 and 1 drawn on that kind of residual (`plumb_core::regression::cooks_contour`;
-//! beyond them one row moves the fit a lot).
+//! How much each row pulls the fit: leverage across, the externally studentized (leave-one-out)
+//! residual up, and Cook's distance told by each marker's size and colour in three classes
+//! (ordinary; flagged by the influence table's rule; strong, at or above the median of
+//! `F(p, n − p)`), with a key above the view. Thin dotted lines mark the table's leverage and
+//! residual flags.
 
-use eframe::egui::{self, Vec2};
-use egui_plot::LineStyle;
-use plumb_core::regression::cooks_contour;
+use eframe::egui;
+use egui_plot::{LineStyle, Points};
+use plumb_core::regression::{Pull as PullClass, LEVERAGE_FLAG_FACTOR, STUDENTIZED_FLAG};
 
+use super::key::{key_row_ui, Key, Swatch};
 use super::view::{diagnostic_ui, guide, Diagnostic};
 use super::{BenchUi, Scene};
 use crate::action::Actions;
+use crate::palette;
+use crate::state::views::Pull;
 
 const VIEW: Diagnostic<'static> = Diagnostic {
     id: "leverage",
     variant: 0,
-    title: "Leverage against studentized residual",
-    tip: "Far right: unusual x. Far up or down: unusual y for its x. Curves: Cook's distance 0.5 and 1 (beyond them one row moves the fit a lot).",
-    x_label: "leverage (hat value)",
-    y_label: "studentized residual (external)",
+    title: "How much each row pulls the fit",
+    tip: "Leverage (how unusual a row's x is) across, studentized residual (how far its y is from a fit made without it) up. Size and colour: Cook's distance, how far the estimates move when the row is left out. Thin lines: the leverage and residual flags of the influence table.",
+    x_label: "leverage",
+    y_label: "studentized residual (leave-one-out)",
+    shares_scatter_x: false,
 };
 
-/// Cook's distances drawn as curves.
-pub const COOK_CURVES: [f64; 2] = [0.5, 1.0];
-/// Curves are not drawn beyond this |studentized residual|.
-const CURVE_CLIP: f64 = 6.0;
+/// Marker radius of each pull class (ordinary, flagged, strong), in points.
+pub const PULL_RADIUS: [f32; 3] = [2.5, 4.5, 6.5];
 
-/// One branch (`sign` ±1) of the curve of Cook's distance `d` for `p` terms and `df` residual
-/// degrees of freedom, over leverages up to a little past the largest shown, in externally
-/// studentized residuals (see [`cooks_contour`]).
-pub fn cook_curve(d: f64, p: usize, df: usize, h_max: f64, sign: f64) -> Vec<[f64; 2]> {
-    let reach = (h_max.max(0.05) * 1.05).min(0.999);
-    (1..=80)
-        .filter_map(|k| {
-            let h = reach * f64::from(k) / 80.0;
-            cooks_contour(d, p, df, h).map(|t| [h, sign * t])
-        })
-        .filter(|q| q[1].abs() < CURVE_CLIP)
-        .collect()
+/// The view's key: what the marker sizes mean, with the strong class's threshold.
+pub fn pull_keys(pull: &Pull, v: &egui::Visuals) -> Vec<Key> {
+    let strong = if pull.strong_from.is_finite() {
+        format!(
+            "strong pull: D ≥ {} (median of F)",
+            plumb_report::text::sig(pull.strong_from, 3)
+        )
+    } else {
+        "strong pull: D ≥ median of F".to_string()
+    };
+    vec![
+        Key {
+            swatch: Swatch::Sized(palette::influence(0, v), PULL_RADIUS[0]),
+            name: "ordinary".into(),
+        },
+        Key {
+            swatch: Swatch::Sized(palette::influence(1, v), PULL_RADIUS[1]),
+            name: "flagged by Cook's rule".into(),
+        },
+        Key {
+            swatch: Swatch::Sized(palette::influence(2, v), PULL_RADIUS[2]),
+            name: strong,
+        },
+    ]
 }
 
-/// Draws the view (a spinner until the first diagnostics arrive).
-pub fn influence_ui(
-    scene: &Scene<'_>,
-    own: &mut BenchUi,
-    ui: &mut egui::Ui,
-    size: Vec2,
-) -> Actions {
+/// Draws the view in the box it is given (a spinner until the first diagnostics arrive).
+pub fn influence_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> Actions {
     let p = scene.pair.terms.len();
+    let empty = Pull::default();
+    let pull = scene.bench.diagnostics().map_or(&empty, |d| &d.views.pull);
+    let visuals = ui.visuals().clone();
+    super::points::title_ui(ui, VIEW.title, VIEW.tip);
+    key_row_ui(ui, &pull_keys(pull, &visuals));
+    let size = ui.available_size();
+    let untitled = Diagnostic { title: "", ..VIEW };
     diagnostic_ui(
         scene,
         own,
         ui,
         size,
-        &VIEW,
+        &untitled,
         |d| Some((&d.views.leverage, None)),
         |pu, cloud, v| {
             // From the bounds kept with the cloud: no pass over the points each frame.
-            let h_max = cloud.bounds.map_or(0.0, |b| b.x_max.max(0.0));
-            let df = cloud.points.len().saturating_sub(p);
-            let styles = [LineStyle::dashed_loose(), LineStyle::dashed_dense()];
-            for (d, style) in COOK_CURVES.iter().zip(styles) {
-                for sign in [1.0, -1.0] {
-                    let name = format!("Cook's D = {d}");
-                    pu.line(guide(&name, cook_curve(*d, p, df, h_max, sign), v).style(style));
-                }
+            let n = cloud.points.len().max(1) as f64;
+            let h_cut = LEVERAGE_FLAG_FACTOR * p as f64 / n;
+            let (h_lo, h_hi) = cloud.bounds.map_or((0.0, 1.0), |b| (b.x_min, b.x_max));
+            let t = STUDENTIZED_FLAG;
+            for y in [t, -t] {
+                pu.line(
+                    guide("", vec![[h_lo.min(0.0), y], [h_hi.max(h_cut), y]], v)
+                        .style(LineStyle::dotted_loose()),
+                );
             }
+            pu.line(
+                guide("", vec![[h_cut, -t * 1.5], [h_cut, t * 1.5]], v)
+                    .style(LineStyle::dotted_loose()),
+            );
         },
+        Some(&|pu, v| pull_markers(pu, pull, v)),
     )
+}
+
+/// The flagged and strong rows as larger markers in their class colour, drawn over the
+/// ordinary points (or over the density image).
+fn pull_markers(pu: &mut egui_plot::PlotUi<'_>, pull: &Pull, v: &egui::Visuals) {
+    for class in [PullClass::Flagged, PullClass::Strong] {
+        let pts: Vec<[f64; 2]> = pull
+            .notable
+            .iter()
+            .filter(|n| n.2 == class)
+            .map(|n| [n.1 .0, n.1 .1])
+            .collect();
+        if pts.is_empty() {
+            continue;
+        }
+        pu.points(
+            Points::new("", pts)
+                .color(palette::influence(class as usize, v))
+                .radius(PULL_RADIUS[class as usize])
+                .filled(true)
+                .allow_hover(false),
+        );
+    }
 }
 
 #[cfg(test)]
@@ -74,24 +120,17 @@ mod tests {
     use super::*;
 
     #[test]
-    fn every_point_of_a_curve_has_that_cooks_distance() {
-        // Back from the external t to the internal r, r² = t²·df/(df − 1 + t²), then Cook's
-        // D = r²·h/(p(1 − h)) (its definition): each point of a curve gives its D back.
-        for (d, p, df) in [(0.5, 2, 20), (1.0, 3, 9)] {
-            let curve = cook_curve(d, p, df, 0.4, -1.0);
-            assert!(!curve.is_empty());
-            for [h, t] in curve {
-                assert!(t < 0.0 && t.abs() < CURVE_CLIP);
-                let df = df as f64;
-                let r2 = t * t * df / (df - 1.0 + t * t);
-                let cook = r2 * h / (p as f64 * (1.0 - h));
-                assert!((cook - d).abs() < 1e-12, "h {h}: D {cook}");
-            }
-        }
-        let far = cook_curve(0.5, 2, 200, 0.01, 1.0);
-        assert!(
-            far.last().expect("points")[0] >= 0.05,
-            "reaches at least h = 0.05"
-        );
+    fn the_key_names_the_strong_threshold_and_grows_with_the_class() {
+        let pull = Pull {
+            strong_from: 0.743_49,
+            ..Pull::default()
+        };
+        let v = egui::Visuals::dark();
+        let keys = pull_keys(&pull, &v);
+        assert_eq!(keys.len(), 3);
+        assert!(keys[2].name.contains("0.743"), "{}", keys[2].name);
+        assert!(PULL_RADIUS.windows(2).all(|w| w[0] < w[1]));
+        let colours: Vec<_> = (0..3).map(|k| palette::influence(k, &v)).collect();
+        assert!(colours[0] != colours[1] && colours[1] != colours[2]);
     }
 }

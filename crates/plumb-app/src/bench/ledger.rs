@@ -72,7 +72,7 @@ fn exclusion_ui(
         ),
         None => format!("row {row} (not among this pair's complete rows)"),
     };
-    ui.horizontal(|ui| {
+    ui.horizontal_wrapped(|ui| {
         ui.label(RichText::new(where_).strong());
         if ui
             .small_button("put back")

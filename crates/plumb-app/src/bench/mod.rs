@@ -9,6 +9,7 @@ mod calibration_numbers;
 mod controls;
 mod differences;
 mod influence;
+mod key;
 mod lab_layers;
 mod ledger;
 mod model_editor;
@@ -165,73 +166,113 @@ fn side_panels_ui(
         .inner
 }
 
-/// Each view keeps to its column: a wrapped note under one never pushes the next aside.
-fn column(ui: &mut egui::Ui, width: f32, f: &mut dyn FnMut(&mut egui::Ui) -> Actions) -> Actions {
-    ui.vertical(|ui| {
-        ui.set_max_width(width);
+/// The share of the views' width the left column takes (the scatter over its residuals).
+const LEFT_SHARE: f32 = 0.6;
+/// The share of the left column's height the scatter takes; its residual strip has the rest.
+const SCATTER_SHARE: f32 = 0.6;
+
+/// The rectangles of the views inside the views' area `avail`, by the bench's mode.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ViewSizes {
+    /// The scatter (or added-variable view), title and key included.
+    pub scatter: Vec2,
+    /// The residual strip under the scatter (a fit or a calibration), or the differences
+    /// beside it (two methods).
+    pub residuals: Vec2,
+    /// Each of the right column's views: influence and quantiles (a fit), or each weighting
+    /// (a calibration, three of them).
+    pub side: Vec2,
+}
+
+impl ViewSizes {
+    /// Splits `avail`: a fit or a calibration puts the scatter over its residual strip on the
+    /// left (same x axis) and the influence and quantile views (or the weightings) stacked on
+    /// the right; two methods put the scatter and the differences side by side, full height.
+    pub fn of(avail: Vec2, mode: BenchMode, gap: f32) -> Self {
+        let (w, h) = ((avail.x - gap).max(320.0), avail.y.max(280.0));
+        if mode == BenchMode::Agreement {
+            let half = Vec2::new((w - gap) / 2.0, h);
+            return Self {
+                scatter: half,
+                residuals: half,
+                side: Vec2::ZERO,
+            };
+        }
+        let left = (w * LEFT_SHARE).floor();
+        let right = w - left - gap;
+        let top = (h * SCATTER_SHARE).floor();
+        let stacked = if mode == BenchMode::Calibration {
+            3.0
+        } else {
+            2.0
+        };
+        Self {
+            scatter: Vec2::new(left, top),
+            residuals: Vec2::new(left, h - top - gap),
+            side: Vec2::new(right, ((h - gap * (stacked - 1.0)) / stacked).floor()),
+        }
+    }
+}
+
+/// Runs `f` in a box of exactly `size`: what it draws never pushes the next view aside, and a
+/// view fills what its headers leave (`ui.available_size()` inside).
+fn boxed(ui: &mut egui::Ui, size: Vec2, f: &mut dyn FnMut(&mut egui::Ui) -> Actions) -> Actions {
+    ui.allocate_ui_with_layout(size, egui::Layout::top_down(egui::Align::Min), |ui| {
+        ui.set_min_size(size);
+        ui.set_max_size(size);
         f(ui)
     })
     .inner
 }
 
-/// The views of the bench's mode. A fit: the scatter (or an added-variable view) with the
-/// larger share (it is where points are picked) beside the residuals; the influence view and
-/// the quantiles below. A calibration: the scatter with the unknowns read back beside the
-/// residuals; the weightings side by side below. Two methods: the scatter with the line of
-/// identity beside the differences, full height.
+/// The views of the bench's mode (see [`ViewSizes::of`]).
 fn views_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> Actions {
-    let avail = ui.available_size();
-    let (w, h) = ((avail.x - 12.0).max(320.0), (avail.y - 52.0).max(280.0));
+    let gap = ui.spacing().item_spacing.x;
     let mode = scene.bench.reading().mode;
+    let sizes = ViewSizes::of(ui.available_size(), mode, gap);
     let mut out = Actions::none();
-    if mode == BenchMode::Agreement {
-        ui.horizontal(|ui| {
-            let size = Vec2::new(w * 0.5, h);
-            out.extend(column(ui, size.x, &mut |ui| {
-                top_left_ui(scene, own, ui, size)
+    ui.horizontal_top(|ui| {
+        if mode == BenchMode::Agreement {
+            out.extend(boxed(ui, sizes.scatter, &mut |ui| {
+                top_left_ui(scene, own, ui)
             }));
-            out.extend(column(ui, size.x, &mut |ui| {
-                differences::differences_ui(scene, own, ui, size)
+            out.extend(boxed(ui, sizes.residuals, &mut |ui| {
+                differences::differences_ui(scene, own, ui, ui.available_size())
+            }));
+            return;
+        }
+        ui.vertical(|ui| {
+            out.extend(boxed(ui, sizes.scatter, &mut |ui| {
+                top_left_ui(scene, own, ui)
+            }));
+            out.extend(boxed(ui, sizes.residuals, &mut |ui| {
+                residuals::residuals_ui(scene, own, ui)
             }));
         });
-        return out;
-    }
-    let top = h * 0.56;
-    ui.horizontal(|ui| {
-        let size = Vec2::new(w * 0.58, top);
-        out.extend(column(ui, size.x, &mut |ui| {
-            top_left_ui(scene, own, ui, size)
-        }));
-        let size = Vec2::new(w * 0.42, top);
-        out.extend(column(ui, size.x, &mut |ui| {
-            residuals::residuals_ui(scene, own, ui, size)
-        }));
-    });
-    if mode == BenchMode::Calibration {
-        let size = Vec2::new(w, h - top);
-        out.extend(weightings::weightings_ui(scene, own, ui, size));
-        return out;
-    }
-    let bottom = Vec2::new(w / 2.0, h - top);
-    ui.horizontal(|ui| {
-        out.extend(column(ui, bottom.x, &mut |ui| {
-            influence::influence_ui(scene, own, ui, bottom)
-        }));
-        out.extend(column(ui, bottom.x, &mut |ui| {
-            quantiles::quantiles_ui(scene, own, ui, bottom)
-        }));
+        ui.vertical(|ui| {
+            if mode == BenchMode::Calibration {
+                out.extend(weightings::weightings_ui(scene, own, ui, sizes.side));
+                return;
+            }
+            out.extend(boxed(ui, sizes.side, &mut |ui| {
+                influence::influence_ui(scene, own, ui)
+            }));
+            out.extend(boxed(ui, sizes.side, &mut |ui| {
+                quantiles::quantiles_ui(scene, own, ui)
+            }));
+        });
     });
     out
 }
 
 /// The scatter, or with several terms the added-variable view the analyst picks.
-fn top_left_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui, size: Vec2) -> Actions {
+fn top_left_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> Actions {
     let terms = added::terms(scene);
     if own.added_term.as_ref().is_some_and(|t| !terms.contains(t)) && !scene.bench.is_busy() {
         own.added_term = None;
     }
     if terms.is_empty() && own.added_term.is_none() {
-        return scatter::scatter_ui(scene, own, ui, size, true);
+        return scatter::scatter_ui(scene, own, ui, true);
     }
     let scatter_name = format!("{} against {}", scene.pair.spec.y, scene.pair.spec.x0());
     ui.horizontal(|ui| {
@@ -255,8 +296,8 @@ fn top_left_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui, size: Ve
             .on_hover_text("The scatter against the first predictor, or one term's added-variable view: its slope is that term's coefficient in the whole model. With several predictors the fit is not a curve in the first one alone, so the scatter shows no curve.");
     });
     match own.added_term.clone() {
-        Some(t) => added::added_ui(scene, own, ui, size - Vec2::new(0.0, 6.0), &t),
-        None => scatter::scatter_ui(scene, own, ui, size - Vec2::new(0.0, 6.0), false),
+        Some(t) => added::added_ui(scene, own, ui, ui.available_size(), &t),
+        None => scatter::scatter_ui(scene, own, ui, false),
     }
 }
 

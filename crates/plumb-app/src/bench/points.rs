@@ -135,9 +135,10 @@ pub fn points_layer(
         _ => {
             let pts: Vec<[f64; 2]> = markers.iter().map(|(_, (x, y))| [*x, *y]).collect();
             // Unnamed: plain points need no legend entry (the legend keeps to lines and keys).
+            let alpha = palette::marker_alpha(layer.cloud.points.len());
             pu.points(
                 Points::new("", pts)
-                    .color(palette::point(visuals))
+                    .color(palette::point(visuals).gamma_multiply(alpha))
                     .radius(2.5)
                     .filled(true)
                     .allow_hover(false),
@@ -312,7 +313,7 @@ pub fn tooltip_text(scene: &Scene<'_>, mode: PointerMode, e: usize) -> String {
     text.push_str(match mode {
         PointerMode::Exclude if marks.excluded.contains_key(&row) => "\nclick: put back",
         PointerMode::Exclude => "\nclick: exclude",
-        PointerMode::Move => "\ndrag: move (what-if)",
+        PointerMode::Move => "\ndrag: move y (what-if; Shift: x too)",
         PointerMode::Lasso => "",
     });
     text

@@ -1,7 +1,9 @@
-//! Normal quantiles of the residuals: points on the diagonal look normal; bends at the ends
-//! mean heavy or light tails; a lone point off the line is an outlier.
+//! The residuals against a normal sample: each studentized residual, in rank order, against
+//! the normal score of its rank, inside the shaded band where 95 % of normal samples of the
+//! same size would put that rank. Points along the diagonal and inside the band look normal;
+//! ends bending out of it mean heavy or light tails; a lone point outside it, an outlier.
 
-use eframe::egui::{self, Vec2};
+use eframe::egui;
 
 use super::view::{diagnostic_ui, guide, Diagnostic};
 use super::{BenchUi, Scene};
@@ -11,10 +13,11 @@ use crate::state::cloud::Cloud;
 const VIEW: Diagnostic<'static> = Diagnostic {
     id: "quantiles",
     variant: 0,
-    title: "Normal quantiles of residuals",
-    tip: "Points on the diagonal: residuals look normal. Bends at the ends: heavy or light tails; a lone point off the line: an outlier.",
-    x_label: "expected normal score",
-    y_label: "studentized residual (external)",
+    title: "Residuals against a normal sample",
+    tip: "Each studentized residual, in rank order, against the normal score of its rank. Shaded: where 95 % of normal samples of this size put each rank (pointwise). Along the diagonal and inside the band: the residuals look normal. Ends bending out: heavy or light tails; a lone point outside: an outlier.",
+    x_label: "normal score of the rank",
+    y_label: "studentized residual (leave-one-out)",
+    shares_scatter_x: false,
 };
 
 /// The diagonal `y = x` over the widest normal score (at least ±1).
@@ -26,23 +29,33 @@ pub fn diagonal(points: &Cloud) -> [[f64; 2]; 2] {
     [[-m, -m], [m, m]]
 }
 
-/// Draws the view (a spinner until the first diagnostics arrive).
-pub fn quantiles_ui(
-    scene: &Scene<'_>,
-    own: &mut BenchUi,
-    ui: &mut egui::Ui,
-    size: Vec2,
-) -> Actions {
+/// Draws the view in the box it is given (a spinner until the first diagnostics arrive).
+pub fn quantiles_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> Actions {
+    let band: &[[f64; 3]] = scene
+        .bench
+        .diagnostics()
+        .map_or(&[], |d| d.views.quantile_band.as_slice());
     diagnostic_ui(
         scene,
         own,
         ui,
-        size,
+        ui.available_size(),
         &VIEW,
         |d| Some((&d.views.quantile, None)),
         |pu, cloud, v| {
-            pu.line(guide("y = x", diagonal(cloud).to_vec(), v));
+            if band.len() > 1 {
+                let xs: Vec<f64> = band.iter().map(|b| b[0]).collect();
+                let lo: Vec<f64> = band.iter().map(|b| b[1]).collect();
+                let hi: Vec<f64> = band.iter().map(|b| b[2]).collect();
+                pu.add(
+                    egui_plot::FilledArea::new("", &xs, &lo, &hi)
+                        .fill_color(crate::palette::fit(v).gamma_multiply(0.16))
+                        .allow_hover(false),
+                );
+            }
+            pu.line(guide("", diagonal(cloud).to_vec(), v));
         },
+        None,
     )
 }
 

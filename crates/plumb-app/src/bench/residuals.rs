@@ -12,7 +12,7 @@ use crate::action::{Action, Actions};
 use crate::state::cloud::Cloud;
 use crate::state::diagnostics::{Diagnostics, ResidualAxis, Views};
 
-const TIP: &str = "A pattern (curve, funnel) means the model misses structure; against the row order or a time column, a drift means the measurements moved while they were taken. Hollow rings: excluded rows against the current fit.";
+const TIP: &str = "Each row's residual (observed minus fitted). Against the predictor it sits right under its point in the scatter. A pattern (curve, funnel) means the model misses structure; against the row order or a time column, a drift means the measurements moved while they were taken. Hollow rings: excluded rows against the current fit.";
 
 /// The view's points: included rows as (axis, residual), excluded rows as (axis, y −
 /// prediction of the current fit).
@@ -25,12 +25,22 @@ fn pick(d: &Diagnostics) -> Option<(&Cloud, Option<&Cloud>)> {
     Some((points, Some(rings)))
 }
 
-/// The axes offered: the fitted values, the model's predictors, the other numeric columns of
-/// the file and the data row order.
+/// The axes offered: the predictor under the scatter (one predictor), the fitted values, the
+/// model's other predictors, the other numeric columns of the file and the data row order.
 pub fn axes_offered(scene: &Scene<'_>) -> Vec<ResidualAxis> {
     let spec = &scene.pair.spec;
-    let mut out = vec![ResidualAxis::Fitted];
-    out.extend(spec.x.iter().cloned().map(ResidualAxis::Column));
+    let mut out = Vec::new();
+    if spec.x.len() == 1 {
+        out.push(ResidualAxis::Predictor);
+    }
+    out.push(ResidualAxis::Fitted);
+    out.extend(
+        spec.x
+            .iter()
+            .skip(usize::from(spec.x.len() == 1))
+            .cloned()
+            .map(ResidualAxis::Column),
+    );
     out.extend(
         scene
             .columns
@@ -43,22 +53,27 @@ pub fn axes_offered(scene: &Scene<'_>) -> Vec<ResidualAxis> {
     out
 }
 
-/// Draws the view with its axis chooser (a spinner until the first diagnostics arrive).
-pub fn residuals_ui(
-    scene: &Scene<'_>,
-    own: &mut BenchUi,
-    ui: &mut egui::Ui,
-    size: Vec2,
-) -> Actions {
+/// How the chooser names an axis: the predictor by its column, said to be shared.
+fn offered_label(axis: &ResidualAxis, scene: &Scene<'_>) -> String {
+    match axis {
+        ResidualAxis::Predictor => format!("{} (as above)", scene.pair.spec.x0()),
+        other => other.label(),
+    }
+}
+
+/// Draws the residual strip with its axis chooser in the box it is given (a spinner until
+/// the first diagnostics arrive). Against the scatter's predictor it shares the scatter's
+/// horizontal range, so a residual sits right under its point.
+pub fn residuals_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> Actions {
     let mut out = Actions::none();
     let asked = scene.bench.residual_axis();
     ui.horizontal(|ui| {
-        ui.label("residuals against");
+        super::points::title_ui(ui, "Residuals against", TIP);
         egui::ComboBox::from_id_salt("residual-axis")
-            .selected_text(asked.label())
+            .selected_text(offered_label(asked, scene))
             .show_ui(ui, |ui| {
                 for axis in axes_offered(scene) {
-                    let label = axis.label();
+                    let label = offered_label(&axis, scene);
                     if ui.selectable_label(*asked == axis, label).clicked() && *asked != axis {
                         out.push(Action::ResidualsAgainst(axis));
                     }
@@ -67,16 +82,18 @@ pub fn residuals_ui(
             .response
             .on_hover_text(TIP);
     });
+    let spec = &scene.pair.spec;
     let drawn = scene
         .bench
         .diagnostics()
-        .map(|d| (d.views.residual_axis.label(), d.scale.clone()));
-    let (x_label, scale) = drawn.unwrap_or_else(|| (asked.label(), scene.pair.spec.y.clone()));
-    let y_label = if scale == scene.pair.spec.y {
+        .map(|d| (d.views.residual_axis.clone(), d.scale.clone()));
+    let (axis, scale) = drawn.unwrap_or_else(|| (asked.resolved(spec), spec.y.clone()));
+    let y_label = if scale == spec.y {
         "residual".to_string()
     } else {
         format!("residual on {scale}")
     };
+    let x_label = axis.label();
     let view = Diagnostic {
         id: "residuals",
         variant: 0,
@@ -84,18 +101,18 @@ pub fn residuals_ui(
         tip: TIP,
         x_label: &x_label,
         y_label: &y_label,
+        shares_scatter_x: axis.is_scatter_x(spec) && own.added_term.is_none(),
     };
     let beyond = scene
         .bench
         .diagnostics()
         .map(|d| beyond_text(scene, &d.views))
         .unwrap_or_default();
-    let size = if beyond.is_empty() {
-        size
-    } else {
-        size - Vec2::new(0.0, 18.0)
-    };
-    out.extend(diagnostic_ui(scene, own, ui, size, &view, pick, zero_line));
+    let below = if beyond.is_empty() { 0.0 } else { 18.0 };
+    let size = ui.available_size() - Vec2::new(0.0, below);
+    out.extend(diagnostic_ui(
+        scene, own, ui, size, &view, pick, zero_line, None,
+    ));
     if !beyond.is_empty() {
         ui.weak(beyond);
     }

@@ -2,7 +2,7 @@
 //! confidence band (shaded) and prediction band (dashed), the overlays and per-group lines, and
 //! the pointer's work — click to exclude, lasso, or drag a point as a what-if.
 
-use eframe::egui::{self, Vec2};
+use eframe::egui;
 use egui_plot::{FilledArea, Line, LineStyle, PlotPoints, PlotUi};
 use plumb_core::regression::{BandPoint, LiveSummary};
 use plumb_data::analysis::RobustFit;
@@ -74,36 +74,54 @@ pub fn lasso_rows(pair: &PairRows, marks: &Marks, ring: &[[f64; 2]]) -> Vec<usiz
         .collect()
 }
 
-/// Draws the scatter and returns what the pointer asked for.
+/// The scatter's x axis is shared with the residual strip under it (same range, same pointer
+/// line) when the strip is drawn against the scatter's predictor.
+pub fn link_x<'a>(plot: egui_plot::Plot<'a>, scene: &Scene<'_>) -> egui_plot::Plot<'a> {
+    let id = egui::Id::unique(("bench-x", scene.bench.serial()));
+    plot.link_axis(id, [true, false])
+        .link_cursor(id, [true, false])
+}
+
+/// Draws the scatter in the box it is given, with its title, its key above the plot and the
+/// pointer's read-out, and returns what the pointer asked for.
 /// `titled`: draw the view's title (not when a chooser above names it).
 pub fn scatter_ui(
     scene: &Scene<'_>,
     own: &mut BenchUi,
     ui: &mut egui::Ui,
-    size: Vec2,
     titled: bool,
 ) -> Actions {
     let pair = scene.pair;
-    if titled {
-        title_ui(
-            ui,
-            &format!("{} against {}", pair.spec.y, pair.spec.x0()),
-            TIP,
-        );
-    }
+    let mut zoom = false;
+    ui.horizontal(|ui| {
+        if titled {
+            title_ui(
+                ui,
+                &format!("{} against {}", pair.spec.y, pair.spec.x0()),
+                TIP,
+            );
+        }
+        if !scene.marks.excluded.is_empty() {
+            zoom = ui
+                .small_button("zoom to included rows")
+                .on_hover_text("Fit the view to the rows in the fit, so that a far-off excluded row does not squash them (double-click the view to see every row again)")
+                .clicked();
+        }
+    });
+    let visuals = ui.visuals().clone();
+    super::key::key_row_ui(ui, &super::key::scatter_keys(scene, &visuals));
     let marked = Marked::of(pair, scene.marks);
     let included = pair.points.as_ref();
+    let size = ui.available_size();
     let mut plot = axes::plot(
         ("scatter", scene.bench.serial()),
         size,
         (pair.spec.x0(), &pair.spec.y),
     )
-    .allow_drag(own.pointer.mode == PointerMode::Exclude)
-    .legend(
-        egui_plot::Legend::default()
-            .position(egui_plot::Corner::RightTop)
-            .text_style(egui::TextStyle::Small),
-    );
+    .allow_drag(own.pointer.mode == PointerMode::Exclude);
+    if scene.bench.residual_axis().is_scatter_x(&pair.spec) {
+        plot = link_x(plot, scene);
+    }
     if included.is_dense() {
         if let Some(b) = included.bounds {
             plot = super::dense_bounds(plot, b);
@@ -113,8 +131,13 @@ pub fn scatter_ui(
         // Two methods on one scale: equal units on both axes, so a slope of 1 looks like one.
         plot = plot.data_aspect(1.0);
     }
-    let visuals = ui.visuals().clone();
-    let resp = plot.show(ui, |pu| draw(pu, scene, own, &marked, &visuals));
+    let frame = zoom.then(|| included_frame(pair, scene.marks)).flatten();
+    let resp = plot.show(ui, |pu| {
+        if let Some(b) = frame {
+            pu.set_plot_bounds(b);
+        }
+        draw(pu, scene, own, &marked, &visuals);
+    });
     let hovered = hovered_entry(
         &resp.response,
         &resp.transform,
@@ -125,6 +148,7 @@ pub fn scatter_ui(
         let v = resp.transform.value_from_position(pos);
         included.nearest_except(v.x, v.y, radius(&resp.transform), &marked.skip)
     });
+    axes::readout_ui(ui, &resp.response, &resp.transform);
     let shown = Shown {
         hovered,
         transform: resp.transform,
@@ -134,6 +158,20 @@ pub fn scatter_ui(
     let out = interaction(scene, own, &shown);
     tooltip_ui(scene, &mut own.pointer, &shown);
     out
+}
+
+/// The view's bounds around the rows in the fit (at their current positions), with a margin.
+pub fn included_frame(pair: &PairRows, marks: &Marks) -> Option<egui_plot::PlotBounds> {
+    let b = crate::density::Bounds::around(
+        (0..pair.rows.len())
+            .filter(|&i| !pair.is_excluded(i, marks))
+            .map(|i| pair.point(i, marks)),
+    )?;
+    let (mx, my) = (b.width() * 0.05, b.height() * 0.05);
+    Some(egui_plot::PlotBounds::from_min_max(
+        [b.x_min - mx, b.y_min - my],
+        [b.x_max + mx, b.y_max + my],
+    ))
 }
 
 /// The scatter's content: bands and overlays under the points, the fitted curve and the
@@ -176,12 +214,16 @@ fn draw(
         generation: scene.bench.marks_generation(),
     };
     points_layer(pu, &layer, &mut own.textures, visuals);
+    origins(pu, scene, visuals);
     if let (Some(Ok(s)), false) = (scene.bench.summary(), mode == BenchMode::Agreement) {
         let names = pair.model.levels.as_ref().map(|l| l.names.as_slice());
         for (level, points) in curves(pair, &s, x_range) {
             let (name, colour) = match (level, names) {
                 (Some(k), Some(n)) => (format!("fit, {}", n[k]), palette::group(k)),
-                _ => ("least squares".to_string(), palette::fit(visuals)),
+                _ => (
+                    "least squares".to_string(),
+                    palette::fit_line(visuals, colouring.column.is_some()),
+                ),
             };
             pu.line(
                 Line::new(name, points)
@@ -228,10 +270,12 @@ fn drag(scene: &Scene<'_>, own: &mut BenchUi, shown: &Shown) -> Actions {
     if let (Some(e), Some(pos)) = (own.pointer.drag, r.interact_pointer_pos()) {
         if r.dragged() {
             let v = shown.transform.value_from_position(pos);
+            let both = r.ctx.input(|i| i.modifiers.shift);
+            let (x, y) = drag_target(scene.pair.point(e, scene.marks), (v.x, v.y), both);
             out.push(Action::MoveTo {
                 row: scene.pair.rows[e],
-                x: v.x,
-                y: v.y,
+                x,
+                y,
             });
         }
     }
@@ -242,6 +286,45 @@ fn drag(scene: &Scene<'_>, own: &mut BenchUi, shown: &Shown) -> Actions {
         out.push(Action::EndMove);
     }
     out
+}
+
+/// Where a drag to `pointer` puts a point now at `at`: only its y moves (a standard's x is
+/// fixed by design), unless `both` (Shift held), when it follows the pointer in x too.
+pub fn drag_target(at: (f64, f64), pointer: (f64, f64), both: bool) -> (f64, f64) {
+    if both {
+        pointer
+    } else {
+        (at.0, pointer.1)
+    }
+}
+
+/// Where each moved row was in the file: a faint ring there, joined to where it is now.
+fn origins(pu: &mut PlotUi<'_>, scene: &Scene<'_>, v: &egui::Visuals) {
+    let ghost = palette::WHAT_IF.gamma_multiply(if v.dark_mode { 0.55 } else { 0.8 });
+    let mut rings = Vec::new();
+    for &row in scene.marks.moved.keys() {
+        let Some(e) = scene.pair.index_of(row) else {
+            continue;
+        };
+        let from = [scene.pair.x[e], scene.pair.y[e]];
+        let (x, y) = scene.pair.point(e, scene.marks);
+        pu.line(
+            Line::new("", vec![from, [x, y]])
+                .color(ghost)
+                .style(LineStyle::dotted_dense())
+                .allow_hover(false),
+        );
+        rings.push(from);
+    }
+    if !rings.is_empty() {
+        pu.points(
+            egui_plot::Points::new("", rings)
+                .color(ghost)
+                .radius(4.0)
+                .filled(false)
+                .allow_hover(false),
+        );
+    }
 }
 
 fn lasso(scene: &Scene<'_>, own: &mut BenchUi, shown: &Shown) -> Actions {
@@ -321,13 +404,13 @@ fn overlays(
 ) {
     let straight =
         |a: f64, b: f64| -> PlotPoints { vec![[x_lo, a + b * x_lo], [x_hi, a + b * x_hi]].into() };
-    let ink = v.text_color();
     if let Some(extras) = &d.extras {
         if let Some(Ok(RobustFit::TheilSen(t))) = &extras.robust {
             pu.line(
                 Line::new("Theil–Sen", straight(t.intercept, t.slope))
-                    .color(ink)
-                    .style(LineStyle::dashed_dense())
+                    .color(palette::theil_sen(v))
+                    .width(1.5)
+                    .style(LineStyle::dashed_loose())
                     .allow_hover(false),
             );
         }
@@ -344,7 +427,8 @@ fn overlays(
     if let Some(Ok(dm)) = &d.deming {
         pu.line(
             Line::new("Deming", straight(dm.intercept, dm.slope))
-                .color(ink)
+                .color(palette::deming(v))
+                .width(1.5)
                 .style(LineStyle::dotted_dense())
                 .allow_hover(false),
         );

@@ -10,6 +10,7 @@ use super::points::{hovered_entry, points_layer, title_ui, toggle, tooltip_ui, L
 use super::{BenchUi, Scene};
 use crate::action::Actions;
 use crate::axes;
+use crate::density::Bounds;
 use crate::state::cloud::Cloud;
 use crate::state::diagnostics::Diagnostics;
 
@@ -18,6 +19,24 @@ pub fn guide(name: &str, points: Vec<[f64; 2]>, v: &egui::Visuals) -> egui_plot:
     egui_plot::Line::new(name.to_string(), points)
         .color(v.weak_text_color())
         .allow_hover(false)
+}
+
+/// New bounds for a dense view whose current bounds miss its points entirely (the view kept
+/// the range of what it showed before, e.g. another residual axis): the points' extent with a
+/// margin. `None` while the view shows any part of them (the analyst's zoom is kept).
+pub fn reframe(view: &egui_plot::PlotBounds, data: &Bounds) -> Option<egui_plot::PlotBounds> {
+    let (lo, hi) = (view.min(), view.max());
+    let misses_x = hi[0] < data.x_min || lo[0] > data.x_max;
+    let misses_y = hi[1] < data.y_min || lo[1] > data.y_max;
+    let broken =
+        !(lo[0].is_finite() && hi[0].is_finite() && lo[1].is_finite() && hi[1].is_finite());
+    (misses_x || misses_y || broken).then(|| {
+        let (mx, my) = (data.width() * 0.04, data.height() * 0.04);
+        egui_plot::PlotBounds::from_min_max(
+            [data.x_min - mx, data.y_min - my],
+            [data.x_max + mx, data.y_max + my],
+        )
+    })
 }
 
 /// What a diagnostic view is called and what its axes show.
@@ -34,11 +53,16 @@ pub struct Diagnostic<'a> {
     pub x_label: &'a str,
     /// Vertical axis.
     pub y_label: &'a str,
+    /// The horizontal axis is the scatter's: the two share their range (and the pointer's
+    /// vertical line), so a row's residual sits under its point.
+    pub shares_scatter_x: bool,
 }
 
-/// Draws one diagnostic view: the points `pick` takes from the diagnostics (included rows, and
-/// excluded rows drawn as rings), with `guides` drawn first. A spinner while the first
-/// diagnostics compute (or while those on hand are for a model without the view).
+/// Draws one diagnostic view in `size` (its title included): the points `pick` takes from the
+/// diagnostics (included rows, and excluded rows drawn as rings), with `guides` drawn first
+/// and `over` (markers that stand out) last. A
+/// spinner while the first diagnostics compute (or while those on hand are for a model
+/// without the view).
 pub fn diagnostic_ui(
     scene: &Scene<'_>,
     own: &mut BenchUi,
@@ -47,10 +71,13 @@ pub fn diagnostic_ui(
     view: &Diagnostic<'_>,
     pick: impl for<'d> Fn(&'d Diagnostics) -> Option<(&'d Cloud, Option<&'d Cloud>)>,
     guides: impl FnOnce(&mut PlotUi<'_>, &Cloud, &egui::Visuals),
+    over: Option<&dyn Fn(&mut PlotUi<'_>, &egui::Visuals)>,
 ) -> Actions {
+    let top = ui.cursor().top();
     if !view.title.is_empty() {
         title_ui(ui, view.title, view.tip);
     }
+    let size = Vec2::new(size.x, (size.y - (ui.cursor().top() - top)).max(60.0));
     let Some((points, excluded)) = scene.bench.diagnostics().and_then(|d| pick(d)) else {
         ui.add_sized(size, egui::Spinner::new());
         return Actions::none();
@@ -67,6 +94,9 @@ pub fn diagnostic_ui(
         (view.x_label, view.y_label),
     )
     .allow_drag(true);
+    if view.shares_scatter_x {
+        plot = super::scatter::link_x(plot, scene);
+    }
     if points.is_dense() {
         if let Some(b) = points.bounds {
             plot = super::dense_bounds(plot, b);
@@ -75,7 +105,11 @@ pub fn diagnostic_ui(
     let skip = std::collections::HashSet::new();
     let textures = &mut own.textures;
     let visuals = ui.visuals().clone();
+    let dense = points.is_dense().then_some(points.bounds).flatten();
     let resp = plot.show(ui, |pu| {
+        if let Some(reframed) = dense.and_then(|b| reframe(&pu.plot_bounds(), &b)) {
+            pu.set_plot_bounds(reframed);
+        }
         guides(pu, points, &visuals);
         let layer = Layer {
             view: view.id,
@@ -88,7 +122,12 @@ pub fn diagnostic_ui(
             generation: scene.bench.diag_generation() ^ (view.variant << 48),
         };
         points_layer(pu, &layer, textures, &visuals);
+        if let Some(over) = over {
+            over(pu, &visuals);
+        }
     });
+    axes::name_plot(&resp.response, &format!("view: {}", view.id));
+    axes::readout_ui(ui, &resp.response, &resp.transform);
     let shown = Shown {
         hovered: hovered_entry(&resp.response, &resp.transform, &[points, excluded]),
         transform: resp.transform,
@@ -103,4 +142,42 @@ pub fn diagnostic_ui(
     }
     tooltip_ui(scene, &mut own.pointer, &shown);
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use egui_plot::PlotBounds;
+
+    fn data() -> Bounds {
+        Bounds {
+            x_min: 840.0,
+            x_max: 860.0,
+            y_min: -3.0,
+            y_max: 3.0,
+        }
+    }
+
+    #[test]
+    fn a_dense_view_that_misses_its_points_is_reframed_around_them() {
+        // The view kept the range of another axis (row numbers 0…100 000): no point inside.
+        let stale = PlotBounds::from_min_max([0.0, -100.0], [100_000.0, 100.0]);
+        assert!(reframe(&stale, &data()).is_none(), "x overlaps: kept");
+        let stale = PlotBounds::from_min_max([-100.0, -100.0], [100.0, 100.0]);
+        let b = reframe(&stale, &data()).expect("reframed");
+        assert!(b.min()[0] < 840.0 && b.max()[0] > 860.0);
+        assert!(b.min()[1] < -3.0 && b.max()[1] > 3.0);
+        assert!(
+            b.max()[0] - b.min()[0] < 25.0,
+            "around the points, not the old range"
+        );
+    }
+
+    #[test]
+    fn a_zoom_into_part_of_the_points_is_kept() {
+        let zoom = PlotBounds::from_min_max([845.0, -1.0], [850.0, 1.0]);
+        assert!(reframe(&zoom, &data()).is_none());
+        let nan = PlotBounds::from_min_max([f64::NAN, -1.0], [850.0, 1.0]);
+        assert!(reframe(&nan, &data()).is_some());
+    }
 }

@@ -10,12 +10,13 @@ use crate::action::Actions;
 
 const TIP: &str = "The same calibration under each weighting: its weighted residuals √w·e against the standards. The aim is an even band around zero from the lowest standard to the highest; a funnel means the weighting does not match how the spread grows.";
 
-/// Draws one small view per weighting across `size` (a spinner until they are computed).
+/// Draws one small view per weighting, stacked, each of `panel` size (the heading taken from
+/// their share); a spinner until they are computed.
 pub fn weightings_ui(
     scene: &Scene<'_>,
     own: &mut BenchUi,
     ui: &mut egui::Ui,
-    size: Vec2,
+    panel: Vec2,
 ) -> Actions {
     let d = scene.bench.diagnostics();
     let labels: Vec<String> = d
@@ -27,27 +28,27 @@ pub fn weightings_ui(
     } else {
         scene.pair.spec.x0().to_string()
     };
+    let top = ui.cursor().top();
     super::points::title_ui(ui, "Weighted residuals under each weighting", TIP);
     if labels.is_empty() {
-        ui.add_sized(size, egui::Spinner::new());
+        ui.add_sized(panel, egui::Spinner::new());
         return Actions::none();
     }
-    // Each panel keeps to its share of the width (item spacing included), so the last one is
-    // never pushed off the edge.
-    let gap = ui.spacing().item_spacing.x;
+    // The heading's height comes out of the panels' share, so the last one is never pushed
+    // off the bottom.
+    let heading = ui.cursor().top() - top;
     let n = labels.len() as f32;
-    let width = ((size.x - gap * (n - 1.0)) / n).floor().max(80.0);
-    let panel = Vec2::new(width, size.y - 22.0);
+    let panel = Vec2::new(panel.x, (panel.y - heading / n).floor().max(80.0));
     let in_use = d
         .and_then(|d| d.calibration.as_ref())
         .and_then(|c| c.as_ref().ok())
         .map(|c| c.weighting.clone())
         .unwrap_or_default();
     let mut out = Actions::none();
-    ui.horizontal(|ui| {
+    ui.vertical(|ui| {
         for (k, label) in labels.iter().enumerate() {
             ui.vertical(|ui| {
-                ui.set_width(width);
+                ui.set_width(panel.x);
                 let title = if *label == in_use {
                     format!("{label} (in use)")
                 } else {
@@ -60,6 +61,7 @@ pub fn weightings_ui(
                     tip: TIP,
                     x_label: &x_label,
                     y_label: "√w · residual",
+                    shares_scatter_x: false,
                 };
                 out.extend(diagnostic_ui(
                     scene,
@@ -78,6 +80,7 @@ pub fn weightings_ui(
                                 .allow_hover(false),
                         );
                     },
+                    None,
                 ));
             });
         }

@@ -87,7 +87,7 @@ impl Input {
             overlays,
             groups,
             kept: None,
-            residual_axis: ResidualAxis::Fitted,
+            residual_axis: ResidualAxis::default(),
             reading: Reading::default(),
         }
     }

@@ -21,7 +21,7 @@ pub mod pair;
 pub mod reading;
 pub mod sessions;
 pub mod settings;
-mod views;
+pub mod views;
 
 use std::path::PathBuf;
 

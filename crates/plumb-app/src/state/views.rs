@@ -2,18 +2,24 @@
 //! axis the analyst chose, leverage, quantiles, the added-variable views, and where the
 //! excluded rows fall against the current fit.
 
-use plumb_core::regression::{normal_scores, AddedVariable, CaseInfluence, LinearFit};
+use plumb_core::regression::{
+    normal_scores, pull_of, strong_pull_from, AddedVariable, CaseInfluence, LinearFit,
+    Pull as PullClass,
+};
 
 use super::cloud::Cloud;
 use super::diagnostics::Input;
 use super::marks::Marks;
-use super::pair::PairRows;
+use super::pair::{FitSpec, PairRows};
 
 /// What the residuals are drawn against.
 #[derive(Debug, Clone, PartialEq, Eq, Default)]
 pub enum ResidualAxis {
-    /// The fitted values (a curve or a funnel: the model misses structure).
+    /// The model's first predictor when it has only one (the residual strip then shares the
+    /// scatter's x axis, drawn under it), else the fitted values.
     #[default]
+    Predictor,
+    /// The fitted values (a curve or a funnel: the model misses structure).
     Fitted,
     /// A numeric column: a predictor (a bend the model misses) or a time or sequence column
     /// (a drifting instrument).
@@ -23,9 +29,26 @@ pub enum ResidualAxis {
 }
 
 impl ResidualAxis {
+    /// What the axis is under `spec`: [`Self::Predictor`] resolved to the predictor's column
+    /// (one predictor) or the fitted values (several); the others as they are.
+    pub fn resolved(&self, spec: &FitSpec) -> Self {
+        match self {
+            Self::Predictor if spec.x.len() == 1 => Self::Column(spec.x0().to_string()),
+            Self::Predictor => Self::Fitted,
+            other => other.clone(),
+        }
+    }
+
+    /// Whether the axis is the scatter's own x axis under `spec` (one predictor, drawn
+    /// against it): the two views then share their horizontal range.
+    pub fn is_scatter_x(&self, spec: &FitSpec) -> bool {
+        spec.x.len() == 1 && self.resolved(spec) == Self::Column(spec.x0().to_string())
+    }
+
     /// The axis label.
     pub fn label(&self) -> String {
         match self {
+            Self::Predictor => "the predictor".into(),
             Self::Fitted => "fitted value".into(),
             Self::Column(c) => c.clone(),
             Self::RowOrder => "data row".into(),
@@ -41,11 +64,17 @@ pub struct Views {
     pub residual: Cloud,
     /// What `residual`'s horizontal axis is.
     pub residual_axis: ResidualAxis,
-    /// (leverage, internally studentized residual).
+    /// (leverage, externally studentized residual).
     pub leverage: Cloud,
+    /// How strongly each row of `leverage` pulls the fit, by its Cook's distance.
+    pub pull: Pull,
     /// (expected normal score `Φ⁻¹((k − 3/8)/(n + 1/4))`, sorted externally studentized
     /// residual).
     pub quantile: Cloud,
+    /// The 95 % band of normal order statistics along the quantile view, as (score, low, high)
+    /// at up to [`BAND_POINTS`] ranks: residuals outside it stray further than a normal
+    /// sample of that size would at that rank.
+    pub quantile_band: Vec<[f64; 3]>,
     /// Excluded rows as (the residual axis, y − prediction of the current fit), those near
     /// the included rows' extent.
     pub excluded_residuals: Cloud,
@@ -54,6 +83,45 @@ pub struct Views {
     pub beyond: Vec<(usize, f64)>,
     /// The added-variable view of each predictor term (several predictors).
     pub added: Vec<AddedView>,
+}
+
+/// How strongly the rows pull the fit, by Cook's distance `D`, in the three classes of
+/// [`plumb_core::regression::Pull`].
+#[derive(Debug, Clone, Default)]
+pub struct Pull {
+    /// Class of each point of the leverage view.
+    pub class: Vec<PullClass>,
+    /// The strong class's threshold, `F₀.₅(p, n − p)`.
+    pub strong_from: f64,
+    /// The flagged and strong rows as (entry, (leverage, studentized), class, D), largest `D`
+    /// first, at most [`PULL_SHOWN`]: drawn as sized markers even over a density image.
+    pub notable: Vec<(usize, (f64, f64), PullClass, f64)>,
+}
+
+/// Most rows drawn as sized markers in the influence view.
+pub const PULL_SHOWN: usize = 500;
+
+impl Pull {
+    /// The classes of `cases` (pair entries `included`, `p` terms).
+    pub fn of(cases: &[CaseInfluence], included: &[usize], p: usize) -> Self {
+        let strong_from = strong_pull_from(cases.len(), p);
+        let class: Vec<PullClass> = cases.iter().map(|c| pull_of(c, strong_from)).collect();
+        let mut notable: Vec<(usize, (f64, f64), PullClass, f64)> = cases
+            .iter()
+            .zip(included)
+            .zip(&class)
+            .filter(|(_, &k)| k > PullClass::Ordinary)
+            .map(|((c, &e), &k)| (e, (c.leverage, c.studentized_external), k, c.cooks_distance))
+            .filter(|(_, (h, t), _, _)| h.is_finite() && t.is_finite())
+            .collect();
+        notable.sort_by(|a, b| b.3.total_cmp(&a.3));
+        notable.truncate(PULL_SHOWN);
+        Self {
+            class,
+            strong_from,
+            notable,
+        }
+    }
 }
 
 /// One predictor's added-variable view: y and the term each residualized on the other terms;
@@ -95,7 +163,7 @@ pub fn views_of(
     let cloud = |pick: fn(&CaseInfluence) -> (f64, f64)| {
         Cloud::new(cases.iter().map(pick).collect(), included.to_vec())
     };
-    let axis = input.residual_axis.clone();
+    let axis = input.residual_axis.resolved(&input.spec);
     let along = Along::new(input);
     let residual = finite_cloud(
         included
@@ -117,10 +185,12 @@ pub fn views_of(
     });
     let (near, beyond) = split_far(residual.bounds, rings);
     let excluded_residuals = finite_cloud(near.into_iter());
-    Views {
+    let mut views = Views {
         residual,
         residual_axis: axis,
         leverage: cloud(|c| (c.leverage, c.studentized_external)),
+        pull: Pull::of(cases, included, f.map_or(0, |f| f.coefficients.len())),
+        quantile_band: Vec::new(),
         quantile: quantile_cloud(cases, included),
         excluded_residuals,
         beyond: beyond.into_iter().map(|(i, (_, e))| (i, e)).collect(),
@@ -132,7 +202,31 @@ pub fn views_of(
                 slope: av.slope,
             })
             .collect(),
+    };
+    views.quantile_band = order_band(&views.quantile);
+    views
+}
+
+/// Ranks at which the quantile view's band is computed.
+pub const BAND_POINTS: usize = 120;
+
+/// The pointwise 95 % band of `n` normal order statistics at up to [`BAND_POINTS`] ranks
+/// spread over `1..=n` (the first and last included), placed at the quantile view's scores.
+pub fn order_band(quantile: &Cloud) -> Vec<[f64; 3]> {
+    let n = quantile.points.len();
+    if n < 3 {
+        return Vec::new();
     }
+    let steps = BAND_POINTS.min(n);
+    let mut ranks: Vec<usize> = (0..steps).map(|k| 1 + k * (n - 1) / (steps - 1)).collect();
+    ranks.dedup();
+    ranks
+        .into_iter()
+        .filter_map(|i| {
+            let (lo, hi) = plumb_core::distributions::normal_order_band(i, n, 0.05)?;
+            Some([quantile.points[i - 1].0, lo, hi])
+        })
+        .collect()
 }
 
 /// A pair entry and where it sits in a view.
@@ -182,8 +276,9 @@ enum Along<'a> {
 
 impl<'a> Along<'a> {
     fn new(input: &'a Input) -> Self {
-        let ResidualAxis::Column(name) = &input.residual_axis else {
-            return match input.residual_axis {
+        let axis = input.residual_axis.resolved(&input.spec);
+        let ResidualAxis::Column(name) = &axis else {
+            return match axis {
                 ResidualAxis::RowOrder => Self::RowOrder(&input.pair),
                 _ => Self::Fitted,
             };
@@ -232,6 +327,52 @@ fn quantile_cloud(cases: &[CaseInfluence], included: &[usize]) -> Cloud {
 mod tests {
     use super::*;
     use crate::density::Bounds;
+
+    use plumb_core::regression::InfluenceFlag;
+
+    fn case(d: f64, flagged: bool) -> CaseInfluence {
+        CaseInfluence {
+            fitted: 0.0,
+            residual: 0.0,
+            leverage: 0.1,
+            studentized_internal: 0.0,
+            studentized_external: 1.0,
+            cooks_distance: d,
+            dffits: 0.0,
+            dfbetas: Vec::new(),
+            flags: if flagged {
+                vec![InfluenceFlag::LargeCooksDistance]
+            } else {
+                Vec::new()
+            },
+        }
+    }
+
+    #[test]
+    fn rows_are_classed_by_the_flag_rule_and_the_f_median() {
+        // p = 2, n = 12: F(2, 10) has median 0.7435 (scipy.stats.f.median(2, 10)).
+        let mut cases: Vec<CaseInfluence> = (0..12).map(|_| case(0.01, false)).collect();
+        cases[3] = case(0.3, true);
+        cases[7] = case(0.75, true);
+        cases[9] = case(0.74, false);
+        let included: Vec<usize> = (0..12).map(|i| i * 2).collect();
+        let pull = Pull::of(&cases, &included, 2);
+        assert!((pull.strong_from - 0.743_491_774_985_175_2).abs() < 1e-9);
+        assert_eq!(pull.class[3], PullClass::Flagged);
+        assert_eq!(pull.class[7], PullClass::Strong);
+        assert_eq!(
+            pull.class[9],
+            PullClass::Ordinary,
+            "below the median, not flagged"
+        );
+        assert_eq!(
+            pull.notable.iter().map(|n| (n.0, n.2)).collect::<Vec<_>>(),
+            [(14, PullClass::Strong), (6, PullClass::Flagged)],
+            "largest D first, by pair entry"
+        );
+        let two = Pull::of(&cases[..2], &included[..2], 2);
+        assert!(two.class.iter().all(|&k| k < PullClass::Strong));
+    }
 
     #[test]
     fn a_gross_error_left_out_is_named_instead_of_squashing_the_view() {

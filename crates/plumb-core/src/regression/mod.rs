@@ -13,6 +13,7 @@ mod inference;
 mod influence;
 mod line;
 mod live;
+mod pull;
 mod quality;
 mod solve;
 mod standardized;
@@ -38,6 +39,7 @@ pub use line::{
 pub use live::{
     LiveFit, LiveSummary, CONDITION_LIMIT, FEW_ROWS_PER_TERM, PIVOT_FLOOR, REFRESH_EVERY, TIGHT_FIT,
 };
+pub use pull::{pull_of, strong_pull_from, Pull};
 pub use quality::{Anova, Coefficient, FitQuality, TInference};
 pub use standardized::StandardizedView;
 pub use transform::Transform;

@@ -1,5 +1,6 @@
-//! Static charts of one fit: the pair with its fitted curve and bands, residuals against
-//! fitted values, and leverage against studentized residuals with Cook's-distance contours.
+//! Static charts of one fit: the pair with its fitted curve and bands, its residuals against
+//! the same predictor, and how much each row pulls the fit (leverage against studentized
+//! residual, Cook's distance by marker size and colour) — the workbench's picture on paper.
 //! Each is drawn once by plotters into SVG and into a PNG (text in the bundled DejaVu Sans, so
 //! no system font is looked up).
 
@@ -9,7 +10,7 @@ use plotters::coord::Shift;
 use plotters::prelude::*;
 
 use crate::{ReportError, Result};
-use plumb_core::regression::cooks_contour;
+use plumb_core::regression::Pull;
 
 mod lab;
 
@@ -334,12 +335,13 @@ fn lines_series<DB: DrawingBackend>(
     Ok(())
 }
 
-/// Residuals against fitted values, with the zero line.
-pub fn residual_chart(dots: &[Dot], title: String) -> Result<Chart> {
-    render("residuals", title, &Residuals(dots))
+/// Residuals against `x_label` (the predictor under the pair chart, or the fitted values),
+/// with the zero line.
+pub fn residual_chart(dots: &[Dot], x_label: &str, title: String) -> Result<Chart> {
+    render("residuals", title, &Residuals(dots, x_label))
 }
 
-struct Residuals<'a>(&'a [Dot]);
+struct Residuals<'a>(&'a [Dot], &'a str);
 
 impl Paint for Residuals<'_> {
     fn paint<DB: DrawingBackend>(
@@ -350,7 +352,7 @@ impl Paint for Residuals<'_> {
         root.fill(&WHITE).map_err(|e| e.to_string())?;
         let (x0, x1) = range(dots.iter().map(|d| d.x));
         let (y0, y1) = range(dots.iter().map(|d| d.y).chain([0.0]));
-        let mut chart = axes(root, x0..x1, y0..y1, "fitted value", "residual")?;
+        let mut chart = axes(root, x0..x1, y0..y1, self.1, "residual")?;
         chart
             .draw_series(LineSeries::new(
                 [(x0, 0.0), (x1, 0.0)],
@@ -361,114 +363,142 @@ impl Paint for Residuals<'_> {
     }
 }
 
-/// Leverage against externally studentized residuals, with the curves where Cook's distance
-/// equals 0.5 and 1 for a model of `p` terms and `df` residual degrees of freedom, on that
-/// kind of residual ([`cooks_contour`]).
-pub fn leverage_chart(dots: &[Dot], p: usize, df: usize, title: String) -> Result<Chart> {
-    render("leverage", title, &Leverage(dots, p, df))
+/// A row of the influence chart: leverage, externally studentized residual, and its class.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PullDot {
+    /// Leverage.
+    pub leverage: f64,
+    /// Externally studentized residual.
+    pub studentized: f64,
+    /// Its class by Cook's distance.
+    pub pull: Pull,
 }
 
-/// One branch (`sign` ±1) of the curve of Cook's distance `d` over leverages in `(0, h_max]`.
-pub fn cook_contour_points(d: f64, p: usize, df: usize, h_max: f64, sign: f64) -> Vec<(f64, f64)> {
-    (1..=60)
-        .filter_map(|k| {
-            let h = h_max * f64::from(k) / 60.0;
-            cooks_contour(d, p, df, h).map(|t| (h, sign * t))
-        })
-        .collect()
+/// Radius in pixels of each class's marker (ordinary, flagged, strong).
+const PULL_PX: [i32; 3] = [3, 5, 7];
+/// Colour of each class (ordinary, flagged, strong), as in the workbench's light theme.
+const PULL_RGB: [RGBColor; 3] = [INK, RGBColor(0xB3, 0x6B, 0x00), RGBColor(0xB0, 0x24, 0x0C)];
+
+/// How much each row pulls the fit: leverage across, studentized residual up, Cook's distance
+/// told by each marker's size and colour (the classes of [`Pull`], `strong_from` the strong
+/// class's threshold), with the key above the plot.
+pub fn pull_chart(dots: &[PullDot], strong_from: f64, title: String) -> Result<Chart> {
+    render("leverage", title, &PullPicture(dots, strong_from))
 }
 
-struct Leverage<'a>(&'a [Dot], usize, usize);
+struct PullPicture<'a>(&'a [PullDot], f64);
 
-impl Paint for Leverage<'_> {
+impl Paint for PullPicture<'_> {
     fn paint<DB: DrawingBackend>(
         &self,
         root: &DrawingArea<DB, Shift>,
     ) -> std::result::Result<(), String> {
-        let (dots, p, df) = (self.0, self.1, self.2);
+        let dots = self.0;
         root.fill(&WHITE).map_err(|e| e.to_string())?;
-        let (_, x1) = range(dots.iter().map(|d| d.x));
-        let x1 = x1.min(0.999);
-        let (y0, y1) = range(dots.iter().map(|d| d.y).chain([-3.5, 3.5]));
+        let (key, plot) = root.split_vertically(30);
+        pull_key(&key, self.1)?;
+        let (_, x1) = range(dots.iter().map(|d| d.leverage));
+        let (y0, y1) = range(dots.iter().map(|d| d.studentized).chain([-3.5, 3.5]));
         let mut chart = axes(
-            root,
-            0.0..x1,
+            &plot,
+            0.0..x1.min(1.0),
             y0..y1,
             "leverage",
-            "studentized residual (external)",
+            "studentized residual (leave-one-out)",
         )?;
-        for d in [0.5, 1.0] {
-            for sign in [-1.0, 1.0] {
-                let pts: Vec<(f64, f64)> = cook_contour_points(d, p, df, x1, sign)
-                    .into_iter()
-                    .filter(|(_, r)| *r >= y0 && *r <= y1)
-                    .collect();
-                chart
-                    .draw_series(DashedLineSeries::new(pts, 4, 4, GUIDE.stroke_width(1)))
-                    .map_err(|e| e.to_string())?;
-            }
+        for class in [Pull::Ordinary, Pull::Flagged, Pull::Strong] {
+            let k = class as usize;
+            chart
+                .draw_series(
+                    dots.iter()
+                        .filter(|d| d.pull == class)
+                        .filter(|d| d.leverage.is_finite() && d.studentized.is_finite())
+                        .map(|d| {
+                            Circle::new(
+                                (d.leverage, d.studentized),
+                                PULL_PX[k],
+                                PULL_RGB[k].filled(),
+                            )
+                        }),
+                )
+                .map_err(|e| e.to_string())?;
         }
-        dots_series(&mut chart, dots)
+        Ok(())
     }
+}
+
+/// The key of the influence chart, in its own strip above the plot.
+fn pull_key<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    strong_from: f64,
+) -> std::result::Result<(), String> {
+    let strong = if strong_from.is_finite() {
+        format!(
+            "strong pull: D ≥ {} (median of F)",
+            crate::text::sig(strong_from, 3)
+        )
+    } else {
+        "strong pull: D ≥ median of F".to_string()
+    };
+    let names = [
+        "ordinary".to_string(),
+        "flagged by Cook's rule".to_string(),
+        strong,
+    ];
+    let mut x = 80;
+    for (k, name) in names.iter().enumerate() {
+        area.draw(&Circle::new((x, 16), PULL_PX[k], PULL_RGB[k].filled()))
+            .map_err(|e| e.to_string())?;
+        area.draw(&Text::new(
+            name.clone(),
+            (x + 12, 9),
+            (FONT, 13).into_font().color(&INK),
+        ))
+        .map_err(|e| e.to_string())?;
+        x += 24 + 7 * name.chars().count() as i32;
+    }
+    Ok(())
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
-    use plumb_core::regression::{fit, influence, Design, FitOptions};
 
     #[test]
-    fn a_case_with_cooks_distance_one_lies_on_the_drawn_curve() {
-        // Nine rows on a line and a tenth far out in x and off the line; its y is tuned (by
-        // bisection on y) until its Cook's distance is 1. The summary's curve for D = 1 at that
-        // case's leverage must pass through the residual the chart plots for it.
-        let x: Vec<f64> = (1..=9).map(f64::from).chain([30.0]).collect();
-        let base: Vec<f64> = x
-            .iter()
-            .enumerate()
-            .map(|(i, v)| {
-                2.0 + 0.5 * v + [0.3, -0.2, 0.1, -0.4, 0.25, -0.1, 0.35, -0.3, 0.05, 0.0][i]
-            })
-            .collect();
-        let d = Design::linear(&[("x", &x)], true);
-        let case_at = |y_last: f64| {
-            let mut y = base.clone();
-            y[9] = y_last;
-            let f = fit(&d, &y, None, &FitOptions::default()).expect("fits");
-            influence(&d, None, &f, &FitOptions::default()).expect("influence")[9].clone()
-        };
-        let (mut lo, mut hi) = (17.0, 40.0);
-        for _ in 0..200 {
-            let mid = 0.5 * (lo + hi);
-            if case_at(mid).cooks_distance < 1.0 {
-                lo = mid;
-            } else {
-                hi = mid;
-            }
+    fn the_influence_chart_draws_each_class_in_its_size_with_the_key_outside_the_plot() {
+        let dots = [
+            PullDot {
+                leverage: 0.05,
+                studentized: 0.3,
+                pull: Pull::Ordinary,
+            },
+            PullDot {
+                leverage: 0.2,
+                studentized: 2.8,
+                pull: Pull::Flagged,
+            },
+            PullDot {
+                leverage: 0.6,
+                studentized: -3.9,
+                pull: Pull::Strong,
+            },
+        ];
+        let c = pull_chart(&dots, 0.743_49, "t".into()).expect("drawn");
+        for (k, r) in PULL_PX.iter().enumerate() {
+            let RGBColor(red, green, blue) = PULL_RGB[k];
+            let fill = format!("#{red:02X}{green:02X}{blue:02X}");
+            let circle = format!("r=\"{r}\"");
+            assert!(
+                c.svg
+                    .lines()
+                    .any(|l| l.contains("<circle") && l.contains(&circle) && l.contains(&fill)),
+                "class {k}: a circle of radius {r} in {fill}"
+            );
         }
-        let c = case_at(0.5 * (lo + hi));
         assert!(
-            (c.cooks_distance - 1.0).abs() < 1e-9,
-            "{}",
-            c.cooks_distance
+            c.svg.contains("strong pull: D ≥ 0.743"),
+            "the key names the threshold"
         );
-        // The curve's points at leverages h_k = h_max·k/60: choose h_max so that one of them
-        // is the case's own leverage.
-        let curve = cook_contour_points(1.0, 2, 8, c.leverage * 60.0 / 45.0, 1.0);
-        let (h, t) = curve
-            .iter()
-            .copied()
-            .min_by(|a, b| {
-                (a.0 - c.leverage)
-                    .abs()
-                    .total_cmp(&(b.0 - c.leverage).abs())
-            })
-            .expect("points");
-        assert!((h - c.leverage).abs() < 1e-12);
-        assert!(
-            (t - c.studentized_external).abs() < 1e-6 * t,
-            "{t} vs {}",
-            c.studentized_external
-        );
+        assert!(!c.svg.contains("stroke-dasharray"), "no dashed contours");
     }
 }

@@ -1,13 +1,15 @@
 //! The summary's charts: the pair with its fit and bands (or y against its fitted value with
-//! several predictors), the residuals, and the influence view; excluded rows stay visible.
+//! several predictors), the residuals against the same predictor, and how much each row pulls
+//! the fit; excluded rows stay visible in the pair chart.
 
 use plumb_data::analysis::{Analysis, Curve, PairExtras};
 
 use super::{Beside, ReportInput};
 use crate::charts::{
-    leverage_chart, pair_chart, residual_chart, Chart, ChartLine, Dot, LineKind, PairChart,
+    pair_chart, pull_chart, residual_chart, Chart, ChartLine, Dot, LineKind, PairChart, PullDot,
 };
 use crate::Result;
+use plumb_core::regression::{pull_of, strong_pull_from};
 
 /// Every chart of the summary.
 ///
@@ -22,26 +24,39 @@ pub fn draw(
         Some(e) => pair_figure(input, outcome, e, beside)?,
         None => fitted_figure(input, outcome)?,
     };
-    let residuals = dots(outcome.fit.fitted.iter().zip(&outcome.fit.residuals));
-    let leverage: Vec<Dot> = outcome
+    let (x_label, along) = residual_axis(input, outcome);
+    let residuals = dots(along.iter().zip(&outcome.fit.residuals));
+    let strong_from = strong_pull_from(outcome.cases.len(), outcome.fit.coefficients.len());
+    let pulls: Vec<PullDot> = outcome
         .cases
         .iter()
-        .map(|c| Dot {
-            x: c.leverage,
-            y: c.studentized_external,
-            excluded: false,
+        .map(|c| PullDot {
+            leverage: c.leverage,
+            studentized: c.studentized_external,
+            pull: pull_of(c, strong_from),
         })
         .collect();
     Ok(vec![
         first,
-        residual_chart(&residuals, "residuals against fitted values".into())?,
-        leverage_chart(
-            &leverage,
-            outcome.fit.coefficients.len(),
-            outcome.fit.anova.df_residual,
-            "leverage against externally studentized residual (dashed: where Cook's distance is 0.5 and 1)".into(),
+        residual_chart(&residuals, &x_label, format!("residuals against {x_label}"))?,
+        pull_chart(
+            &pulls,
+            strong_from,
+            "how much each row pulls the fit (marker size and colour: Cook's distance)".into(),
         )?,
     ])
+}
+
+/// What the residual chart is drawn against, as in the workbench: the predictor (one
+/// predictor, so the chart reads under the pair chart) or the fitted values.
+fn residual_axis(input: &ReportInput<'_>, outcome: &Analysis) -> (String, Vec<f64>) {
+    let x = &input.request.x;
+    match outcome.rows.selection.columns.get(1) {
+        Some(values) if x.len() == 1 && values.len() == outcome.fit.residuals.len() => {
+            (x[0].clone(), values.clone())
+        }
+        _ => ("fitted value".into(), outcome.fit.fitted.clone()),
+    }
 }
 
 /// Included dots from `(x, y)` pairs.
