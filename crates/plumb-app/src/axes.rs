@@ -131,14 +131,24 @@ pub fn name_plot(response: &egui::Response, name: &str) {
     response.widget_info(|| egui::WidgetInfo::labeled(egui::Role::Figure, true, name));
 }
 
+/// The ticks of a horizontal axis `points` long over `[lo, hi]`: as many as the labels have
+/// room for, between [`TICKS`]`.0` and [`TICKS`]`.1` (the vertical axis asks the same of its
+/// own length with its own room).
+pub fn ticks_for(lo: f64, hi: f64, points: f32) -> (Vec<f64>, f64) {
+    ticks(lo, hi, most_for(f64::from(points), LABEL_ROOM.0))
+}
+
+fn most_for(points: f64, room: f64) -> usize {
+    ((points / room).floor() as usize).clamp(TICKS.0, TICKS.1)
+}
+
 /// The grid spacer of one axis: [`ticks`] for the axis' length in points.
 fn spacer(room: f64) -> impl Fn(GridInput) -> Vec<GridMark> {
     move |input: GridInput| {
         let (lo, hi) = input.bounds;
         // `base_step_size` is the data span of 8 points (egui_plot's default grid spacing).
         let points = (hi - lo) / input.base_step_size * 8.0;
-        let most = ((points / room).floor() as usize).clamp(TICKS.0, TICKS.1);
-        let (values, step) = ticks(lo, hi, most);
+        let (values, step) = ticks(lo, hi, most_for(points, room));
         values
             .into_iter()
             .map(|value| GridMark {
@@ -238,7 +248,7 @@ mod tests {
         assert_eq!(label(0.05, 0.025), "0.050");
         assert_eq!(label(0.75, 0.25), "0.75");
         assert_eq!(label(-1e-17, 0.1), "0.0");
-        assert_eq!(label(2_000_000.0, 1_000_000.0), "2.0e6");
+        assert_eq!(label(2_000_000.0, 1_000_000.0), "2e6");
         assert_eq!(label(1_000_002.5, 2.5), "1000002.5");
     }
 }

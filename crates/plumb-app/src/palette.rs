@@ -77,18 +77,41 @@ pub fn loess(v: &Visuals) -> Color32 {
 /// Background of the hypothetical banner.
 pub const WHAT_IF: Color32 = Color32::from_rgb(0xF2, 0xC1, 0x4E);
 
-/// Diverging scale for a coefficient in [−1, 1]: dark blue through a pale neutral to dark
-/// brown-orange. Lightness falls with |r| on both sides, so strength reads in grayscale; the
-/// sign reads from the hue (and from the number printed in the cell).
-pub fn diverging(r: f64) -> Color32 {
-    const NEG: [f32; 3] = [24.0, 64.0, 132.0];
-    const MID: [f32; 3] = [242.0, 240.0, 235.0];
-    const POS: [f32; 3] = [128.0, 52.0, 12.0];
+/// Diverging scale for a coefficient in [−1, 1] on the co-movement map. Light mode: dark blue
+/// through a pale neutral to dark brown-orange, lightness falling with |r|. Dark mode: from a
+/// shade just off the panel (so near-zero cells stay calm instead of glaring) to a light blue
+/// and a light orange, lightness rising with |r|. Either way strength reads in grayscale and
+/// the sign from the hue (and the number printed in the cell).
+pub fn diverging(r: f64, v: &Visuals) -> Color32 {
+    let (neg, mid, pos) = if v.dark_mode {
+        let [pr, pg, pb, _] = v.panel_fill.to_array();
+        let lift = |c: u8| f32::from(c) + (255.0 - f32::from(c)) * 0.07;
+        (
+            [88.0, 156.0, 232.0],
+            [lift(pr), lift(pg), lift(pb)],
+            [236.0, 140.0, 74.0],
+        )
+    } else {
+        (
+            [24.0, 64.0, 132.0],
+            [242.0, 240.0, 235.0],
+            [128.0, 52.0, 12.0],
+        )
+    };
     let t = r.clamp(-1.0, 1.0) as f32;
-    let end = if t < 0.0 { NEG } else { POS };
+    let end = if t < 0.0 { neg } else { pos };
     let a = t.abs().powf(0.8);
-    let mix = |k: usize| (MID[k] + (end[k] - MID[k]) * a).round() as u8;
+    let mix = |k: usize| (mid[k] + (end[k] - mid[k]) * a).round() as u8;
     Color32::from_rgb(mix(0), mix(1), mix(2))
+}
+
+/// A map cell whose coefficient is undefined: a flat grey apart from the scale's ends.
+pub fn undefined_cell(v: &Visuals) -> Color32 {
+    if v.dark_mode {
+        Color32::from_gray(72)
+    } else {
+        Color32::from_gray(176)
+    }
 }
 
 /// Black or white, whichever reads on `background`.
@@ -169,10 +192,11 @@ mod tests {
 
     #[test]
     fn diverging_scale_darkens_with_strength_on_both_sides() {
-        let mut last = luma(diverging(0.0));
+        let v = Visuals::light();
+        let mut last = luma(diverging(0.0, &v));
         for k in 1..=10 {
             let r = f64::from(k) / 10.0;
-            let (pos, neg) = (luma(diverging(r)), luma(diverging(-r)));
+            let (pos, neg) = (luma(diverging(r, &v)), luma(diverging(-r, &v)));
             assert!(pos < last && neg < last + 30.0, "r = {r}");
             assert!(
                 (pos - neg).abs() < 40.0,
@@ -180,7 +204,24 @@ mod tests {
             );
             last = pos;
         }
-        assert_eq!(ink_on(diverging(0.0)), Color32::BLACK);
-        assert_eq!(ink_on(diverging(-1.0)), Color32::WHITE);
+        assert_eq!(ink_on(diverging(0.0, &v)), Color32::BLACK);
+        assert_eq!(ink_on(diverging(-1.0, &v)), Color32::WHITE);
+    }
+
+    #[test]
+    fn in_dark_mode_near_zero_stays_near_the_panel_and_strength_brightens() {
+        let v = Visuals::dark();
+        let panel = luma(v.panel_fill);
+        assert!(luma(diverging(0.0, &v)) - panel < 25.0, "calm, not white");
+        assert!(luma(diverging(0.05, &v)) - panel < 40.0);
+        let mut last = luma(diverging(0.0, &v));
+        for k in 1..=10 {
+            let r = f64::from(k) / 10.0;
+            let (pos, neg) = (luma(diverging(r, &v)), luma(diverging(-r, &v)));
+            assert!(pos > last && neg > last - 30.0, "r = {r}");
+            assert!((pos - neg).abs() < 40.0, "alike in grayscale at {r}");
+            last = pos;
+        }
+        assert_ne!(undefined_cell(&v), diverging(0.0, &v));
     }
 }

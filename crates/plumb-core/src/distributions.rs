@@ -175,6 +175,30 @@ pub fn normal_order_band(i: usize, n: usize, alpha: f64) -> Option<(f64, f64)> {
     Some((z(alpha / 2.0), z(1.0 - alpha / 2.0)))
 }
 
+/// The band of [`normal_order_band`] along a quantile plot of `n` ranks, `score(i)` the
+/// plotted normal score of rank `i` (1-based), at up to `points` ranks spread over `1..=n`
+/// (the first and last included): `[score, low, high]` per rank. Empty below three ranks.
+pub fn normal_order_bands(
+    n: usize,
+    score: impl Fn(usize) -> f64,
+    points: usize,
+    alpha: f64,
+) -> Vec<[f64; 3]> {
+    if n < 3 || points < 2 {
+        return Vec::new();
+    }
+    let steps = points.min(n);
+    let mut ranks: Vec<usize> = (0..steps).map(|k| 1 + k * (n - 1) / (steps - 1)).collect();
+    ranks.dedup();
+    ranks
+        .into_iter()
+        .filter_map(|i| {
+            let (lo, hi) = normal_order_band(i, n, alpha)?;
+            Some([score(i), lo, hi])
+        })
+        .collect()
+}
+
 /// Upper tail of the standard normal: `Q(z) = P(Z ≥ z) = ½·Γ(½, z²/2)/Γ(½)` for `z ≥ 0`
 /// (the regularized upper incomplete gamma, accurate to a few ulps in statrs, where its
 /// `erfc` is good to about 1e-11 only) and `Q(z) = ½ + ½·P(½, z²/2)` for `z < 0`.
@@ -280,6 +304,16 @@ mod median_tests {
             );
         }
         assert!(normal_order_band(0, 5, 0.05).is_none());
+        let scores: Vec<f64> = (0..20).map(f64::from).collect();
+        let bands = normal_order_bands(20, |i| scores[i - 1], 5, 0.05);
+        assert_eq!(bands.len(), 5);
+        assert_eq!(
+            (bands[0][0], bands[4][0]),
+            (0.0, 19.0),
+            "first and last rank"
+        );
+        assert!((bands[0][1] - -3.019_708_708_861_97).abs() < 1e-7);
+        assert!(normal_order_bands(2, |i| scores[i - 1], 5, 0.05).is_empty());
         assert!(normal_order_band(6, 5, 0.05).is_none());
     }
 }

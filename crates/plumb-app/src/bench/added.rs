@@ -59,6 +59,7 @@ pub fn added_ui(
         x_label: &x_label,
         y_label: &y_label,
         shares_scatter_x: false,
+        over: None,
     };
     let pick = Pick(k);
     diagnostic_ui(
@@ -77,7 +78,6 @@ pub fn added_ui(
                 pu.line(guide(&name, slope_line(a), v).width(1.5));
             }
         },
-        None,
     )
 }
 

@@ -98,8 +98,8 @@ fn pointer_ui(mode: &mut PointerMode, ui: &mut egui::Ui) {
         .on_hover_text("Click a point to leave it out (click again to put it back); you are asked for a reason");
     ui.radio_value(mode, PointerMode::Lasso, "lasso excludes")
         .on_hover_text("Drag a loop around points in the scatter to leave them all out");
-    ui.radio_value(mode, PointerMode::Move, "drag moves (what-if)")
-        .on_hover_text("Drag a point to see what the numbers would be if it sat there; the data file is never changed");
+    ui.radio_value(mode, PointerMode::Move, "drag moves y (what-if)")
+        .on_hover_text("Drag a point up or down to see what the numbers would be if it read there (hold Shift to move its x too); its place in the file stays marked, and the data file is never changed");
 }
 
 /// The banner over the bench while points are moved.

@@ -39,6 +39,7 @@ pub fn differences_ui(
         x_label: "mean of the two methods",
         y_label: &y_label,
         shares_scatter_x: false,
+        over: None,
     };
     let limits = scene
         .bench
@@ -72,7 +73,6 @@ pub fn differences_ui(
                 agreement_guides(pu, cloud, l, v);
             }
         },
-        None,
     );
     if !beyond.is_empty() {
         ui.weak(beyond);

@@ -19,10 +19,11 @@ const VIEW: Diagnostic<'static> = Diagnostic {
     id: "leverage",
     variant: 0,
     title: "How much each row pulls the fit",
-    tip: "Leverage (how unusual a row's x is) across, studentized residual (how far its y is from a fit made without it) up. Size and colour: Cook's distance, how far the estimates move when the row is left out. Thin lines: the leverage and residual flags of the influence table.",
+    tip: "Leverage (how unusual a row's x is) across, studentized residual (how far its y is from a fit made without it, in its own standard errors) up. Size and colour: Cook's distance, how far the estimates move when the row is left out. Thin lines: the leverage and residual flags of the influence table.",
     x_label: "leverage",
-    y_label: "studentized residual (leave-one-out)",
+    y_label: "studentized residual",
     shares_scatter_x: false,
+    over: None,
 };
 
 /// Marker radius of each pull class (ordinary, flagged, strong), in points.
@@ -63,7 +64,12 @@ pub fn influence_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> 
     super::points::title_ui(ui, VIEW.title, VIEW.tip);
     key_row_ui(ui, &pull_keys(pull, &visuals));
     let size = ui.available_size();
-    let untitled = Diagnostic { title: "", ..VIEW };
+    let over = |pu: &mut egui_plot::PlotUi<'_>, v: &egui::Visuals| pull_markers(pu, pull, v);
+    let untitled = Diagnostic {
+        title: "",
+        over: Some(&over),
+        ..VIEW
+    };
     diagnostic_ui(
         scene,
         own,
@@ -88,7 +94,6 @@ pub fn influence_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> 
                     .style(LineStyle::dotted_loose()),
             );
         },
-        Some(&|pu, v| pull_markers(pu, pull, v)),
     )
 }
 

@@ -55,8 +55,25 @@ pub fn key_row_ui(ui: &mut egui::Ui, keys: &[Key]) {
     ui.horizontal_wrapped(|ui| {
         ui.spacing_mut().item_spacing.x = 4.0;
         for k in keys {
+            // A swatch and its name stay on one line; the row wraps between entries.
+            let name = egui::RichText::new(&k.name).small();
+            let label = egui::Label::new(name).wrap_mode(egui::TextWrapMode::Extend);
+            let width = SWATCH
+                + 4.0
+                + ui.ctx().fonts_mut(|f| {
+                    f.layout_no_wrap(
+                        k.name.clone(),
+                        egui::TextStyle::Small.resolve(ui.style()),
+                        egui::Color32::WHITE,
+                    )
+                    .size()
+                    .x
+                });
+            if ui.available_width() < width {
+                ui.end_row();
+            }
             swatch_ui(ui, k.swatch);
-            ui.label(egui::RichText::new(&k.name).small());
+            ui.add(label);
             ui.add_space(8.0);
         }
     });

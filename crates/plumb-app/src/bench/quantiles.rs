@@ -13,11 +13,12 @@ use crate::state::cloud::Cloud;
 const VIEW: Diagnostic<'static> = Diagnostic {
     id: "quantiles",
     variant: 0,
-    title: "Residuals against a normal sample",
-    tip: "Each studentized residual, in rank order, against the normal score of its rank. Shaded: where 95 % of normal samples of this size put each rank (pointwise). Along the diagonal and inside the band: the residuals look normal. Ends bending out: heavy or light tails; a lone point outside: an outlier.",
+    title: "Residuals vs a normal sample",
+    tip: "Each studentized (leave-one-out) residual, in rank order, against the normal score of its rank. Shaded: where 95 % of normal samples of this size put each rank (pointwise). Along the diagonal and inside the band: the residuals look normal. Ends bending out: heavy or light tails; a lone point outside: an outlier.",
     x_label: "normal score of the rank",
-    y_label: "studentized residual (leave-one-out)",
+    y_label: "studentized residual",
     shares_scatter_x: false,
+        over: None,
 };
 
 /// The diagonal `y = x` over the widest normal score (at least ±1).
@@ -55,7 +56,6 @@ pub fn quantiles_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> 
             }
             pu.line(guide("", diagonal(cloud).to_vec(), v));
         },
-        None,
     )
 }
 

@@ -102,6 +102,7 @@ pub fn residuals_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> 
         x_label: &x_label,
         y_label: &y_label,
         shares_scatter_x: axis.is_scatter_x(spec) && own.added_term.is_none(),
+        over: None,
     };
     let beyond = scene
         .bench
@@ -110,9 +111,7 @@ pub fn residuals_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> 
         .unwrap_or_default();
     let below = if beyond.is_empty() { 0.0 } else { 18.0 };
     let size = ui.available_size() - Vec2::new(0.0, below);
-    out.extend(diagnostic_ui(
-        scene, own, ui, size, &view, pick, zero_line, None,
-    ));
+    out.extend(diagnostic_ui(scene, own, ui, size, &view, pick, zero_line));
     if !beyond.is_empty() {
         ui.weak(beyond);
     }

@@ -149,13 +149,16 @@ pub fn scatter_ui(
         included.nearest_except(v.x, v.y, radius(&resp.transform), &marked.skip)
     });
     axes::readout_ui(ui, &resp.response, &resp.transform);
+    axes::name_plot(&resp.response, "view: scatter");
+    let saved = super::view::save_menu(&resp.response, crate::state::export::ChartView::Scatter);
     let shown = Shown {
         hovered,
         transform: resp.transform,
         response: resp.response,
     };
     own.scatter_transform = Some(shown.transform);
-    let out = interaction(scene, own, &shown);
+    let mut out = interaction(scene, own, &shown);
+    out.extend(saved);
     tooltip_ui(scene, &mut own.pointer, &shown);
     out
 }

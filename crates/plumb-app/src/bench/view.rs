@@ -8,11 +8,13 @@ use egui_plot::PlotUi;
 use super::pointer::PointerMode;
 use super::points::{hovered_entry, points_layer, title_ui, toggle, tooltip_ui, Layer, Shown};
 use super::{BenchUi, Scene};
-use crate::action::Actions;
+use crate::action::{Action, Actions};
 use crate::axes;
 use crate::density::Bounds;
 use crate::state::cloud::Cloud;
 use crate::state::diagnostics::Diagnostics;
+use crate::state::export::ChartView;
+use crate::state::DialogPurpose;
 
 /// A thin line in the view's weak ink, under the points (a diagonal, a contour).
 pub fn guide(name: &str, points: Vec<[f64; 2]>, v: &egui::Visuals) -> egui_plot::Line<'static> {
@@ -39,6 +41,32 @@ pub fn reframe(view: &egui_plot::PlotBounds, data: &Bounds) -> Option<egui_plot:
     })
 }
 
+/// The chart a view is saved as, if it can be saved on its own.
+fn exported_as(id: &str) -> Option<ChartView> {
+    match id {
+        "residuals" => Some(ChartView::Residuals),
+        "leverage" => Some(ChartView::Influence),
+        "quantiles" => Some(ChartView::Quantiles),
+        _ => None,
+    }
+}
+
+/// A right click on a view offers to save it as a chart file.
+pub fn save_menu(response: &egui::Response, kind: ChartView) -> Actions {
+    let mut out = Actions::none();
+    response.context_menu(|ui| {
+        if ui
+            .button("Save this view as PNG or SVG…")
+            .on_hover_text("The view drawn as the summary draws it; name the file .svg for a drawing, .png for an image")
+            .clicked()
+        {
+            out.push(Action::PickFile(DialogPurpose::ExportView(kind)));
+            ui.close();
+        }
+    });
+    out
+}
+
 /// What a diagnostic view is called and what its axes show.
 pub struct Diagnostic<'a> {
     /// Keys the view's zoom memory and density image.
@@ -56,11 +84,16 @@ pub struct Diagnostic<'a> {
     /// The horizontal axis is the scatter's: the two share their range (and the pointer's
     /// vertical line), so a row's residual sits under its point.
     pub shares_scatter_x: bool,
+    /// Markers that stand out, drawn over the points.
+    pub over: Option<&'a Over<'a>>,
 }
+
+/// What a view draws over its points.
+pub type Over<'a> = dyn Fn(&mut PlotUi<'_>, &egui::Visuals) + 'a;
 
 /// Draws one diagnostic view in `size` (its title included): the points `pick` takes from the
 /// diagnostics (included rows, and excluded rows drawn as rings), with `guides` drawn first
-/// and `over` (markers that stand out) last. A
+/// and the view's `over` (markers that stand out) last. A
 /// spinner while the first diagnostics compute (or while those on hand are for a model
 /// without the view).
 pub fn diagnostic_ui(
@@ -71,7 +104,6 @@ pub fn diagnostic_ui(
     view: &Diagnostic<'_>,
     pick: impl for<'d> Fn(&'d Diagnostics) -> Option<(&'d Cloud, Option<&'d Cloud>)>,
     guides: impl FnOnce(&mut PlotUi<'_>, &Cloud, &egui::Visuals),
-    over: Option<&dyn Fn(&mut PlotUi<'_>, &egui::Visuals)>,
 ) -> Actions {
     let top = ui.cursor().top();
     if !view.title.is_empty() {
@@ -122,18 +154,21 @@ pub fn diagnostic_ui(
             generation: scene.bench.diag_generation() ^ (view.variant << 48),
         };
         points_layer(pu, &layer, textures, &visuals);
-        if let Some(over) = over {
+        if let Some(over) = view.over {
             over(pu, &visuals);
         }
     });
     axes::name_plot(&resp.response, &format!("view: {}", view.id));
+    let mut out = Actions::none();
+    if let Some(kind) = exported_as(view.id) {
+        out.extend(save_menu(&resp.response, kind));
+    }
     axes::readout_ui(ui, &resp.response, &resp.transform);
     let shown = Shown {
         hovered: hovered_entry(&resp.response, &resp.transform, &[points, excluded]),
         transform: resp.transform,
         response: resp.response,
     };
-    let mut out = Actions::none();
     if let Some(e) = shown.hovered.filter(|_| shown.response.clicked()) {
         own.pointer.selected = Some(e);
         if own.pointer.mode == PointerMode::Exclude {

@@ -62,6 +62,7 @@ pub fn weightings_ui(
                     x_label: &x_label,
                     y_label: "√w · residual",
                     shares_scatter_x: false,
+                    over: None,
                 };
                 out.extend(diagnostic_ui(
                     scene,
@@ -80,7 +81,6 @@ pub fn weightings_ui(
                                 .allow_hover(false),
                         );
                     },
-                    None,
                 ));
             });
         }

@@ -210,23 +210,16 @@ pub fn views_of(
 /// Ranks at which the quantile view's band is computed.
 pub const BAND_POINTS: usize = 120;
 
-/// The pointwise 95 % band of `n` normal order statistics at up to [`BAND_POINTS`] ranks
-/// spread over `1..=n` (the first and last included), placed at the quantile view's scores.
+/// The pointwise 95 % band of normal order statistics at up to [`BAND_POINTS`] ranks, placed
+/// at the quantile view's scores.
 pub fn order_band(quantile: &Cloud) -> Vec<[f64; 3]> {
-    let n = quantile.points.len();
-    if n < 3 {
-        return Vec::new();
-    }
-    let steps = BAND_POINTS.min(n);
-    let mut ranks: Vec<usize> = (0..steps).map(|k| 1 + k * (n - 1) / (steps - 1)).collect();
-    ranks.dedup();
-    ranks
-        .into_iter()
-        .filter_map(|i| {
-            let (lo, hi) = plumb_core::distributions::normal_order_band(i, n, 0.05)?;
-            Some([quantile.points[i - 1].0, lo, hi])
-        })
-        .collect()
+    let points = &quantile.points;
+    plumb_core::distributions::normal_order_bands(
+        points.len(),
+        |i| points[i - 1].0,
+        BAND_POINTS,
+        0.05,
+    )
 }
 
 /// A pair entry and where it sits in a view.

@@ -363,6 +363,76 @@ impl Paint for Residuals<'_> {
     }
 }
 
+/// Ranks at which the quantile chart's band is drawn.
+const BAND_RANKS: usize = 120;
+
+/// The residuals against a normal sample: each studentized residual in rank order against the
+/// normal score of its rank (`points`, sorted), the diagonal, and the shaded pointwise 95 %
+/// band of normal order statistics of that sample size.
+pub fn quantile_chart(points: &[(f64, f64)], title: String) -> Result<Chart> {
+    let band = plumb_core::distributions::normal_order_bands(
+        points.len(),
+        |i| points[i - 1].0,
+        BAND_RANKS,
+        0.05,
+    );
+    render("quantiles", title, &Quantiles(points, band))
+}
+
+struct Quantiles<'a>(&'a [(f64, f64)], Vec<[f64; 3]>);
+
+impl Paint for Quantiles<'_> {
+    fn paint<DB: DrawingBackend>(
+        &self,
+        root: &DrawingArea<DB, Shift>,
+    ) -> std::result::Result<(), String> {
+        let (points, band) = (self.0, &self.1);
+        root.fill(&WHITE).map_err(|e| e.to_string())?;
+        let (x0, x1) = range(points.iter().map(|p| p.0));
+        let (y0, y1) = range(
+            points
+                .iter()
+                .map(|p| p.1)
+                .chain(band.iter().flat_map(|b| [b[1], b[2]])),
+        );
+        let mut chart = axes(
+            root,
+            x0..x1,
+            y0..y1,
+            "normal score of the rank",
+            "studentized residual",
+        )?;
+        if band.len() > 1 {
+            let outline: Vec<(f64, f64)> = band
+                .iter()
+                .map(|b| (b[0], b[2]))
+                .chain(band.iter().rev().map(|b| (b[0], b[1])))
+                .collect();
+            chart
+                .draw_series(std::iter::once(Polygon::new(
+                    outline,
+                    FIT.mix(0.16).filled(),
+                )))
+                .map_err(|e| e.to_string())?;
+        }
+        let (lo, hi) = (x0.max(y0), x1.min(y1));
+        if hi > lo {
+            chart
+                .draw_series(LineSeries::new([(lo, lo), (hi, hi)], GUIDE.stroke_width(1)))
+                .map_err(|e| e.to_string())?;
+        }
+        chart
+            .draw_series(
+                points
+                    .iter()
+                    .filter(|p| p.0.is_finite() && p.1.is_finite())
+                    .map(|&p| Circle::new(p, 3, INK.filled())),
+            )
+            .map_err(|e| e.to_string())?;
+        Ok(())
+    }
+}
+
 /// A row of the influence chart: leverage, externally studentized residual, and its class.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct PullDot {
@@ -500,5 +570,19 @@ mod tests {
             "the key names the threshold"
         );
         assert!(!c.svg.contains("stroke-dasharray"), "no dashed contours");
+    }
+
+    #[test]
+    fn the_quantile_chart_shades_the_band_under_its_points() {
+        let scores = plumb_core::regression::normal_scores(30);
+        let points: Vec<(f64, f64)> = scores.iter().map(|&z| (z, z * 1.1)).collect();
+        let c = quantile_chart(&points, "t".into()).expect("drawn");
+        let circles = c.svg.matches("<circle").count();
+        assert_eq!(circles, 30, "one marker per residual");
+        assert!(c.svg.contains("<polygon"), "the band is drawn");
+        assert!(
+            c.svg.find("<polygon") < c.svg.find("<circle"),
+            "under the points"
+        );
     }
 }

@@ -1,15 +1,16 @@
 //! The summary's charts: the pair with its fit and bands (or y against its fitted value with
-//! several predictors), the residuals against the same predictor, and how much each row pulls
-//! the fit; excluded rows stay visible in the pair chart.
+//! several predictors), the residuals against the same predictor and against a normal sample,
+//! and how much each row pulls the fit; excluded rows stay visible in the pair chart.
 
 use plumb_data::analysis::{Analysis, Curve, PairExtras};
 
 use super::{Beside, ReportInput};
 use crate::charts::{
-    pair_chart, pull_chart, residual_chart, Chart, ChartLine, Dot, LineKind, PairChart, PullDot,
+    pair_chart, pull_chart, quantile_chart, residual_chart, Chart, ChartLine, Dot, LineKind,
+    PairChart, PullDot,
 };
 use crate::Result;
-use plumb_core::regression::{pull_of, strong_pull_from};
+use plumb_core::regression::{normal_scores, pull_of, strong_pull_from};
 
 /// Every chart of the summary.
 ///
@@ -36,9 +37,24 @@ pub fn draw(
             pull: pull_of(c, strong_from),
         })
         .collect();
+    let mut ranked: Vec<f64> = outcome
+        .cases
+        .iter()
+        .map(|c| c.studentized_external)
+        .filter(|t| t.is_finite())
+        .collect();
+    ranked.sort_by(f64::total_cmp);
+    let quantiles: Vec<(f64, f64)> = normal_scores(ranked.len())
+        .into_iter()
+        .zip(ranked)
+        .collect();
     Ok(vec![
         first,
         residual_chart(&residuals, &x_label, format!("residuals against {x_label}"))?,
+        quantile_chart(
+            &quantiles,
+            "residuals against a normal sample (shaded: where 95 % of normal samples put each rank)".into(),
+        )?,
         pull_chart(
             &pulls,
             strong_from,
