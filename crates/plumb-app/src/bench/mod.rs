@@ -83,6 +83,10 @@ pub struct Scene<'a> {
     pub bench: &'a BenchModel,
     /// The file's numeric columns.
     pub columns: &'a [String],
+    /// Names of the rows (the ID column chosen on the columns screen): `names.label(row)`.
+    pub names: crate::state::roles::RowNames<'a>,
+    /// The co-movement map (its notes on the pair join the cues).
+    pub map: &'a crate::state::map::MapModel,
 }
 
 /// Draws the bench.
@@ -104,6 +108,8 @@ pub fn bench_ui(state: &State, own: &mut BenchUi, ui: &mut egui::Ui) -> Actions 
         marks: state.marks(),
         bench,
         columns: &loaded.dataset.numeric,
+        names: state.row_names(),
+        map: state.map(),
     };
     if scene.marks.is_hypothetical() {
         out.extend(controls::what_if_banner_ui(scene.marks.moved.len(), ui));
@@ -148,8 +154,8 @@ fn side_panels_ui(
     }
     egui::Panel::left("numbers-and-ledger")
         .resizable(true)
-        .default_size(330.0)
-        .size_range(240.0..=480.0)
+        .default_size(320.0)
+        .size_range(240.0..=380.0)
         .show(ui, |ui| {
             ui.horizontal(|ui| {
                 ui.selectable_value(&mut own.ledger_tab, false, "Numbers");
@@ -198,7 +204,13 @@ impl ViewSizes {
                 side: Vec2::ZERO,
             };
         }
-        let left = (w * LEFT_SHARE).floor();
+        // A narrow window keeps the right column wide enough for its axes.
+        let share = if w < 760.0 {
+            LEFT_SHARE - 0.05
+        } else {
+            LEFT_SHARE
+        };
+        let left = (w * share).floor();
         let right = w - left - gap;
         let top = (h * SCATTER_SHARE).floor();
         let stacked = if mode == BenchMode::Calibration {
