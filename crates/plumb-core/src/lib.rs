@@ -22,5 +22,6 @@ mod error;
 pub mod moments;
 pub mod optimize;
 pub mod regression;
+pub mod sampling;
 
 pub use error::{CoreError, Result};

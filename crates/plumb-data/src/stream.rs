@@ -161,7 +161,7 @@ pub fn stream_columns(
 
 /// Chunks are cut at line-break bytes, which in UTF-16 are half of a character: such files
 /// are read whole, not streamed.
-fn refuse_two_byte_text(path: &Path, head: &Table) -> Result<()> {
+pub(crate) fn refuse_two_byte_text(path: &Path, head: &Table) -> Result<()> {
     match head.format() {
         SourceFormat::Delimited {
             encoding: e @ (TextEncoding::Utf16Le | TextEncoding::Utf16Be),
@@ -176,6 +176,31 @@ fn refuse_two_byte_text(path: &Path, head: &Table) -> Result<()> {
         }),
         _ => Ok(()),
     }
+}
+
+/// The reading options that repeat `format` (as settled by a file's first chunk) on later
+/// pieces of the same file; `None` for a format that is not delimited text.
+pub(crate) fn fixed_options(format: &SourceFormat, load: &LoadOptions) -> Option<LoadOptions> {
+    let SourceFormat::Delimited {
+        encoding,
+        delimiter,
+        decimal,
+        header,
+    } = *format
+    else {
+        return None;
+    };
+    Some(LoadOptions {
+        encoding: Some(encoding),
+        delimiter: Some(delimiter),
+        decimal: Some(decimal),
+        header: if header {
+            HeaderMode::Yes
+        } else {
+            HeaderMode::No
+        },
+        ..load.clone()
+    })
 }
 
 /// One pass over the file: the settled format, where the next chunk starts, and the account.
@@ -201,26 +226,8 @@ impl<'a> Pass<'a> {
         options: &StreamOptions,
     ) -> Self {
         let format = head.format().clone();
-        let SourceFormat::Delimited {
-            encoding,
-            delimiter,
-            decimal,
-            header,
-        } = format
-        else {
-            unreachable!("delimited text");
-        };
-        let fixed = LoadOptions {
-            encoding: Some(encoding),
-            delimiter: Some(delimiter),
-            decimal: Some(decimal),
-            header: if header {
-                HeaderMode::Yes
-            } else {
-                HeaderMode::No
-            },
-            ..options.load.clone()
-        };
+        let header = matches!(format, SourceFormat::Delimited { header: true, .. });
+        let fixed = fixed_options(&format, &options.load).expect("delimited text");
         let keep = head
             .columns()
             .iter()
@@ -369,13 +376,13 @@ fn first_record(text: &[u8]) -> Vec<u8> {
 
 /// One piece of whole records and the number of line breaks in it.
 #[derive(Debug, Default)]
-struct Chunk {
-    text: Vec<u8>,
+pub(crate) struct Chunk {
+    pub(crate) text: Vec<u8>,
     lines: usize,
 }
 
 /// Reads whole records, about `size` bytes at a time.
-struct Chunks<'a> {
+pub(crate) struct Chunks<'a> {
     file: &'a mut File,
     size: usize,
     carry: Vec<u8>,
@@ -383,7 +390,7 @@ struct Chunks<'a> {
 }
 
 impl<'a> Chunks<'a> {
-    fn new(file: &'a mut File, size: usize) -> Self {
+    pub(crate) fn new(file: &'a mut File, size: usize) -> Self {
         Self {
             file,
             size,
@@ -392,7 +399,7 @@ impl<'a> Chunks<'a> {
         }
     }
 
-    fn next_chunk(&mut self) -> std::io::Result<Option<Chunk>> {
+    pub(crate) fn next_chunk(&mut self) -> std::io::Result<Option<Chunk>> {
         let mut text = std::mem::take(&mut self.carry);
         loop {
             if self.done {
