@@ -19,6 +19,6 @@ pub use atomic::write_atomically;
 pub use effects::{exclusion_effects, Effect, Headline};
 pub use error::{ReportError, Result};
 pub use session::{
-    file_sha256, AgreementSpec, CalibrationSpec, DataSource, Exclusion, GroupSpec, LoadSpec,
-    ModelSpec, Session, UnknownSpec, SCHEMA_VERSION,
+    file_sha256, AgreementSpec, CalibrationSpec, ColumnRoles, DataSource, Exclusion, GroupSpec,
+    LoadSpec, ModelSpec, Session, UnknownSpec, SCHEMA_VERSION,
 };

@@ -21,8 +21,10 @@ use crate::{ReportError, Result};
 
 /// Newest schema version this build writes and reads. Version 2 added the model's grouping,
 /// transforms and the kept comparison; version 3 the weighting rules, the calibration's
-/// unknowns and the method comparison. Older files read as the newest (those parts absent).
-pub const SCHEMA_VERSION: u32 = 3;
+/// unknowns and the method comparison; version 4 the columns' roles (the group colouring the
+/// points and the ID naming the rows, in the view settings). Older files read as the newest
+/// (those parts absent).
+pub const SCHEMA_VERSION: u32 = 4;
 
 /// A saved session.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -282,6 +284,24 @@ fn residual() -> String {
 /// `column:NAME`.
 const CHECK_ORDER: &str = "check_order";
 
+/// Key in the session's `view` map naming the text column whose levels colour the points
+/// (version 4).
+const GROUP_COLUMN: &str = "group_column";
+
+/// Key in the session's `view` map naming the column whose cells name the rows: a column
+/// name, or `null` when the analyst chose none (version 4; absent: not recorded).
+const ID_COLUMN: &str = "id_column";
+
+/// The columns' roles a session records beside the models (version 4).
+#[derive(Debug, Clone, PartialEq, Eq, Default)]
+pub struct ColumnRoles {
+    /// The text column colouring the points (`None`: none).
+    pub group: Option<String>,
+    /// The column naming the rows: `Some(None)` when none was chosen, `None` when the
+    /// session does not say (written by an older build).
+    pub id: Option<Option<String>>,
+}
+
 impl CalibrationSpec {
     /// The calibration request this records.
     pub fn request(&self) -> CalibrationRequest {
@@ -440,6 +460,30 @@ impl Session {
                     .insert(CHECK_ORDER.into(), format!("column:{c}").into());
             }
         }
+    }
+
+    /// The columns' roles recorded in the view settings.
+    pub fn roles(&self) -> ColumnRoles {
+        let text = |v: &serde_json::Value| v.as_str().map(str::to_string);
+        ColumnRoles {
+            group: self.view.get(GROUP_COLUMN).and_then(text),
+            id: self.view.get(ID_COLUMN).map(text),
+        }
+    }
+
+    /// Records the columns' roles in the view settings.
+    pub fn set_roles(&mut self, roles: &ColumnRoles) {
+        match &roles.group {
+            Some(g) => self.view.insert(GROUP_COLUMN.into(), g.clone().into()),
+            None => self.view.remove(GROUP_COLUMN),
+        };
+        match &roles.id {
+            Some(id) => self.view.insert(
+                ID_COLUMN.into(),
+                id.clone().map_or(serde_json::Value::Null, Into::into),
+            ),
+            None => self.view.remove(ID_COLUMN),
+        };
     }
 
     /// Reads a session, refusing newer schema versions and malformed files with a clear message.
@@ -647,6 +691,23 @@ mod tests {
         );
         let mut t = s;
         t.set_check_order(&RowOrder::Column("run".into()));
+        assert_eq!(t.roles(), ColumnRoles::default(), "not recorded");
+        let roles = ColumnRoles {
+            group: Some("analyst".into()),
+            id: Some(Some("jar".into())),
+        };
+        t.set_roles(&roles);
+        assert_eq!(t.roles(), roles);
+        let none_chosen = ColumnRoles {
+            group: None,
+            id: Some(None),
+        };
+        t.set_roles(&none_chosen);
+        assert_eq!(
+            t.roles(),
+            none_chosen,
+            "no ID chosen is kept apart from unsaid"
+        );
         assert_eq!(t.check_order(), RowOrder::Column("run".into()));
         t.set_check_order(&RowOrder::None);
         assert_eq!(t.check_order(), RowOrder::None);
@@ -720,6 +781,11 @@ mod tests {
         assert_eq!(s.models[0].x, ["standard_mg_l"]);
         assert!(s.models[0].group.is_none() && s.models[0].transforms.is_empty());
         assert!(s.comparison.is_none());
+        assert_eq!(
+            s.roles(),
+            ColumnRoles::default(),
+            "an older file says nothing of roles"
+        );
         assert_eq!(s.exclusions[0].row, 14);
         let request = s.models[0].request(vec![14]).expect("a plain model");
         assert_eq!(
