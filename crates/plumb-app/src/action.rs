@@ -9,6 +9,7 @@ use crate::state::diagnostics::{Overlays, ResidualAxis};
 use crate::state::map::MapKey;
 use crate::state::pair::FitSpec;
 use crate::state::reading::Reading;
+use crate::state::roles::Role;
 use crate::state::{DialogPurpose, Screen, Status};
 
 /// One change the analyst asks for.
@@ -70,6 +71,13 @@ pub enum Action {
     SetOverlays(Overlays),
     /// Colour the points by a text column (a line per group), or by nothing.
     ColourBy(Option<String>),
+    /// Give a column a role (group, row order, ID) or take its role away.
+    SetRole {
+        /// The column.
+        column: String,
+        /// Its new role.
+        role: Role,
+    },
     /// Leave data rows out. With a reason it is recorded at once; without one the default
     /// text is recorded and the reason prompt opens.
     Exclude {
@@ -115,8 +123,11 @@ pub enum Action {
         /// Predictor.
         x: String,
     },
-    /// Stop the one-pass view's reading.
+    /// Stop the one-pass view's reading (or its sample being drawn).
     OnePassStop,
+    /// Draw a seeded random sample of the one-pass view's file and open it on the pair bench
+    /// with the view's pair.
+    OnePassSample,
     /// Put a message on the status line.
     Tell(Status),
 }

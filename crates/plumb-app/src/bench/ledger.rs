@@ -62,15 +62,16 @@ fn exclusion_ui(
 ) -> Actions {
     let mut out = Actions::none();
     let pair = scene.pair;
+    let label = scene.names.label(row);
     let where_ = match pair.index_of(row) {
         Some(i) => format!(
-            "row {row}: {} = {}, {} = {}",
+            "{label}: {} = {}, {} = {}",
             pair.spec.x0(),
             num(pair.x[i]),
             pair.spec.y,
             num(pair.y[i])
         ),
-        None => format!("row {row} (not among this pair's complete rows)"),
+        None => format!("{label} (not among this pair's complete rows)"),
     };
     ui.horizontal_wrapped(|ui| {
         ui.label(RichText::new(where_).strong());
@@ -157,7 +158,8 @@ fn moves_ui(scene: &Scene<'_>, ui: &mut egui::Ui) -> Actions {
                 .map(|i| format!("({}, {})", num(pair.x[i]), num(pair.y[i])))
                 .unwrap_or_default();
             ui.label(format!(
-                "row {row}: {from} moved to ({}, {})",
+                "{}: {from} moved to ({}, {})",
+                scene.names.label(row),
                 num(x),
                 num(y)
             ));

@@ -38,17 +38,24 @@ fn file_buttons_ui(state: &State, ui: &mut egui::Ui) -> Actions {
     {
         out.push(Action::PickFile(DialogPurpose::Open));
     }
+    let blocked = state.why_no_session();
+    let why_not = blocked.as_deref().unwrap_or("Open a data file first");
     if ui
-        .add_enabled(has_data, egui::Button::new("Save session"))
+        .add_enabled(has_data && blocked.is_none(), egui::Button::new("Save session"))
         .on_hover_text("Save the exclusions, their reasons and the model to a .plumb session — Ctrl+S (Ctrl+Shift+S: save as). The data file is never written.")
+        .on_disabled_hover_text(why_not)
         .clicked()
     {
         out.push(Action::SaveSession);
     }
-    let can_export = has_data && state.bench().pair().is_some();
+    let can_export = has_data && blocked.is_none() && state.bench().pair().is_some();
+    let why_not = blocked
+        .as_deref()
+        .unwrap_or("Open a data file and a pair on the bench first");
     if ui
         .add_enabled(can_export, egui::Button::new("Write summary…"))
         .on_hover_text("Write the colleague summary: HTML with charts, the statistics and exclusion log as CSV, and the session that reproduces it — Ctrl+E")
+        .on_disabled_hover_text(why_not)
         .clicked()
     {
         out.push(Action::PickFile(DialogPurpose::ExportSummary));

@@ -3,7 +3,7 @@
 
 use eframe::egui::{self, RichText, Vec2};
 use egui_plot::{Line, PlotPoints};
-use plumb_report::text::{num, p};
+use plumb_report::text::{count, num, p};
 use plumb_report::wording;
 
 use crate::action::{Action, Actions};
@@ -11,6 +11,7 @@ use crate::axes;
 use crate::density::texture::{colour_image, image_over};
 use crate::palette;
 use crate::state::one_pass::{OnePass, PassOutcome};
+use crate::state::sample_draw::{SAMPLE_ROWS, SAMPLE_SEED};
 
 /// What the view keeps between frames: the density image of the last result.
 #[derive(Default)]
@@ -31,10 +32,11 @@ pub fn one_pass_ui(view: Option<&OnePass>, own: &mut OnePassUi, ui: &mut egui::U
             .map_or_else(String::new, |n| n.to_string_lossy().into_owned())
     ));
     ui.label(format!(
-        "{:.0} MB read in pieces and never held in memory: the line and the density of the points come from two passes over the file. Rows cannot be excluded or inspected here; open an extract on the pair bench for that.",
+        "{:.0} MB read in pieces and never held in memory: the line and the density of the points come from two passes over the file. Rows cannot be excluded or inspected here; a random sample of them can be, on the pair bench.",
         view.bytes as f64 / 1e6
     ));
-    let out = controls_ui(view, ui);
+    let mut out = sample_row_ui(view, ui);
+    out.extend(controls_ui(view, ui));
     if let Some(e) = &view.error {
         ui.colored_label(ui.visuals().error_fg_color, e);
     }
@@ -50,6 +52,47 @@ pub fn one_pass_ui(view: Option<&OnePass>, own: &mut OnePassUi, ui: &mut egui::U
         plot_ui(view, outcome, own, ui, plot_size);
         ui.vertical(|ui| numbers_ui(outcome, &view.y, &view.x, ui));
     });
+    out
+}
+
+/// The button that draws a seeded random sample onto the bench, or the draw's progress.
+fn sample_row_ui(view: &OnePass, ui: &mut egui::Ui) -> Actions {
+    let mut out = Actions::none();
+    ui.horizontal_wrapped(|ui| {
+        if let Some(draw) = view.sampling() {
+            let share = if view.bytes > 0 {
+                draw.bytes_read() as f32 / view.bytes as f32
+            } else {
+                0.0
+            };
+            ui.add(
+                egui::ProgressBar::new(share)
+                    .desired_width(220.0)
+                    .text(format!("drawing the sample: {:.0} MB", draw.bytes_read() as f64 / 1e6)),
+            );
+            if ui.button("Stop").on_hover_text("Stop drawing the sample").clicked() {
+                out.push(Action::OnePassStop);
+            }
+            return;
+        }
+        let label = format!(
+            "Open a random sample of {} rows on the bench",
+            count(SAMPLE_ROWS)
+        );
+        let go = ui
+            .add_enabled(!view.is_busy(), egui::Button::new(label))
+            .on_hover_text(format!(
+                "Reads the file once more and keeps {} rows drawn at random (all of them if it has fewer; seed {SAMPLE_SEED}, so the same rows every time), then opens them with every column on the pair bench, labelled as a sample, with y = {} and x = {}. Its work cannot be saved as a session of the file.",
+                count(SAMPLE_ROWS),
+                view.y,
+                view.x
+            ))
+            .on_disabled_hover_text("Wait for the passes to finish, or stop them");
+        if go.clicked() {
+            out.push(Action::OnePassSample);
+        }
+    });
+    ui.weak("Save session and Write summary are off in this view and for a sample: a session reproduces its numbers from the whole file held in memory, which neither has.");
     out
 }
 

@@ -6,6 +6,7 @@ use std::sync::Arc;
 
 use plumb_data::{ColumnSummary, ColumnValues, LoadOptions, Table};
 
+use super::column_facts::{facts_of, suggested_id, NumericFacts};
 use crate::error::WorkbenchError;
 
 /// A text column with at most this many distinct values can colour the points.
@@ -24,6 +25,23 @@ pub struct Dataset {
     pub numeric: Vec<String>,
     /// Names of the text columns that can colour the points, with their levels.
     pub groups: Vec<(String, Vec<String>)>,
+    /// Mean, SD and histogram of each column, in file order (`None` for text and empty ones).
+    pub facts: Vec<Option<NumericFacts>>,
+    /// The column suggested to name the rows (see [`suggested_id`]).
+    pub suggested_id: Option<String>,
+    /// Where the rows came from when the table is a random sample of a larger file.
+    pub sample: Option<SampleOrigin>,
+}
+
+/// A table that holds a seeded random sample of a file's rows, not the file.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SampleOrigin {
+    /// 1-based data row in the file of each of the table's rows.
+    pub file_rows: Vec<usize>,
+    /// Data rows in the file.
+    pub file_row_count: usize,
+    /// The generator's seed.
+    pub seed: u64,
 }
 
 impl Dataset {
@@ -75,11 +93,36 @@ impl Dataset {
             })
             .collect();
         Self {
+            facts: facts_of(table.columns()),
+            suggested_id: suggested_id(table.columns()),
             table: Arc::new(table),
             options,
             summaries,
             numeric,
             groups,
+            sample: None,
+        }
+    }
+
+    /// Describes a random sample of a file's rows (labelled as a sample wherever the file's
+    /// name is shown).
+    pub fn from_sample(sample: plumb_data::RowSample, options: LoadOptions) -> Self {
+        let mut d = Self::from_table(sample.table, options);
+        d.sample = Some(SampleOrigin {
+            file_rows: sample.file_rows,
+            file_row_count: sample.file_row_count,
+            seed: sample.seed,
+        });
+        d
+    }
+
+    /// The text of the cell of data row `row` (1-based) in `column`: a number as the
+    /// workbench writes numbers, `None` where missing or out of range.
+    pub fn cell_text(&self, column: &str, row: usize) -> Option<String> {
+        let i = row.checked_sub(1)?;
+        match &self.table.column(column)?.values {
+            ColumnValues::Numeric(v) => v.get(i).copied().flatten().map(plumb_report::text::num),
+            ColumnValues::Text { values, .. } => values.get(i).cloned().flatten(),
         }
     }
 
@@ -88,12 +131,22 @@ impl Dataset {
         self.table.source().to_path_buf()
     }
 
-    /// File name for the title bar.
+    /// File name for the title bar and the columns screen; a sample says so, with its size,
+    /// the file's rows and the seed.
     pub fn file_name(&self) -> String {
-        self.table.source().file_name().map_or_else(
+        let name = self.table.source().file_name().map_or_else(
             || self.table.source().display().to_string(),
             |n| n.to_string_lossy().into_owned(),
-        )
+        );
+        match &self.sample {
+            None => name,
+            Some(s) => format!(
+                "{name} — random sample of {} of {} rows, seed {}",
+                plumb_report::text::count(self.table.n_rows()),
+                plumb_report::text::count(s.file_row_count),
+                s.seed
+            ),
+        }
     }
 
     /// Level index of each data row in group column `name` (None where missing).

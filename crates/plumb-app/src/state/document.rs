@@ -36,6 +36,8 @@ pub struct AfterLoad {
     pub restoring: bool,
     /// What the bench reads beside the fit.
     pub reading: Option<super::reading::Reading>,
+    /// The columns' roles (group, ID) to start from.
+    pub roles: Option<plumb_report::ColumnRoles>,
 }
 
 /// A load in progress.

@@ -68,6 +68,7 @@ impl State {
             session: Some(path.to_path_buf()),
             restoring: false,
             reading: Some(reading_of(&session)),
+            roles: Some(session.roles()),
         };
         self.start_load(&data, session.data.load.to_options(), then);
     }
@@ -96,6 +97,7 @@ impl State {
             session: self.doc.session_path.clone(),
             restoring: true,
             reading: Some(self.bench.reading().clone()),
+            roles: Some(self.column_roles()),
         };
         self.start_load(&path, options, then);
     }
@@ -124,7 +126,7 @@ impl State {
         }
     }
 
-    fn install(&mut self, loaded: Loaded, then: AfterLoad) {
+    pub(crate) fn install(&mut self, loaded: Loaded, then: AfterLoad) {
         let path = loaded.dataset.path();
         // The recent list keeps absolute paths, so it works from any working directory.
         let remembered = then.session.as_deref().unwrap_or(&path);
@@ -160,6 +162,7 @@ impl State {
                 self.screen = Screen::Bench;
             }
         }
+        self.start_roles(then.roles);
     }
 
     /// Opens a native file dialog (a save or export needs a file open first).
@@ -177,6 +180,9 @@ impl State {
 
     /// Saves to the session file the work belongs to, or asks where.
     pub(crate) fn save_session(&mut self) {
+        if let Some(why) = self.why_no_session() {
+            return self.fail(why);
+        }
         match self.doc.session_path.clone() {
             Some(p) => self.save_session_to(&p),
             None => self.pick_file(DialogPurpose::SaveSessionAs),
@@ -186,18 +192,23 @@ impl State {
     fn current_session(&self, at: &Path) -> Option<Session> {
         let loaded = self.doc.loaded.as_ref()?;
         let spec = self.bench.spec();
-        Some(session_of(
+        let mut session = session_of(
             &loaded.dataset,
             &loaded.sha256,
             [spec, self.bench.kept()],
             self.marks(),
             self.bench.reading(),
             at,
-        ))
+        );
+        session.set_roles(&self.column_roles());
+        Some(session)
     }
 
     /// Saves the session (atomically) at `path`; the data file is never written.
     pub(crate) fn save_session_to(&mut self, path: &Path) {
+        if let Some(why) = self.why_no_session() {
+            return self.fail(why);
+        }
         let path = with_extension(path, "plumb");
         if self
             .doc
@@ -234,6 +245,9 @@ impl State {
     }
 
     fn export(&mut self, out: &Path) -> Result<String, WorkbenchError> {
+        if let Some(why) = self.why_no_session() {
+            return Err(WorkbenchError::Report(why));
+        }
         let (Some(loaded), Some(pair)) = (&self.doc.loaded, self.bench.pair()) else {
             return Err(WorkbenchError::Report(
                 "open a pair on the bench first".into(),
@@ -243,7 +257,7 @@ impl State {
             Some(p) if !self.has_unsaved_changes() => p.clone(),
             _ => with_extension(out, "plumb"),
         };
-        let session = session_of(
+        let mut session = session_of(
             &loaded.dataset,
             &loaded.sha256,
             [Some(&pair.spec), self.bench.kept()],
@@ -251,6 +265,7 @@ impl State {
             self.bench.reading(),
             &session_file,
         );
+        session.set_roles(&self.column_roles());
         let report = build(&ReportInput {
             table: &loaded.dataset.table,
             sha256: loaded.sha256.clone(),
@@ -299,6 +314,10 @@ impl State {
         let Some(config) = self.doc.config.clone() else {
             return;
         };
+        if self.why_no_session().is_some() {
+            // A sample's rows are not the file's: a recovery copy would misplace the marks.
+            return;
+        }
         let Some(session) = self.current_session(&recovery_path(&config)) else {
             return;
         };
@@ -321,6 +340,7 @@ impl State {
             session: recovery_of(session),
             restoring: true,
             reading: Some(reading_of(session)),
+            roles: Some(session.roles()),
         };
         self.start_load(&data, session.data.load.to_options(), then);
     }

@@ -7,6 +7,7 @@
 
 mod bench;
 pub mod cloud;
+pub mod column_facts;
 pub mod dataset;
 pub mod diagnostics;
 mod document;
@@ -19,6 +20,8 @@ pub mod marks;
 pub mod one_pass;
 pub mod pair;
 pub mod reading;
+pub mod roles;
+pub mod sample_draw;
 pub mod sessions;
 pub mod settings;
 pub mod views;
@@ -86,6 +89,8 @@ pub struct State {
     pub(crate) bench: BenchModel,
     pub(crate) map: MapModel,
     pub(crate) one_pass: Option<OnePass>,
+    /// The ID column (the other roles live where they act: the colouring, the check order).
+    pub(crate) roles: roles::Roles,
     pub(crate) status: Option<Status>,
     pub(crate) ask: Option<Ask>,
     /// Wakes the frame loop when a background job finishes.
@@ -109,6 +114,7 @@ impl State {
             bench: BenchModel::default(),
             map: MapModel::default(),
             one_pass: None,
+            roles: roles::Roles::default(),
             status: None,
             ask,
             waker: Waker::default(),
@@ -221,6 +227,9 @@ impl State {
         }
         if let Some(line) = self.one_pass.as_mut().and_then(OnePass::poll) {
             self.say(line);
+        }
+        if let Some((done, pair)) = self.one_pass.as_mut().and_then(OnePass::poll_sample) {
+            self.take_sample(done, pair);
         }
         let marks = self.history.current().clone();
         if let Some(loaded) = &self.doc.loaded {

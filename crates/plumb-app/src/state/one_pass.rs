@@ -17,6 +17,7 @@ use plumb_data::{stream_columns, StreamOptions, StreamSummary};
 use plumb_report::text::num;
 
 use super::jobs::{Job, Waker};
+use super::sample_draw::{Drawn, SampleDraw};
 use crate::density::{Bounds, Density};
 
 /// Cells across (and down) the density image.
@@ -54,6 +55,8 @@ pub struct OnePass {
     pub error: Option<String>,
     /// Counts finished results (keys the view's density image).
     pub generation: u64,
+    /// A sample of the file being drawn for the pair bench.
+    sample: Option<SampleDraw>,
 }
 
 impl OnePass {
@@ -99,6 +102,7 @@ impl OnePass {
             outcome: None,
             error: None,
             generation: 0,
+            sample: None,
         })
     }
 
@@ -116,9 +120,30 @@ impl OnePass {
         ));
     }
 
-    /// Whether a pass is running.
+    /// Whether a pass is running or a sample is being drawn.
     pub fn is_busy(&self) -> bool {
-        self.job.is_some()
+        self.job.is_some() || self.sample.is_some()
+    }
+
+    /// Starts drawing a sample of the file for the bench, with the view's pair (replacing a
+    /// draw in progress).
+    pub fn sample_with(&mut self, waker: &Waker) {
+        if let Some(old) = self.sample.take() {
+            old.cancel();
+        }
+        let pair = (self.y.clone(), self.x.clone());
+        self.sample = Some(SampleDraw::start(&self.path, pair, waker));
+    }
+
+    /// The sample being drawn.
+    pub fn sampling(&self) -> Option<&SampleDraw> {
+        self.sample.as_ref()
+    }
+
+    /// A finished sample draw, with the pair to open it with.
+    pub fn poll_sample(&mut self) -> Option<(Drawn, (String, String))> {
+        let done = self.sample.as_mut()?.poll()?;
+        self.sample.take().map(|s| (done, s.pair))
     }
 
     /// Bytes read by the running pass, and which pass it is (1 or 2).
@@ -135,10 +160,13 @@ impl OnePass {
         self.x = x;
     }
 
-    /// Stops the running pass (its result is dropped).
+    /// Stops the running pass (its result is dropped) and a sample being drawn.
     pub fn cancel(&mut self) {
         if let Some(j) = self.job.take() {
             j.cancel();
+        }
+        if let Some(s) = self.sample.take() {
+            s.cancel();
         }
     }
 

@@ -32,6 +32,7 @@ impl Workbench {
             } => s.read_unknowns(&path, &reading, sample.as_deref()),
             Action::SetOverlays(o) => s.set_overlays(o),
             Action::ColourBy(column) => s.colour_by(column),
+            Action::SetRole { column, role } => s.set_role(&column, role),
             Action::Exclude { rows, reason } => s.exclude_rows(&rows, reason.as_deref()),
             Action::PutBack(rows) => s.put_back(&rows),
             Action::RecordReason(text) => s.record_reason(&text),
@@ -48,6 +49,7 @@ impl Workbench {
                     o.cancel();
                 }
             }
+            Action::OnePassSample => s.draw_sample(),
             Action::Tell(status) => s.status = Some(status),
         }
     }

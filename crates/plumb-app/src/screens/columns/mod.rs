@@ -1,19 +1,27 @@
-//! The Columns screen: open a file (path, dialog, drop, recent list) and see its columns.
+//! The Columns screen: open a file (path, dialog, drop, recent list), see its columns (type,
+//! gaps, range, mean, SD and a small histogram), its first rows, choose y and x for the bench
+//! and give columns a role (group, row order, ID).
+
+mod preview;
+mod spark;
+mod table;
 
 use std::path::PathBuf;
 
 use eframe::egui::{self, RichText};
-use plumb_report::text::num;
 
 use crate::action::{Action, Actions};
-use crate::state::pair::FitSpec;
-use crate::state::{DialogPurpose, Loaded, Screen, State};
+use crate::state::{DialogPurpose, Loaded, State};
+
+pub use table::Picks;
 
 /// What the screen keeps between frames.
 #[derive(Debug, Default)]
 pub struct ColumnsUi {
     /// The path being typed.
     pub path_field: String,
+    /// The y and x chosen for the bench, before it opens them.
+    pub picks: Picks,
 }
 
 /// Draws the screen.
@@ -27,9 +35,13 @@ pub fn columns_ui(state: &State, own: &mut ColumnsUi, ui: &mut egui::Ui) -> Acti
         return out;
     };
     out.extend(file_facts_ui(loaded, ui));
+    own.picks.follow(state);
+    out.extend(table::pick_row_ui(state, &own.picks, ui));
+    ui.add_space(4.0);
     egui::ScrollArea::vertical().show(ui, |ui| {
-        column_table_ui(loaded, ui);
-        out.extend(next_steps_ui(loaded, ui));
+        out.extend(table::column_table_ui(state, &mut own.picks, ui));
+        ui.add_space(8.0);
+        preview::preview_ui(state, ui);
     });
     out
 }
@@ -166,49 +178,4 @@ fn choice<T: Copy + PartialEq>(
         .response
         .labelled_by(label.id);
     picked
-}
-
-fn column_table_ui(loaded: &Loaded, ui: &mut egui::Ui) {
-    egui::Grid::new("column-summary")
-        .striped(true)
-        .num_columns(5)
-        .show(ui, |ui| {
-            for h in ["column", "type", "missing", "min", "max"] {
-                ui.label(RichText::new(h).strong());
-            }
-            ui.end_row();
-            for s in &loaded.dataset.summaries {
-                ui.label(&s.name);
-                ui.label(s.kind);
-                ui.label(s.missing.to_string());
-                ui.label(s.min.map_or("—".into(), num));
-                ui.label(s.max.map_or("—".into(), num));
-                ui.end_row();
-            }
-        });
-}
-
-fn next_steps_ui(loaded: &Loaded, ui: &mut egui::Ui) -> Actions {
-    let mut out = Actions::none();
-    let numeric = &loaded.dataset.numeric;
-    if numeric.len() < 2 {
-        return out;
-    }
-    ui.add_space(8.0);
-    if ui
-        .button("Map how the columns move together")
-        .on_hover_text("The co-movement map of every numeric pair")
-        .clicked()
-    {
-        out.push(Action::Show(Screen::Map));
-    }
-    if ui
-        .button(format!("Fit {} on {}", numeric[1], numeric[0]))
-        .on_hover_text("Open the first two numeric columns on the pair bench")
-        .clicked()
-    {
-        out.push(Action::OpenPair(FitSpec::line(&numeric[1], &numeric[0])));
-        out.push(Action::Show(Screen::Bench));
-    }
-    out
 }
