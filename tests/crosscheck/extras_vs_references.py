@@ -36,7 +36,7 @@ scipy 1.14.1, statsmodels 0.14.4, pandas 2.2.3 (reads the demo files). Every fie
    diagonal of the hat matrix of W^{1/2}X (from its QR), residuals rᵢ = √wᵢeᵢ, s² = Σr²/(n − p),
    internal rᵢ/(s√(1 − hᵢᵢ)); s₍ᵢ₎ and β̂₍ᵢ₎ from brute-force weighted refits without row i;
    external rᵢ/(s₍ᵢ₎√(1 − hᵢᵢ)), Cook's D = internal²·h/(p(1 − h)), DFFITS = external·√(h/(1 − h)),
-   DFBETAS = (β̂ − β̂₍ᵢ₎)/(s₍ᵢ₎√Cⱼⱼ), C = (XᵀWX)⁻¹; flags from plumb's thresholds (2p/n, 4/n, 3).
+   DFBETAS = (β̂ − β̂₍ᵢ₎)/(s₍ᵢ₎√Cⱼⱼ), C = (XᵀWX)⁻¹; flags from plumb's thresholds (2p/n, 4/min(n, 1000), 3).
    Beside it, statsmodels OLSInfluence of OLS on the whitened model (WLS `model.wexog`,
    `model.wendog`), whose definitions are exactly these; fitted values and raw residuals eᵢ
    from statsmodels WLS.
@@ -287,7 +287,7 @@ def influence_case(plumb, data, y, x, degree=1, weights=None, rule=None):
             case.nums(mine.ravel(), ref[k].ravel(), f"influence.{k}", ref="numpy definition")
             case.nums(mine.ravel(), np.asarray(sm_ref[k]).ravel(), f"influence.{k} (statsmodels, whitened OLS)", ref="statsmodels")
         flags = [[f for f, on in (("high-leverage", ref["leverage"][i] > 2 * p / n),
-                                  ("large-cooks-distance", ref["cooks_distance"][i] > 4 / n),
+                                  ("large-cooks-distance", ref["cooks_distance"][i] > 4 / min(n, 1000)),
                                   ("large-residual", abs(ref["studentized_external"][i]) > 3)) if on] for i in range(n)]
         case.same(pick("flags"), flags, "flags")
     return check
