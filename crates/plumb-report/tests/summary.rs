@@ -72,7 +72,10 @@ fn the_page_shows_what_was_excluded_and_why() {
         "2026-12-02T09:00:00Z",
         "no reason given",
         "all exclusions together",
-        "R² (centered)",
+        "<b>R² = ",
+        "of the variation in settled_ntu around its mean",
+        "whole-model test",
+        "± standard error",
         "Association is not causation",
         "validation protocol",
         "plumb report jar.plumb -o summary.html",
@@ -144,7 +147,7 @@ fn a_kept_model_and_a_grouping_factor_reach_the_page_and_the_statistics() {
         "Reference level MB",
         "equal slopes of dose_mg_l",
         "ln(settled_ntu) =",
-        "the residual SE and the residuals are on ln(settled_ntu)",
+        "the typical miss and the residuals are on ln(settled_ntu)",
         "fit, MB",
     ] {
         assert!(

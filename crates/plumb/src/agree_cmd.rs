@@ -6,8 +6,9 @@ use std::fmt::Write;
 use plumb_core::agreement::{AgreementLimits, DifferenceScale, PassingBablok};
 use plumb_data::analysis::{agree, AgreementReport, AgreementRequest, DemingLine};
 use plumb_data::Table;
-use plumb_report::text::{fixed, num, p as pval};
+use plumb_report::text::{count, fixed, num, p_clause, plural};
 use plumb_report::wording;
+use plumb_report::wording::numbers as words;
 use serde_json::{json, Value};
 
 use crate::cli::{AgreeArgs, Format};
@@ -132,17 +133,17 @@ fn write_head(
     writeln!(out, "{}", table.source().display())?;
     writeln!(
         out,
-        "  methods    {} (new) against {} (established), {} samples; {} dropped for gaps; {} excluded by you",
+        "  methods    {} (new) against {} (established), {}; {} dropped for gaps; {} excluded by you",
         request.test,
         request.reference,
-        r.selection.rows.len(),
-        r.selection.dropped.len(),
-        r.selection.excluded.len()
+        plural(r.selection.rows.len(), "sample", "samples"),
+        count(r.selection.dropped.len()),
+        count(r.selection.excluded.len())
     )?;
     writeln!(
         out,
-        "  agreement would be a slope of 1 and an intercept of 0; {}% intervals\n",
-        r.level * 100.0
+        "  agreement would be a slope of 1 and an intercept of 0; {} intervals\n",
+        words::level(r.level)
     )
 }
 
@@ -172,10 +173,10 @@ fn write_lines(out: &mut String, r: &AgreementReport) -> std::fmt::Result {
             let l = &pb.linearity;
             writeln!(
                 out,
-                "                   linearity: largest cusum {} against {} (p {}){}",
+                "                   linearity: largest cusum {} against {} ({}){}",
                 fixed(l.statistic, 3),
                 fixed(l.bound, 3),
-                pval(l.p_value),
+                p_clause(l.p_value),
                 if l.deviates {
                     format!(". {}", wording::agreement::NOT_STRAIGHT)
                 } else {
@@ -184,9 +185,9 @@ fn write_lines(out: &mut String, r: &AgreementReport) -> std::fmt::Result {
             )?;
             writeln!(
                 out,
-                "                   Kendall τ {} (p {}){}",
+                "                   Kendall τ {} ({}){}",
                 fixed(pb.association.tau, 3),
-                pval(pb.association.p_value),
+                p_clause(pb.association.p_value),
                 if pb.association.doubtful {
                     format!(". {}", wording::agreement::NOT_RISING_TOGETHER)
                 } else {
@@ -199,14 +200,15 @@ fn write_lines(out: &mut String, r: &AgreementReport) -> std::fmt::Result {
     match &r.deming {
         Ok(d) => writeln!(
             out,
-            "  Deming (λ = {})  slope {} ({} to {}), intercept {} ({} to {}); jackknife SEs {} and {}",
-            d.fit.lambda,
+            "  Deming (λ = {})  slope {} ({} to {}), intercept {} ({} to {}); {} (jackknife) {} and {}",
+            num(d.fit.lambda),
             num(d.fit.slope),
             num(d.slope_interval.0),
             num(d.slope_interval.1),
             num(d.fit.intercept),
             num(d.intercept_interval.0),
             num(d.intercept_interval.1),
+            words::STANDARD_ERROR,
             num(d.fit.slope_se),
             num(d.fit.intercept_se)
         )?,
@@ -247,10 +249,11 @@ fn write_differences(out: &mut String, r: &AgreementReport) -> std::fmt::Result 
     if let Some(p) = &l.proportional {
         writeln!(
             out,
-            "    with the level slope {} per unit of the mean (SE {}, p {})",
+            "    with the level slope {} per unit of the mean ({} {}, {})",
             num(p.slope),
+            words::STANDARD_ERROR,
             num(p.slope_std_error),
-            pval(p.p_value)
+            p_clause(p.p_value)
         )?;
     }
     if let Some(note) = wording::agreement::proportional(l) {

@@ -9,8 +9,9 @@ use plumb_data::analysis::{
     CalibrationRequest, Checks, FitRequest, Wanted,
 };
 use plumb_data::Table;
-use plumb_report::text::{fixed, num, p as pval};
+use plumb_report::text::{count, fixed, num, p as pval, plural};
 use plumb_report::wording;
+use plumb_report::wording::numbers as words;
 use serde_json::{json, Value};
 
 use crate::cli::{CalibrateArgs, Format};
@@ -178,19 +179,19 @@ fn write_curve(
     writeln!(out, "                {}", coefs.join(", "))?;
     writeln!(
         out,
-        "  standards     {} readings from {} to {} ({} left out by you); R² {:.6}{}, σ̂ {} on {} df",
-        fit.n,
+        "  standards     {} from {} to {} ({} left out by you); R² {}{}, {} {}",
+        plural(fit.n, "reading", "readings"),
         num(r.range.0),
         num(r.range.1),
-        a.rows.selection.excluded.len(),
-        fit.r_squared,
+        count(a.rows.selection.excluded.len()),
+        num(fit.r_squared),
         if r.weighting == "none" {
             ""
         } else {
             " (weighted)"
         },
-        num(fit.residual_std_error),
-        fit.anova.df_residual
+        words::TYPICAL_MISS,
+        words::typical_miss(fit.residual_std_error, fit.anova.df_residual)
     )?;
     writeln!(out)
 }
@@ -202,22 +203,27 @@ fn write_unknowns(out: &mut String, r: &CalibrationReport, level: f64) -> std::f
             "  unknowns      none given (--unknown NAME=READINGS or --unknowns-file FILE)\n"
         );
     }
-    let pct = level * 100.0;
     writeln!(
         out,
-        "  unknowns read back ({pct}% intervals; first-order: x̂ ± t·SE; band: where the prediction band holds the reading)"
+        "  unknowns read back ({} intervals; first-order: x̂ ± t × standard error; band: where the prediction band holds the reading)",
+        words::level(level)
     )?;
     writeln!(
         out,
-        "    {:<14} {:>3} {:>12} {:>12} {:>10}   {:<27} band",
-        "sample", "m", "mean reading", "x̂", "SE", "first-order"
+        "    {:<14} {:>3} {:>12} {:>12} {:>17}   {:<27} band",
+        "sample",
+        "m",
+        "mean reading",
+        "x̂",
+        words::STANDARD_ERROR,
+        "first-order"
     )?;
     for (u, rb) in &r.unknowns {
         match rb {
             Ok(rb) => {
                 writeln!(
                     out,
-                    "    {:<14} {:>3} {:>12} {:>12} {:>10}   {:<27} {}",
+                    "    {:<14} {:>3} {:>12} {:>12} {:>17}   {:<27} {}",
                     u.name,
                     rb.replicates,
                     num(rb.reading),
@@ -263,14 +269,13 @@ fn write_limits_and_fit(out: &mut String, r: &CalibrationReport) -> std::fmt::Re
     match &r.lack_of_fit {
         Ok(l) => writeln!(
             out,
-            "  lack of fit   {} levels: lack-of-fit SS {} ({} df) against pure error {} ({} df); F = {}, p {}{}",
+            "  lack of fit   {} levels: lack-of-fit SS {} ({} df) against pure error {} ({} df); {}{}",
             l.levels,
             num(l.lack_of_fit_ss),
             l.lack_of_fit_df,
             num(l.pure_error_ss),
             l.pure_error_df,
-            fixed(l.f, 3),
-            pval(l.p_value),
+            words::f_figures(l.f, l.lack_of_fit_df, l.pure_error_df, l.p_value),
             if l.p_value < wording::CHECK_ALPHA {
                 ": the curve misses the level means by more than the replicates scatter; try another degree or look for a bad standard"
             } else {
@@ -298,7 +303,7 @@ fn write_weightings(out: &mut String, r: &CalibrationReport) -> std::fmt::Result
                 out,
                 "    {:<12} {:>10} {:>11} {:>11} {:>8} {:>9}",
                 w.label,
-                fixed(f.r_squared, 6),
+                num(f.r_squared),
                 fixed(f.sum_abs_relative_error, 2),
                 fixed(f.max_abs_relative_error, 2),
                 fixed(f.spread_ratio, 2),

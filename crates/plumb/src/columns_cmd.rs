@@ -2,6 +2,8 @@
 
 use std::fmt::Write;
 
+use plumb_report::text::{count, num, plural};
+
 use crate::cli::ColumnsArgs;
 
 pub fn run(args: &ColumnsArgs) -> anyhow::Result<String> {
@@ -9,9 +11,9 @@ pub fn run(args: &ColumnsArgs) -> anyhow::Result<String> {
     let mut out = String::new();
     writeln!(
         out,
-        "{} · {} data rows · read as {}",
+        "{} · {} · read as {}",
         table.source().display(),
-        table.n_rows(),
+        plural(table.n_rows(), "data row", "data rows"),
         table.format()
     )?;
     writeln!(out)?;
@@ -22,13 +24,13 @@ pub fn run(args: &ColumnsArgs) -> anyhow::Result<String> {
     )?;
     for c in table.columns() {
         let s = c.summary();
-        let show = |v: Option<f64>| v.map_or_else(|| "—".to_string(), |x| format!("{x:.6}"));
+        let show = |v: Option<f64>| v.map_or_else(|| "—".to_string(), num);
         writeln!(
             out,
             "  {:<24} {:<8} {:>8} {:>14} {:>14}",
             s.name,
             s.kind,
-            s.missing,
+            count(s.missing),
             show(s.min),
             show(s.max)
         )?;

@@ -6,16 +6,11 @@ use plumb_core::association::{
     correlation_matrix, Adjustment, CorrelationMatrix, MatrixSize, Method,
 };
 use plumb_data::ColumnValues;
-use plumb_report::text::p;
+use plumb_report::text::{count, p, plural, sig};
 use plumb_report::wording;
 use serde::Serialize;
 
 use crate::cli::{AdjustArg, CorrArgs, Format, MethodArg};
-
-/// |r| at or above which a pair counts as strong for the shared-trend cue; below
-/// `TREND_FADES` once the trend is removed, the cue fires. Common practice, no source.
-const STRONG: f64 = 0.7;
-const TREND_FADES: f64 = 0.3;
 
 #[derive(Serialize)]
 struct CorrJson<'a> {
@@ -159,12 +154,12 @@ fn text(
     let _ = writeln!(out, "{file}");
     let _ = writeln!(
         out,
-        "  {} pairs of {} columns, {} coefficient; p adjusted by {} across {} tests\n",
-        pairs.len(),
-        columns.len(),
+        "  {} of {} columns, {} coefficient; p adjusted by {} across {}\n",
+        plural(pairs.len(), "pair", "pairs"),
+        count(columns.len()),
         method.as_str(),
         adjust.as_str(),
-        m.n_tests
+        plural(m.n_tests, "test", "tests")
     );
     let _ = write!(
         out,
@@ -178,7 +173,7 @@ fn text(
     let mut cues = Vec::new();
     for (i, j) in pairs {
         out.push_str(&pair_line(columns, m, i, j));
-        if drifts_together(m, i, j) {
+        if m.drifts_together(i, j) {
             cues.push(wording::shared_trend(&columns[i], &columns[j]));
         }
     }
@@ -192,7 +187,7 @@ fn text(
 /// One pair's line: coefficient, p, adjusted p, n, and with a row order the coefficients of
 /// first differences and after removing the trend.
 fn pair_line(columns: &[String], m: &CorrelationMatrix, i: usize, j: usize) -> String {
-    let cell = |v: Option<f64>| v.map_or_else(|| "—".to_string(), |x| format!("{x:.3}"));
+    let cell = |v: Option<f64>| v.map_or_else(|| "—".to_string(), |x| sig(x, 3));
     let pv = |v: Option<f64>| v.map_or_else(|| "—".to_string(), p);
     let mut line = format!(
         "  {:<20} {:<20} {:>8} {:>10} {:>10} {:>6}",
@@ -201,7 +196,7 @@ fn pair_line(columns: &[String], m: &CorrelationMatrix, i: usize, j: usize) -> S
         cell(m.r[i][j]),
         pv(m.p_value[i][j]),
         pv(m.p_adjusted[i][j]),
-        m.n[i][j]
+        count(m.n[i][j])
     );
     if let (Some(diff), Some(det)) = (&m.r_differenced, &m.r_detrended) {
         let _ = write!(line, " {:>9} {:>9}", cell(diff[i][j]), cell(det[i][j]));
@@ -211,15 +206,4 @@ fn pair_line(columns: &[String], m: &CorrelationMatrix, i: usize, j: usize) -> S
     }
     line.push('\n');
     line
-}
-
-/// A strong pair whose association fades once the shared trend is removed.
-fn drifts_together(m: &CorrelationMatrix, i: usize, j: usize) -> bool {
-    let (Some(diff), Some(det)) = (&m.r_differenced, &m.r_detrended) else {
-        return false;
-    };
-    let strong = m.r[i][j].is_some_and(|r| r.abs() >= STRONG);
-    let fades = det[i][j].is_some_and(|r| r.abs() < TREND_FADES)
-        || diff[i][j].is_some_and(|r| r.abs() < TREND_FADES);
-    strong && fades
 }

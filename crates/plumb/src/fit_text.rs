@@ -1,13 +1,16 @@
-//! The readable layout of `plumb fit`: a model line, the coefficient table, fit quality,
-//! the variance split, the row account, and the cautions.
+//! The readable layout of `plumb fit`: the model and its rows, the headline (the share of
+//! variation explained, the typical miss, the whole-model test), the term table, the variance
+//! split, and the cautions. Its words are those of `plumb_report::wording::numbers`, which the
+//! workbench and the summary read too.
 
 use std::fmt::Write;
 
 use plumb_core::regression::LinearFit;
 use plumb_data::analysis::{Analysis, FitRequest, PairExtras, RobustFit};
 use plumb_data::Table;
-use plumb_report::text::{fixed, num, p as pval};
+use plumb_report::text::{count, fixed, num, p as pval, p_clause, sig};
 use plumb_report::wording;
+use plumb_report::wording::numbers::{self as words, Headline};
 
 /// Condition number above which the text output warns that the terms nearly coincide.
 /// Common practice, no source: around 1e8 half of double precision's digits are at risk.
@@ -23,29 +26,49 @@ pub fn render(
     let mut out = String::new();
     // Writing to a String cannot fail.
     let _ = write_header(&mut out, table, request, outcome);
+    let _ = write_headline(&mut out, request, outcome);
     let _ = write_coefficients(&mut out, &outcome.fit);
-    let _ = write_quality(&mut out, &outcome.fit);
     let _ = write_variance_split(&mut out, &outcome.fit);
     let _ = write_rows_and_inflation(&mut out, outcome);
     if let Some(e) = extras {
-        let _ = write_extras(&mut out, outcome, e);
+        let _ = write_extras(&mut out, request, outcome, e);
     }
     out.push_str(model);
     let _ = write_cautions(&mut out, table, outcome);
     out
 }
 
-fn write_extras(out: &mut String, o: &Analysis, e: &PairExtras) -> std::fmt::Result {
-    write_z_units(out, e)?;
+fn write_extras(
+    out: &mut String,
+    request: &FitRequest,
+    o: &Analysis,
+    e: &PairExtras,
+) -> std::fmt::Result {
+    write_z_units(out, request, o, e)?;
     write_overlays(out, e)?;
     write_ladder_and_cues(out, o, e)?;
     writeln!(out)
 }
 
 /// The pair in z-units and the fit read at one x.
-fn write_z_units(out: &mut String, e: &PairExtras) -> std::fmt::Result {
+fn write_z_units(
+    out: &mut String,
+    request: &FitRequest,
+    o: &Analysis,
+    e: &PairExtras,
+) -> std::fmt::Result {
     if let Some(z) = &e.z_view {
-        writeln!(out, "  in z-units           slope {} (= r), slope² {} (= R² of the line); a unit z SDs out on x is expected {}·z SDs out on y", fixed(z.slope, 4), fixed(z.slope_squared, 4), fixed(z.slope, 3))?;
+        // The slope in z-units is r only for the plain, unweighted straight line.
+        let is_the_line = o.fit.coefficients.len() == 2
+            && request.intercept
+            && request.weights.is_none()
+            && request.weight_rule.is_none();
+        let x = request.x.first().map_or("x", String::as_str);
+        let y = o.response_label(&request.y);
+        for (k, line) in words::z_units(z, x, &y, is_the_line).iter().enumerate() {
+            let label = if k == 0 { "in z-units" } else { "" };
+            writeln!(out, "  {label:<21}{line}")?;
+        }
     }
     if let Some(a) = &e.read_at {
         let p = a.point;
@@ -59,7 +82,7 @@ fn write_z_units(out: &mut String, e: &PairExtras) -> std::fmt::Result {
             num(p.predict_low),
             num(p.predict_high)
         )?;
-        writeln!(out, "                       x is {} SDs from its mean; expected {} SDs on y (toward the mean by {})", fixed(a.z_x, 3), fixed(a.expected_z_y, 3), fixed(a.z_x.abs() - a.expected_z_y.abs(), 3))?;
+        writeln!(out, "                       x is {} SD from its mean; expected {} SD on y (toward the mean by {})", sig(a.z_x, 3), sig(a.expected_z_y, 3), sig(a.z_x.abs() - a.expected_z_y.abs(), 3))?;
     }
     Ok(())
 }
@@ -77,7 +100,7 @@ fn write_overlays(out: &mut String, e: &PairExtras) -> std::fmt::Result {
         )?,
         Some(Ok(RobustFit::Deming(d))) => writeln!(
             out,
-            "  Deming line (λ = {})  slope {} ± {} (jackknife SE), intercept {} ± {}",
+            "  Deming line (λ = {})  slope {} ± {}, intercept {} ± {} (± jackknife standard error)",
             d.lambda,
             num(d.slope),
             num(d.slope_se),
@@ -88,7 +111,12 @@ fn write_overlays(out: &mut String, e: &PairExtras) -> std::fmt::Result {
         None => {}
     }
     match &e.loess {
-        Some(Ok(l)) => writeln!(out, "  LOESS (span {})     R² {:.6}", l.span, l.r_squared)?,
+        Some(Ok(l)) => writeln!(
+            out,
+            "  LOESS (span {})     R² {}",
+            num(l.span),
+            num(l.r_squared)
+        )?,
         Some(Err(why)) => writeln!(out, "  LOESS                {why}")?,
         None => {}
     }
@@ -105,11 +133,11 @@ fn write_ladder_and_cues(out: &mut String, o: &Analysis, e: &PairExtras) -> std:
             .filter_map(|d| {
                 d.versus_previous.map(|c| {
                     format!(
-                        "degree {}: ΔR² {:+.4}, partial F {} (p {})",
+                        "degree {}: R² up by {}, partial F {} ({})",
                         d.degree,
-                        c.delta_r_squared,
-                        fixed(c.f_statistic, 3),
-                        pval(c.p_value)
+                        sig(c.delta_r_squared, 3),
+                        sig(c.f_statistic, 4),
+                        p_clause(c.p_value)
                     )
                 })
             })
@@ -151,10 +179,10 @@ fn write_header(
     writeln!(
         out,
         "  rows    {} used of {}; {} dropped for gaps; {} excluded by you{}",
-        fit.n,
-        table.n_rows(),
-        sel.dropped.len(),
-        sel.excluded.len(),
+        count(fit.n),
+        count(table.n_rows()),
+        count(sel.dropped.len()),
+        count(sel.excluded.len()),
         if sel.excluded.is_empty() {
             String::new()
         } else {
@@ -164,64 +192,56 @@ fn write_header(
     writeln!(out)
 }
 
-/// The coefficient table.
-fn write_coefficients(out: &mut String, fit: &LinearFit) -> std::fmt::Result {
-    let pct = format!("{}% interval", fit.level * 100.0);
-    writeln!(
-        out,
-        "  {:<18} {:>14} {:>12} {:>9} {:>11}   {:<29} {:>9}",
-        "term", "estimate", "std. error", "t", "p", pct, "z-units"
-    )?;
-    for c in &fit.coefficients {
-        writeln!(
-            out,
-            "  {:<18} {:>14} {:>12} {:>9} {:>11}   [{:>12}, {:>12}] {:>9}",
-            c.term,
-            num(c.estimate),
-            num(c.std_error),
-            fixed(c.t, 3),
-            pval(c.p_value),
-            num(c.ci_low),
-            num(c.ci_high),
-            c.standardized.map_or_else(|| "—".into(), |v| fixed(v, 4)),
-        )?;
-    }
-    writeln!(out)
-}
-
-/// R², adjusted R², σ̂, the overall F and the information criteria.
-fn write_quality(out: &mut String, fit: &LinearFit) -> std::fmt::Result {
-    writeln!(out, "  how well it fits")?;
-    writeln!(
-        out,
-        "    R² ({})          {:.6}",
-        fit.r_squared_kind.as_str(),
-        fit.r_squared
-    )?;
-    writeln!(out, "    adjusted R²           {:.6}", fit.adj_r_squared)?;
-    writeln!(
-        out,
-        "    scatter about fit σ̂   {}  ({} df)",
-        num(fit.residual_std_error),
-        fit.anova.df_residual
-    )?;
-    if let (Some(f), Some(p)) = (fit.anova.f_statistic, fit.anova.f_p_value) {
-        writeln!(
-            out,
-            "    overall F             {}  on {} and {} df, p {}",
-            fixed(f, 4),
-            fit.anova.df_model,
-            fit.anova.df_residual,
-            pval(p)
-        )?;
+/// R² in a sentence, then adjusted R², the typical miss and the whole-model test, and the
+/// information criteria.
+fn write_headline(out: &mut String, request: &FitRequest, o: &Analysis) -> std::fmt::Result {
+    let fit = &o.fit;
+    let label = o.response_label(&request.y);
+    let weighted = request.weights.is_some() || request.weight_rule.is_some();
+    let kinds = words::r_squared_kinds(&label, &request.y, weighted);
+    let h = Headline::of_fit(fit, &label, kinds);
+    writeln!(out, "  {}: {}", h.r_squared(), h.share())?;
+    for line in h.lines() {
+        writeln!(out, "    {:<20}{}", line.label, line.figures)?;
     }
     writeln!(
         out,
-        "    AIC {}   BIC {}   log-likelihood {}",
+        "    {:<20}AIC {}, BIC {}, log-likelihood {}",
+        "to compare models",
         fixed(fit.aic, 3),
         fixed(fit.bic, 3),
         fixed(fit.log_likelihood, 3)
     )?;
+    writeln!(out)
+}
+
+/// The term table.
+fn write_coefficients(out: &mut String, fit: &LinearFit) -> std::fmt::Result {
+    let interval = words::interval(fit.level);
+    writeln!(
+        out,
+        "  {:<18} {:>14} {:>17} {:>9} {:>10}   {:<29} {:>9}",
+        "term",
+        words::VALUE,
+        words::STANDARD_ERROR,
+        "t",
+        "p",
+        interval,
+        "z-units"
+    )?;
+    for c in &fit.coefficients {
+        writeln!(
+            out,
+            "  {:<18} {:>14} {:>17} {:>9} {:>10}   {:<29} {:>9}",
+            c.term,
+            num(c.estimate),
+            num(c.std_error),
+            sig(c.t, 4),
+            pval(c.p_value),
+            words::interval_ends(c.ci_low, c.ci_high, 6),
+            c.standardized.map_or_else(|| "—".into(), |v| sig(v, 4)),
+        )?;
+    }
     writeln!(out)
 }
 
@@ -246,7 +266,11 @@ fn write_variance_split(out: &mut String, fit: &LinearFit) -> std::fmt::Result {
         a.df_residual,
         num(a.ms_residual)
     )?;
-    let total = format!("total ({})", fit.r_squared_kind.as_str());
+    let total = if fit.r_squared_kind == plumb_core::regression::RSquaredKind::Centered {
+        "total, around mean"
+    } else {
+        "total, around zero"
+    };
     writeln!(
         out,
         "    {total:<20}{:>16}  {:>4}",
@@ -272,7 +296,7 @@ fn write_rows_and_inflation(out: &mut String, o: &Analysis) -> std::fmt::Result 
             "  dropped rows: {}{}",
             listed.join(", "),
             if more > 0 {
-                format!(" and {more} more")
+                format!(" and {} more", count(more))
             } else {
                 String::new()
             }
@@ -284,7 +308,7 @@ fn write_rows_and_inflation(out: &mut String, o: &Analysis) -> std::fmt::Result 
             .coefficients
             .iter()
             .zip(vif)
-            .filter_map(|(c, v)| v.map(|v| format!("{} {}", c.term, fixed(v, 2))))
+            .filter_map(|(c, v)| v.map(|v| format!("{} {}", c.term, sig(v, 3))))
             .collect();
         writeln!(out, "\n  variance inflation    {}", parts.join(", "))?;
     }
@@ -294,7 +318,11 @@ fn write_rows_and_inflation(out: &mut String, o: &Analysis) -> std::fmt::Result 
 fn write_cautions(out: &mut String, table: &Table, o: &Analysis) -> std::fmt::Result {
     let (fit, sel) = (&o.fit, &o.rows.selection);
     if fit.condition_number > CONDITION_WARNING {
-        writeln!(out, "  warning: the terms nearly coincide (condition number {:.2e}); estimates may be unstable", fit.condition_number)?;
+        writeln!(
+            out,
+            "  warning: the terms nearly coincide (condition number {}); estimates may be unstable",
+            sig(fit.condition_number, 3)
+        )?;
     }
     if !sel.excluded.is_empty() {
         writeln!(

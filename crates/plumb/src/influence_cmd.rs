@@ -3,9 +3,11 @@
 use std::fmt::Write;
 
 use plumb_core::regression::{
-    CaseInfluence, COOKS_FLAG_NUMERATOR, LEVERAGE_FLAG_FACTOR, STUDENTIZED_FLAG,
+    cooks_flag_cut, CaseInfluence, LEVERAGE_FLAG_FACTOR, STUDENTIZED_FLAG,
 };
 use plumb_data::analysis::{analyze, Wanted};
+use plumb_report::text::{count, sig};
+use plumb_report::wording::influence::{flag_key_lines, flag_letters, FLAG_SOURCE};
 use serde::Serialize;
 
 use crate::cli::{Format, InfluenceArgs};
@@ -43,6 +45,8 @@ struct RowJson<'a> {
     dffits: f64,
     dfbetas: &'a [f64],
     flags: Vec<&'static str>,
+    #[serde(skip)]
+    letters: String,
 }
 
 pub fn run(args: &InfluenceArgs) -> anyhow::Result<String> {
@@ -62,7 +66,7 @@ pub fn run(args: &InfluenceArgs) -> anyhow::Result<String> {
     let p = outcome.fit.coefficients.len();
     let thresholds = Thresholds {
         leverage: LEVERAGE_FLAG_FACTOR * p as f64 / n as f64,
-        cooks_distance: COOKS_FLAG_NUMERATOR / n as f64,
+        cooks_distance: cooks_flag_cut(n),
         studentized_external: STUDENTIZED_FLAG,
         source: "common practice, no source",
     };
@@ -91,7 +95,7 @@ pub fn run(args: &InfluenceArgs) -> anyhow::Result<String> {
             };
             serde_json::to_string_pretty(&json)? + "\n"
         }
-        Format::Text => text(&table.source().display().to_string(), &thresholds, rows),
+        Format::Text => text(&table.source().display().to_string(), n, p, rows),
     })
 }
 
@@ -107,22 +111,20 @@ fn row_json(row: usize, c: &CaseInfluence) -> RowJson<'_> {
         dffits: c.dffits,
         dfbetas: &c.dfbetas,
         flags: c.flags.iter().map(|f| f.as_str()).collect(),
+        letters: flag_letters(&c.flags),
     }
 }
 
-fn text(file: &str, t: &Thresholds, mut rows: Vec<RowJson>) -> String {
+fn text(file: &str, n: usize, p: usize, mut rows: Vec<RowJson>) -> String {
     rows.sort_by(|a, b| b.cooks_distance.total_cmp(&a.cooks_distance));
     let flagged = rows.iter().filter(|r| !r.flags.is_empty()).count();
     let mut out = String::new();
     let _ = writeln!(out, "{file}");
     let _ = writeln!(
         out,
-        "  {} rows, {flagged} crossing a threshold (leverage > {:.3}, Cook's distance > {:.3}, |studentized| > {}; {})\n",
-        rows.len(),
-        t.leverage,
-        t.cooks_distance,
-        t.studentized_external,
-        t.source
+        "  {} used, {} flagged; sorted by Cook's distance\n",
+        count(rows.len()),
+        count(flagged)
     );
     let _ = writeln!(
         out,
@@ -137,27 +139,19 @@ fn text(file: &str, t: &Thresholds, mut rows: Vec<RowJson>) -> String {
             out,
             "  {:>6} {:>12} {:>12} {:>9} {:>12} {:>10} {:>9}   {}",
             r.row,
-            shown(r.fitted, 5),
-            shown(r.residual, 5),
-            shown(r.leverage, 4),
-            shown(r.studentized_external, 3),
-            shown(r.cooks_distance, 4),
-            shown(r.dffits, 3),
-            r.flags.join(", ")
+            sig(r.fitted, 5),
+            sig(r.residual, 5),
+            sig(r.leverage, 4),
+            sig(r.studentized_external, 4),
+            sig(r.cooks_distance, 4),
+            sig(r.dffits, 4),
+            r.letters
         );
     }
-    let _ = writeln!(
-        out,
-        "\n  rows sorted by Cook's distance; every exclusion needs a documented reason."
-    );
-    out
-}
-
-/// A value, or "—" where it is undefined (a row of leverage 1, or too few rows to leave one out).
-fn shown(v: f64, decimals: usize) -> String {
-    if v.is_finite() {
-        format!("{v:.decimals$}")
-    } else {
-        "—".into()
+    let _ = writeln!(out, "\n  flags ({FLAG_SOURCE}):");
+    for line in flag_key_lines(n, p) {
+        let _ = writeln!(out, "    {line}");
     }
+    let _ = writeln!(out, "\n  {}", plumb_report::wording::REASON_NEEDED);
+    out
 }

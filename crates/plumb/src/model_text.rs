@@ -4,8 +4,9 @@
 use std::fmt::Write;
 
 use plumb_data::analysis::{Analysis, Comparison, FitFigures, FitRequest};
-use plumb_report::text::{fixed, num};
+use plumb_report::text::{count, fixed, num};
 use plumb_report::wording;
+use plumb_report::wording::numbers as words;
 
 /// The lines, or nothing for a model of columns as they are.
 pub fn render(outcome: &Analysis, request: &FitRequest, comparison: Option<&Comparison>) -> String {
@@ -50,19 +51,21 @@ fn groups(out: &mut String, o: &Analysis) -> std::fmt::Result {
     )?;
     writeln!(
         out,
-        "    {:<16} {:>6} {:>14} {:>12}   interval",
-        "level", "rows", "slope", "SE"
+        "    {:<16} {:>6} {:>14} {:>17}   interval",
+        "level",
+        "rows",
+        "slope",
+        words::STANDARD_ERROR
     )?;
     for r in &g.table {
         writeln!(
             out,
-            "    {:<16} {:>6} {:>14} {:>12}   [{}, {}]",
+            "    {:<16} {:>6} {:>14} {:>17}   {}",
             r.level,
-            r.n,
+            count(r.n),
             num(r.slope.estimate),
             num(r.slope.std_error),
-            num(r.slope.ci_low),
-            num(r.slope.ci_high)
+            words::interval_ends(r.slope.ci_low, r.slope.ci_high, 6)
         )?;
     }
     writeln!(out)
@@ -72,12 +75,13 @@ fn compared(out: &mut String, c: &Comparison) -> std::fmt::Result {
     writeln!(out, "  beside another model ({})", c.note)?;
     let row = |name: &str, f: &FitFigures| {
         format!(
-            "    {name:<6} {} = {}\n           n {}  R² {}  adjusted R² {}  σ̂ {}  AIC {}  BIC {}",
+            "    {name:<6} {} = {}\n           rows {}  R² {}  adjusted R² {}  {} ± {}  AIC {}  BIC {}",
             f.response,
             f.terms.join(" + "),
-            f.n,
-            fixed(f.r_squared, 6),
-            fixed(f.adj_r_squared, 6),
+            count(f.n),
+            num(f.r_squared),
+            num(f.adj_r_squared),
+            words::TYPICAL_MISS,
             num(f.residual_std_error),
             fixed(f.aic, 3),
             fixed(f.bic, 3)

@@ -12,8 +12,9 @@ use plumb_core::regression::{
     line_from_moments, residual_sum_of_squares, LineSummary, RESIDUAL_PASS_BELOW,
 };
 use plumb_data::{stream_columns, StreamOptions, StreamSummary};
-use plumb_report::text::{num, p};
+use plumb_report::text::{count, num, p, sig};
 use plumb_report::wording;
+use plumb_report::wording::numbers::{self as words, Headline};
 use serde::Serialize;
 
 use crate::cli::{Format, StreamArgs};
@@ -56,7 +57,7 @@ fn text(args: &StreamArgs, s: &StreamSummary, line: &LineSummary) -> anyhow::Res
         out,
         "{}  (read in one pass, {} bytes)",
         args.load.data.display(),
-        s.bytes
+        count(usize::try_from(s.bytes).unwrap_or(usize::MAX))
     )?;
     writeln!(
         out,
@@ -66,17 +67,31 @@ fn text(args: &StreamArgs, s: &StreamSummary, line: &LineSummary) -> anyhow::Res
     writeln!(
         out,
         "  rows    {} used of {}; {} dropped for gaps{}",
-        line.n,
-        s.rows,
-        s.dropped_count,
+        count(usize::try_from(line.n).unwrap_or(usize::MAX)),
+        count(s.rows),
+        count(s.dropped_count),
         dropped_list(s)
     )?;
     writeln!(out)?;
-    let pct = format!("{}% interval", line.level * 100.0);
+    let h = Headline::of_line(line, &args.y);
+    writeln!(out, "  {}: {}", h.r_squared(), h.share())?;
+    for l in h.lines() {
+        writeln!(out, "    {:<20}{}", l.label, l.figures)?;
+    }
+    writeln!(out, "    {:<20}{}", "Pearson r", num(line.r))?;
+    if line.residual_pass {
+        writeln!(out, "    {:<20}residuals summed in a second pass", "")?;
+    }
+    writeln!(out)?;
     writeln!(
         out,
-        "  {:<14} {:>14} {:>12} {:>9} {:>11}   {:<29}",
-        "term", "estimate", "std. error", "t", "p", pct
+        "  {:<14} {:>14} {:>17} {:>9} {:>10}   {:<29}",
+        "term",
+        words::VALUE,
+        words::STANDARD_ERROR,
+        "t",
+        "p",
+        words::interval(line.level)
     )?;
     for (name, c) in [
         ("a (intercept)", &line.intercept),
@@ -84,31 +99,16 @@ fn text(args: &StreamArgs, s: &StreamSummary, line: &LineSummary) -> anyhow::Res
     ] {
         writeln!(
             out,
-            "  {:<14} {:>14} {:>12} {:>9.3} {:>11}   [{:>12}, {:>12}]",
+            "  {:<14} {:>14} {:>17} {:>9} {:>10}   {:<29}",
             name,
             num(c.estimate),
             num(c.std_error),
-            c.t,
+            sig(c.t, 4),
             p(c.p_value),
-            num(c.ci_low),
-            num(c.ci_high)
+            words::interval_ends(c.ci_low, c.ci_high, 6)
         )?;
     }
     writeln!(out)?;
-    writeln!(out, "    R² (centered)         {:.6}", line.r_squared)?;
-    writeln!(out, "    adjusted R²           {:.6}", line.adj_r_squared)?;
-    writeln!(out, "    Pearson r             {:.6}", line.r)?;
-    writeln!(
-        out,
-        "    scatter about line σ̂  {}  ({} df){}",
-        num(line.residual_std_error),
-        line.anova.df_residual,
-        if line.residual_pass {
-            "; residuals summed in a second pass"
-        } else {
-            ""
-        }
-    )?;
     writeln!(
         out,
         "    {} from {} to {}; {} from {} to {}",
@@ -136,7 +136,7 @@ fn dropped_list(s: &StreamSummary) -> String {
         .map(|d| format!("{} ({} {})", d.row, d.column, d.reason.as_str()))
         .collect();
     let more = if s.dropped_count > s.dropped.len() {
-        format!(", and {} more", s.dropped_count - s.dropped.len())
+        format!(", and {} more", count(s.dropped_count - s.dropped.len()))
     } else {
         String::new()
     };

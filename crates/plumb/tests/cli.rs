@@ -160,7 +160,12 @@ mod contract {
         ]);
         assert!(out.status.success(), "{}", stderr(&out));
         let text = String::from_utf8_lossy(&out.stdout);
-        assert!(text.contains("R² (uncentered)"), "{text}");
+        assert!(text.contains("R² = "), "{text}");
+        assert!(text.contains("(uncentred, no intercept)"), "{text}");
+        assert!(
+            text.contains("variation in absorbance around zero"),
+            "{text}"
+        );
         assert!(text.contains("Association is not causation"), "{text}");
     }
 }

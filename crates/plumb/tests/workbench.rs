@@ -435,12 +435,15 @@ fn a_predictor_a_factor_a_comparison_and_a_log_scale_are_built_by_clicking() {
         &[&full[..], &["--compare-without", "raw_ntu"]].concat(),
     );
     let f = &cli["comparison"]["partial_f"];
+    let df = |k: &str| usize::try_from(f[k].as_u64().expect("df")).expect("small");
     let expected = format!(
-        "partial F: F {} on {} and {} df, p {}",
-        plumb_report::text::fixed(f["f_statistic"].as_f64().expect("F"), 4),
-        f["df_num"],
-        f["df_den"],
-        plumb_report::text::p(f["p_value"].as_f64().expect("p"))
+        "partial F: {}",
+        plumb_report::wording::numbers::f_figures(
+            f["f_statistic"].as_f64().expect("F"),
+            df("df_num"),
+            df("df_den"),
+            f["p_value"].as_f64().expect("p")
+        )
     );
     assert!(
         h.query_by_label(&expected).is_some(),

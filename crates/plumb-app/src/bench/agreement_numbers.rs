@@ -4,8 +4,9 @@
 use eframe::egui::{self, RichText};
 use plumb_core::agreement::AgreementLimits;
 use plumb_data::analysis::AgreementReport;
-use plumb_report::text::{fixed, num, p};
+use plumb_report::text::{fixed, num, p_clause};
 use plumb_report::wording;
+use plumb_report::wording::numbers as words;
 
 use super::Scene;
 use crate::action::{Action, Actions};
@@ -102,10 +103,10 @@ fn lines_ui(r: &AgreementReport, ui: &mut egui::Ui) {
             ui.label(wording::agreement::verdict(pb));
             let l = &pb.linearity;
             let lin = format!(
-                "linearity: largest cusum {} against {} (p {})",
+                "linearity: largest cusum {} against {} ({})",
                 fixed(l.statistic, 3),
                 fixed(l.bound, 3),
-                p(l.p_value)
+                p_clause(l.p_value)
             );
             if l.deviates {
                 ui.colored_label(warn, lin);
@@ -114,9 +115,9 @@ fn lines_ui(r: &AgreementReport, ui: &mut egui::Ui) {
                 ui.label(lin);
             }
             let tau = format!(
-                "Kendall τ {} (p {})",
+                "Kendall τ {} ({})",
                 fixed(pb.association.tau, 3),
-                p(pb.association.p_value)
+                p_clause(pb.association.p_value)
             );
             if pb.association.doubtful {
                 ui.colored_label(warn, tau);
@@ -131,7 +132,7 @@ fn lines_ui(r: &AgreementReport, ui: &mut egui::Ui) {
     }
     match &r.deming {
         Ok(d) => {
-            ui.label(RichText::new(format!("Deming (λ = {})", d.fit.lambda)).strong());
+            ui.label(RichText::new(format!("Deming (λ = {})", num(d.fit.lambda))).strong());
             ui.label(format!(
                 "slope {} ({} to {}), intercept {} ({} to {})",
                 num(d.fit.slope),
@@ -150,14 +151,14 @@ fn lines_ui(r: &AgreementReport, ui: &mut egui::Ui) {
 }
 
 fn differences_ui(l: &AgreementLimits, ui: &mut egui::Ui) {
-    let pct = (l.confidence * 100.0).round();
-    ui.label(RichText::new(format!("Differences (new − established), {pct}% intervals")).strong());
+    let pct = words::level(l.confidence);
+    ui.label(RichText::new(format!("Differences (new − established), {pct} intervals")).strong());
     ui.label(
         RichText::new(format!("bias {}   limits {} and {}", num(l.bias), num(l.lower), num(l.upper)))
             .size(16.0),
     )
     .on_hover_text(format!(
-        "bias: the mean difference; limits: bias ± {}·SD, where about {}% of differences should fall",
+        "bias: the mean difference; limits: bias ± {}·SD, where about {} of differences should fall",
         fixed(l.multiplier, 3),
         pct
     ));
@@ -173,9 +174,9 @@ fn differences_ui(l: &AgreementLimits, ui: &mut egui::Ui) {
     ));
     if let Some(prop) = &l.proportional {
         ui.label(format!(
-            "slope of the differences on the level {} (p {})",
+            "slope of the differences on the level {} ({})",
             num(prop.slope),
-            p(prop.p_value)
+            p_clause(prop.p_value)
         ));
     }
     if let Some(note) = wording::agreement::proportional(l) {

@@ -5,8 +5,9 @@ use eframe::egui::{self, RichText};
 use plumb_core::calibration::Interval;
 use plumb_core::calibration::SigmaSource;
 use plumb_data::analysis::{parse_unknowns, CalibrationReport};
-use plumb_report::text::{fixed, num, p, sig};
+use plumb_report::text::{fixed, num, p, plural, sig};
 use plumb_report::wording;
+use plumb_report::wording::numbers as words;
 
 use super::{BenchUi, Scene};
 use crate::action::{Action, Actions};
@@ -89,7 +90,7 @@ fn unknowns_table_ui(ui: &mut egui::Ui, r: &CalibrationReport, level: f64, x: &s
     }
     let pct = (level * 100.0).round();
     ui.label(RichText::new(format!("Unknowns read back ({pct}% intervals)")).strong())
-        .on_hover_text("The interval holds the concentrations whose prediction band takes in the mean reading (Fieller's interval for a line); it may be lopsided or unbounded. Hover a row for the replicates, the mean reading, the standard error and the first-order interval x̂ ± t·SE.");
+        .on_hover_text("The interval holds the concentrations whose prediction band takes in the mean reading (Fieller's interval for a line); it may be lopsided or unbounded. Hover a row for the replicates, the mean reading, the standard error and the first-order interval x̂ ± t × standard error.");
     let warn = ui.visuals().warn_fg_color;
     let limits = r.limits.as_ref().ok();
     egui::Grid::new("unknowns").striped(true).show(ui, |ui| {
@@ -102,9 +103,10 @@ fn unknowns_table_ui(ui: &mut egui::Ui, r: &CalibrationReport, level: f64, x: &s
             match rb {
                 Ok(rb) => {
                     let detail = format!(
-                        "{} reading(s), mean {}; SE {}; first-order {} to {}",
-                        rb.replicates,
+                        "{}, mean {}; {} {}; first-order {} to {}",
+                        plural(rb.replicates, "reading", "readings"),
                         num(rb.reading),
+                        words::STANDARD_ERROR,
                         num(rb.std_error),
                         num(rb.approximate.0),
                         num(rb.approximate.1)
@@ -264,12 +266,9 @@ fn lack_of_fit_ui(r: &CalibrationReport, ui: &mut egui::Ui) {
     match &r.lack_of_fit {
         Ok(l) => {
             let text = format!(
-                "{} levels: F = {} ({} and {} df), p {}",
+                "{} levels: {}",
                 l.levels,
-                fixed(l.f, 3),
-                l.lack_of_fit_df,
-                l.pure_error_df,
-                p(l.p_value)
+                words::f_figures(l.f, l.lack_of_fit_df, l.pure_error_df, l.p_value)
             );
             if l.p_value < wording::CHECK_ALPHA {
                 ui.colored_label(ui.visuals().warn_fg_color, text);
@@ -302,7 +301,7 @@ fn weightings_ui(scene: &Scene<'_>, r: &CalibrationReport, ui: &mut egui::Ui) ->
             ui.label(&w.label);
             match &w.outcome {
                 Ok(f) => {
-                    ui.label(fixed(f.r_squared, 5));
+                    ui.label(num(f.r_squared));
                     ui.label(fixed(f.sum_abs_relative_error, 1));
                     ui.label(fixed(f.spread_ratio, 2));
                     ui.label(f.spread_p.map_or_else(|| "—".into(), p));

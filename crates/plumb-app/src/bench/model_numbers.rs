@@ -4,8 +4,9 @@
 
 use eframe::egui::{self, RichText};
 use plumb_data::analysis::{Comparison, FitFigures, GroupTests, POWER_STEP_P};
-use plumb_report::text::{fixed, num, sig};
+use plumb_report::text::{count, fixed, num};
 use plumb_report::wording;
+use plumb_report::wording::numbers as words;
 
 use super::Scene;
 use crate::action::{Action, Actions};
@@ -37,20 +38,16 @@ pub fn groups_ui(ui: &mut egui::Ui, g: &GroupTests) {
     ui.label(format!("one common line: {}", wording::f_test(&g.common_line)))
         .on_hover_text("One line for every group against a line per group; a small p says the groups need lines of their own");
     egui::Grid::new("group-table").striped(true).show(ui, |ui| {
-        for h in ["level", "rows", "slope", "SE", "interval"] {
+        for h in ["level", "rows", "slope", words::STANDARD_ERROR, "interval"] {
             ui.label(RichText::new(h).strong());
         }
         ui.end_row();
         for r in &g.table {
             ui.label(&r.level);
-            ui.label(r.n.to_string());
+            ui.label(count(r.n));
             ui.label(num(r.slope.estimate));
             ui.label(num(r.slope.std_error));
-            ui.label(format!(
-                "{} to {}",
-                sig(r.slope.ci_low, 4),
-                sig(r.slope.ci_high, 4)
-            ));
+            ui.label(words::interval_ends(r.slope.ci_low, r.slope.ci_high, 4));
             ui.end_row();
         }
     });
@@ -99,10 +96,12 @@ type Figure = fn(&FitFigures) -> String;
 
 fn figures_ui(ui: &mut egui::Ui, c: &Comparison) {
     let rows: [(&str, Figure); 6] = [
-        ("rows", |f| f.n.to_string()),
-        ("R²", |f| fixed(f.r_squared, 4)),
-        ("adjusted R²", |f| fixed(f.adj_r_squared, 4)),
-        ("residual SE", |f| num(f.residual_std_error)),
+        ("rows", |f| count(f.n)),
+        ("R²", |f| num(f.r_squared)),
+        ("adjusted R²", |f| num(f.adj_r_squared)),
+        (words::TYPICAL_MISS, |f| {
+            format!("± {}", num(f.residual_std_error))
+        }),
         ("AIC", |f| fixed(f.aic, 2)),
         ("BIC", |f| fixed(f.bic, 2)),
     ];
@@ -122,7 +121,7 @@ fn figures_ui(ui: &mut egui::Ui, c: &Comparison) {
         });
     if c.kept.response != c.current.response {
         ui.weak(format!(
-            "R² and the residual SE are on {} (kept) and {} (current): not comparable",
+            "R² and the typical miss are on {} (kept) and {} (current): not comparable",
             c.kept.response, c.current.response
         ));
     }

@@ -1,10 +1,14 @@
-//! The numbers panel: the live model table, R² and its companions, the z-units view, the cues,
-//! and the influence table; all copyable as text or CSV.
+//! The numbers panel: the headline (R², the share of variation it stands for, the typical miss,
+//! the whole-model test), the term table, the z-units view, the cues, and the influence table
+//! with its key; the model copyable as text or CSV. Its words are `wording::numbers`, shared
+//! with `plumb fit` and the summary.
 
 use eframe::egui::{self, RichText};
-use plumb_core::regression::{InfluenceFlag, LiveSummary};
-use plumb_report::text::{num, p, sig};
+use plumb_core::regression::LiveSummary;
+use plumb_report::text::{count, num, p, p_clause, sig};
 use plumb_report::wording;
+use plumb_report::wording::influence::{flag_key, flag_letter, flag_letters, FLAG_SOURCE};
+use plumb_report::wording::numbers::{self as words, Headline};
 
 use super::{model_numbers, BenchUi, Scene};
 use crate::action::{Action, Actions};
@@ -28,27 +32,24 @@ pub enum SortKey {
 /// Rows listed in the influence table.
 const INFLUENCE_ROWS: usize = 25;
 
-/// The headline line for tests and the clipboard: `R² = …`, with the scale it is on when the
-/// response is transformed, and whether it is weighted or uncentred.
-pub fn r_squared_line(pair: &PairRows, s: &LiveSummary) -> String {
-    let y = &pair.spec.y;
-    let scale = pair.model.response_transform.label(y);
-    let mut kinds = Vec::new();
-    if scale != *y {
-        kinds.push(format!("on {scale}"));
+/// The headline figures of the live fit: R² with its kinds (the scale it is on when the
+/// response is transformed, weighted, uncentred), adjusted R², the typical miss, the
+/// whole-model test.
+pub fn headline<'a>(pair: &PairRows, s: &LiveSummary, response: &'a str) -> Headline<'a> {
+    let weighted = pair.spec.weights.is_some() || pair.spec.weight_rule.is_some();
+    let p = pair.terms.len();
+    let df_model = p.saturating_sub(usize::from(pair.spec.intercept));
+    Headline {
+        response,
+        centred: pair.spec.intercept,
+        kinds: words::r_squared_kinds(response, &pair.spec.y, weighted),
+        r_squared: s.r_squared,
+        adj_r_squared: s.adj_r_squared,
+        terms: p,
+        sigma: s.residual_std_error,
+        df_residual: s.n.saturating_sub(p),
+        f_test: s.f_test.map(|(f, fp)| (f, df_model, fp)),
     }
-    if pair.spec.weights.is_some() || pair.spec.weight_rule.is_some() {
-        kinds.push("weighted".to_string());
-    }
-    if !pair.spec.intercept {
-        kinds.push("uncentred, no intercept".to_string());
-    }
-    let kind = if kinds.is_empty() {
-        String::new()
-    } else {
-        format!(" ({})", kinds.join("; "))
-    };
-    format!("R² = {}{kind}", num(s.r_squared))
 }
 
 /// The model table as text (`csv = false`) or CSV.
@@ -78,26 +79,31 @@ pub fn model_text(pair: &PairRows, s: &LiveSummary, csv: bool, hypothetical: boo
             s.n
         ));
     } else {
-        out.push_str(&format!("{}, n = {}\n", pair.spec.describe(), s.n));
+        out.push_str(&format!(
+            "{}, {}\n",
+            pair.spec.describe(),
+            plumb_report::text::plural(s.n, "row", "rows")
+        ));
         if hypothetical {
             out.push_str("WHAT-IF: some points are moved; these numbers are hypothetical\n");
         }
+        let response = pair.model.response_transform.label(&pair.spec.y);
+        let h = headline(pair, s, &response);
+        out.push_str(&format!("{}: {}\n", h.r_squared(), h.share()));
+        for line in h.lines() {
+            out.push_str(&format!("{}: {}\n", line.label, line.figures));
+        }
+        let interval = words::interval(pair.spec.level);
         for (j, t) in pair.terms.iter().enumerate() {
             out.push_str(&format!(
-                "{t}: {} (SE {}; {level}% CI {} to {}; p {})\n",
+                "{t}: {} ({} {}; {}; {interval} {})\n",
                 num(s.estimates[j]),
+                words::STANDARD_ERROR_SHORT,
                 num(s.std_errors[j]),
-                num(s.ci[j].0),
-                num(s.ci[j].1),
-                p(s.p_values[j])
+                p_clause(s.p_values[j]),
+                words::interval_ends(s.ci[j].0, s.ci[j].1, 6)
             ));
         }
-        out.push_str(&format!(
-            "{}; adjusted R² = {}; residual SE = {}\n",
-            r_squared_line(pair, s),
-            num(s.adj_r_squared),
-            num(s.residual_std_error)
-        ));
     }
     out
 }
@@ -153,7 +159,7 @@ pub fn numbers_ui(scene: &Scene<'_>, own: &mut BenchUi, ui: &mut egui::Ui) -> Ac
             out.extend(model_numbers::comparison_ui(ui, scene, diag));
             ui.separator();
             ui.checkbox(&mut own.z_units, "z-units view")
-                .on_hover_text("Both columns in standard deviations from their means: the slope is then Pearson's r, and its square is R² of the straight line");
+                .on_hover_text("Both columns in standard deviations from their means: the straight line's slope is then Pearson's r");
             if let (true, Some(d)) = (own.z_units, diag) {
                 z_units_ui(ui, pair, d);
             }
@@ -170,36 +176,40 @@ fn model_ui(ui: &mut egui::Ui, scene: &Scene<'_>, s: &LiveSummary, hypothetical:
     let pair = scene.pair;
     let excluded = pair.excluded_rows(scene.marks).len();
     ui.label(format!(
-        "n = {} rows used ({} excluded, {} incomplete in the file)",
-        s.n, excluded, pair.incomplete
+        "{} in use · {} left out by you · {} incomplete in the file",
+        plumb_report::text::plural(s.n, "row", "rows"),
+        count(excluded),
+        count(pair.incomplete)
     ));
-    ui.label(RichText::new(r_squared_line(pair, s)).size(18.0).strong())
-        .on_hover_text("Share of the variation in y around its mean that the fit accounts for: 1 − RSS/TSS. Without an intercept it is measured around zero (uncentred) and is not comparable.");
-    let k = if pair.spec.intercept { "n − 1" } else { "n" };
-    ui.label(format!("adjusted R² = {}", num(s.adj_r_squared)))
-        .on_hover_text(format!(
-            "R² penalised for the number of terms p: 1 − (1 − R²)({k})/(n − p)"
-        ));
-    ui.label(format!("residual SE = {}", num(s.residual_std_error)))
-        .on_hover_text("Typical size of a residual, in y's units: √(RSS/(n − p))");
+    let response = pair.model.response_transform.label(&pair.spec.y);
+    let h = headline(pair, s, &response);
+    ui.label(RichText::new(h.r_squared()).size(18.0).strong())
+        .on_hover_text(h.r_squared_means());
+    ui.label(h.share());
+    egui::Grid::new("headline-lines")
+        .num_columns(2)
+        .show(ui, |ui| {
+            for line in h.lines() {
+                ui.label(RichText::new(line.label).weak())
+                    .on_hover_text(&line.means);
+                ui.label(&line.figures).on_hover_text(&line.means);
+                ui.end_row();
+            }
+        });
     model_numbers::scale_ui(ui, scene, scene.bench.diagnostics().map(AsRef::as_ref));
-    if let Some((f, fp)) = s.f_test {
-        ui.label(format!("F = {} (p = {})", num(f), p(fp)))
-            .on_hover_text("Overall test that every non-intercept term is zero");
-    }
-    let level = (pair.spec.level * 100.0).round();
     egui::ScrollArea::horizontal()
         .id_salt("model-table-scroll")
         .show(ui, |ui| {
-            model_grid(ui, pair, s, level);
+            model_grid(ui, pair, s);
         });
     copy_buttons(ui, pair, s, hypothetical);
 }
 
-fn model_grid(ui: &mut egui::Ui, pair: &PairRows, s: &LiveSummary, level: f64) {
+fn model_grid(ui: &mut egui::Ui, pair: &PairRows, s: &LiveSummary) {
+    let interval = words::interval(pair.spec.level);
     egui::Grid::new("model-table").striped(true).show(ui, |ui| {
         // p before the interval: in a narrow panel the interval is what scrolls out of view.
-        for h in ["term", "estimate", "SE", "p", &format!("{level}% CI")] {
+        for h in ["term", words::VALUE, words::STANDARD_ERROR, "p", &interval] {
             ui.label(RichText::new(h).strong());
         }
         ui.end_row();
@@ -208,8 +218,8 @@ fn model_grid(ui: &mut egui::Ui, pair: &PairRows, s: &LiveSummary, level: f64) {
             ui.label(num(s.estimates[j]));
             ui.label(num(s.std_errors[j]));
             ui.label(p(s.p_values[j]));
-            ui.label(format!("{} to {}", sig(s.ci[j].0, 4), sig(s.ci[j].1, 4)))
-                .on_hover_text(format!("{} to {}", num(s.ci[j].0), num(s.ci[j].1)));
+            ui.label(words::interval_ends(s.ci[j].0, s.ci[j].1, 4))
+                .on_hover_text(words::interval_ends(s.ci[j].0, s.ci[j].1, 6));
             ui.end_row();
         }
     });
@@ -239,26 +249,22 @@ fn z_units_ui(ui: &mut egui::Ui, pair: &PairRows, d: &Diagnostics) {
         ui.weak("undefined (a constant column)");
         return;
     };
-    ui.label(format!("slope in z-units = r = {}", num(z.slope)));
-    ui.label(format!("slope² = {}", num(z.slope_squared)));
-    if pair.spec.degree == 1 && pair.spec.intercept {
-        if let Ok(f) = &d.fit {
-            ui.label(format!("R² of the line = {}", num(f.r_squared)))
-                .on_hover_text("equal to slope² for a straight line with intercept");
-        }
+    // The slope in z-units is r only for the plain, unweighted straight line.
+    let spec = &pair.spec;
+    let is_the_line = pair.terms.len() == 2
+        && spec.intercept
+        && spec.weights.is_none()
+        && spec.weight_rule.is_none();
+    let y = pair.model.response_transform.label(&spec.y);
+    for line in words::z_units(&z, spec.x0(), &y, is_the_line) {
+        ui.label(line);
     }
-    ui.label(format!(
-        "A row 2 SD above the mean of {} is expected {} SD from the mean of {}: {} nearer the mean (regression toward the mean).",
-        pair.spec.x0(),
-        num(2.0 * z.slope),
-        pair.spec.y,
-        num(2.0 * (1.0 - z.slope.abs()))
-    ));
 }
 
 fn cues_ui(ui: &mut egui::Ui, scene: &Scene<'_>, diag: Option<&Diagnostics>) -> Actions {
     let pair = scene.pair;
     ui.label(RichText::new("Cues").strong());
+    crate::screens::map::pair_notes_ui(ui, scene.map, &pair.spec.y, pair.spec.x0());
     let Some(d) = diag else {
         ui.spinner();
         return Actions::none();
@@ -286,10 +292,11 @@ fn cues_ui(ui: &mut egui::Ui, scene: &Scene<'_>, diag: Option<&Diagnostics>) -> 
     for step in d.extras.iter().flat_map(|e| e.degrees.iter().skip(1)) {
         if let Some(cmp) = &step.versus_previous {
             ui.label(format!(
-                "degree {}: R² {} (adding the term: F p = {})",
+                "degree {}: R² {} (the added power: partial F {}, {})",
                 step.degree,
                 num(step.fit.r_squared),
-                p(cmp.p_value)
+                sig(cmp.f_statistic, 4),
+                p_clause(cmp.p_value)
             ));
         }
     }
@@ -374,8 +381,21 @@ fn influence_table_ui(ui: &mut egui::Ui, scene: &Scene<'_>, own: &mut BenchUi) -
         SortKey::Leverage => &d.top[1],
         SortKey::Residual => &d.top[2],
     };
+    let key = flag_key(d.cases.len(), scene.pair.terms.len());
+    let key_text = key
+        .iter()
+        .map(|k| format!("{}: {} ({})", flag_letter(k.flag), k.rule, k.says))
+        .collect::<Vec<_>>()
+        .join("\n");
     egui::Grid::new("influence").striped(true).show(ui, |ui| {
-        for h in ["row", "leverage", "studentized (external)", "Cook's D", "flags", ""] {
+        for h in [
+            "row",
+            "leverage",
+            "studentized (external)",
+            "Cook's D",
+            "flags",
+            "",
+        ] {
             ui.label(RichText::new(h).strong());
         }
         ui.end_row();
@@ -383,7 +403,8 @@ fn influence_table_ui(ui: &mut egui::Ui, scene: &Scene<'_>, own: &mut BenchUi) -
             let c = &d.cases[k];
             let entry = d.included[k];
             let row = scene.pair.rows[entry];
-            if ui.selectable_label(own.pointer.selected == Some(entry), row.to_string())
+            if ui
+                .selectable_label(own.pointer.selected == Some(entry), scene.names.short(row))
                 .on_hover_text("Ring this row in every view")
                 .clicked()
             {
@@ -392,24 +413,31 @@ fn influence_table_ui(ui: &mut egui::Ui, scene: &Scene<'_>, own: &mut BenchUi) -
             ui.label(num(c.leverage));
             ui.label(num(c.studentized_external));
             ui.label(num(c.cooks_distance));
-            ui.label(flags(&c.flags)).on_hover_text("Rules of thumb (common practice, no source): x = leverage above 2p/n (unusual x), y = |studentized residual| above 3 (unusual y), D = Cook's D above 4/n (moves the fit)");
-            if ui.small_button("exclude").on_hover_text(format!("Leave row {row} out (you will be asked why)")).clicked() {
-                out.push(Action::Exclude { rows: vec![row], reason: None });
+            ui.label(flag_letters(&c.flags)).on_hover_text(&key_text);
+            if ui
+                .small_button("exclude")
+                .on_hover_text(format!("Leave row {row} out (you will be asked why)"))
+                .clicked()
+            {
+                out.push(Action::Exclude {
+                    rows: vec![row],
+                    reason: None,
+                });
             }
             ui.end_row();
         }
     });
+    // The key of the flags column, under the table.
+    ui.label(
+        RichText::new(format!("flags ({FLAG_SOURCE})"))
+            .weak()
+            .small(),
+    );
+    for k in &key {
+        ui.horizontal(|ui| {
+            ui.label(RichText::new(flag_letter(k.flag)).strong().monospace());
+            ui.label(RichText::new(format!("{}: {}", k.rule, k.says)).small());
+        });
+    }
     out
-}
-
-/// Short flag names for the table (the tooltip spells out the rules).
-fn flags(f: &[InfluenceFlag]) -> String {
-    f.iter()
-        .map(|x| match x {
-            InfluenceFlag::HighLeverage => "x",
-            InfluenceFlag::LargeCooksDistance => "D",
-            InfluenceFlag::LargeResidual => "y",
-        })
-        .collect::<Vec<_>>()
-        .join(" ")
 }

@@ -15,8 +15,9 @@ use crate::charts::{
     differences_chart, pair_chart_named, weightings_chart, Chart, ChartLine, DifferencesChart, Dot,
     LineKind, PairChart, WeightingPanel,
 };
-use crate::text::{csv, exact, fixed, html, num, p};
+use crate::text::{csv, exact, fixed, html, num, p, p_clause, plural};
 use crate::wording;
+use crate::wording::numbers as words;
 use crate::Result;
 
 /// The lab sections' figures.
@@ -182,9 +183,9 @@ fn differences_figure(
     differences_chart(
         &data,
         format!(
-            "differences against the mean of the two methods ({} pairs): bias solid, limits of agreement dashed, their {}% intervals as bars at the right",
-            a.selection.rows.len(),
-            a.level * 100.0
+            "differences against the mean of the two methods ({}): bias solid, limits of agreement dashed, their {} intervals as bars at the right",
+            plural(a.selection.rows.len(), "pair", "pairs"),
+            words::level(a.level)
         ),
     )
 }
@@ -280,14 +281,13 @@ impl Page<'_> {
         match &c.lack_of_fit {
             Ok(l) => writeln!(
                 out,
-                "<p><b>Lack of fit</b> over {} levels: lack-of-fit SS {} ({} df) against pure error {} ({} df); F = {}, p {}.</p>",
+                "<p><b>Lack of fit</b> over {} levels: lack-of-fit SS {} ({} df) against pure error {} ({} df); {}.</p>",
                 l.levels,
                 num(l.lack_of_fit_ss),
                 l.lack_of_fit_df,
                 num(l.pure_error_ss),
                 l.pure_error_df,
-                fixed(l.f, 3),
-                p(l.p_value)
+                html(&words::f_figures(l.f, l.lack_of_fit_df, l.pure_error_df, l.p_value))
             )?,
             Err(e) => writeln!(out, "<p><b>Lack of fit</b>: {}</p>", html(e))?,
         }
@@ -299,8 +299,8 @@ impl Page<'_> {
         if c.unknowns.is_empty() {
             return writeln!(out, "<p>No unknowns were read back.</p>");
         }
-        let pct = self.outcome.fit.level * 100.0;
-        writeln!(out, "<table><thead><tr><th>sample</th><th>readings</th><th>mean reading</th><th>x̂</th><th>SE</th><th>first-order {pct}%</th><th>band {pct}%</th></tr></thead><tbody>")?;
+        let pct = words::level(self.outcome.fit.level);
+        writeln!(out, "<table><thead><tr><th>sample</th><th>readings</th><th>mean reading</th><th>x̂</th><th>{}</th><th>first-order {pct}</th><th>band {pct}</th></tr></thead><tbody>", html(words::STANDARD_ERROR))?;
         for (u, rb) in &c.unknowns {
             match rb {
                 Ok(rb) => {
@@ -345,11 +345,11 @@ impl Page<'_> {
                     out,
                     "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
                     html(&w.label),
-                    fixed(f.r_squared, 6),
+                    num(f.r_squared),
                     fixed(f.sum_abs_relative_error, 2),
                     fixed(f.max_abs_relative_error, 2),
                     fixed(f.spread_ratio, 2),
-                    f.spread_p.map_or_else(|| "—".into(), p)
+                    f.spread_p.map_or_else(|| "—".into(), |v| html(&p(v)))
                 )?,
                 Err(e) => writeln!(
                     out,
@@ -404,10 +404,10 @@ impl Page<'_> {
                 let l = &pb.linearity;
                 writeln!(
                     out,
-                    "<li>Linearity: largest cusum {} against {} (p {}){}</li>",
+                    "<li>Linearity: largest cusum {} against {} ({}){}</li>",
                     fixed(l.statistic, 3),
                     fixed(l.bound, 3),
-                    p(l.p_value),
+                    html(&p_clause(l.p_value)),
                     if l.deviates {
                         format!(". {}", html(wording::agreement::NOT_STRAIGHT))
                     } else {
@@ -417,9 +417,9 @@ impl Page<'_> {
                 if pb.association.doubtful {
                     writeln!(
                         out,
-                        "<li>Kendall τ {} (p {}). {}</li>",
+                        "<li>Kendall τ {} ({}). {}</li>",
                         fixed(pb.association.tau, 3),
-                        p(pb.association.p_value),
+                        html(&p_clause(pb.association.p_value)),
                         html(wording::agreement::NOT_RISING_TOGETHER)
                     )?;
                 }
@@ -430,7 +430,7 @@ impl Page<'_> {
             Ok(d) => writeln!(
                 out,
                 "<li><b>Deming</b> (λ = {}): slope {} ({} to {}), intercept {} ({} to {})</li>",
-                d.fit.lambda,
+                num(d.fit.lambda),
                 num(d.fit.slope),
                 num(d.slope_interval.0),
                 num(d.slope_interval.1),

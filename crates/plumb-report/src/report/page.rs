@@ -9,8 +9,9 @@ use super::ReportInput;
 use crate::charts::Chart;
 use crate::effects::Effect;
 use crate::session::Exclusion;
-use crate::text::{html, num, p};
+use crate::text::{count, html, num, p, sig};
 use crate::wording;
+use crate::wording::numbers::{self as words, Headline};
 
 const STYLE: &str = include_str!("report.css");
 
@@ -94,7 +95,7 @@ impl Page<'_> {
             "<dt>read as</dt><dd>{}</dd>",
             html(&input.table.format().to_string())
         )?;
-        writeln!(out, "<dt>rows</dt><dd>{} in the file; {} used; {} dropped for gaps; {} excluded by the analyst</dd></dl>", input.table.n_rows(), self.outcome.fit.n, sel.dropped.len(), sel.excluded.len())?;
+        writeln!(out, "<dt>rows</dt><dd>{} in the file; {} used; {} dropped for gaps; {} excluded by the analyst</dd></dl>", count(input.table.n_rows()), count(self.outcome.fit.n), count(sel.dropped.len()), count(sel.excluded.len()))?;
         for note in input.table.notes() {
             writeln!(out, "<p class=\"small\">Reading note: {}.</p>", html(note))?;
         }
@@ -127,29 +128,53 @@ impl Page<'_> {
             terms.join(" + ")
         )?;
         self.scale(out)?;
-        writeln!(out, "<table><thead><tr><th>term</th><th>estimate</th><th>std. error</th><th>t</th><th>p</th><th>{}% interval</th><th>z-units</th></tr></thead><tbody>", fit.level * 100.0)?;
-        for c in &fit.coefficients {
-            writeln!(out, "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>[{}, {}]</td><td>{}</td></tr>", html(&c.term), num(c.estimate), num(c.std_error), num(c.t), p(c.p_value), num(c.ci_low), num(c.ci_high), c.standardized.map_or_else(|| "—".into(), num))?;
-        }
-        writeln!(out, "</tbody></table>")?;
-        let a = &fit.anova;
-        writeln!(out, "<dl class=\"quality\"><dt>R² ({})</dt><dd>{}</dd><dt>adjusted R²</dt><dd>{}</dd><dt>residual SE</dt><dd>{} on {} df</dd>", fit.r_squared_kind.as_str(), num(fit.r_squared), num(fit.adj_r_squared), num(fit.residual_std_error), a.df_residual)?;
-        if let (Some(f), Some(fp)) = (a.f_statistic, a.f_p_value) {
-            writeln!(
+        let label = self.outcome.response_label(y);
+        let request = &self.input.request;
+        let weighted = request.weights.is_some() || request.weight_rule.is_some();
+        let h = Headline::of_fit(fit, &label, words::r_squared_kinds(&label, y, weighted));
+        writeln!(
+            out,
+            "<p class=\"headline\"><b>{}</b>: {}.</p>",
+            html(&h.r_squared()),
+            html(&h.share())
+        )?;
+        write!(out, "<dl class=\"quality\">")?;
+        for line in h.lines() {
+            write!(
                 out,
-                "<dt>overall F</dt><dd>{} on {} and {} df, p {}</dd>",
-                num(f),
-                a.df_model,
-                a.df_residual,
-                p(fp)
+                "<dt title=\"{}\">{}</dt><dd>{}</dd>",
+                html(&line.means),
+                html(line.label),
+                html(&line.figures)
             )?;
         }
         writeln!(
             out,
-            "<dt>AIC / BIC</dt><dd>{} / {}</dd></dl></section>",
+            "<dt>to compare models</dt><dd>AIC {}, BIC {}</dd></dl>",
             num(fit.aic),
             num(fit.bic)
-        )
+        )?;
+        writeln!(
+            out,
+            "<table><thead><tr><th>term</th><th>{}</th><th>{}</th><th>t</th><th>p</th><th>{}</th><th>z-units</th></tr></thead><tbody>",
+            words::VALUE,
+            html(words::STANDARD_ERROR),
+            html(&words::interval(fit.level))
+        )?;
+        for c in &fit.coefficients {
+            writeln!(
+                out,
+                "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
+                html(&c.term),
+                num(c.estimate),
+                num(c.std_error),
+                sig(c.t, 4),
+                html(&p(c.p_value)),
+                words::interval_ends(c.ci_low, c.ci_high, 6),
+                c.standardized.map_or_else(|| "—".into(), |v| sig(v, 4))
+            )?;
+        }
+        writeln!(out, "</tbody></table></section>")
     }
 
     fn figures(&self, out: &mut String) -> std::fmt::Result {
@@ -186,7 +211,7 @@ impl Page<'_> {
                 _ => ("<b>all exclusions together</b>".to_string(), String::new()),
             };
             let rows: Vec<String> = e.rows.iter().map(ToString::to_string).collect();
-            writeln!(out, "<tr><td>{}</td><td>{reason}</td><td>{at}</td><td>{} → {}</td><td>{} → {}</td><td>{} → {}</td></tr>", rows.join(", "), num(e.before.r_squared), num(e.after.r_squared), num(e.before.slope), num(e.after.slope), p(e.before.slope_p), p(e.after.slope_p))?;
+            writeln!(out, "<tr><td>{}</td><td>{reason}</td><td>{at}</td><td>{} → {}</td><td>{} → {}</td><td>{} → {}</td></tr>", rows.join(", "), num(e.before.r_squared), num(e.after.r_squared), num(e.before.slope), num(e.after.slope), html(&p(e.before.slope_p)), html(&p(e.after.slope_p)))?;
         }
         writeln!(out, "</tbody></table>\n</section>")
     }

@@ -10,8 +10,9 @@ type Figure = fn(&FitFigures) -> String;
 use plumb_data::analysis::FitFigures;
 
 use super::page::Page;
-use crate::text::{fixed, html, num, p};
+use crate::text::{count, fixed, html, num, p};
 use crate::wording;
+use crate::wording::numbers as words;
 
 impl Page<'_> {
     /// The scale line and the Box–Cox estimate, under the model's equation.
@@ -49,19 +50,18 @@ impl Page<'_> {
             html(&wording::f_test(&g.equal_slopes)),
             html(&wording::f_test(&g.common_line))
         )?;
-        writeln!(out, "<table><thead><tr><th>level</th><th>rows</th><th>own slope</th><th>std. error</th><th>p</th><th>interval</th></tr></thead><tbody>")?;
+        writeln!(out, "<table><thead><tr><th>level</th><th>rows</th><th>own slope</th><th>{}</th><th>p</th><th>interval</th></tr></thead><tbody>", html(words::STANDARD_ERROR))?;
         for r in &g.table {
             let s = &r.slope;
             writeln!(
                 out,
-                "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>[{}, {}]</td></tr>",
+                "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
                 html(&r.level),
-                r.n,
+                count(r.n),
                 num(s.estimate),
                 num(s.std_error),
-                p(s.p_value),
-                num(s.ci_low),
-                num(s.ci_high)
+                html(&p(s.p_value)),
+                words::interval_ends(s.ci_low, s.ci_high, 6)
             )?;
         }
         writeln!(out, "</tbody></table></section>")
@@ -90,10 +90,12 @@ impl Page<'_> {
             html(&model(&c.kept))
         )?;
         let figures: [(&str, Figure); 6] = [
-            ("rows", |f| f.n.to_string()),
-            ("R²", |f| fixed(f.r_squared, 6)),
-            ("adjusted R²", |f| fixed(f.adj_r_squared, 6)),
-            ("residual SE", |f| num(f.residual_std_error)),
+            ("rows", |f| count(f.n)),
+            ("R²", |f| num(f.r_squared)),
+            ("adjusted R²", |f| num(f.adj_r_squared)),
+            (words::TYPICAL_MISS, |f| {
+                format!("± {}", num(f.residual_std_error))
+            }),
             ("AIC", |f| fixed(f.aic, 3)),
             ("BIC", |f| fixed(f.bic, 3)),
         ];

@@ -3,7 +3,7 @@
 
 use plumb_data::analysis::Checks;
 
-use crate::text::{fixed, p};
+use crate::text::{fixed, p_clause, sig};
 
 /// A check's p-value below this flags it. Common practice, no source.
 pub const CHECK_ALPHA: f64 = 0.05;
@@ -32,12 +32,12 @@ pub fn check_cues(checks: &Checks) -> Vec<CheckCue> {
         let runs = o.runs.as_ref().ok();
         let figures = match (dw, runs) {
             (Some(d), Some(r)) => format!(
-                "Durbin–Watson d {} (lag-one correlation about {}); {} runs of residual signs where {} were expected, p {}",
+                "Durbin–Watson d {} (lag-one correlation about {}); {} runs of residual signs where {} were expected, {}",
                 fixed(*d, 3),
                 fixed(1.0 - d / 2.0, 2),
                 r.runs,
                 fixed(r.expected, 1),
-                p(r.p_value)
+                p_clause(r.p_value)
             ),
             _ => o
                 .durbin_watson
@@ -71,10 +71,10 @@ fn spread(checks: &Checks) -> CheckCue {
             CheckCue {
                 topic: "spread",
                 figures: format!(
-                    "Breusch–Pagan (studentized) LM {} on {} df against the fitted values, p {}",
+                    "Breusch–Pagan (studentized) LM {} on {} df against the fitted values, {}",
                     fixed(b.statistic, 3),
                     b.df,
-                    p(b.p_value)
+                    p_clause(b.p_value)
                 ),
                 flagged,
                 meaning: if flagged {
@@ -105,11 +105,15 @@ fn normality(checks: &Checks) -> CheckCue {
             CheckCue {
                 topic: "normality",
                 figures: format!(
-                    "{} {stat} {}, p {}{}",
+                    "{} {stat} {}, {}",
                     test.name(),
                     fixed(n.statistic, 4),
-                    if n.p_is_bound { "< " } else { "" },
-                    p(n.p_value)
+                    if n.p_is_bound {
+                        // A bound from a table of critical values: the p lies below it.
+                        format!("p < {}", sig(n.p_value, 3))
+                    } else {
+                        p_clause(n.p_value)
+                    }
                 ),
                 flagged,
                 meaning: if flagged {

@@ -4,12 +4,14 @@
 
 use plumb_core::cues::{PairCues, CURVE_R2_GAIN, CURVE_R2_STRONG};
 
-use crate::text::{num, p};
+use crate::text::{num, p_clause, sig};
 
 pub mod agreement;
 pub mod calibration;
 mod checks;
+pub mod influence;
 mod models;
+pub mod numbers;
 
 pub use checks::{check_cues, CheckCue, CHECK_ALPHA, DW_LOW};
 pub use models::{box_cox, f_test, scale_note, NOT_NESTED_HINT};
@@ -79,11 +81,13 @@ pub fn pair_cues(c: &PairCues, row_of: impl Fn(usize) -> Option<usize>) -> Vec<C
             || "not computed".into(),
             |(d, dp)| format!("{} ({})", num(d), permutation_p(dp)),
         );
-        let grid = c.grid_independence.map_or_else(|| "—".into(), |g| p(g.2));
+        let grid = c
+            .grid_independence
+            .map_or_else(|| "not computed".into(), |g| p_clause(g.2));
         cues.push(Cue {
             kind: CueKind::HiddenDependence,
             text: format!(
-                "x and y depend on each other in a way r does not see: distance correlation {dcor}, quantile-grid test p {grid}. Look at the plot."
+                "x and y depend on each other in a way r does not see: distance correlation {dcor}, quantile-grid test {grid}. Look at the plot."
             ),
         });
     }
@@ -101,19 +105,16 @@ pub fn pair_cues(c: &PairCues, row_of: impl Fn(usize) -> Option<usize>) -> Vec<C
     cues
 }
 
-/// A permutation p-value of distance correlation: `permutation p 0.0350`, or at its floor
+/// A permutation p-value of distance correlation: `permutation p = 0.035`, or at its floor
 /// `1/(R + 1)` (no permuted value reached the observed one) `permutation p ≤ 0.005 (199
 /// permutations)`, since no smaller p can come out of R permutations.
 pub fn permutation_p(v: f64) -> String {
     let r = plumb_core::association::DISTANCE_PERMUTATIONS;
     let floor = 1.0 / (r + 1) as f64;
     if v <= floor * (1.0 + 1e-12) {
-        format!(
-            "permutation p ≤ {} ({r} permutations)",
-            p(floor).trim_end_matches('0')
-        )
+        format!("permutation p ≤ {} ({r} permutations)", sig(floor, 3))
     } else {
-        format!("permutation p {}", p(v))
+        format!("permutation {}", p_clause(v))
     }
 }
 
@@ -157,7 +158,7 @@ mod tests {
         let said = pair_cues(&cues(), |i| Some(i + 10));
         let kinds: Vec<CueKind> = said.iter().map(|c| c.kind).collect();
         assert_eq!(kinds, vec![CueKind::Curve, CueKind::OnePoint]);
-        assert!(said[0].text.contains("0.910000"), "{}", said[0].text);
+        assert!(said[0].text.contains("R² 0.91 against"), "{}", said[0].text);
         assert!(said[1].text.contains("row 14"), "{}", said[1].text);
     }
 
@@ -174,7 +175,7 @@ mod tests {
             permutation_p(0.005),
             "permutation p ≤ 0.005 (199 permutations)"
         );
-        assert_eq!(permutation_p(0.035), "permutation p 0.0350");
+        assert_eq!(permutation_p(0.035), "permutation p = 0.035");
         assert!(line(&FIT_CAUTIONS).starts_with(NOT_CAUSATION));
     }
 }

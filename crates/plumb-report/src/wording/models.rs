@@ -3,41 +3,35 @@
 
 use plumb_core::regression::{BoxCox, NestedComparison};
 
-use crate::text::{fixed, p};
+use crate::text::fixed;
 
 /// What to do when two fits cannot be tested against each other.
 pub const NOT_NESTED_HINT: &str =
     "Compare them by adjusted R², AIC and BIC; the F test needs one model inside the other on the same rows and scale.";
 
-/// `F 4.12 on 2 and 37 df, p 0.024`.
+/// `F 4.12 on 2 and 37 df, p = 0.024` ([`super::numbers::f_figures`]).
 pub fn f_test(c: &NestedComparison) -> String {
-    format!(
-        "F {} on {} and {} df, p {}",
-        fixed(c.f_statistic, 4),
-        c.df_num,
-        c.df_den,
-        p(c.p_value)
-    )
+    super::numbers::f_figures(c.f_statistic, c.df_num, c.df_den, c.p_value)
 }
 
-/// Which scale R², the residual SE and the residuals refer to, when the response is transformed
+/// Which scale R², the typical miss (σ̂) and the residuals refer to, when the response is transformed
 /// (`label` is the response as fitted, e.g. `ln(dose)`; `None` when it is `y` itself).
 pub fn scale_note(label: &str, y: &str) -> Option<String> {
     (label != y).then(|| {
         format!(
-            "R², the residual SE and the residuals are on {label}; curves are drawn back in {y}'s units"
+            "R², the typical miss and the residuals are on {label}; curves are drawn back in {y}'s units"
         )
     })
 }
 
-/// `λ = 0.4312 (95% profile-likelihood interval 0.21 to 0.66)`; an end the data do not
+/// `λ = 0.4312 (95 % profile-likelihood interval 0.21 to 0.66)`; an end the data do not
 /// bound reads "unbounded".
 pub fn box_cox(b: &BoxCox) -> String {
     let end = |v: Option<f64>| v.map_or_else(|| "unbounded".into(), |v| fixed(v, 4));
     format!(
-        "λ = {} ({}% profile-likelihood interval {} to {})",
+        "λ = {} ({} profile-likelihood interval {} to {})",
         fixed(b.lambda, 4),
-        b.level * 100.0,
+        super::numbers::level(b.level),
         end(b.interval.0),
         end(b.interval.1)
     )
@@ -67,7 +61,7 @@ mod tests {
         };
         assert_eq!(
             box_cox(&b),
-            "λ = 0.2500 (95% profile-likelihood interval 0.1000 to unbounded)"
+            "λ = 0.25 (95 % profile-likelihood interval 0.1 to unbounded)"
         );
     }
 }
