@@ -144,7 +144,10 @@ pub fn correlation_matrix(
             .count();
         m.r[i][i] = Some(1.0);
         for j in i + 1..k {
-            if let Some(t) = order {
+            // A column against its own ordering variable is a trend by definition: the
+            // order column itself gets no guard, so no shared-trend cue can name it.
+            if let Some(t) = order.filter(|t| !is_order(columns[i], t) && !is_order(columns[j], t))
+            {
                 fill_guards(&mut m, i, j, columns[i], columns[j], t);
             }
             let (n, result) = pair_cell(columns, method, moments.as_ref(), i, j);
@@ -251,6 +254,30 @@ fn fill_guards(
     }
 }
 
+/// Whether `column` holds the same cells as the row order `t` (it is the order column).
+fn is_order(column: &[Option<f64>], t: &[Option<f64>]) -> bool {
+    column.len() == t.len()
+        && column
+            .iter()
+            .zip(t)
+            .all(|(a, b)| a.map(f64::to_bits) == b.map(f64::to_bits))
+}
+
+impl CorrelationMatrix {
+    /// Whether columns `i` and `j` move together mostly through a drift they share along the
+    /// row order ([`super::drifts_together`] on this cell's coefficient and guards); never for
+    /// the order column itself, which has no guards.
+    pub fn drifts_together(&self, i: usize, j: usize) -> bool {
+        let guard = |g: &Option<Vec<Vec<Option<f64>>>>| g.as_ref().and_then(|g| g[i][j]);
+        i != j
+            && super::drifts_together(
+                self.r[i][j],
+                guard(&self.r_differenced),
+                guard(&self.r_detrended),
+            )
+    }
+}
+
 /// The columns as plain values when every cell of every column is present and finite.
 fn complete_values(columns: &[&[Option<f64>]]) -> Option<Vec<Vec<f64>>> {
     columns
@@ -259,7 +286,7 @@ fn complete_values(columns: &[&[Option<f64>]]) -> Option<Vec<Vec<f64>>> {
         .collect()
 }
 
-fn complete_pairs(a: &[Option<f64>], b: &[Option<f64>]) -> (Vec<f64>, Vec<f64>) {
+pub(super) fn complete_pairs(a: &[Option<f64>], b: &[Option<f64>]) -> (Vec<f64>, Vec<f64>) {
     a.iter()
         .zip(b)
         .filter_map(|(x, y)| match (x, y) {
@@ -318,6 +345,35 @@ mod tests {
             }
         }
         assert_eq!(fast.n_tests, 3);
+    }
+
+    #[test]
+    fn the_order_column_never_drifts_with_anything() {
+        // Irregular steps in the order, so its first differences vary and a guard could be
+        // computed for it; two series that climb with it share the trend.
+        let t: Vec<Option<f64>> = (0..40)
+            .map(|i| Some(f64::from(i) + 0.4 * f64::from(i % 3)))
+            .collect();
+        let a: Vec<Option<f64>> = t
+            .iter()
+            .enumerate()
+            .map(|(i, v)| v.map(|v| v + (i as f64 * 1.7).sin()))
+            .collect();
+        let b: Vec<Option<f64>> = t
+            .iter()
+            .enumerate()
+            .map(|(i, v)| v.map(|v| 2.0 * v + (i as f64 * 0.9 + 1.0).cos()))
+            .collect();
+        let m = correlation_matrix(&[&t, &a, &b], Method::Pearson, Adjustment::Holm, Some(&t));
+        assert!(m.drifts_together(1, 2), "the two series share the trend");
+        for j in 0..3 {
+            assert!(
+                !m.drifts_together(0, j) && !m.drifts_together(j, 0),
+                "order with {j}"
+            );
+            assert_eq!(m.r_differenced.as_ref().expect("guards")[0][j], None);
+        }
+        assert!(!m.drifts_together(1, 1), "never on the diagonal");
     }
 
     #[test]

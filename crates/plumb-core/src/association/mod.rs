@@ -11,6 +11,7 @@ mod order;
 mod pearson;
 mod rank;
 mod spearman;
+mod structure;
 mod trend;
 
 pub use adjust::{adjust_p_values, Adjustment};
@@ -23,7 +24,11 @@ pub use order::similarity_order;
 pub use pearson::{pearson, pearson_from_moments};
 pub use rank::average_ranks;
 pub use spearman::spearman;
-pub use trend::{trend_guard, TrendGuard};
+pub use structure::{
+    structure_check, structure_scan, StructureCheck, StructureScan, STRUCTURE_ALPHA,
+    STRUCTURE_BUDGET, STRUCTURE_GAP,
+};
+pub use trend::{drifts_together, trend_guard, TrendGuard, TREND_FADES, TREND_STRONG};
 
 /// A coefficient of association with its two-sided p-value.
 #[derive(Debug, Clone, Copy, PartialEq)]

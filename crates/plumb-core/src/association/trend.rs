@@ -42,6 +42,23 @@ pub fn trend_guard(x: &[f64], y: &[f64], order: &[f64]) -> TrendGuard {
     }
 }
 
+/// A pair counts as strong for the shared-trend cue from this |r| up. Common practice, no
+/// source.
+pub const TREND_STRONG: f64 = 0.7;
+/// A guarded coefficient below this |r| means the association faded once the trend was
+/// taken out. Common practice, no source.
+pub const TREND_FADES: f64 = 0.3;
+
+/// The shared-trend rule: a strong pair (`|r| ≥` [`TREND_STRONG`]) whose first differences or
+/// detrended residuals correlate weakly (`|r_Δ| <` [`TREND_FADES`] or `|r_detrended| <`
+/// [`TREND_FADES`]) moves together mostly because both columns drift along the row order.
+/// Undefined inputs never fire.
+pub fn drifts_together(r: Option<f64>, differenced: Option<f64>, detrended: Option<f64>) -> bool {
+    let strong = r.is_some_and(|r| r.abs() >= TREND_STRONG);
+    let fades = |g: Option<f64>| g.is_some_and(|g| g.abs() < TREND_FADES);
+    strong && (fades(differenced) || fades(detrended))
+}
+
 fn detrend(v: &[f64], t: &[f64]) -> Option<Vec<f64>> {
     let (mv, mt) = (describe::mean(v, None), describe::mean(t, None));
     let stt = describe::sum_sq_dev(t, None);
@@ -60,6 +77,22 @@ fn detrend(v: &[f64], t: &[f64]) -> Option<Vec<f64>> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn the_rule_needs_a_strong_pair_that_fades() {
+        assert!(drifts_together(Some(0.9), Some(0.1), None));
+        assert!(drifts_together(Some(-0.8), None, Some(0.2)));
+        assert!(
+            !drifts_together(Some(0.5), Some(0.0), Some(0.0)),
+            "not strong"
+        );
+        assert!(
+            !drifts_together(Some(0.9), Some(0.6), Some(0.7)),
+            "does not fade"
+        );
+        assert!(!drifts_together(None, Some(0.0), Some(0.0)), "undefined r");
+        assert!(!drifts_together(Some(0.9), None, None), "no guards");
+    }
 
     #[test]
     fn two_drifting_series_lose_their_correlation_once_the_drift_is_removed() {
