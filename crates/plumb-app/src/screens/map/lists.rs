@@ -1,0 +1,75 @@
+//! The pairs beside the grid: those the map flags (whatever their coefficient), then the
+//! strongest. Each is a button that opens the pair, so they are reachable by keyboard, screen
+//! readers and tests.
+
+use eframe::egui::{self, RichText};
+use plumb_report::text::{num, p};
+
+use super::grid::cell_text;
+use crate::state::map::MapResult;
+
+/// Pairs listed among the strongest.
+const STRONGEST: usize = 12;
+
+/// The flagged pairs; returns the one clicked.
+pub(super) fn flagged_ui(ui: &mut egui::Ui, r: &MapResult) -> Option<(usize, usize)> {
+    let k = r.columns.len();
+    let flagged: Vec<(usize, usize, Vec<&'static str>)> = (0..k)
+        .flat_map(|i| (i + 1..k).map(move |j| (i, j)))
+        .filter_map(|(i, j)| {
+            let notes = r.notes(i, j);
+            (!notes.is_empty()).then(|| (i, j, notes.iter().map(|n| n.label()).collect()))
+        })
+        .collect();
+    ui.label(RichText::new("Pairs the map flags").strong());
+    if flagged.is_empty() {
+        ui.weak("none");
+        return None;
+    }
+    let mut chosen = None;
+    egui::Grid::new("map-flagged").striped(true).show(ui, |ui| {
+        for (i, j, labels) in flagged {
+            let label = format!("{} and {}", r.columns[i], r.columns[j]);
+            if ui.button(label).on_hover_text(cell_text(r, i, j)).clicked() {
+                chosen = Some((i, j));
+            }
+            ui.colored_label(ui.visuals().warn_fg_color, labels.join(", "));
+            ui.end_row();
+        }
+    });
+    chosen
+}
+
+/// The strongest pairs by |coefficient|; returns the one clicked.
+pub(super) fn strongest_ui(ui: &mut egui::Ui, r: &MapResult) -> Option<(usize, usize)> {
+    let m = &r.matrix;
+    let k = r.columns.len();
+    let mut pairs: Vec<(usize, usize, f64)> = (0..k)
+        .flat_map(|i| (i + 1..k).map(move |j| (i, j)))
+        .filter_map(|(i, j)| m.r[i][j].map(|v| (i, j, v)))
+        .collect();
+    pairs.sort_by(|a, b| b.2.abs().total_cmp(&a.2.abs()));
+    ui.label(RichText::new("Strongest pairs").strong());
+    let mut chosen = None;
+    egui::Grid::new("strongest").striped(true).show(ui, |ui| {
+        for h in ["pair", "coefficient", "adjusted p", "n"] {
+            ui.label(RichText::new(h).strong());
+        }
+        ui.end_row();
+        for &(i, j, v) in pairs.iter().take(STRONGEST) {
+            let label = format!("{} and {}", r.columns[i], r.columns[j]);
+            if ui
+                .button(&label)
+                .on_hover_text(cell_text(r, i, j))
+                .clicked()
+            {
+                chosen = Some((i, j));
+            }
+            ui.label(num(v));
+            ui.label(m.p_adjusted[i][j].or(m.p_value[i][j]).map_or("—".into(), p));
+            ui.label(m.n[i][j].to_string());
+            ui.end_row();
+        }
+    });
+    chosen
+}
