@@ -28,7 +28,7 @@ const CASES: &[(&str, &[&str], i32, &str)] = &[
         1,
         "3 fields where the first row has 2",
     ),
-    ("bom.csv", &[], 0, "R² (centered)"),
+    ("bom.csv", &[], 0, "variation in y around its mean"),
     ("mixed-types.csv", &[], 1, "row 2 holds 'three'"),
     (
         "all-missing-column.csv",
@@ -36,7 +36,7 @@ const CASES: &[(&str, &[&str], i32, &str)] = &[
         1,
         "every cell is missing",
     ),
-    ("near-max-values.csv", &[], 0, "R² (centered)"),
+    ("near-max-values.csv", &[], 0, "variation in y around its mean"),
     ("nan-inf-tokens.csv", &[], 0, "3 dropped for gaps"),
     ("empty.csv", &[], 1, "the file is empty"),
     ("whitespace-only.csv", &[], 1, "the file is empty"),
@@ -120,8 +120,8 @@ const CASES: &[(&str, &[&str], i32, &str)] = &[
         1,
         "a page of column 'level' (row group 1) claims -19 values",
     ),
-    ("tiny-spread.csv", &[], 0, "R² (centered)"),
-    ("huge-offset.csv", &[], 0, "R² (centered)"),
+    ("tiny-spread.csv", &[], 0, "variation in y around its mean"),
+    ("huge-offset.csv", &[], 0, "variation in y around its mean"),
     (
         "parquet-many-types.parquet",
         &["--y", "level", "--x", "reading"],
