@@ -39,7 +39,7 @@ pub fn preview_ui(state: &State, ui: &mut egui::Ui) {
                 }
                 ui.end_row();
                 for row in 1..=rows {
-                    ui.label(state.row_names().short(row));
+                    ui.label(row.to_string());
                     for c in &columns {
                         match d.cell_text(c, row) {
                             Some(v) => ui.label(v),
