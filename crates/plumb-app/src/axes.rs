@@ -10,7 +10,7 @@ pub const TICKS: (usize, usize) = (3, 5);
 /// Room left right of a plot, so that the last x tick's label is never cut at the edge.
 const RIGHT_ROOM: f32 = 14.0;
 /// Width kept for every y axis's tick labels, so that views stacked on one x axis line up.
-pub const Y_AXIS_WIDTH: f32 = 44.0;
+pub const Y_AXIS_WIDTH: f32 = 56.0;
 /// Room each label needs along the axis, in points (x: a number's width; y: its height).
 const LABEL_ROOM: (f64, f64) = (64.0, 28.0);
 

@@ -16,9 +16,10 @@ use common::demo;
 
 const SIZES: [(f32, f32); 3] = [(1024.0, 640.0), (1440.0, 900.0), (1920.0, 1080.0)];
 
-/// The smallest plot side (points) on which the axes' three labelled ticks and the axis
-/// title fit: three x labels of [`LABEL_ROOM`]-like width, or three y labels with the title.
-const MIN_PLOT: (f32, f32) = (150.0, 110.0);
+/// The smallest plot (points) on which each axis shows three labelled ticks: three x labels
+/// of up to 60 points each, three y labels 28 points apart (the room `axes` gives a label;
+/// egui_plot hides a label only when ticks come closer than 24 points across, 16 up).
+const MIN_PLOT: (f32, f32) = (3.0 * 60.0, 3.0 * 28.0);
 
 fn harness(size: (f32, f32), config: &std::path::Path) -> Harness<'static, Workbench> {
     Harness::builder()
@@ -51,6 +52,7 @@ fn open(h: &mut Harness<'_, Workbench>, file: &std::path::Path, y: &str, x: &str
     h.state_mut().apply(Action::Open(file.to_path_buf()));
     settle(h);
     h.state_mut().apply(Action::OpenPair(FitSpec::line(y, x)));
+    h.state_mut().apply(Action::Show(plumb_app::Screen::Bench));
     settle(h);
 }
 
@@ -147,7 +149,7 @@ fn the_keys_sit_outside_the_plots_with_every_overlay_and_groups_on() {
             "Deming",
             "LOESS",
             "excluded",
-            "flagged by Cook's rule",
+            "flagged: Cook's rule",
         ];
         keys.push("ordinary");
         let analysts: Vec<String> = h
@@ -226,4 +228,46 @@ fn a_dense_file_gets_its_residual_strip_and_influence_view() {
         .bounds
         .expect("bounds");
     assert!(b.x_min >= 1.0 && b.x_max <= n as f64, "{b:?}");
+}
+
+#[test]
+fn each_view_saves_as_its_own_chart_file() {
+    use plumb_app::state::export::ChartView;
+    let data = demo("field-survey.csv");
+    let config = tempfile::tempdir().expect("config dir");
+    let out = tempfile::tempdir().expect("out dir");
+    let mut h = harness((1440.0, 900.0), config.path());
+    open(&mut h, &data, "leaf_n_pct", "soil_temp_c");
+    h.state_mut().apply(Action::Exclude {
+        rows: vec![133],
+        reason: Some("export test".into()),
+    });
+    settle(&mut h);
+    let n = h.state().bench().pair().expect("pair").rows.len();
+    for view in [
+        ChartView::Scatter,
+        ChartView::Residuals,
+        ChartView::Influence,
+        ChartView::Quantiles,
+    ] {
+        let svg = out.path().join(format!("{}.svg", view.stem()));
+        h.state_mut().apply(Action::ExportViewTo(view, svg.clone()));
+        let text = std::fs::read_to_string(&svg).expect("the SVG is written");
+        let circles = text.matches("<circle").count();
+        // One marker per row drawn: all rows in the scatter and the residual strip (the
+        // excluded one as a ring), the rows in the fit in the two others; the influence
+        // chart's key adds one swatch per class.
+        let rows = match view {
+            ChartView::Scatter | ChartView::Residuals => n,
+            ChartView::Influence => n - 1 + 3,
+            ChartView::Quantiles => n - 1,
+        };
+        assert_eq!(circles, rows, "{view:?}: {circles} markers for {rows} rows");
+        let png = out.path().join(view.stem());
+        h.state_mut().apply(Action::ExportViewTo(view, png.clone()));
+        let bytes = std::fs::read(png.with_extension("png")).expect("a PNG is written");
+        assert_eq!(&bytes[1..4], b"PNG", "{view:?}");
+    }
+    let status = h.state().status().expect("said").text.clone();
+    assert!(status.contains("saved the quantiles view"), "{status}");
 }

@@ -90,8 +90,8 @@ fn beyond_text(scene: &Scene<'_>, beyond: &[(usize, f64)]) -> String {
         .take(4)
         .map(|&(e, d)| {
             format!(
-                "row {} ({})",
-                scene.pair.rows[e],
+                "{} ({})",
+                scene.names.label(scene.pair.rows[e]),
                 plumb_report::text::sig(d, 3)
             )
         })

@@ -19,7 +19,7 @@ const VIEW: Diagnostic<'static> = Diagnostic {
     id: "leverage",
     variant: 0,
     title: "How much each row pulls the fit",
-    tip: "Leverage (how unusual a row's x is) across, studentized residual (how far its y is from a fit made without it, in its own standard errors) up. Size and colour: Cook's distance, how far the estimates move when the row is left out. Thin lines: the leverage and residual flags of the influence table.",
+    tip: "Leverage (how unusual a row's x is) across, studentized residual (how far its y is from a fit made without it, in its own standard errors) up. Size and colour: Cook's distance D, how far the estimates move when the row is left out — flagged by the influence table's rule, or strong at D ≥ the median of F(p, n − p), where leaving the row out moves the estimates to the edge of their 50 % confidence region. Thin lines: the leverage and residual flags of the influence table.",
     x_label: "leverage",
     y_label: "studentized residual",
     shares_scatter_x: false,
@@ -33,11 +33,11 @@ pub const PULL_RADIUS: [f32; 3] = [2.5, 4.5, 6.5];
 pub fn pull_keys(pull: &Pull, v: &egui::Visuals) -> Vec<Key> {
     let strong = if pull.strong_from.is_finite() {
         format!(
-            "strong pull: D ≥ {} (median of F)",
+            "strong: D ≥ {}",
             plumb_report::text::sig(pull.strong_from, 3)
         )
     } else {
-        "strong pull: D ≥ median of F".to_string()
+        "strong: D ≥ median of F".to_string()
     };
     vec![
         Key {
@@ -46,7 +46,7 @@ pub fn pull_keys(pull: &Pull, v: &egui::Visuals) -> Vec<Key> {
         },
         Key {
             swatch: Swatch::Sized(palette::influence(1, v), PULL_RADIUS[1]),
-            name: "flagged by Cook's rule".into(),
+            name: "flagged: Cook's rule".into(),
         },
         Key {
             swatch: Swatch::Sized(palette::influence(2, v), PULL_RADIUS[2]),

@@ -212,7 +212,13 @@ impl ViewSizes {
         };
         let left = (w * share).floor();
         let right = w - left - gap;
-        let top = (h * SCATTER_SHARE).floor();
+        // A low window gives the strip a larger share: its axes need room too.
+        let top = (h * if h < 520.0 {
+            SCATTER_SHARE - 0.05
+        } else {
+            SCATTER_SHARE
+        })
+        .floor();
         let stacked = if mode == BenchMode::Calibration {
             3.0
         } else {

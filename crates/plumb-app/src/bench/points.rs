@@ -277,7 +277,8 @@ pub fn tooltip_text(scene: &Scene<'_>, mode: PointerMode, e: usize) -> String {
     let row = pair.rows[e];
     let (x, y) = pair.point(e, marks);
     let mut text = format!(
-        "row {row}\n{} = {}\n{} = {}",
+        "{}\n{} = {}\n{} = {}",
+        scene.names.label(row),
         pair.spec.x0(),
         num(x),
         pair.spec.y,

@@ -135,7 +135,7 @@ pub fn beyond_text(scene: &Scene<'_>, v: &Views) -> String {
         .beyond
         .iter()
         .take(4)
-        .map(|&(i, e)| format!("row {} ({})", scene.pair.rows[i], sig(e, 3)))
+        .map(|&(i, e)| format!("{} ({})", scene.names.label(scene.pair.rows[i]), sig(e, 3)))
         .collect();
     let more = v.beyond.len().saturating_sub(4);
     let tail = if more > 0 {
