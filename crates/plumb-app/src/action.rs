@@ -6,6 +6,7 @@
 use std::path::PathBuf;
 
 use crate::state::diagnostics::{Overlays, ResidualAxis};
+use crate::state::export::ChartView;
 use crate::state::map::MapKey;
 use crate::state::pair::FitSpec;
 use crate::state::reading::Reading;
@@ -44,6 +45,8 @@ pub enum Action {
     SaveSessionTo(PathBuf),
     /// Write the colleague summary (and the session it reproduces from) at this path.
     ExportSummaryTo(PathBuf),
+    /// Save one view of the bench at this path (SVG by a `.svg` name, else PNG).
+    ExportViewTo(ChartView, PathBuf),
     /// Answer the open question: yes or no.
     Answer(bool),
     /// Show a screen.
@@ -139,6 +142,7 @@ impl Action {
             DialogPurpose::Open => Self::Open(path),
             DialogPurpose::SaveSessionAs => Self::SaveSessionTo(path),
             DialogPurpose::ExportSummary => Self::ExportSummaryTo(path),
+            DialogPurpose::ExportView(view) => Self::ExportViewTo(view, path),
         }
     }
 

@@ -22,6 +22,7 @@ pub mod state;
 mod workbench;
 
 pub use action::{Action, Actions};
+pub use axes::ticks_for;
 pub use eframe::egui::ThemePreference;
 pub use error::WorkbenchError;
 pub use launch::{run, Launch};

@@ -63,6 +63,8 @@ pub enum DialogPurpose {
     SaveSessionAs,
     /// Write the colleague summary.
     ExportSummary,
+    /// Save one view of the bench as a chart file.
+    ExportView(super::export::ChartView),
 }
 
 /// File types the open dialog offers.
@@ -236,6 +238,12 @@ fn dialog(d: rfd::FileDialog, purpose: DialogPurpose, stem: &str) -> Option<Path
             .add_filter("HTML summary", &["html"])
             .set_file_name(format!("{stem}-summary.html"))
             .set_title("Write the summary for a colleague")
+            .save_file(),
+        DialogPurpose::ExportView(view) => d
+            .add_filter("PNG image", &["png"])
+            .add_filter("SVG drawing", &["svg"])
+            .set_file_name(format!("{stem}-{}.png", view.stem()))
+            .set_title("Save this view (.png or .svg)")
             .save_file(),
     }
 }

@@ -12,6 +12,7 @@ pub mod dataset;
 pub mod diagnostics;
 mod document;
 mod edits;
+pub mod export;
 mod files;
 pub mod jobs;
 pub mod lab_views;

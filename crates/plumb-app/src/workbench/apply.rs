@@ -19,6 +19,7 @@ impl Workbench {
             Action::SaveSession => s.save_session(),
             Action::SaveSessionTo(path) => s.save_session_to(&path),
             Action::ExportSummaryTo(path) => s.export_summary_to(&path),
+            Action::ExportViewTo(view, path) => s.export_view_to(view, &path),
             Action::Answer(yes) => answer(s, yes),
             Action::Show(screen) => s.screen = screen,
             Action::OpenPair(spec) => s.open_pair(spec),
