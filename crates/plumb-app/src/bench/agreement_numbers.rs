@@ -71,11 +71,11 @@ fn settings_ui(scene: &Scene<'_>, ui: &mut egui::Ui) -> Actions {
 }
 
 fn lines_ui(r: &AgreementReport, ui: &mut egui::Ui) {
-    let pct = (r.level * 100.0).round();
+    let pct = words::level(r.level);
     let warn = ui.visuals().warn_fg_color;
     match &r.passing_bablok {
         Ok(pb) => {
-            ui.label(RichText::new(format!("Passing–Bablok ({pct}% intervals)")).strong())
+            ui.label(RichText::new(format!("Passing–Bablok ({pct} intervals)")).strong())
                 .on_hover_text("A shifted median of all pairwise slopes: robust, and it treats both methods alike");
             match &pb.interval {
                 Ok(i) => {

@@ -88,8 +88,8 @@ fn unknowns_table_ui(ui: &mut egui::Ui, r: &CalibrationReport, level: f64, x: &s
         ui.weak("No unknowns yet: type them below, one sample per line.");
         return;
     }
-    let pct = (level * 100.0).round();
-    ui.label(RichText::new(format!("Unknowns read back ({pct}% intervals)")).strong())
+    let pct = words::level(level);
+    ui.label(RichText::new(format!("Unknowns read back ({pct} intervals)")).strong())
         .on_hover_text("The interval holds the concentrations whose prediction band takes in the mean reading (Fieller's interval for a line); it may be lopsided or unbounded. Hover a row for the replicates, the mean reading, the standard error and the first-order interval x̂ ± t × standard error.");
     let warn = ui.visuals().warn_fg_color;
     let limits = r.limits.as_ref().ok();
@@ -220,9 +220,9 @@ fn limits_ui(scene: &Scene<'_>, r: &CalibrationReport, ui: &mut egui::Ui) -> Act
     ui.horizontal(|ui| {
         ui.label(RichText::new("Limits").strong());
         ui.label("σ from");
-        ui.radio_value(&mut sigma, SigmaSource::ResidualSd, "residual SD")
+        ui.radio_value(&mut sigma, SigmaSource::ResidualSd, "residual standard deviation")
             .on_hover_text("The residual standard deviation of the line (of one reading at the lowest standard when weighted)");
-        ui.radio_value(&mut sigma, SigmaSource::InterceptSe, "intercept SE")
+        ui.radio_value(&mut sigma, SigmaSource::InterceptSe, "intercept's standard error")
             .on_hover_text("The standard error of the line's intercept");
     });
     match &r.limits {

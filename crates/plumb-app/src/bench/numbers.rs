@@ -186,16 +186,14 @@ fn model_ui(ui: &mut egui::Ui, scene: &Scene<'_>, s: &LiveSummary, hypothetical:
     ui.label(RichText::new(h.r_squared()).size(18.0).strong())
         .on_hover_text(h.r_squared_means());
     ui.label(h.share());
-    egui::Grid::new("headline-lines")
-        .num_columns(2)
-        .show(ui, |ui| {
-            for line in h.lines() {
-                ui.label(RichText::new(line.label).weak())
-                    .on_hover_text(&line.means);
-                ui.label(&line.figures).on_hover_text(&line.means);
-                ui.end_row();
-            }
+    // Each line wraps in a narrow panel: the label, then its figures.
+    for line in h.lines() {
+        ui.horizontal_wrapped(|ui| {
+            ui.label(RichText::new(line.label).weak())
+                .on_hover_text(&line.means);
+            ui.label(&line.figures).on_hover_text(&line.means);
         });
+    }
     model_numbers::scale_ui(ui, scene, scene.bench.diagnostics().map(AsRef::as_ref));
     egui::ScrollArea::horizontal()
         .id_salt("model-table-scroll")
