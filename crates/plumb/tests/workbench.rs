@@ -514,7 +514,7 @@ fn typed_unknowns_are_read_back_as_plumb_calibrate_reads_them() {
             u["name"]
         );
     }
-    h.get_by_label("intercept SE").click();
+    h.get_by_label("intercept's standard error").click();
     settle(&mut h);
     let lod = plumb_report::text::num(cli["limits"]["detection"].as_f64().expect("LOD"));
     let shown = h
