@@ -298,7 +298,8 @@ fn cells(
             let counted = cell >= COUNT_FROM_PX;
             if cell >= VALUE_FROM_PX && i != j {
                 let value = r.matrix.r[i][j].map_or_else(|| "—".to_string(), |v| format!("{v:.2}"));
-                let at = rect.center() - Vec2::new(0.0, if counted { cell * 0.1 } else { 0.0 });
+                let at = rect.center()
+                    - Vec2::new(0.0, if counted { cell * 0.04 } else { -cell * 0.08 });
                 painter.text(
                     at,
                     egui::Align2::CENTER_CENTER,
@@ -308,7 +309,7 @@ fn cells(
                 );
             }
             if counted {
-                let at = rect.center() + Vec2::new(0.0, cell * if i == j { 0.0 } else { 0.2 });
+                let at = rect.center() + Vec2::new(0.0, cell * if i == j { 0.0 } else { 0.24 });
                 let text = format!("n {}", r.matrix.n[i][j]);
                 painter.text(
                     at,

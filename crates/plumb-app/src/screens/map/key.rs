@@ -14,7 +14,7 @@ use crate::state::map::{MapNote, MapResult};
 pub(super) enum Mark {
     /// A filled corner wedge at the top right: both columns drift along the row order.
     Drift,
-    /// A ring at the bottom left: structure a straight line misses.
+    /// A ring at the top left: structure a straight line misses.
     Ring,
 }
 
@@ -29,7 +29,7 @@ impl Mark {
 
     /// Draws the mark in cell `rect` in `ink`.
     pub(super) fn paint(self, painter: &egui::Painter, rect: Rect, ink: Color32) {
-        let s = (rect.width() * 0.32).clamp(5.0, 13.0);
+        let s = (rect.width() * 0.3).clamp(6.0, 14.0);
         match self {
             Self::Drift => {
                 let (x, y) = (rect.right() - 1.0, rect.top() + 1.0);
@@ -37,9 +37,9 @@ impl Mark {
                 painter.add(egui::Shape::convex_polygon(points, ink, Stroke::NONE));
             }
             Self::Ring => {
-                let radius = s * 0.38;
-                let centre = Pos2::new(rect.left() + radius + 2.5, rect.bottom() - radius - 2.5);
-                painter.circle_stroke(centre, radius, Stroke::new(1.6, ink));
+                let radius = (s * 0.4).max(3.5);
+                let centre = Pos2::new(rect.left() + radius + 2.5, rect.top() + radius + 2.5);
+                painter.circle_stroke(centre, radius, Stroke::new(1.8, ink));
             }
         }
     }

@@ -27,16 +27,23 @@ pub(super) fn flagged_ui(ui: &mut egui::Ui, r: &MapResult) -> Option<(usize, usi
         return None;
     }
     let mut chosen = None;
-    egui::Grid::new("map-flagged").striped(true).show(ui, |ui| {
-        for (i, j, labels) in flagged {
-            let label = format!("{} and {}", r.columns[i], r.columns[j]);
-            if ui.button(label).on_hover_text(cell_text(r, i, j)).clicked() {
-                chosen = Some((i, j));
+    let widest = pair_column_width(ui, 130.0);
+    egui::Grid::new("map-flagged")
+        .striped(true)
+        .max_col_width(widest)
+        .show(ui, |ui| {
+            for (i, j, labels) in flagged {
+                let label = format!("{} and {}", r.columns[i], r.columns[j]);
+                if pair_button(ui, label)
+                    .on_hover_text(cell_text(r, i, j))
+                    .clicked()
+                {
+                    chosen = Some((i, j));
+                }
+                ui.colored_label(ui.visuals().warn_fg_color, labels.join(", "));
+                ui.end_row();
             }
-            ui.colored_label(ui.visuals().warn_fg_color, labels.join(", "));
-            ui.end_row();
-        }
-    });
+        });
     chosen
 }
 
@@ -51,25 +58,41 @@ pub(super) fn strongest_ui(ui: &mut egui::Ui, r: &MapResult) -> Option<(usize, u
     pairs.sort_by(|a, b| b.2.abs().total_cmp(&a.2.abs()));
     ui.label(RichText::new("Strongest pairs").strong());
     let mut chosen = None;
-    egui::Grid::new("strongest").striped(true).show(ui, |ui| {
-        for h in ["pair", "coefficient", "adjusted p", "n"] {
-            ui.label(RichText::new(h).strong());
-        }
-        ui.end_row();
-        for &(i, j, v) in pairs.iter().take(STRONGEST) {
-            let label = format!("{} and {}", r.columns[i], r.columns[j]);
-            if ui
-                .button(&label)
-                .on_hover_text(cell_text(r, i, j))
-                .clicked()
-            {
-                chosen = Some((i, j));
+    let widest = pair_column_width(ui, 190.0);
+    egui::Grid::new("strongest")
+        .striped(true)
+        .max_col_width(widest)
+        .show(ui, |ui| {
+            for h in ["pair", "coefficient", "adjusted p", "n"] {
+                ui.label(RichText::new(h).strong());
             }
-            ui.label(num(v));
-            ui.label(m.p_adjusted[i][j].or(m.p_value[i][j]).map_or("—".into(), p));
-            ui.label(m.n[i][j].to_string());
             ui.end_row();
-        }
-    });
+            for &(i, j, v) in pairs.iter().take(STRONGEST) {
+                let label = format!("{} and {}", r.columns[i], r.columns[j]);
+                if ui
+                    .button(&label)
+                    .on_hover_text(cell_text(r, i, j))
+                    .clicked()
+                {
+                    chosen = Some((i, j));
+                }
+                ui.label(num(v));
+                ui.label(m.p_adjusted[i][j].or(m.p_value[i][j]).map_or("—".into(), p));
+                ui.label(m.n[i][j].to_string());
+                ui.end_row();
+            }
+        });
     chosen
+}
+
+/// Width left for the pairs' column beside `others` points of other columns (long names are
+/// cut short rather than pushing the panel wider than the window).
+fn pair_column_width(ui: &egui::Ui, others: f32) -> f32 {
+    (ui.available_width() - others).max(100.0)
+}
+
+/// A pair's button, its text cut short with an ellipsis when the column is narrow (the hover
+/// and the accessible label keep the whole text).
+fn pair_button(ui: &mut egui::Ui, label: String) -> egui::Response {
+    ui.add(egui::Button::new(label).truncate())
 }
