@@ -85,7 +85,7 @@ fn text(args: &StreamArgs, s: &StreamSummary, line: &LineSummary) -> anyhow::Res
     writeln!(out)?;
     writeln!(
         out,
-        "  {:<14} {:>14} {:>17} {:>9} {:>10}   {:<29}",
+        "  {:<14} {:>14} {:>17} {:>9} {:>10}   {}",
         "term",
         words::VALUE,
         words::STANDARD_ERROR,
@@ -99,7 +99,7 @@ fn text(args: &StreamArgs, s: &StreamSummary, line: &LineSummary) -> anyhow::Res
     ] {
         writeln!(
             out,
-            "  {:<14} {:>14} {:>17} {:>9} {:>10}   {:<29}",
+            "  {:<14} {:>14} {:>17} {:>9} {:>10}   {}",
             name,
             num(c.estimate),
             num(c.std_error),
