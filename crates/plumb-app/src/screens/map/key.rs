@@ -161,7 +161,11 @@ pub(super) fn marks_key_ui(ui: &mut egui::Ui, r: &MapResult, drawn: bool) {
 fn structure_status(scan: &StructureScan, pairs: usize) -> String {
     match scan {
         StructureScan::Done { unconfirmed: 0, .. } => {
-            format!("Structure checked on all {} pairs.", count(pairs))
+            format!(
+                "Structure checked on all {} pairs. A ring is a cue to open the pair and look, not a finding: its permutation p (≤ {}) is not adjusted across the pairs, so with many pairs some rings can come by chance.",
+                count(pairs),
+                STRUCTURE_ALPHA
+            )
         }
         StructureScan::Done { unconfirmed, .. } => format!(
             "Structure checked; {} candidate pairs were not tested for want of time (a work budget): leave columns out to test them.",
