@@ -110,8 +110,9 @@ fn apply_after_load(wb: &mut Workbench, launch: Launch) {
     }
     if let (Some(first), Some(last)) = (missing.first(), missing.last()) {
         wb.apply(Action::fail(format!(
-            "--exclude named {} row(s) the file does not have ({first} to {last}); it has {n_rows} data rows",
-            missing.len()
+            "--exclude named {} the file does not have ({first} to {last}); it has {} data rows",
+            plumb_report::text::plural(missing.len(), "row", "rows"),
+            plumb_report::text::count(n_rows)
         )));
     }
     if let Some(s) = launch.screen {

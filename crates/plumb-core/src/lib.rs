@@ -23,5 +23,6 @@ pub mod moments;
 pub mod optimize;
 pub mod regression;
 pub mod sampling;
+mod short;
 
 pub use error::{CoreError, Result};

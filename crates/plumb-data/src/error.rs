@@ -58,7 +58,7 @@ pub enum DataError {
         line: usize,
     },
     /// A row with a different number of fields than the first row.
-    #[error("{}, line {line} (data row {row}): {found} fields where the first row has {expected}; fix that line, or check the delimiter (read as {delimiter})", path.display())]
+    #[error("{}, line {line} (data row {row}): {found} {} where the first row has {expected}; fix that line, or check the delimiter (read as {delimiter})", path.display(), if *found == 1 { "field" } else { "fields" })]
     Ragged {
         /// File.
         path: PathBuf,

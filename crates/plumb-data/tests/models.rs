@@ -120,7 +120,7 @@ fn parallel_lines_have_the_groups_tests_and_a_clear_message_for_a_thin_level() {
     let e = analyze(&t, &thin, Wanted::default()).expect_err("east has 2 rows");
     let text = e.to_string();
     assert!(
-        text.contains("level 'east'") && text.contains("2 row(s)"),
+        text.contains("level 'east'") && text.contains("2 rows on the rows used"),
         "{text}"
     );
     let mut missing = grouped(false);
@@ -178,7 +178,7 @@ fn a_transformed_response_is_fitted_on_its_scale_and_drawn_back_in_its_units() {
     let e = analyze(&z, &request, Wanted::default()).expect_err("log of 0");
     let text = e.to_string();
     assert!(
-        text.contains("2 row(s) are not positive") && text.contains("rows 1, 4"),
+        text.contains("2 rows are not positive") && text.contains("rows 1, 4"),
         "{text}"
     );
 }

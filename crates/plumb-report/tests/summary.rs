@@ -51,7 +51,7 @@ fn the_same_inputs_give_byte_identical_files() {
         what: "the data file",
     }];
     let files = write(&a, &dir.path().join("summary.html"), &inputs).expect("writes");
-    assert_eq!(files.len(), 9, "html, two csv, three charts as svg and png");
+    assert_eq!(files.len(), 11, "html, two csv, four charts as svg and png");
     for f in &files {
         assert!(
             std::fs::metadata(f).expect("written").len() > 0,

@@ -20,7 +20,7 @@ const CASES: &[(&str, &[&str], i32, &str)] = &[
         "ragged-short-row.csv",
         &[],
         1,
-        "1 fields where the first row has 2",
+        "1 field where the first row has 2",
     ),
     (
         "ragged-long-row.csv",
@@ -36,7 +36,12 @@ const CASES: &[(&str, &[&str], i32, &str)] = &[
         1,
         "every cell is missing",
     ),
-    ("near-max-values.csv", &[], 0, "variation in y around its mean"),
+    (
+        "near-max-values.csv",
+        &[],
+        0,
+        "variation in y around its mean",
+    ),
     ("nan-inf-tokens.csv", &[], 0, "3 dropped for gaps"),
     ("empty.csv", &[], 1, "the file is empty"),
     ("whitespace-only.csv", &[], 1, "the file is empty"),

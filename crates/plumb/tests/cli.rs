@@ -325,7 +325,7 @@ mod bad_input {
         refused(
             "x,y\n1,2\n2\n3,5\n",
             &["--y", "y", "--x", "x"],
-            &["line 3", "1 fields"],
+            &["line 3", "1 field where"],
         );
     }
 
@@ -705,7 +705,7 @@ mod summary {
                 compared += 1;
             }
         }
-        assert_eq!(compared, 8, "two CSVs and three charts as SVG and PNG");
+        assert_eq!(compared, 10, "two CSVs and four charts as SVG and PNG");
         // The page too, but for its last line: the command that reproduces it names how it
         // was made (the data file and flags, or the session).
         let page = |name: &str| {

@@ -57,7 +57,8 @@ fn settings_ui(scene: &Scene<'_>, ui: &mut egui::Ui) -> Actions {
         ui.add(
             egui::DragValue::new(&mut o.deming_ratio)
                 .range(0.01..=100.0)
-                .speed(0.05),
+                .speed(0.05)
+                .custom_formatter(|v, _| plumb_report::text::num(v)),
         )
         .labelled_by(l.id)
         .on_hover_text("Var(error of the new method)/Var(error of the established one); 1 when both are alike");

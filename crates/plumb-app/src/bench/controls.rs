@@ -69,8 +69,12 @@ fn overlays_ui(bench: &BenchModel, ui: &mut egui::Ui) -> Option<Action> {
     ui.checkbox(&mut o.loess, "LOESS")
         .on_hover_text("Local regression: shows the shape without assuming one");
     if o.loess {
-        ui.add(egui::Slider::new(&mut o.loess_span, 0.1..=1.0).text("span"))
-            .on_hover_text("Share of the rows in each local fit");
+        ui.add(
+            egui::Slider::new(&mut o.loess_span, 0.1..=1.0)
+                .text("span")
+                .custom_formatter(|v, _| plumb_report::text::num(v)),
+        )
+        .on_hover_text("Share of the rows in each local fit");
     }
     (o != before).then_some(Action::SetOverlays(o))
 }

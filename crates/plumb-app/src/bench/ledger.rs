@@ -177,7 +177,12 @@ fn moves_ui(scene: &Scene<'_>, ui: &mut egui::Ui) -> Actions {
 
 fn effect_line(e: &Effect) -> String {
     format!(
-        "with the row(s) / without:\nR² {} / {} (Δ {})\nslope {} / {} (Δ {})\nslope p {} / {}",
+        "with {} / without:\nR² {} / {} (Δ {})\nslope {} / {} (Δ {})\nslope p {} / {}",
+        if e.rows.len() == 1 {
+            "the row"
+        } else {
+            "the rows"
+        },
         num(e.before.r_squared),
         num(e.after.r_squared),
         signed(e.after.r_squared - e.before.r_squared),

@@ -200,8 +200,8 @@ pub fn questions_ui(ask: Option<&Ask>, ctx: &egui::Context) -> Actions {
                 Ask::Recover(s) => {
                     ui.heading("Unsaved work from a previous run");
                     ui.label(format!(
-                        "{} exclusion(s) on {} were not saved when the workbench last closed.",
-                        s.exclusions.len(),
+                        "{} on {} were not saved when the workbench last closed.",
+                        plumb_report::text::plural(s.exclusions.len(), "exclusion", "exclusions"),
                         s.data.path
                     ));
                     for e in s.exclusions.iter().take(8) {

@@ -5,6 +5,7 @@ use eframe::egui::{self, RichText, Vec2};
 use egui_plot::{Line, PlotPoints};
 use plumb_report::text::{count, num, p};
 use plumb_report::wording;
+use plumb_report::wording::numbers::{self as words, Headline};
 
 use crate::action::{Action, Actions};
 use crate::axes;
@@ -184,19 +185,28 @@ fn plot_ui(view: &OnePass, o: &PassOutcome, own: &mut OnePassUi, ui: &mut egui::
 
 fn numbers_ui(o: &PassOutcome, y: &str, x: &str, ui: &mut egui::Ui) {
     let l = &o.line;
-    ui.label(RichText::new(format!("R² = {}", num(l.r_squared))).heading());
-    ui.label(format!("adjusted R² {}", num(l.adj_r_squared)));
+    // The same headline and words as the bench and `plumb fit`.
+    let head = Headline::of_line(l, y);
+    ui.label(RichText::new(head.r_squared()).heading())
+        .on_hover_text(head.r_squared_means());
+    ui.label(head.share());
     ui.label(format!("Pearson r {}", num(l.r)));
-    ui.label(format!(
-        "residual SE = {} on {} df",
-        num(l.residual_std_error),
-        l.anova.df_residual
-    ));
+    for line in head.lines() {
+        ui.label(format!("{} {}", line.label, line.figures))
+            .on_hover_text(line.means);
+    }
     ui.separator();
     egui::Grid::new("one-pass-model")
         .striped(true)
         .show(ui, |ui| {
-            for h in ["term", "estimate", "SE", "p", "95% interval"] {
+            let interval = words::interval(0.95);
+            for h in [
+                "term",
+                words::VALUE,
+                words::STANDARD_ERROR,
+                "p",
+                interval.as_str(),
+            ] {
                 ui.label(RichText::new(h).strong());
             }
             ui.end_row();
@@ -205,7 +215,7 @@ fn numbers_ui(o: &PassOutcome, y: &str, x: &str, ui: &mut egui::Ui) {
                 ui.label(num(c.estimate));
                 ui.label(num(c.std_error));
                 ui.label(p(c.p_value));
-                ui.label(format!("[{}, {}]", num(c.ci_low), num(c.ci_high)));
+                ui.label(words::interval_ends(c.ci_low, c.ci_high, 4));
                 ui.end_row();
             }
         });
@@ -222,7 +232,9 @@ fn rows_ui(o: &PassOutcome, y: &str, x: &str, ui: &mut egui::Ui) {
     let (l, s) = (&o.line, &o.summary);
     ui.label(format!(
         "{} rows used of {} in the file; {} left out for gaps",
-        l.n, s.rows, s.dropped_count
+        count(l.n as usize),
+        count(s.rows),
+        count(s.dropped_count)
     ));
     if !s.dropped.is_empty() {
         let rows: Vec<String> = s

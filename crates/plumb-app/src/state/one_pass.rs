@@ -187,11 +187,11 @@ impl OnePass {
         match result {
             Ok(o) => {
                 let line = format!(
-                    "read {} in two passes: {} rows, {} used, in {:.1} s",
+                    "read {} in two passes: {} rows, {} used, in {} s",
                     self.path.display(),
-                    o.summary.rows,
-                    o.line.n,
-                    elapsed.unwrap_or(0.0)
+                    plumb_report::text::count(o.summary.rows),
+                    plumb_report::text::count(o.line.n as usize),
+                    plumb_report::text::fixed(elapsed.unwrap_or(0.0), 1)
                 );
                 self.outcome = Some(o);
                 self.generation += 1;

@@ -42,7 +42,7 @@ pub enum CalibrationError {
         reading: f64,
     },
     /// The curve takes the reading at several x within the standards' range.
-    #[error("the curve takes this reading at several concentrations within the standards ({}): it is not monotone there; fit a lower degree or narrow the range", .0.iter().map(|v| format!("{v:.4}")).collect::<Vec<_>>().join(", "))]
+    #[error("the curve takes this reading at several concentrations within the standards ({}): it is not monotone there; fit a lower degree or narrow the range", .0.iter().map(|v| crate::short::trimmed(*v, 4)).collect::<Vec<_>>().join(", "))]
     SeveralRoots(Vec<f64>),
     /// A weighting rule would divide by zero (or, for 1/x, by a negative x).
     #[error("{rule} weighting is undefined at position {index} (value {value}): leave blanks and zero readings out of a weighted fit, or choose another weighting")]

@@ -466,7 +466,7 @@ fn describe_combination<'a>(parts: impl Iterator<Item = (&'a str, f64)>) -> Stri
     let shown: Vec<String> = parts
         .iter()
         .filter(|(_, c)| c.abs() > 1e-9 * peak)
-        .map(|(name, c)| format!("{c:.6}·{name}"))
+        .map(|(name, c)| format!("{}·{name}", crate::short::trimmed(*c, 6)))
         .collect();
     if shown.is_empty() {
         "zero".into()

@@ -105,13 +105,7 @@ impl Transform {
 
 /// `l` with at most four decimals and no trailing zeros.
 fn trim(l: f64) -> String {
-    let s = format!("{l:.4}");
-    let s = s.trim_end_matches('0').trim_end_matches('.');
-    if s == "-0" {
-        "0".into()
-    } else {
-        s.to_string()
-    }
+    crate::short::trimmed(l, 4)
 }
 
 #[cfg(test)]

@@ -209,8 +209,9 @@ fn check_level_sizes(file: &str, levels: &Levels) -> Result<(), AnalysisError> {
                 "2 rows"
             };
             return Err(AnalysisError::Request(format!(
-                "{file}: level '{name}' of '{}' has {n} row(s) on the rows used; each level needs at least {what}. Exclude that level's rows, merge it with another, or fit without the grouping",
-                levels.column
+                "{file}: level '{name}' of '{}' has {n} {} on the rows used; each level needs at least {what}. Exclude that level's rows, merge it with another, or fit without the grouping",
+                levels.column,
+                if n == 1 { "row" } else { "rows" }
             )));
         }
     }
@@ -280,8 +281,9 @@ pub(super) fn transformed(
     }
     let first: Vec<String> = bad.iter().take(8).map(ToString::to_string).collect();
     Err(AnalysisError::Request(format!(
-        "{file}, column '{column}': {} row(s) are not {} as {} needs (first: rows {}); exclude them or choose another transform",
+        "{file}, column '{column}': {} {} not {} as {} needs (first: rows {}); exclude them or choose another transform",
         bad.len(),
+        if bad.len() == 1 { "row is" } else { "rows are" },
         t.domain(),
         t.label(column),
         first.join(", ")
@@ -347,7 +349,7 @@ mod tests {
         )
         .expect_err("not positive");
         let text = e.to_string();
-        assert!(text.contains("2 row(s) are not positive"), "{text}");
+        assert!(text.contains("2 rows are not positive"), "{text}");
         assert!(
             text.contains("rows 5, 9") && text.contains("ln(conc)"),
             "{text}"

@@ -3,7 +3,7 @@
 //! with an ellipsis when long, the full name on hover). A grid too large for the panel scrolls.
 
 use eframe::egui::{self, Color32, FontId, Pos2, Rect, Sense, Vec2};
-use plumb_report::text::{num, p};
+use plumb_report::text::{count, fixed, num, p_clause};
 
 use super::key::Mark;
 use super::MapUi;
@@ -151,15 +151,15 @@ pub(super) fn cell_text(r: &MapResult, i: usize, j: usize) -> String {
     match m.r[i][j] {
         Some(v) => {
             s.push_str(&format!("{} = {}\n", r.key.method.as_str(), num(v)));
-            s.push_str(&format!("n = {} complete pairs\n", m.n[i][j]));
+            s.push_str(&format!("n = {} complete pairs\n", count(m.n[i][j])));
             if let Some(pv) = m.p_value[i][j] {
-                s.push_str(&format!("p = {}\n", p(pv)));
+                s.push_str(&format!("{}\n", p_clause(pv)));
             }
             if let Some(pa) = m.p_adjusted[i][j] {
                 s.push_str(&format!(
-                    "adjusted p = {} (over {} pairs)\n",
-                    p(pa),
-                    m.n_tests
+                    "adjusted: {} (over {} pairs)\n",
+                    p_clause(pa),
+                    count(m.n_tests)
                 ));
             }
             for (g, what) in [
@@ -175,7 +175,7 @@ pub(super) fn cell_text(r: &MapResult, i: usize, j: usize) -> String {
             }
         }
         None => {
-            s.push_str(&format!("n = {} complete pairs\n", m.n[i][j]));
+            s.push_str(&format!("n = {} complete pairs\n", count(m.n[i][j])));
             s.push_str(m.reason[i][j].as_deref().unwrap_or("undefined"));
             s.push('\n');
         }
@@ -297,7 +297,7 @@ fn cells(
             };
             let counted = cell >= COUNT_FROM_PX;
             if cell >= VALUE_FROM_PX && i != j {
-                let value = r.matrix.r[i][j].map_or_else(|| "—".to_string(), |v| format!("{v:.2}"));
+                let value = r.matrix.r[i][j].map_or_else(|| "—".to_string(), |v| fixed(v, 2));
                 let at = rect.center()
                     - Vec2::new(0.0, if counted { cell * 0.04 } else { -cell * 0.08 });
                 painter.text(
