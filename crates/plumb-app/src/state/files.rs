@@ -136,8 +136,8 @@ impl State {
             Ok(()) => self.say(format!(
                 "opened {} ({} rows, {} columns)",
                 path.display(),
-                loaded.dataset.table.n_rows(),
-                loaded.dataset.summaries.len()
+                plumb_report::text::count(loaded.dataset.table.n_rows()),
+                plumb_report::text::count(loaded.dataset.summaries.len())
             )),
         }
         self.map = super::map::MapModel::default();

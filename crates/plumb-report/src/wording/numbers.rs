@@ -4,7 +4,7 @@
 
 use plumb_core::regression::{LineSummary, LinearFit, RSquaredKind, StandardizedView};
 
-use crate::text::{num, p_clause, percent, sig};
+use crate::text::{count, num, p_clause, percent, sig};
 
 /// Column word for an estimated coefficient.
 pub const VALUE: &str = "value";
@@ -194,14 +194,16 @@ pub fn adjusted(adj_r_squared: f64, terms: usize) -> String {
 
 /// `± 0.322 (residual standard deviation, 158 df)`.
 pub fn typical_miss(sigma: f64, df: usize) -> String {
-    format!("± {} ({TYPICAL_MISS_IS}, {df} df)", num(sigma))
+    format!("± {} ({TYPICAL_MISS_IS}, {} df)", num(sigma), count(df))
 }
 
 /// `F 3.39 on 1 and 158 df, p = 0.068`.
 pub fn f_figures(f: f64, df_num: usize, df_den: usize, p_value: f64) -> String {
     format!(
-        "F {} on {df_num} and {df_den} df, {}",
+        "F {} on {} and {} df, {}",
         sig(f, 4),
+        count(df_num),
+        count(df_den),
         p_clause(p_value)
     )
 }
