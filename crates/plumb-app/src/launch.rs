@@ -80,6 +80,17 @@ impl eframe::App for Window {
     fn on_exit(&mut self, gl: Option<&eframe::glow::Context>) {
         eframe::App::on_exit(&mut self.wb, gl);
     }
+
+    /// A screenshot shows the screen as it stands, not wherever the X server happened to put
+    /// the pointer: pointer moves are dropped, so no tooltip or read-out lands in the picture.
+    fn raw_input_hook(&mut self, _ctx: &egui::Context, raw_input: &mut egui::RawInput) {
+        if self.shooter.is_some() {
+            raw_input.events.retain(|e| {
+                !matches!(e, egui::Event::PointerMoved(_) | egui::Event::MouseMoved(_))
+            });
+            raw_input.events.push(egui::Event::PointerGone);
+        }
+    }
 }
 
 /// Once the file is in: the pair, the exclusions and the screen asked for, as the actions an

@@ -163,6 +163,12 @@ pub fn deming(v: &Visuals) -> Color32 {
     }
 }
 
+/// The line of identity (y = x) in the method comparison: the text's ink, softened, so it
+/// reads in both themes without competing with the fitted lines.
+pub fn identity(v: &Visuals) -> Color32 {
+    v.text_color().gamma_multiply(0.6)
+}
+
 /// Opacity of plain markers among `n` points: opaque up to a few hundred, fading towards a
 /// quarter at the density image's threshold, so that a crowd shows where it is thick instead
 /// of merging into one blot.

@@ -95,6 +95,20 @@ pub fn fixed(v: f64, decimals: usize) -> String {
     }
 }
 
+/// Exactly `decimals` digits after the point, for values on one fixed scale shown side by side
+/// (a grid of coefficients between −1 and 1), so that their points line up; a value that
+/// rounds to zero is `0.00`, never `-0.00`; "—" when undefined.
+pub fn aligned(v: f64, decimals: usize) -> String {
+    if !v.is_finite() {
+        return "—".into();
+    }
+    let s = format!("{v:.decimals$}");
+    match s.strip_prefix('-') {
+        Some(rest) if rest.chars().all(|c| c == '0' || c == '.') => rest.to_string(),
+        _ => s,
+    }
+}
+
 /// A p-value for a table cell: three significant digits (`0.0676`, `0.5`, `1`), or
 /// `< 0.0001` below [`P_FLOOR`] (a p of exactly 0, a tail below the smallest double, too);
 /// "—" when undefined. In a sentence use [`p_clause`].
@@ -207,6 +221,16 @@ pub fn shell_word(a: &str) -> String {
 
 #[cfg(test)]
 mod tests {
+
+    #[test]
+    fn aligned_keeps_its_decimals_and_never_writes_minus_zero() {
+        assert_eq!(aligned(0.0, 2), "0.00");
+        assert_eq!(aligned(-0.001, 2), "0.00");
+        assert_eq!(aligned(-0.56, 2), "-0.56");
+        assert_eq!(aligned(0.1, 2), "0.10");
+        assert_eq!(aligned(f64::NAN, 2), "—");
+    }
+
     use super::*;
 
     #[test]

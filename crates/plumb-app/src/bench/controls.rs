@@ -35,7 +35,7 @@ pub fn controls_ui(
             ui.separator();
         }
         if !data.groups.is_empty() {
-            out.push_some(colour_ui(bench, data, ui));
+            out.push_some(ui.horizontal(|ui| colour_ui(bench, data, ui)).inner);
             ui.separator();
         }
         pointer_ui(mode, ui);

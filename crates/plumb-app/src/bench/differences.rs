@@ -31,10 +31,21 @@ pub fn differences_ui(
     } else {
         format!("{} − {}", scene.pair.spec.y, scene.pair.spec.x0())
     };
+    let top = ui.cursor().top();
+    super::points::title_ui(ui, "Differences against the mean of the two methods", TIP);
+    let trend = scene
+        .bench
+        .diagnostics()
+        .and_then(|d| d.agreement.as_ref())
+        .and_then(|a| a.as_ref().ok())
+        .and_then(|a| a.limits.as_ref().ok())
+        .is_some_and(|l| l.proportional.is_some());
+    super::key::key_row_ui(ui, &differences_keys(ui.visuals(), trend));
+    let size = size - Vec2::new(0.0, ui.cursor().top() - top);
     let view = Diagnostic {
         id: "differences",
         variant: u64::from(percent),
-        title: "Differences against the mean of the two methods",
+        title: "",
         tip: TIP,
         x_label: "mean of the two methods",
         y_label: &y_label,
@@ -108,13 +119,40 @@ fn beyond_text(scene: &Scene<'_>, beyond: &[(usize, f64)]) -> String {
     )
 }
 
+/// The view's key, in the colours and strokes [`agreement_guides`] draws with.
+fn differences_keys(v: &egui::Visuals, trend: bool) -> Vec<super::key::Key> {
+    use super::key::{Key, Swatch};
+    let c = palette::fit(v);
+    let mut keys = vec![
+        Key {
+            swatch: Swatch::Line(c, 2.0),
+            name: "bias (mean difference)".into(),
+        },
+        Key {
+            swatch: Swatch::Dashed(c),
+            name: "limits of agreement".into(),
+        },
+        Key {
+            swatch: Swatch::Line(c, 3.0),
+            name: "their 95 % intervals (bars at the right)".into(),
+        },
+    ];
+    if trend {
+        keys.push(Key {
+            swatch: Swatch::Line(palette::focus(v).gamma_multiply(0.7), 1.0),
+            name: "trend with the level".into(),
+        });
+    }
+    keys
+}
+
 /// The bias, the limits, their intervals and the trend, across the cloud's extent.
 fn agreement_guides(pu: &mut PlotUi<'_>, cloud: &Cloud, l: &AgreementLimits, v: &egui::Visuals) {
     let Some(b) = cloud.bounds else { return };
     let (x0, x1) = (b.x_min, b.x_max);
     let c = palette::fit(v);
     // Each interval as a capped bar just right of the points.
-    let (at, cap) = (x1 + 0.04 * (x1 - x0), 0.015 * (x1 - x0));
+    let (at, cap) = (x1 + 0.08 * (x1 - x0), 0.015 * (x1 - x0));
     for (lo, hi) in [l.bias_interval, l.lower_interval, l.upper_interval] {
         let bar = vec![
             [at - cap, lo],

@@ -49,40 +49,39 @@ impl Key {
 /// Width of a swatch in points.
 const SWATCH: f32 = 22.0;
 
-/// Draws `keys` as one wrapped row of swatches and names, each name a label (so the key can
-/// be read, and checked, like any text).
+/// Draws `keys` as one wrapped row of entries, each a swatch with its name as one piece (a
+/// row break never parts a name from its swatch), named for assistive technology and tests.
 pub fn key_row_ui(ui: &mut egui::Ui, keys: &[Key]) {
     ui.horizontal_wrapped(|ui| {
-        ui.spacing_mut().item_spacing.x = 4.0;
+        ui.spacing_mut().item_spacing.x = 12.0;
         for k in keys {
-            // A swatch and its name stay on one line; the row wraps between entries.
-            let name = egui::RichText::new(&k.name).small();
-            let label = egui::Label::new(name).wrap_mode(egui::TextWrapMode::Extend);
-            let width = SWATCH
-                + 4.0
-                + ui.ctx().fonts_mut(|f| {
-                    f.layout_no_wrap(
-                        k.name.clone(),
-                        egui::TextStyle::Small.resolve(ui.style()),
-                        egui::Color32::WHITE,
-                    )
-                    .size()
-                    .x
-                });
-            if ui.available_width() < width {
-                ui.end_row();
-            }
-            swatch_ui(ui, k.swatch);
-            ui.add(label);
-            ui.add_space(8.0);
+            entry_ui(ui, k);
         }
     });
 }
 
-fn swatch_ui(ui: &mut egui::Ui, swatch: Swatch) {
-    let h = ui.text_style_height(&egui::TextStyle::Small);
-    let (rect, _) = ui.allocate_exact_size(Vec2::new(SWATCH, h), Sense::hover());
-    let p = ui.painter();
+fn entry_ui(ui: &mut egui::Ui, k: &Key) {
+    let font = egui::TextStyle::Small.resolve(ui.style());
+    let ink = ui.visuals().text_color();
+    let galley = ui.painter().layout_no_wrap(k.name.clone(), font, ink);
+    let h = galley
+        .size()
+        .y
+        .max(ui.text_style_height(&egui::TextStyle::Small));
+    let size = Vec2::new(SWATCH + 4.0 + galley.size().x, h);
+    let (rect, response) = ui.allocate_exact_size(size, Sense::hover());
+    let swatch = egui::Rect::from_min_size(rect.min, Vec2::new(SWATCH, h));
+    swatch_paint(ui.painter(), swatch, k.swatch);
+    let at = egui::pos2(
+        swatch.right() + 4.0,
+        rect.center().y - galley.size().y / 2.0,
+    );
+    ui.painter().galley(at, galley, ink);
+    response.widget_info(|| egui::WidgetInfo::labeled(egui::Role::Label, true, &k.name));
+}
+
+fn swatch_paint(p: &egui::Painter, rect: egui::Rect, swatch: Swatch) {
+    let h = rect.height();
     let (l, r, c) = (rect.left() + 2.0, rect.right() - 2.0, rect.center());
     match swatch {
         Swatch::Dot(col) => {
@@ -148,7 +147,7 @@ pub fn scatter_keys(scene: &Scene<'_>, v: &egui::Visuals) -> Vec<Key> {
     let d = scene.bench.diagnostics();
     if mode == BenchMode::Agreement {
         keys.push(Key::new(
-            Swatch::Dashed(v.weak_text_color()),
+            Swatch::Dashed(palette::identity(v)),
             "line of identity",
         ));
         if let Some(Ok(a)) = d.and_then(|d| d.agreement.as_ref()) {
@@ -159,7 +158,7 @@ pub fn scatter_keys(scene: &Scene<'_>, v: &egui::Visuals) -> Vec<Key> {
                 ));
             }
             if a.deming.is_ok() {
-                keys.push(Key::new(Swatch::Dashed(palette::kept(v)), "Deming"));
+                keys.push(Key::new(Swatch::Dashed(palette::deming(v)), "Deming"));
             }
         }
         return keys;

@@ -50,7 +50,7 @@ pub fn method_lines(pu: &mut PlotUi<'_>, d: &Diagnostics, v: &egui::Visuals, (x0
     let along = |a: f64, b: f64| vec![[x0, a + b * x0], [x1, a + b * x1]];
     pu.line(
         Line::new("line of identity", along(0.0, 1.0))
-            .color(v.weak_text_color())
+            .color(palette::identity(v))
             .style(LineStyle::dashed_loose())
             .allow_hover(false),
     );
@@ -66,7 +66,7 @@ pub fn method_lines(pu: &mut PlotUi<'_>, d: &Diagnostics, v: &egui::Visuals, (x0
     if let Ok(dm) = &a.deming {
         pu.line(
             Line::new("Deming", along(dm.fit.intercept, dm.fit.slope))
-                .color(palette::kept(v))
+                .color(palette::deming(v))
                 .width(1.5)
                 .style(LineStyle::dashed_dense())
                 .allow_hover(false),

@@ -35,6 +35,7 @@ use crate::state::pair::PairRows;
 use crate::state::reading::BenchMode;
 use crate::state::{BenchModel, State};
 
+pub use numbers::{coefficient_table, TermRow};
 pub use reason::reason_prompt_ui;
 
 use numbers::SortKey;

@@ -37,21 +37,26 @@ pub fn model_ui(current: Option<&FitSpec>, data: &Dataset, ui: &mut egui::Ui) ->
         (data.numeric.len() >= 2).then(|| FitSpec::line(&data.numeric[1], &data.numeric[0]))
     })?;
     let mut s = start.clone();
-    response_ui(&mut s, data, ui);
+    // Each label keeps to its control when the row wraps in a narrow window.
+    ui.horizontal(|ui| response_ui(&mut s, data, ui));
     predictors_ui(&mut s, data, ui);
-    ui.add_enabled_ui(s.x.len() == 1, |ui| {
-        ui.label("degree:");
-        ui.add(egui::DragValue::new(&mut s.degree).range(1..=plumb_core::regression::MAX_DEGREE))
+    ui.horizontal(|ui| {
+        ui.add_enabled_ui(s.x.len() == 1, |ui| {
+            ui.label("degree:");
+            ui.add(
+                egui::DragValue::new(&mut s.degree).range(1..=plumb_core::regression::MAX_DEGREE),
+            )
             .on_hover_text(
                 "1 = straight line; 2, 3, … = polynomial in the predictor (one predictor only)",
             );
+        })
     });
     if s.x.len() > 1 {
         s.degree = 1;
     }
     ui.checkbox(&mut s.intercept, "intercept")
         .on_hover_text("Off: the fit is forced through the origin (R² is then uncentred)");
-    weights_ui(&mut s, data, ui);
+    ui.horizontal(|ui| weights_ui(&mut s, data, ui));
     factor_ui(&mut s, data, ui);
     let changed = current.is_none_or(|c| *c != s);
     changed.then_some(Action::OpenPair(s))
@@ -94,23 +99,25 @@ fn predictors_ui(s: &mut FitSpec, data: &Dataset, ui: &mut egui::Ui) {
         } else {
             "Another predictor of the model"
         };
-        column_choice(
-            ui,
-            &format!("predictor-{k}"),
-            &label,
-            &mut s.x[k],
-            &data.numeric,
-            tip,
-        );
-        scale_ui(s, k, ui);
-        if k > 0
-            && ui
-                .small_button("×")
-                .on_hover_text(format!("Take {} out of the model", s.x[k]))
-                .clicked()
-        {
-            remove = Some(k);
-        }
+        ui.horizontal(|ui| {
+            column_choice(
+                ui,
+                &format!("predictor-{k}"),
+                &label,
+                &mut s.x[k],
+                &data.numeric,
+                tip,
+            );
+            scale_ui(s, k, ui);
+            if k > 0
+                && ui
+                    .small_button("×")
+                    .on_hover_text(format!("Take {} out of the model", s.x[k]))
+                    .clicked()
+            {
+                remove = Some(k);
+            }
+        });
     }
     if let Some(k) = remove {
         let gone = s.x.remove(k);

@@ -195,32 +195,80 @@ fn model_ui(ui: &mut egui::Ui, scene: &Scene<'_>, s: &LiveSummary, hypothetical:
         });
     }
     model_numbers::scale_ui(ui, scene, scene.bench.diagnostics().map(AsRef::as_ref));
-    egui::ScrollArea::horizontal()
-        .id_salt("model-table-scroll")
-        .show(ui, |ui| {
-            model_grid(ui, pair, s);
-        });
+    let rows: Vec<TermRow> = pair
+        .terms
+        .iter()
+        .enumerate()
+        .map(|(j, t)| TermRow {
+            term: t.clone(),
+            value: s.estimates[j],
+            std_error: s.std_errors[j],
+            p: s.p_values[j],
+            interval: s.ci[j],
+        })
+        .collect();
+    coefficient_table(ui, "model-table", &rows, pair.spec.level);
     copy_buttons(ui, pair, s, hypothetical);
 }
 
-fn model_grid(ui: &mut egui::Ui, pair: &PairRows, s: &LiveSummary) {
-    let interval = words::interval(pair.spec.level);
-    egui::Grid::new("model-table").striped(true).show(ui, |ui| {
-        // p before the interval: in a narrow panel the interval is what scrolls out of view.
-        for h in ["term", words::VALUE, words::STANDARD_ERROR, "p", &interval] {
+/// One term of a coefficient table.
+pub struct TermRow {
+    /// The term's name.
+    pub term: String,
+    /// Its value.
+    pub value: f64,
+    /// Its standard error.
+    pub std_error: f64,
+    /// Its p-value.
+    pub p: f64,
+    /// Its interval at the table's level.
+    pub interval: (f64, f64),
+}
+
+/// Below this width the interval leaves the table for a line per term under it, so that no
+/// column is cut at the panel's edge.
+const TABLE_WITH_INTERVAL_FROM: f32 = 440.0;
+
+/// The coefficient table the bench and the one-pass view share: term, value, ± standard
+/// error, p and the interval at `level` — in a narrow panel the intervals go under the table.
+pub fn coefficient_table(ui: &mut egui::Ui, id: &str, rows: &[TermRow], level: f64) {
+    let interval = words::interval(level);
+    let wide = ui.available_width() >= TABLE_WITH_INTERVAL_FROM;
+    let se = if wide {
+        words::STANDARD_ERROR
+    } else {
+        words::STANDARD_ERROR_SHORT
+    };
+    egui::Grid::new(id).striped(true).show(ui, |ui| {
+        let mut heads = vec!["term", words::VALUE, se, "p"];
+        if wide {
+            heads.push(&interval);
+        }
+        for h in heads {
             ui.label(RichText::new(h).strong());
         }
         ui.end_row();
-        for (j, t) in pair.terms.iter().enumerate() {
-            ui.label(t);
-            ui.label(num(s.estimates[j]));
-            ui.label(num(s.std_errors[j]));
-            ui.label(p(s.p_values[j]));
-            ui.label(words::interval_ends(s.ci[j].0, s.ci[j].1, 4))
-                .on_hover_text(words::interval_ends(s.ci[j].0, s.ci[j].1, 6));
+        for r in rows {
+            ui.label(&r.term);
+            ui.label(num(r.value));
+            ui.label(num(r.std_error));
+            ui.label(p(r.p));
+            if wide {
+                ui.label(words::interval_ends(r.interval.0, r.interval.1, 4))
+                    .on_hover_text(words::interval_ends(r.interval.0, r.interval.1, 6));
+            }
             ui.end_row();
         }
     });
+    if !wide {
+        for r in rows {
+            ui.label(format!(
+                "{interval} of {}: {}",
+                r.term,
+                words::interval_ends(r.interval.0, r.interval.1, 4)
+            ));
+        }
+    }
 }
 
 fn copy_buttons(ui: &mut egui::Ui, pair: &PairRows, s: &LiveSummary, hypothetical: bool) {

@@ -3,12 +3,13 @@
 
 use eframe::egui::{self, RichText, Vec2};
 use egui_plot::{Line, PlotPoints};
-use plumb_report::text::{count, num, p};
+use plumb_report::text::{count, num};
 use plumb_report::wording;
-use plumb_report::wording::numbers::{self as words, Headline};
+use plumb_report::wording::numbers::Headline;
 
 use crate::action::{Action, Actions};
 use crate::axes;
+use crate::bench::{coefficient_table, TermRow};
 use crate::density::texture::{colour_image, image_over};
 use crate::palette;
 use crate::state::one_pass::{OnePass, PassOutcome};
@@ -51,7 +52,12 @@ pub fn one_pass_ui(view: Option<&OnePass>, own: &mut OnePassUi, ui: &mut egui::U
     ui.horizontal_top(|ui| {
         let plot_size = Vec2::new((avail.x * 0.62).max(300.0), avail.y.max(300.0));
         plot_ui(view, outcome, own, ui, plot_size);
-        ui.vertical(|ui| numbers_ui(outcome, &view.y, &view.x, ui));
+        // The numbers keep to what the plot leaves, wrapping instead of running off the window.
+        let rest = (avail.x - plot_size.x - 2.0 * ui.spacing().item_spacing.x).max(200.0);
+        ui.vertical(|ui| {
+            ui.set_max_width(rest);
+            numbers_ui(outcome, &view.y, &view.x, ui);
+        });
     });
     out
 }
@@ -196,29 +202,17 @@ fn numbers_ui(o: &PassOutcome, y: &str, x: &str, ui: &mut egui::Ui) {
             .on_hover_text(line.means);
     }
     ui.separator();
-    egui::Grid::new("one-pass-model")
-        .striped(true)
-        .show(ui, |ui| {
-            let interval = words::interval(0.95);
-            for h in [
-                "term",
-                words::VALUE,
-                words::STANDARD_ERROR,
-                "p",
-                interval.as_str(),
-            ] {
-                ui.label(RichText::new(h).strong());
-            }
-            ui.end_row();
-            for c in [&l.intercept, &l.slope] {
-                ui.label(&c.term);
-                ui.label(num(c.estimate));
-                ui.label(num(c.std_error));
-                ui.label(p(c.p_value));
-                ui.label(words::interval_ends(c.ci_low, c.ci_high, 4));
-                ui.end_row();
-            }
-        });
+    let rows: Vec<TermRow> = [&l.intercept, &l.slope]
+        .iter()
+        .map(|c| TermRow {
+            term: c.term.clone(),
+            value: c.estimate,
+            std_error: c.std_error,
+            p: c.p_value,
+            interval: (c.ci_low, c.ci_high),
+        })
+        .collect();
+    coefficient_table(ui, "one-pass-model", &rows, 0.95);
     ui.separator();
     rows_ui(o, y, x, ui);
     ui.add_space(8.0);

@@ -9,7 +9,7 @@ use crate::text::fixed;
 pub const NOT_NESTED_HINT: &str =
     "Compare them by adjusted R², AIC and BIC; the F test needs one model inside the other on the same rows and scale.";
 
-/// `F 4.12 on 2 and 37 df, p = 0.024` ([`super::numbers::f_figures`]).
+/// `p = 0.024 (F = 4.12 with 2 and 37 df)` ([`super::numbers::f_figures`]).
 pub fn f_test(c: &NestedComparison) -> String {
     super::numbers::f_figures(c.f_statistic, c.df_num, c.df_den, c.p_value)
 }

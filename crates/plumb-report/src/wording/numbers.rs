@@ -197,14 +197,14 @@ pub fn typical_miss(sigma: f64, df: usize) -> String {
     format!("± {} ({TYPICAL_MISS_IS}, {} df)", num(sigma), count(df))
 }
 
-/// `F 3.39 on 1 and 158 df, p = 0.068`.
+/// `p = 0.068 (F = 3.39 with 1 and 158 df)`: the p-value first, the statistic behind it.
 pub fn f_figures(f: f64, df_num: usize, df_den: usize, p_value: f64) -> String {
     format!(
-        "F {} on {} and {} df, {}",
+        "{} (F = {} with {} and {} df)",
+        p_clause(p_value),
         sig(f, 4),
         count(df_num),
-        count(df_den),
-        p_clause(p_value)
+        count(df_den)
     )
 }
 
@@ -269,11 +269,11 @@ mod tests {
         );
         assert_eq!(
             f_figures(3.3912, 1, 158, 0.0675),
-            "F 3.391 on 1 and 158 df, p = 0.0675"
+            "p = 0.0675 (F = 3.391 with 1 and 158 df)"
         );
         assert_eq!(
             f_figures(900.0, 1, 158, 1e-90),
-            "F 900 on 1 and 158 df, p < 0.0001"
+            "p < 0.0001 (F = 900 with 1 and 158 df)"
         );
         assert_eq!(interval(0.95), "95 % interval");
         assert_eq!(interval(0.999), "99.9 % interval");
@@ -295,7 +295,7 @@ mod tests {
         assert_eq!(h.r_squared(), "R² = 0.5");
         let labels: Vec<&str> = h.lines().iter().map(|l| l.label).collect();
         assert_eq!(labels, ["adjusted R²", TYPICAL_MISS, WHOLE_MODEL_TEST]);
-        assert_eq!(h.lines()[2].figures, "F 10 on 1 and 10 df, p = 0.01");
+        assert_eq!(h.lines()[2].figures, "p = 0.01 (F = 10 with 1 and 10 df)");
         h.centred = false;
         h.kinds.push("weighted".into());
         h.f_test = None;

@@ -3,7 +3,7 @@
 //! with an ellipsis when long, the full name on hover). A grid too large for the panel scrolls.
 
 use eframe::egui::{self, Color32, FontId, Pos2, Rect, Sense, Vec2};
-use plumb_report::text::{count, fixed, num, p_clause};
+use plumb_report::text::{aligned, count, num, p_clause};
 
 use super::key::Mark;
 use super::MapUi;
@@ -297,7 +297,7 @@ fn cells(
             };
             let counted = cell >= COUNT_FROM_PX;
             if cell >= VALUE_FROM_PX && i != j {
-                let value = r.matrix.r[i][j].map_or_else(|| "—".to_string(), |v| fixed(v, 2));
+                let value = r.matrix.r[i][j].map_or_else(|| "—".to_string(), |v| aligned(v, 2));
                 let at = rect.center()
                     - Vec2::new(0.0, if counted { cell * 0.04 } else { -cell * 0.08 });
                 painter.text(

@@ -165,6 +165,7 @@ fn controls_ui(
         ui.checkbox(&mut own.by_similarity, "group similar columns")
             .on_hover_text("Order the columns so that those moving together sit together (average-linkage clustering on 1 − |r|); off: file order");
         ui.separator();
+        ui.horizontal(|ui| {
         ui.label("Row order:");
         egui::ComboBox::from_id_salt("order-column")
             .selected_text(key.order.clone().unwrap_or_else(|| "none".into()))
@@ -176,6 +177,7 @@ fn controls_ui(
             })
             .response
             .on_hover_text("A time or run-order column: each pair is also correlated on first differences and after removing a linear trend, to expose drifts shared by both columns");
+        });
     });
     (key != *current).then_some(Action::MapSettings(key))
 }
