@@ -5,14 +5,12 @@
 
 mod common;
 
-use std::time::{Duration, Instant};
-
 use eframe::egui;
 use egui_kittest::kittest::{NodeT, Queryable};
 use egui_kittest::Harness;
 use plumb_app::{Action, FitSpec, Overlays, Workbench};
 
-use common::demo;
+use common::{demo, harness_sized, settle_ui as settle};
 
 const SIZES: [(f32, f32); 3] = [(1024.0, 640.0), (1440.0, 900.0), (1920.0, 1080.0)];
 
@@ -20,33 +18,6 @@ const SIZES: [(f32, f32); 3] = [(1024.0, 640.0), (1440.0, 900.0), (1920.0, 1080.
 /// of up to 60 points each, three y labels 28 points apart (the room `axes` gives a label;
 /// egui_plot hides a label only when ticks come closer than 24 points across, 16 up).
 const MIN_PLOT: (f32, f32) = (3.0 * 60.0, 3.0 * 28.0);
-
-fn harness(size: (f32, f32), config: &std::path::Path) -> Harness<'static, Workbench> {
-    Harness::builder()
-        .with_size(egui::Vec2::new(size.0, size.1))
-        .build_ui_state(
-            |ui, wb: &mut Workbench| wb.show(ui),
-            Workbench::new(Some(config.to_path_buf())),
-        )
-}
-
-fn settle(h: &mut Harness<'_, Workbench>) {
-    let start = Instant::now();
-    loop {
-        h.step();
-        if !h.state().is_busy() {
-            h.run_steps(4);
-            if !h.state().is_busy() {
-                return;
-            }
-        }
-        assert!(
-            start.elapsed() < Duration::from_secs(120),
-            "background work did not finish"
-        );
-        std::thread::sleep(Duration::from_millis(10));
-    }
-}
 
 fn open(h: &mut Harness<'_, Workbench>, file: &std::path::Path, y: &str, x: &str) {
     h.state_mut().apply(Action::Open(file.to_path_buf()));
@@ -81,7 +52,7 @@ fn every_view_has_room_for_its_axes_and_no_view_covers_another_at_three_sizes() 
     let data = demo("field-survey.csv");
     for size in SIZES {
         let config = tempfile::tempdir().expect("config dir");
-        let mut h = harness(size, config.path());
+        let mut h = harness_sized(size, config.path());
         open(&mut h, &data, "leaf_n_pct", "soil_temp_c");
         let shown = plots(&h);
         for (name, r) in &shown {
@@ -126,7 +97,7 @@ fn the_keys_sit_outside_the_plots_with_every_overlay_and_groups_on() {
     let data = demo("jar-tests.csv");
     for size in SIZES {
         let config = tempfile::tempdir().expect("config dir");
-        let mut h = harness(size, config.path());
+        let mut h = harness_sized(size, config.path());
         open(&mut h, &data, "settled_ntu", "dose_mg_l");
         h.state_mut().apply(Action::SetOverlays(Overlays {
             theil_sen: true,
@@ -199,7 +170,7 @@ fn a_dense_file_gets_its_residual_strip_and_influence_view() {
     }
     std::fs::write(&path, text).expect("write");
     let config = tempfile::tempdir().expect("config dir");
-    let mut h = harness((1440.0, 900.0), config.path());
+    let mut h = harness_sized((1440.0, 900.0), config.path());
     open(&mut h, &path, "y", "x");
     let d = h.state().bench().diagnostics().expect("diagnostics");
     assert!(
@@ -236,7 +207,7 @@ fn each_view_saves_as_its_own_chart_file() {
     let data = demo("field-survey.csv");
     let config = tempfile::tempdir().expect("config dir");
     let out = tempfile::tempdir().expect("out dir");
-    let mut h = harness((1440.0, 900.0), config.path());
+    let mut h = harness_sized((1440.0, 900.0), config.path());
     open(&mut h, &data, "leaf_n_pct", "soil_temp_c");
     h.state_mut().apply(Action::Exclude {
         rows: vec![133],

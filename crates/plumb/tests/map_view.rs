@@ -4,43 +4,12 @@
 mod common;
 
 use std::path::Path;
-use std::time::{Duration, Instant};
 
-use eframe::egui;
 use egui_kittest::kittest::{NodeT, Queryable};
 use egui_kittest::Harness;
 use plumb_app::{Action, Screen, Workbench};
 
-use common::demo;
-
-fn harness(config: &Path) -> Harness<'static, Workbench> {
-    Harness::builder()
-        .with_size(egui::Vec2::new(1440.0, 900.0))
-        .build_ui_state(
-            |ui, wb: &mut Workbench| wb.show(ui),
-            Workbench::new(Some(config.to_path_buf())),
-        )
-}
-
-/// Steps frames until background work is done (the loader, the map and diagnostics run on
-/// threads).
-fn settle(h: &mut Harness<'_, Workbench>) {
-    let start = Instant::now();
-    loop {
-        h.step();
-        if !h.state().is_busy() {
-            h.run_steps(3);
-            if !h.state().is_busy() {
-                return;
-            }
-        }
-        assert!(
-            start.elapsed() < Duration::from_secs(60),
-            "background work did not finish"
-        );
-        std::thread::sleep(Duration::from_millis(10));
-    }
-}
+use common::{demo, harness, settle_ui as settle};
 
 /// The field survey open on the map.
 fn survey_on_the_map(config: &Path) -> Harness<'static, Workbench> {

@@ -7,14 +7,14 @@ mod common;
 
 use std::path::Path;
 use std::process::Command;
-use std::time::{Duration, Instant};
+use std::time::Duration;
 
 use eframe::egui;
 use egui_kittest::kittest::{NodeT, Queryable};
 use egui_kittest::Harness;
 use plumb_app::{Action, Workbench};
 
-use common::{cli_fit, demo, sha256};
+use common::{cli_fit, demo, harness, settle_ui as settle, sha256};
 
 /// `R² = …` as the workbench prints it, for `plumb fit` on the same request.
 fn cli_r_squared(data: &Path, y: &str, x: &str, exclude: &str) -> String {
@@ -23,34 +23,6 @@ fn cli_r_squared(data: &Path, y: &str, x: &str, exclude: &str) -> String {
         "R² = {}",
         plumb_report::text::num(v["r_squared"].as_f64().expect("r²"))
     )
-}
-
-fn harness(config: &Path) -> Harness<'static, Workbench> {
-    Harness::builder()
-        .with_size(egui::Vec2::new(1440.0, 900.0))
-        .build_ui_state(
-            |ui, wb: &mut Workbench| wb.show(ui),
-            Workbench::new(Some(config.to_path_buf())),
-        )
-}
-
-/// Steps frames until background work is done (the loader and diagnostics run on threads).
-fn settle(h: &mut Harness<'_, Workbench>) {
-    let start = Instant::now();
-    loop {
-        h.step();
-        if !h.state().is_busy() {
-            h.run_steps(3);
-            if !h.state().is_busy() {
-                return;
-            }
-        }
-        assert!(
-            start.elapsed() < Duration::from_secs(60),
-            "background work did not finish"
-        );
-        std::thread::sleep(Duration::from_millis(10));
-    }
 }
 
 fn shown_r_squared(h: &Harness<'_, Workbench>) -> String {

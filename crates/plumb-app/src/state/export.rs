@@ -112,21 +112,7 @@ pub fn chart_of(
             let curve = d
                 .extras
                 .as_ref()
-                .map(|e| {
-                    e.bands()
-                        .iter()
-                        .map(|b| {
-                            [
-                                b.x,
-                                b.fitted,
-                                b.mean_low,
-                                b.mean_high,
-                                b.predict_low,
-                                b.predict_high,
-                            ]
-                        })
-                        .collect()
-                })
+                .map(|e| plumb_report::charts::band_rows(e.bands()))
                 .unwrap_or_default();
             let data = PairChart {
                 x_label: spec.x0(),

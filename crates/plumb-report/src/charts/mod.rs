@@ -83,6 +83,24 @@ pub struct PairChart<'a> {
     pub lines: Vec<ChartLine>,
 }
 
+/// The bands along a fitted curve as the pair chart's rows:
+/// `(x, fitted, mean_low, mean_high, predict_low, predict_high)`.
+pub fn band_rows(bands: &[plumb_core::regression::BandPoint]) -> Vec<[f64; 6]> {
+    bands
+        .iter()
+        .map(|b| {
+            [
+                b.x,
+                b.fitted,
+                b.mean_low,
+                b.mean_high,
+                b.predict_low,
+                b.predict_high,
+            ]
+        })
+        .collect()
+}
+
 /// A labelled curve of the pair chart.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ChartLine {

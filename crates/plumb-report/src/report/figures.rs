@@ -147,20 +147,7 @@ fn pair_figure(
     let sel = &outcome.rows.selection;
     let mut all = dots(sel.columns[1].iter().zip(&sel.columns[0]));
     all.extend(excluded_dots(input, outcome, &request.x[0]));
-    let curve = e
-        .bands()
-        .iter()
-        .map(|b| {
-            [
-                b.x,
-                b.fitted,
-                b.mean_low,
-                b.mean_high,
-                b.predict_low,
-                b.predict_high,
-            ]
-        })
-        .collect();
+    let curve = crate::charts::band_rows(e.bands());
     let data = PairChart {
         x_label: &request.x[0],
         y_label: &request.y,

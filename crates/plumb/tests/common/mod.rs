@@ -114,3 +114,38 @@ pub fn settle(wb: &mut Workbench) {
 pub fn live(wb: &Workbench) -> LiveSummary {
     wb.bench().summary().expect("a pair").expect("a fit")
 }
+
+/// The workbench in a test harness of `size` points, its settings in `config`.
+pub fn harness_sized(size: (f32, f32), config: &Path) -> egui_kittest::Harness<'static, Workbench> {
+    egui_kittest::Harness::builder()
+        .with_size(eframe::egui::Vec2::new(size.0, size.1))
+        .build_ui_state(
+            |ui, wb: &mut Workbench| wb.show(ui),
+            Workbench::new(Some(config.to_path_buf())),
+        )
+}
+
+/// The workbench in a 1440 × 900 test harness, its settings in `config`.
+pub fn harness(config: &Path) -> egui_kittest::Harness<'static, Workbench> {
+    harness_sized((1440.0, 900.0), config)
+}
+
+/// Steps frames until background work is done (the loader, the map and the diagnostics run
+/// on threads), for at most two minutes.
+pub fn settle_ui(h: &mut egui_kittest::Harness<'_, Workbench>) {
+    let start = std::time::Instant::now();
+    loop {
+        h.step();
+        if !h.state().is_busy() {
+            h.run_steps(4);
+            if !h.state().is_busy() {
+                return;
+            }
+        }
+        assert!(
+            start.elapsed() < Duration::from_secs(120),
+            "background work did not finish"
+        );
+        std::thread::sleep(Duration::from_millis(10));
+    }
+}
