@@ -56,12 +56,17 @@ pub fn run(args: &InfluenceArgs) -> anyhow::Result<String> {
     )?;
     let wanted = Wanted {
         influence: true,
+        dfbetas: true,
         extras: None,
         ..Wanted::default()
     };
     let request = args.model.request(&table).map_err(anyhow::Error::msg)?;
     let outcome = analyze(&table, &request, wanted)?;
     let cases = &outcome.cases;
+    let dfbetas = outcome
+        .dfbetas
+        .as_ref()
+        .ok_or_else(|| anyhow::anyhow!("the DFBETAS were asked for and not computed"))?;
     let n = outcome.fit.n;
     let p = outcome.fit.coefficients.len();
     let thresholds = Thresholds {
@@ -76,7 +81,8 @@ pub fn run(args: &InfluenceArgs) -> anyhow::Result<String> {
         .rows
         .iter()
         .zip(cases)
-        .map(|(&row, c)| row_json(row, c))
+        .enumerate()
+        .map(|(i, (&row, c))| row_json(row, c, dfbetas.row(i)))
         .collect();
     Ok(match args.format {
         Format::Json => {
@@ -99,7 +105,7 @@ pub fn run(args: &InfluenceArgs) -> anyhow::Result<String> {
     })
 }
 
-fn row_json(row: usize, c: &CaseInfluence) -> RowJson<'_> {
+fn row_json<'a>(row: usize, c: &'a CaseInfluence, dfbetas: &'a [f64]) -> RowJson<'a> {
     RowJson {
         row,
         fitted: c.fitted,
@@ -109,7 +115,7 @@ fn row_json(row: usize, c: &CaseInfluence) -> RowJson<'_> {
         studentized_external: c.studentized_external,
         cooks_distance: c.cooks_distance,
         dffits: c.dffits,
-        dfbetas: &c.dfbetas,
+        dfbetas,
         flags: c.flags.iter().map(|f| f.as_str()).collect(),
         letters: flag_letters(&c.flags),
     }

@@ -180,6 +180,8 @@ pub struct GroupLine {
 pub fn compute(input: &Input) -> Diagnostics {
     let wanted = Wanted {
         influence: true,
+        // The bench never shows DFBETAS: a case carries no per-row vector.
+        dfbetas: false,
         extras: Some(ExtrasRequest {
             robust: input.overlays.theil_sen.then_some(Robust::TheilSen),
             loess_span: input.overlays.loess.then_some(input.overlays.loess_span),

@@ -321,7 +321,7 @@ mod tests {
     use super::*;
     use crate::density::Bounds;
 
-    use plumb_core::regression::InfluenceFlag;
+    use plumb_core::regression::{Flags, InfluenceFlag};
 
     fn case(d: f64, flagged: bool) -> CaseInfluence {
         CaseInfluence {
@@ -332,11 +332,10 @@ mod tests {
             studentized_external: 1.0,
             cooks_distance: d,
             dffits: 0.0,
-            dfbetas: Vec::new(),
             flags: if flagged {
-                vec![InfluenceFlag::LargeCooksDistance]
+                Flags::of(&[InfluenceFlag::LargeCooksDistance])
             } else {
-                Vec::new()
+                Flags::default()
             },
         }
     }

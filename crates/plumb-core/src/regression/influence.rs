@@ -1,5 +1,6 @@
 //! Case diagnostics of a least-squares fit: leverage, studentized residuals, Cook's distance,
-//! DFFITS, DFBETAS, and the normal quantiles for a residual Q-Q check.
+//! DFFITS and the flags per case (seven numbers and a byte), DFBETAS as one `n × p` array when
+//! asked for, and the normal quantiles for a residual Q-Q check.
 
 use super::design::Design;
 use super::inference::LinearFit;
@@ -45,12 +46,61 @@ pub struct CaseInfluence {
     pub cooks_distance: f64,
     /// `DFFITSᵢ = tᵢ √(hᵢᵢ/(1 − hᵢᵢ))`.
     pub dffits: f64,
-    /// `DFBETASᵢⱼ = (β̂ⱼ − β̂₍ᵢ₎ⱼ) / (s₍ᵢ₎√Cⱼⱼ)`, `C = (XᵀWX)⁻¹`, with
-    /// `β̂ − β̂₍ᵢ₎ = C xᵢ wᵢ eᵢ / (1 − hᵢᵢ)`; one per term.
-    pub dfbetas: Vec<f64>,
     /// Which rule-of-thumb thresholds the case crosses (see the constants of this module);
     /// an undefined (NaN) measure crosses none.
-    pub flags: Vec<InfluenceFlag>,
+    pub flags: Flags,
+}
+
+/// The thresholds a case crosses, as a set of [`InfluenceFlag`]s in one byte (a case of a
+/// ten-million-row fit must not carry a vector of its own).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub struct Flags(u8);
+
+impl Flags {
+    /// The set of `flags`.
+    pub fn of(flags: &[InfluenceFlag]) -> Self {
+        Self(flags.iter().fold(0, |bits, f| bits | f.bit()))
+    }
+
+    /// Whether `flag` is in the set.
+    pub fn contains(&self, flag: &InfluenceFlag) -> bool {
+        self.0 & flag.bit() != 0
+    }
+
+    /// Whether no threshold is crossed.
+    pub fn is_empty(&self) -> bool {
+        self.0 == 0
+    }
+
+    /// The flags in the set, in [`InfluenceFlag::ALL`] order.
+    pub fn iter(&self) -> impl Iterator<Item = InfluenceFlag> + '_ {
+        InfluenceFlag::ALL.into_iter().filter(|f| self.contains(f))
+    }
+
+    fn insert(&mut self, flag: InfluenceFlag) {
+        self.0 |= flag.bit();
+    }
+}
+
+/// `DFBETASᵢⱼ = (β̂ⱼ − β̂₍ᵢ₎ⱼ) / (s₍ᵢ₎√Cⱼⱼ)`, `C = (XᵀWX)⁻¹`, with
+/// `β̂ − β̂₍ᵢ₎ = C xᵢ wᵢ eᵢ / (1 − hᵢᵢ)`: one value per case and term, held as one row-major
+/// `n × p` array ([`influence_with_dfbetas`]).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Dfbetas {
+    terms: usize,
+    values: Vec<f64>,
+}
+
+impl Dfbetas {
+    /// The values of case `i`, one per term.
+    pub fn row(&self, i: usize) -> &[f64] {
+        &self.values[i * self.terms..(i + 1) * self.terms]
+    }
+
+    /// Terms per case.
+    pub fn terms(&self) -> usize {
+        self.terms
+    }
 }
 
 /// A threshold crossed by a case.
@@ -65,6 +115,21 @@ pub enum InfluenceFlag {
 }
 
 impl InfluenceFlag {
+    /// Every flag, in the order output lists them.
+    pub const ALL: [Self; 3] = [
+        Self::HighLeverage,
+        Self::LargeCooksDistance,
+        Self::LargeResidual,
+    ];
+
+    fn bit(self) -> u8 {
+        match self {
+            Self::HighLeverage => 1,
+            Self::LargeCooksDistance => 2,
+            Self::LargeResidual => 4,
+        }
+    }
+
     /// Name used in output.
     pub fn as_str(self) -> &'static str {
         match self {
@@ -86,6 +151,38 @@ pub fn influence(
     fit: &LinearFit,
     options: &FitOptions,
 ) -> Result<Vec<CaseInfluence>> {
+    Ok(cases(design, weights, fit, options, false)?.0)
+}
+
+/// [`influence`] and the DFBETAS of every case, from the same factorization (a p × p product
+/// more per case).
+///
+/// # Errors
+/// The same rank errors as the fit (which would have failed first).
+pub fn influence_with_dfbetas(
+    design: &Design,
+    weights: Option<&[f64]>,
+    fit: &LinearFit,
+    options: &FitOptions,
+) -> Result<(Vec<CaseInfluence>, Dfbetas)> {
+    let (cases, values) = cases(design, weights, fit, options, true)?;
+    Ok((
+        cases,
+        Dfbetas {
+            terms: design.n_terms(),
+            values,
+        },
+    ))
+}
+
+/// The case diagnostics, and the DFBETAS (row-major) when `with_dfbetas`.
+fn cases(
+    design: &Design,
+    weights: Option<&[f64]>,
+    fit: &LinearFit,
+    options: &FitOptions,
+    with_dfbetas: bool,
+) -> Result<(Vec<CaseInfluence>, Vec<f64>)> {
     let n = design.n_rows();
     let p = design.n_terms();
     let f = factor(design, weights, options.rank_tolerance)?;
@@ -98,6 +195,7 @@ pub fn influence(
         LEVERAGE_FLAG_FACTOR * p as f64 / n as f64,
         cooks_flag_cut(n),
     );
+    let mut dfbetas = Vec::with_capacity(if with_dfbetas { n * p } else { 0 });
     let cases = (0..n)
         .map(|i| {
             let qi = q.row(i).transpose();
@@ -117,20 +215,21 @@ pub fn influence(
             };
             let external = r / (s_i * one_minus_h.sqrt());
             let cooks = internal * internal * h / (p as f64 * one_minus_h);
-            // C xᵢ √wᵢ = M·q̃ᵢ with q̃ᵢ the row of Q₁ (Q₁ = W^{1/2}Z P R⁻¹); so Δβ = M qᵢ rᵢ/(1 − h).
-            let shift = &f.m * &qi * (r / one_minus_h);
-            let dfbetas = (0..p)
-                .map(|j| shift[j] / (s_i * cov_diag[j].sqrt()))
-                .collect();
-            let mut flags = Vec::new();
+            if with_dfbetas {
+                // C xᵢ √wᵢ = M·q̃ᵢ with q̃ᵢ the row of Q₁ (Q₁ = W^{1/2}Z P R⁻¹); so
+                // Δβ = M qᵢ rᵢ/(1 − h).
+                let shift = &f.m * &qi * (r / one_minus_h);
+                dfbetas.extend((0..p).map(|j| shift[j] / (s_i * cov_diag[j].sqrt())));
+            }
+            let mut flags = Flags::default();
             if h > lev_cut {
-                flags.push(InfluenceFlag::HighLeverage);
+                flags.insert(InfluenceFlag::HighLeverage);
             }
             if cooks > cook_cut {
-                flags.push(InfluenceFlag::LargeCooksDistance);
+                flags.insert(InfluenceFlag::LargeCooksDistance);
             }
             if external.abs() > STUDENTIZED_FLAG {
-                flags.push(InfluenceFlag::LargeResidual);
+                flags.insert(InfluenceFlag::LargeResidual);
             }
             CaseInfluence {
                 fitted: fit.fitted[i],
@@ -140,12 +239,11 @@ pub fn influence(
                 studentized_external: external,
                 cooks_distance: cooks,
                 dffits: external * (h / one_minus_h).sqrt(),
-                dfbetas,
                 flags,
             }
         })
         .collect();
-    Ok(cases)
+    Ok((cases, dfbetas))
 }
 
 /// The |externally studentized residual| at which a case of leverage `h` has Cook's distance
@@ -264,12 +362,36 @@ mod tests {
     }
 
     #[test]
+    fn flags_are_a_set() {
+        let f = Flags::of(&[InfluenceFlag::LargeResidual, InfluenceFlag::HighLeverage]);
+        assert!(
+            f.contains(&InfluenceFlag::HighLeverage)
+                && !f.contains(&InfluenceFlag::LargeCooksDistance)
+        );
+        assert_eq!(
+            f.iter().collect::<Vec<_>>(),
+            [InfluenceFlag::HighLeverage, InfluenceFlag::LargeResidual]
+        );
+        assert!(Flags::default().is_empty() && !f.is_empty());
+        assert!(
+            std::mem::size_of::<CaseInfluence>() <= 64,
+            "seven numbers and a byte"
+        );
+    }
+
+    #[test]
     fn dfbetas_and_external_residuals_agree_with_deleting_the_row() {
         // Refit without each row and compare with the closed forms.
         let (d, y) = line();
         let opts = FitOptions::default();
         let f = fit(&d, &y, None, &opts).expect("fits");
-        let cases = influence(&d, None, &f, &opts).expect("influence");
+        let (cases, dfbetas) = influence_with_dfbetas(&d, None, &f, &opts).expect("influence");
+        assert_eq!(
+            influence(&d, None, &f, &opts).expect("influence"),
+            cases,
+            "the same cases with or without DFBETAS"
+        );
+        assert_eq!(dfbetas.terms(), 2);
         for i in 0..y.len() {
             let keep: Vec<usize> = (0..y.len()).filter(|&k| k != i).collect();
             let x: Vec<f64> = keep.iter().map(|&k| d.columns()[1][k]).collect();
@@ -281,7 +403,7 @@ mod tests {
                 let expected =
                     (f.coefficients[j].estimate - g.coefficients[j].estimate) / (s_i * se);
                 assert_relative_eq!(
-                    cases[i].dfbetas[j],
+                    dfbetas.row(i)[j],
                     expected,
                     max_relative = 1e-9,
                     epsilon = 1e-12

@@ -1,6 +1,8 @@
 //! How strongly each row pulls a fit, by its Cook's distance `D`, in three classes shared by
 //! the workbench's influence view and the summary's chart.
 
+#[cfg(test)]
+use super::Flags;
 use super::{CaseInfluence, InfluenceFlag};
 use crate::distributions::f_median;
 
@@ -51,11 +53,10 @@ mod tests {
             studentized_external: 1.0,
             cooks_distance: d,
             dffits: 0.0,
-            dfbetas: Vec::new(),
             flags: if flagged {
-                vec![InfluenceFlag::LargeCooksDistance]
+                Flags::of(&[InfluenceFlag::LargeCooksDistance])
             } else {
-                Vec::new()
+                Flags::default()
             },
         }
     }

@@ -18,8 +18,8 @@ mod unknowns;
 
 use plumb_core::calibration::WeightRule;
 use plumb_core::regression::{
-    added_variable, influence, variance_inflation, AddedVariable, CaseInfluence, LinearFit,
-    Transform,
+    added_variable, influence, influence_with_dfbetas, variance_inflation, AddedVariable,
+    CaseInfluence, Dfbetas, LinearFit, Transform,
 };
 use plumb_core::CoreError;
 use thiserror::Error;
@@ -127,6 +127,9 @@ pub struct WhatIf {
 pub struct Wanted {
     /// Case diagnostics of every row used.
     pub influence: bool,
+    /// With `influence`: the DFBETAS of every row used too (the command line's influence
+    /// report; the workbench never draws them, so it does not pay for them).
+    pub dfbetas: bool,
     /// Overlays, cues, bands and the degree ladder of a one-predictor model.
     pub extras: Option<ExtrasRequest>,
     /// The added-variable view of every predictor term (not the intercept or the factor's
@@ -146,6 +149,8 @@ pub struct Analysis {
     pub vif: Option<Vec<Option<f64>>>,
     /// Case diagnostics in `selection.rows` order (empty unless [`Wanted::influence`]).
     pub cases: Vec<CaseInfluence>,
+    /// The DFBETAS of those cases (with [`Wanted::dfbetas`]).
+    pub dfbetas: Option<Dfbetas>,
     /// The extras of a one-predictor model (when asked for and defined).
     pub extras: Option<PairExtras>,
     /// With a grouping factor and a numeric predictor: the equal-slopes and common-line tests
@@ -207,10 +212,17 @@ pub fn analyze(
         .then(|| variance_inflation(&rows.design, rows.weights()))
         .transpose()
         .map_err(model_error)?;
-    let cases = if wanted.influence {
-        influence(&rows.design, rows.weights(), &fit, &rows.options).map_err(model_error)?
-    } else {
-        Vec::new()
+    let (cases, dfbetas) = match (wanted.influence, wanted.dfbetas) {
+        (false, _) => (Vec::new(), None),
+        (true, false) => (
+            influence(&rows.design, rows.weights(), &fit, &rows.options).map_err(model_error)?,
+            None,
+        ),
+        (true, true) => {
+            let (c, d) = influence_with_dfbetas(&rows.design, rows.weights(), &fit, &rows.options)
+                .map_err(model_error)?;
+            (c, Some(d))
+        }
     };
     let extras = wanted
         .extras
@@ -229,6 +241,7 @@ pub fn analyze(
         fit,
         vif,
         cases,
+        dfbetas,
         extras,
         groups,
         added,

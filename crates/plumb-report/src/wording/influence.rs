@@ -3,7 +3,8 @@
 //! summary read the same lines.
 
 use plumb_core::regression::{
-    cooks_flag_cut, InfluenceFlag, COOKS_FLAG_ROWS_CAP, LEVERAGE_FLAG_FACTOR, STUDENTIZED_FLAG,
+    cooks_flag_cut, Flags, InfluenceFlag, COOKS_FLAG_ROWS_CAP, LEVERAGE_FLAG_FACTOR,
+    STUDENTIZED_FLAG,
 };
 
 use crate::text::{count, num, sig};
@@ -34,12 +35,8 @@ pub fn flag_letter(f: InfluenceFlag) -> &'static str {
 }
 
 /// A row's flags as letters: `x D`.
-pub fn flag_letters(flags: &[InfluenceFlag]) -> String {
-    flags
-        .iter()
-        .map(|f| flag_letter(*f))
-        .collect::<Vec<_>>()
-        .join(" ")
+pub fn flag_letters(flags: &Flags) -> String {
+    flags.iter().map(flag_letter).collect::<Vec<_>>().join(" ")
 }
 
 /// The key of a fit of `p` terms to `n` rows, in the order x, y, D.
@@ -99,10 +96,10 @@ mod tests {
             "{large:?}"
         );
         assert_eq!(
-            flag_letters(&[
+            flag_letters(&Flags::of(&[
+                InfluenceFlag::LargeCooksDistance,
                 InfluenceFlag::HighLeverage,
-                InfluenceFlag::LargeCooksDistance
-            ]),
+            ])),
             "x D"
         );
     }
