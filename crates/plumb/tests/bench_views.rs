@@ -158,7 +158,8 @@ fn the_keys_sit_outside_the_plots_with_every_overlay_and_groups_on() {
 
 #[test]
 fn a_dense_file_gets_its_residual_strip_and_influence_view() {
-    // Above the density threshold the views draw images; their frames must hold the points.
+    // Above the density threshold the views draw images: the points they are built from lie
+    // where the data put them, and every view still gets room for its axes.
     let dir = tempfile::tempdir().expect("dir");
     let path = dir.path().join("dense.csv");
     let n = plumb_app::state::cloud::DENSITY_FROM + 5_000;
@@ -184,7 +185,8 @@ fn a_dense_file_gets_its_residual_strip_and_influence_view() {
         let r = rect_of(&h, &format!("view: {view}"));
         assert!(r.width() > MIN_PLOT.0, "{view}: {r:?}");
     }
-    // Switching the strip to the row order and back keeps its frame on the points.
+    // Against the row order the strip's points are built along the data rows (the view's
+    // frame follows them when its old range misses them: `reframe`, tested in bench/view.rs).
     h.state_mut().apply(Action::ResidualsAgainst(
         plumb_app::state::views::ResidualAxis::RowOrder,
     ));

@@ -14,7 +14,7 @@ const VIEW: Diagnostic<'static> = Diagnostic {
     id: "quantiles",
     variant: 0,
     title: "Residuals vs a normal sample",
-    tip: "Each studentized (leave-one-out) residual, in rank order, against the normal score of its rank. Shaded: where 95 % of normal samples of this size put each rank (pointwise). Along the diagonal and inside the band: the residuals look normal. Ends bending out: heavy or light tails; a lone point outside: an outlier.",
+    tip: "Each studentized (leave-one-out) residual, in rank order, against the normal score of its rank. Shaded: where 95 % of normal samples of this size put each rank (pointwise; the residuals follow t rather than the normal, so with few rows the band is a little narrow at the ends). Along the diagonal and inside the band: the residuals look normal. Ends bending out: heavy or light tails; a lone point outside: an outlier.",
     x_label: "normal score of the rank",
     y_label: "studentized residual",
     shares_scatter_x: false,

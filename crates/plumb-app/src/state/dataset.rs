@@ -116,12 +116,13 @@ impl Dataset {
         d
     }
 
-    /// The text of the cell of data row `row` (1-based) in `column`: a number as the
-    /// workbench writes numbers, `None` where missing or out of range.
+    /// The text of the cell of data row `row` (1-based) in `column`, as it names the row: a
+    /// whole number in full (a sample number of eight digits must not round to `2.02401e7`),
+    /// any other number in full precision, `None` where missing or out of range.
     pub fn cell_text(&self, column: &str, row: usize) -> Option<String> {
         let i = row.checked_sub(1)?;
         match &self.table.column(column)?.values {
-            ColumnValues::Numeric(v) => v.get(i).copied().flatten().map(plumb_report::text::num),
+            ColumnValues::Numeric(v) => v.get(i).copied().flatten().map(name_of_number),
             ColumnValues::Text { values, .. } => values.get(i).cloned().flatten(),
         }
     }
@@ -161,5 +162,28 @@ impl Dataset {
             ),
             ColumnValues::Numeric(_) => None,
         }
+    }
+}
+
+/// A number as a row's name: whole numbers below 2⁵³ as integers, others in full precision.
+fn name_of_number(v: f64) -> String {
+    if v.fract() == 0.0 && v.abs() < 9_007_199_254_740_992.0 {
+        format!("{}", v as i64)
+    } else {
+        plumb_report::text::exact(v)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::name_of_number;
+
+    #[test]
+    fn numbers_that_name_rows_keep_every_digit() {
+        assert_eq!(name_of_number(20_240_117.0), "20240117");
+        assert_ne!(name_of_number(20_240_117.0), name_of_number(20_240_118.0));
+        assert_eq!(name_of_number(-3.0), "-3");
+        assert_eq!(name_of_number(12.25), "12.25");
+        assert_eq!(name_of_number(0.1 + 0.2), "0.30000000000000004");
     }
 }

@@ -84,6 +84,13 @@ impl State {
         let Some(loaded) = &self.doc.loaded else {
             return self.fail("open a data file first");
         };
+        if loaded.dataset.sample.is_some() {
+            // Its rows are a sample's: read again, the file would be loaded whole and the
+            // exclusions would land on other rows.
+            return self.fail(
+                "a sample is read as the one-pass view read its file; to read the file another way, open it again from the columns screen",
+            );
+        }
         let path = loaded.dataset.path();
         let options = plumb_data::LoadOptions {
             decimal,

@@ -96,6 +96,9 @@ pub enum StructureScan {
         cells: Vec<Vec<Option<StructureCheck>>>,
         /// Candidates whose permutation test the budget did not reach (never flagged).
         unconfirmed: usize,
+        /// Pairs with more complete rows than distance correlation takes
+        /// ([`super::DISTANCE_MAX_N`]): not checked, and not charged to the budget.
+        too_large: usize,
     },
     /// Not done: the coefficients alone would exceed the budget.
     Skipped {
@@ -129,15 +132,22 @@ pub fn structure_scan(columns: &[&[Option<f64>]], budget: u64) -> StructureScan 
         .par_iter()
         .map(|&(i, j)| complete_count(columns[i], columns[j]))
         .collect();
+    let fits = |n: u64| n <= super::DISTANCE_MAX_N as u64;
+    let too_large = counts.iter().filter(|&&n| !fits(n)).count();
     let cost = counts
         .iter()
+        .filter(|&&n| fits(n))
         .fold(0u64, |s, &n| s.saturating_add(COEFFICIENT_PASSES * n * n));
     if cost > budget {
         return StructureScan::Skipped { cost, budget };
     }
     let mut checks: Vec<Option<StructureCheck>> = pairs
         .par_iter()
-        .map(|&(i, j)| {
+        .zip(&counts)
+        .map(|(&(i, j), &n)| {
+            if !fits(n) {
+                return None;
+            }
             let (x, y) = complete_pairs(columns[i], columns[j]);
             StructureCheck::of(&x, &y)
         })
@@ -161,7 +171,11 @@ pub fn structure_scan(columns: &[&[Option<f64>]], budget: u64) -> StructureScan 
         cells[i][j] = c;
         cells[j][i] = c;
     }
-    StructureScan::Done { cells, unconfirmed }
+    StructureScan::Done {
+        cells,
+        unconfirmed,
+        too_large,
+    }
 }
 
 /// The candidates to test, largest gap first, while `left` lasts; and how many were left out.
@@ -198,6 +212,22 @@ fn complete_count(a: &[Option<f64>], b: &[Option<f64>]) -> u64 {
 
 #[cfg(test)]
 mod tests {
+
+    #[test]
+    fn pairs_too_large_for_distance_correlation_are_counted_not_claimed() {
+        let n = super::super::DISTANCE_MAX_N + 1;
+        let a: Vec<Option<f64>> = (0..n).map(|i| Some(i as f64)).collect();
+        let b: Vec<Option<f64>> = (0..n).map(|i| Some(((i * 7) % 13) as f64)).collect();
+        let StructureScan::Done {
+            cells, too_large, ..
+        } = structure_scan(&[&a, &b], 1)
+        else {
+            panic!("a pair too large costs nothing, so the scan is done");
+        };
+        assert_eq!(too_large, 1);
+        assert!(cells[0][1].is_none(), "not checked");
+    }
+
     use super::*;
     use rand::{Rng, SeedableRng};
     use rand_chacha::ChaCha8Rng;
@@ -287,7 +317,10 @@ mod tests {
                 budget: coefficients - 1
             }
         );
-        let StructureScan::Done { cells, unconfirmed } = structure_scan(&refs, coefficients) else {
+        let StructureScan::Done {
+            cells, unconfirmed, ..
+        } = structure_scan(&refs, coefficients)
+        else {
             panic!("the coefficients fit the budget");
         };
         assert_eq!(

@@ -102,9 +102,9 @@ fn file_facts_ui(loaded: &Loaded, ui: &mut egui::Ui) -> Actions {
     ui.heading(d.file_name());
     ui.label(format!(
         "{} data rows, {} columns ({} numeric). SHA-256 {}…",
-        d.table.n_rows(),
-        d.summaries.len(),
-        d.numeric.len(),
+        plumb_report::text::count(d.table.n_rows()),
+        plumb_report::text::count(d.summaries.len()),
+        plumb_report::text::count(d.numeric.len()),
         &loaded.sha256[..12.min(loaded.sha256.len())]
     ));
     ui.label(format!("Read as {}.", d.table.format()));
@@ -120,10 +120,13 @@ fn file_facts_ui(loaded: &Loaded, ui: &mut egui::Ui) -> Actions {
 fn decimal_ui(loaded: &Loaded, ui: &mut egui::Ui) -> Actions {
     use plumb_data::{DecimalMark, TextEncoding};
     let mut out = Actions::none();
-    if !matches!(
-        loaded.dataset.table.format(),
-        plumb_data::SourceFormat::Delimited { .. }
-    ) {
+    // A sample's rows are fixed by its draw: reading them another way would mean the file.
+    if loaded.dataset.sample.is_some()
+        || !matches!(
+            loaded.dataset.table.format(),
+            plumb_data::SourceFormat::Delimited { .. }
+        )
+    {
         return out;
     }
     let options = &loaded.dataset.options;

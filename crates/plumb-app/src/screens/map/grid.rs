@@ -310,7 +310,7 @@ fn cells(
             }
             if counted {
                 let at = rect.center() + Vec2::new(0.0, cell * if i == j { 0.0 } else { 0.24 });
-                let text = format!("n {}", r.matrix.n[i][j]);
+                let text = format!("n {}", count(r.matrix.n[i][j]));
                 painter.text(
                     at,
                     egui::Align2::CENTER_CENTER,

@@ -4,7 +4,7 @@
 
 use eframe::egui::{self, Color32, Pos2, Rect, Sense, Stroke, Vec2};
 use plumb_core::association::{StructureScan, STRUCTURE_ALPHA, STRUCTURE_GAP};
-use plumb_report::text::{count, sig};
+use plumb_report::text::{count, plural, sig};
 
 use crate::palette;
 use crate::state::map::{MapNote, MapResult};
@@ -160,17 +160,35 @@ pub(super) fn marks_key_ui(ui: &mut egui::Ui, r: &MapResult, drawn: bool) {
 /// What the structure check covered.
 fn structure_status(scan: &StructureScan, pairs: usize) -> String {
     match scan {
-        StructureScan::Done { unconfirmed: 0, .. } => {
-            format!(
-                "Structure checked on all {} pairs. A ring is a cue to open the pair and look, not a finding: its permutation p (≤ {}) is not adjusted across the pairs, so with many pairs some rings can come by chance.",
-                count(pairs),
-                STRUCTURE_ALPHA
-            )
+        StructureScan::Done {
+            unconfirmed,
+            too_large,
+            ..
+        } => {
+            let checked = pairs.saturating_sub(*too_large);
+            let mut s = format!(
+                "Structure checked on {} of {}.",
+                count(checked),
+                plural(pairs, "pair", "pairs")
+            );
+            if *too_large > 0 {
+                s.push_str(&format!(
+                    " {} more than {} complete rows, too many for distance correlation: open the pair on the bench to look at it.",
+                    if *too_large == 1 { "1 pair has".to_string() } else { format!("{} pairs have", count(*too_large)) },
+                    count(plumb_core::association::DISTANCE_MAX_N)
+                ));
+            }
+            if *unconfirmed > 0 {
+                s.push_str(&format!(
+                    " {} not tested for want of time (a work budget): leave columns out to test them.",
+                    plural(*unconfirmed, "candidate pair was", "candidate pairs were")
+                ));
+            }
+            s.push_str(&format!(
+                " A ring is a cue to open the pair and look, not a finding: its permutation p (≤ {STRUCTURE_ALPHA}) is not adjusted across the pairs, so with many pairs some rings can come by chance."
+            ));
+            s
         }
-        StructureScan::Done { unconfirmed, .. } => format!(
-            "Structure checked; {} candidate pairs were not tested for want of time (a work budget): leave columns out to test them.",
-            count(*unconfirmed)
-        ),
         StructureScan::Skipped { cost, budget } => format!(
             "Structure check skipped: these pairs need {}× the work budget of distance correlation. Leave columns out to bring it within.",
             sig(*cost as f64 / *budget as f64, 2)

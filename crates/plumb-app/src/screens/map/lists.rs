@@ -3,24 +3,14 @@
 //! readers and tests.
 
 use eframe::egui::{self, RichText};
-use plumb_report::text::{num, p};
+use plumb_report::text::{count, num, p};
 
 use super::grid::cell_text;
 use crate::state::map::MapResult;
 
-/// Pairs listed among the strongest.
-const STRONGEST: usize = 12;
-
 /// The flagged pairs; returns the one clicked.
 pub(super) fn flagged_ui(ui: &mut egui::Ui, r: &MapResult) -> Option<(usize, usize)> {
-    let k = r.columns.len();
-    let flagged: Vec<(usize, usize, Vec<&'static str>)> = (0..k)
-        .flat_map(|i| (i + 1..k).map(move |j| (i, j)))
-        .filter_map(|(i, j)| {
-            let notes = r.notes(i, j);
-            (!notes.is_empty()).then(|| (i, j, notes.iter().map(|n| n.label()).collect()))
-        })
-        .collect();
+    let flagged = &r.flagged;
     ui.label(RichText::new("Pairs the map flags").strong());
     if flagged.is_empty() {
         ui.weak("none");
@@ -32,10 +22,12 @@ pub(super) fn flagged_ui(ui: &mut egui::Ui, r: &MapResult) -> Option<(usize, usi
         .striped(true)
         .max_col_width(widest)
         .show(ui, |ui| {
-            for (i, j, labels) in flagged {
+            for &(i, j, ref labels) in flagged {
                 let label = format!("{} and {}", r.columns[i], r.columns[j]);
                 if pair_button(ui, label)
-                    .on_hover_text(cell_text(r, i, j))
+                    .on_hover_ui(|ui| {
+                        ui.label(cell_text(r, i, j));
+                    })
                     .clicked()
                 {
                     chosen = Some((i, j));
@@ -50,12 +42,7 @@ pub(super) fn flagged_ui(ui: &mut egui::Ui, r: &MapResult) -> Option<(usize, usi
 /// The strongest pairs by |coefficient|; returns the one clicked.
 pub(super) fn strongest_ui(ui: &mut egui::Ui, r: &MapResult) -> Option<(usize, usize)> {
     let m = &r.matrix;
-    let k = r.columns.len();
-    let mut pairs: Vec<(usize, usize, f64)> = (0..k)
-        .flat_map(|i| (i + 1..k).map(move |j| (i, j)))
-        .filter_map(|(i, j)| m.r[i][j].map(|v| (i, j, v)))
-        .collect();
-    pairs.sort_by(|a, b| b.2.abs().total_cmp(&a.2.abs()));
+    let pairs = &r.strongest;
     ui.label(RichText::new("Strongest pairs").strong());
     let mut chosen = None;
     let widest = pair_column_width(ui, 190.0);
@@ -67,7 +54,7 @@ pub(super) fn strongest_ui(ui: &mut egui::Ui, r: &MapResult) -> Option<(usize, u
                 ui.label(RichText::new(h).strong());
             }
             ui.end_row();
-            for &(i, j, v) in pairs.iter().take(STRONGEST) {
+            for &(i, j, v) in pairs {
                 let label = format!("{} and {}", r.columns[i], r.columns[j]);
                 if ui
                     .button(&label)
@@ -78,7 +65,7 @@ pub(super) fn strongest_ui(ui: &mut egui::Ui, r: &MapResult) -> Option<(usize, u
                 }
                 ui.label(num(v));
                 ui.label(m.p_adjusted[i][j].or(m.p_value[i][j]).map_or("—".into(), p));
-                ui.label(m.n[i][j].to_string());
+                ui.label(count(m.n[i][j]));
                 ui.end_row();
             }
         });

@@ -47,6 +47,35 @@ pub struct MapResult {
     pub similarity: Vec<usize>,
     /// Counts the maps computed, so views can cache what they draw from one.
     pub generation: u64,
+    /// The pairs the map flags, with their notes' labels (worked out with the map, not per
+    /// frame: a thousand columns are half a million pairs).
+    pub flagged: Vec<(usize, usize, Vec<&'static str>)>,
+    /// The pairs with a coefficient, strongest |coefficient| first, at most [`LISTED`].
+    pub strongest: Vec<(usize, usize, f64)>,
+}
+
+/// Most pairs kept in [`MapResult::strongest`].
+pub const LISTED: usize = 12;
+
+impl MapResult {
+    /// The side lists of this map: the flagged pairs and the strongest ones.
+    fn with_lists(mut self) -> Self {
+        let k = self.columns.len();
+        let pairs = || (0..k).flat_map(move |i| (i + 1..k).map(move |j| (i, j)));
+        self.flagged = pairs()
+            .filter_map(|(i, j)| {
+                let notes = self.notes(i, j);
+                (!notes.is_empty()).then(|| (i, j, notes.iter().map(|n| n.label()).collect()))
+            })
+            .collect();
+        let mut strongest: Vec<(usize, usize, f64)> = pairs()
+            .filter_map(|(i, j)| self.matrix.r[i][j].map(|v| (i, j, v)))
+            .collect();
+        strongest.sort_by(|a, b| b.2.abs().total_cmp(&a.2.abs()));
+        strongest.truncate(LISTED);
+        self.strongest = strongest;
+        self
+    }
 }
 
 /// The map's settings, its job and its latest result.
@@ -190,7 +219,10 @@ pub fn compute(table: &plumb_data::Table, columns: Vec<String>, key: MapKey) -> 
         structure,
         similarity,
         generation: 0,
+        flagged: Vec::new(),
+        strongest: Vec::new(),
     }
+    .with_lists()
 }
 
 #[cfg(test)]
