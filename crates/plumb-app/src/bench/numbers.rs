@@ -302,7 +302,13 @@ fn z_units_ui(ui: &mut egui::Ui, pair: &PairRows, d: &Diagnostics) {
         && spec.weights.is_none()
         && spec.weight_rule.is_none();
     let y = pair.model.response_transform.label(&spec.y);
-    for line in words::z_units(&z, spec.x0(), &y, is_the_line) {
+    // The view is on the model's scales: a transformed predictor is named as transformed.
+    let x = spec
+        .x_transforms
+        .iter()
+        .find(|(c, _)| c == spec.x0())
+        .map_or_else(|| spec.x0().to_string(), |(c, t)| t.label(c));
+    for line in words::z_units(&z, &x, &y, is_the_line) {
         ui.label(line);
     }
 }
