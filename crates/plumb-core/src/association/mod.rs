@@ -25,8 +25,8 @@ pub use pearson::{pearson, pearson_from_moments};
 pub use rank::average_ranks;
 pub use spearman::spearman;
 pub use structure::{
-    structure_check, structure_scan, StructureCheck, StructureScan, STRUCTURE_ALPHA,
-    STRUCTURE_BUDGET, STRUCTURE_GAP,
+    structure_check, structure_scan, structure_scan_counted, StructureCheck, StructureScan,
+    STRUCTURE_ALPHA, STRUCTURE_BUDGET, STRUCTURE_GAP,
 };
 pub use trend::{drifts_together, trend_guard, TrendGuard, TREND_FADES, TREND_STRONG};
 

@@ -125,13 +125,30 @@ impl StructureScan {
 /// (`R =` [`DISTANCE_PERMUTATIONS`]) while the budget lasts.
 pub fn structure_scan(columns: &[&[Option<f64>]], budget: u64) -> StructureScan {
     let k = columns.len();
+    let mut complete = vec![vec![0usize; k]; k];
+    for i in 0..k {
+        for j in i + 1..k {
+            let n = complete_count(columns[i], columns[j]) as usize;
+            complete[i][j] = n;
+            complete[j][i] = n;
+        }
+    }
+    structure_scan_counted(columns, &complete, budget)
+}
+
+/// [`structure_scan`] with each pair's complete rows already counted (`complete[i][j]`, as a
+/// correlation matrix of the same columns holds them): a wide table then costs no pass over
+/// its rows before the budget is checked.
+pub fn structure_scan_counted(
+    columns: &[&[Option<f64>]],
+    complete: &[Vec<usize>],
+    budget: u64,
+) -> StructureScan {
+    let k = columns.len();
     let pairs: Vec<(usize, usize)> = (0..k)
         .flat_map(|i| (i + 1..k).map(move |j| (i, j)))
         .collect();
-    let counts: Vec<u64> = pairs
-        .par_iter()
-        .map(|&(i, j)| complete_count(columns[i], columns[j]))
-        .collect();
+    let counts: Vec<u64> = pairs.iter().map(|&(i, j)| complete[i][j] as u64).collect();
     let fits = |n: u64| n <= super::DISTANCE_MAX_N as u64;
     let too_large = counts.iter().filter(|&&n| !fits(n)).count();
     let cost = counts
@@ -212,6 +229,22 @@ fn complete_count(a: &[Option<f64>], b: &[Option<f64>]) -> u64 {
 
 #[cfg(test)]
 mod tests {
+
+    #[test]
+    fn counts_given_or_worked_out_give_the_same_scan() {
+        let cols = columns();
+        let refs: Vec<&[Option<f64>]> = cols.iter().map(Vec::as_slice).collect();
+        let m = crate::association::correlation_matrix(
+            &refs,
+            crate::association::Method::Pearson,
+            crate::association::Adjustment::None,
+            None,
+        );
+        assert_eq!(
+            structure_scan_counted(&refs, &m.n, STRUCTURE_BUDGET),
+            structure_scan(&refs, STRUCTURE_BUDGET)
+        );
+    }
 
     #[test]
     fn pairs_too_large_for_distance_correlation_are_counted_not_claimed() {

@@ -9,7 +9,7 @@ mod row_labels;
 use std::collections::BTreeSet;
 
 use plumb_core::association::{
-    correlation_matrix, similarity_order, structure_scan, Adjustment, CorrelationMatrix,
+    correlation_matrix, similarity_order, structure_scan_counted, Adjustment, CorrelationMatrix,
     MatrixSize, Method, StructureScan, STRUCTURE_BUDGET,
 };
 
@@ -211,7 +211,7 @@ pub fn compute(table: &plumb_data::Table, columns: Vec<String>, key: MapKey) -> 
     let order = key.order.as_deref().and_then(|c| table.numeric(c).ok());
     let matrix = correlation_matrix(&values, key.method, key.adjust, order);
     let similarity = similarity_order(&matrix.r);
-    let structure = structure_scan(&values, STRUCTURE_BUDGET);
+    let structure = structure_scan_counted(&values, &matrix.n, STRUCTURE_BUDGET);
     MapResult {
         key,
         columns,
