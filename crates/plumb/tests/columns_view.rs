@@ -10,21 +10,10 @@ use egui_kittest::kittest::{NodeT, Queryable};
 use egui_kittest::Harness;
 use plumb_app::Workbench;
 
-use common::{demo, harness, settle_ui as settle, sha256};
+use common::{demo, harness, open_by_typing, settle_ui as settle, sha256};
 
 fn open(h: &mut Harness<'_, Workbench>, data: &Path) {
-    h.get_by_label("File:").click();
-    h.run_steps(1);
-    h.get_by_label("File:")
-        .type_text(&data.display().to_string());
-    h.run_steps(1);
-    h.get_by_label("Open").click();
-    settle(h);
-    assert!(
-        h.state().loaded().is_some(),
-        "status: {:?}",
-        h.state().status()
-    );
+    open_by_typing(h, data);
 }
 
 /// Texts of the labels containing `part` (a label keeps its text in the node's value).

@@ -14,7 +14,7 @@ use egui_kittest::kittest::{NodeT, Queryable};
 use egui_kittest::Harness;
 use plumb_app::{Action, Workbench};
 
-use common::{cli_fit, demo, harness, settle_ui as settle, sha256};
+use common::{cli_fit, demo, harness, open_by_typing, settle_ui as settle, sha256};
 
 /// `R² = …` as the workbench prints it, for `plumb fit` on the same request.
 fn cli_r_squared(data: &Path, y: &str, x: &str, exclude: &str) -> String {
@@ -45,18 +45,7 @@ fn choose(h: &mut Harness<'_, Workbench>, combo: &str, option: &str) {
 }
 
 fn open_calibration(h: &mut Harness<'_, Workbench>, data: &Path) {
-    h.get_by_label("File:").click();
-    h.run_steps(1);
-    h.get_by_label("File:")
-        .type_text(&data.display().to_string());
-    h.run_steps(1);
-    h.get_by_label("Open").click();
-    settle(h);
-    assert!(
-        h.state().loaded().is_some(),
-        "status: {:?}",
-        h.state().status()
-    );
+    open_by_typing(h, data);
     h.get_by_label("Pair bench").click();
     h.run_steps(2);
     choose(h, "y:", "absorbance");

@@ -324,19 +324,17 @@ mod tests {
     use plumb_core::regression::{Flags, InfluenceFlag};
 
     fn case(d: f64, flagged: bool) -> CaseInfluence {
+        let flags: &[InfluenceFlag] = if flagged {
+            &[InfluenceFlag::LargeCooksDistance]
+        } else {
+            &[]
+        };
         CaseInfluence {
-            fitted: 0.0,
-            residual: 0.0,
             leverage: 0.1,
-            studentized_internal: 0.0,
             studentized_external: 1.0,
             cooks_distance: d,
-            dffits: 0.0,
-            flags: if flagged {
-                Flags::of(&[InfluenceFlag::LargeCooksDistance])
-            } else {
-                Flags::default()
-            },
+            flags: Flags::of(flags),
+            ..CaseInfluence::default()
         }
     }
 

@@ -29,7 +29,7 @@ pub fn cooks_flag_cut(n: usize) -> f64 {
 }
 
 /// Diagnostics of one observation. With weights, residuals are the weighted `√wᵢ·eᵢ`.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, Default)]
 pub struct CaseInfluence {
     /// Fitted value `ŷᵢ`.
     pub fitted: f64,
@@ -246,22 +246,6 @@ fn cases(
     Ok((cases, dfbetas))
 }
 
-/// The |externally studentized residual| at which a case of leverage `h` has Cook's distance
-/// `d`, in a model of `p` terms with `df = n − p` residual degrees of freedom: from
-/// `D = r²h/(p(1 − h))` the internally studentized `r² = d·p·(1 − h)/h`, and with the identity
-/// `t² = r²(df − 1)/(df − r²)` between the two kinds (e.g. Belsley, Kuh & Welsch 1980, eq.
-/// 2.26, recalled from memory; it follows from `s₍ᵢ₎²` above), the external `t`. `None` where no
-/// case reaches `d` at that leverage (`r² ≥ df`, or `h` outside (0, 1)) or `df < 2`. The curve
-/// the views draw for constant Cook's distance, on the external residuals they plot.
-pub fn cooks_contour(d: f64, p: usize, df: usize, h: f64) -> Option<f64> {
-    if !(h > 0.0 && h < 1.0) || df < 2 || d < 0.0 {
-        return None;
-    }
-    let r2 = d * p as f64 * (1.0 - h) / h;
-    let df = df as f64;
-    (r2 < df).then(|| (r2 * (df - 1.0) / (df - r2)).sqrt())
-}
-
 /// Normal quantiles for a Q-Q check of `n` sorted residuals, by Blom's plotting positions
 /// `Φ⁻¹((i − 3/8)/(n + 1/4))`, `i = 1..n` (Blom, *Statistical Estimates and Transformed
 /// Beta-Variables*, 1958).
@@ -284,27 +268,6 @@ mod tests {
         let x = [1.0, 2.0, 3.0, 4.0, 5.0, 10.0];
         let y = vec![1.1, 1.9, 3.2, 3.9, 5.1, 7.0];
         (Design::linear(&[("x", &x)], true), y)
-    }
-
-    #[test]
-    fn a_case_lies_on_the_contour_of_its_own_cooks_distance() {
-        // Every case of a fit: at its leverage, the contour of its Cook's distance passes
-        // through its externally studentized residual (the relation the views draw).
-        let x = [1.0, 2.0, 3.0, 4.0, 5.0, 6.0, 7.0, 12.0, 2.5, 4.5];
-        let y = vec![1.1, 1.9, 3.6, 3.9, 5.1, 6.2, 6.8, 9.0, 2.2, 5.5];
-        let d = Design::linear(&[("x", &x)], true);
-        let f = fit(&d, &y, None, &FitOptions::default()).expect("fits");
-        let cases = influence(&d, None, &f, &FitOptions::default()).expect("influence");
-        for c in &cases {
-            let t = cooks_contour(c.cooks_distance, 2, 8, c.leverage).expect("reachable");
-            assert_relative_eq!(t, c.studentized_external.abs(), max_relative = 1e-9);
-        }
-        assert_eq!(cooks_contour(1.0, 2, 8, 0.0), None);
-        assert_eq!(
-            cooks_contour(100.0, 2, 8, 0.05),
-            None,
-            "r² ≥ df: unreachable"
-        );
     }
 
     #[test]

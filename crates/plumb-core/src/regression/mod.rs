@@ -30,8 +30,8 @@ pub use design::{
 };
 pub use inference::{LinearFit, RSquaredKind};
 pub use influence::{
-    cooks_contour, cooks_flag_cut, influence, influence_with_dfbetas, normal_scores, CaseInfluence,
-    Dfbetas, Flags, InfluenceFlag, COOKS_FLAG_NUMERATOR, COOKS_FLAG_ROWS_CAP, LEVERAGE_FLAG_FACTOR,
+    cooks_flag_cut, influence, influence_with_dfbetas, normal_scores, CaseInfluence, Dfbetas,
+    Flags, InfluenceFlag, COOKS_FLAG_NUMERATOR, COOKS_FLAG_ROWS_CAP, LEVERAGE_FLAG_FACTOR,
     STUDENTIZED_FLAG,
 };
 pub use line::{

@@ -149,3 +149,21 @@ pub fn settle_ui(h: &mut egui_kittest::Harness<'_, Workbench>) {
         std::thread::sleep(Duration::from_millis(10));
     }
 }
+
+/// Opens `data` as an analyst would: types its path into the columns screen's field, presses
+/// Open, waits for the load, and requires it to have succeeded.
+pub fn open_by_typing(h: &mut egui_kittest::Harness<'_, Workbench>, data: &Path) {
+    use egui_kittest::kittest::Queryable;
+    h.get_by_label("File:").click();
+    h.run_steps(1);
+    h.get_by_label("File:")
+        .type_text(&data.display().to_string());
+    h.run_steps(1);
+    h.get_by_label("Open").click();
+    settle_ui(h);
+    assert!(
+        h.state().loaded().is_some(),
+        "status: {:?}",
+        h.state().status()
+    );
+}
