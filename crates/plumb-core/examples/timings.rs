@@ -79,15 +79,8 @@ fn matrices(dir: &Path, out: &mut Timings) {
     if !dir.join("m0.f64").exists() {
         return;
     }
-    let cols: Vec<Vec<Option<f64>>> = (0..64)
-        .map(|j| {
-            column(dir, &format!("m{j}"))
-                .into_iter()
-                .map(Some)
-                .collect()
-        })
-        .collect();
-    let refs: Vec<&[Option<f64>]> = cols.iter().map(Vec::as_slice).collect();
+    let cols: Vec<Vec<f64>> = (0..64).map(|j| column(dir, &format!("m{j}"))).collect();
+    let refs: Vec<&[f64]> = cols.iter().map(Vec::as_slice).collect();
     out.push((
         "pearson_matrix_1m_64",
         median(3, || {
@@ -99,7 +92,7 @@ fn matrices(dir: &Path, out: &mut Timings) {
             ));
         }),
     ));
-    let small: Vec<&[Option<f64>]> = cols[..32].iter().map(|c| &c[..100_000]).collect();
+    let small: Vec<&[f64]> = cols[..32].iter().map(|c| &c[..100_000]).collect();
     out.push((
         "spearman_matrix_100k_32",
         median(3, || {

@@ -83,24 +83,14 @@ impl CoMoments {
         self.add_with(n, |j, range, out| out.copy_from_slice(&columns[j][range]));
     }
 
-    /// The moments of columns whose cells may be missing, when every cell is present and
-    /// finite (and no co-moment overflows); `None` otherwise, so that the caller can fall back
-    /// to pairwise-complete rows. One pass: a gap shows up as a non-finite sum.
+    /// The moments of columns whose cells may be missing (NaN), when every cell is finite
+    /// (and no co-moment overflows); `None` otherwise, so that the caller can fall back to
+    /// pairwise-complete rows. One pass: a gap shows up as a non-finite sum.
     ///
     /// # Panics
     /// If the columns differ in length (a caller bug).
-    pub fn of_complete(columns: &[&[Option<f64>]]) -> Option<Self> {
-        let n = columns.first().map_or(0, |c| c.len());
-        assert!(
-            columns.iter().all(|c| c.len() == n),
-            "CoMoments::of_complete: columns differ in length"
-        );
-        let mut m = Self::new(columns.len());
-        m.add_with(n, |j, range, out| {
-            for (o, v) in out.iter_mut().zip(&columns[j][range]) {
-                *o = v.unwrap_or(f64::NAN);
-            }
-        });
+    pub fn of_complete(columns: &[&[f64]]) -> Option<Self> {
+        let m = Self::of(columns);
         m.is_finite().then_some(m)
     }
 
@@ -404,18 +394,13 @@ mod tests {
     }
 
     #[test]
-    fn complete_option_columns_give_the_same_moments_and_a_gap_gives_none() {
+    fn complete_columns_give_the_same_moments_and_a_gap_gives_none() {
         let cols = columns(5_000, 3, 1.0);
         let refs: Vec<&[f64]> = cols.iter().map(Vec::as_slice).collect();
-        let options: Vec<Vec<Option<f64>>> = cols
-            .iter()
-            .map(|c| c.iter().copied().map(Some).collect())
-            .collect();
-        let orefs: Vec<&[Option<f64>]> = options.iter().map(Vec::as_slice).collect();
-        assert_eq!(CoMoments::of_complete(&orefs), Some(CoMoments::of(&refs)));
-        let mut gap = options.clone();
-        gap[1][4_321] = None;
-        let grefs: Vec<&[Option<f64>]> = gap.iter().map(Vec::as_slice).collect();
+        assert_eq!(CoMoments::of_complete(&refs), Some(CoMoments::of(&refs)));
+        let mut gap = cols.clone();
+        gap[1][4_321] = f64::NAN;
+        let grefs: Vec<&[f64]> = gap.iter().map(Vec::as_slice).collect();
         assert_eq!(CoMoments::of_complete(&grefs), None);
     }
 

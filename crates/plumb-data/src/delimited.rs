@@ -31,7 +31,13 @@ pub(crate) fn load(
     if cap.is_some() {
         crate::budget::check_text_read(path, &bytes, options.memory_limit)?;
     }
-    from_bytes(path, &bytes, options, progress)
+    let (hash, stage) = hashed_stage(path, &bytes, options, progress);
+    // The text is let go before polars' columns become ours: the peak holds the text or
+    // the converted columns beside polars' own, not all three.
+    drop(bytes);
+    let mut table = stage?.finish(path, progress)?;
+    table.set_sha256(hash);
+    Ok(table)
 }
 
 /// Delimited text already in memory; `path` names it in messages. The table carries the
@@ -42,16 +48,63 @@ pub(crate) fn from_bytes(
     options: &LoadOptions,
     progress: Option<&Progress>,
 ) -> Result<Table> {
-    // The hash is taken beside the parse, on another thread.
+    let (hash, stage) = hashed_stage(path, bytes, options, progress);
+    let mut table = stage?.finish(path, progress)?;
+    table.set_sha256(hash);
+    Ok(table)
+}
+
+/// The bytes' SHA-256, taken on another thread beside the parse, and the parse.
+fn hashed_stage(
+    path: &Path,
+    bytes: &[u8],
+    options: &LoadOptions,
+    progress: Option<&Progress>,
+) -> (String, Result<Reached>) {
     std::thread::scope(|scope| {
         let hash = scope.spawn(|| crate::table::sha256_hex(bytes));
-        let table = read_text(path, bytes, options, progress, None);
+        let stage = stage_of(path, bytes, options, progress, None, Way::Typed);
         let hash = hash.join().unwrap_or_else(|p| std::panic::resume_unwind(p));
-        table.map(|mut t| {
-            t.set_sha256(hash);
-            t
-        })
+        (hash, stage)
     })
+}
+
+/// How far a read got while the text was at hand.
+pub(crate) enum Reached {
+    /// Polars has parsed the columns; they become ours without the text.
+    Parsed {
+        parsed: crate::typed::Parsed,
+        names: Vec<String>,
+        format: SourceFormat,
+        notes: Vec<String>,
+    },
+    /// The table, read with the text at hand.
+    Done(Table),
+}
+
+impl Reached {
+    fn finish(self, path: &Path, progress: Option<&Progress>) -> Result<Table> {
+        match self {
+            Self::Done(table) => Ok(table),
+            Self::Parsed {
+                parsed,
+                names,
+                format,
+                notes,
+            } => {
+                if let Some(p) = progress {
+                    p.enter(Stage::Typing);
+                }
+                // Only a float equal to a numeric missing token refuses, and such files
+                // never reach this stage (`Parsed::may_refuse`).
+                let values = parsed.columns().ok_or_else(|| DataError::Parse {
+                    path: path.to_path_buf(),
+                    message: "polars' columns could not be converted".into(),
+                })?;
+                Ok(Table::from_values(path, format, names, values, notes))
+            }
+        }
+    }
 }
 
 /// Which columns of a piece of a streamed file are split out and typed: those at these
@@ -85,6 +138,17 @@ fn read_text(
     read_text_by(path, bytes, options, progress, only, Way::Typed)
 }
 
+pub(crate) fn read_text_by(
+    path: &Path,
+    bytes: &[u8],
+    options: &LoadOptions,
+    progress: Option<&Progress>,
+    only: Option<Only<'_>>,
+    way: Way,
+) -> Result<Table> {
+    stage_of(path, bytes, options, progress, only, way)?.finish(path, progress)
+}
+
 /// Whether polars may type the numbers ([`crate::typed`]) or every cell goes through
 /// [`ColumnValues::from_texts`]; the two must give the same table (tested).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -94,14 +158,16 @@ pub(crate) enum Way {
     CellByCell,
 }
 
-pub(crate) fn read_text_by(
+/// Reads `bytes` as far as it needs them: to polars' parse on the typed way, to the table
+/// on the cell-by-cell way.
+fn stage_of(
     path: &Path,
     bytes: &[u8],
     options: &LoadOptions,
     progress: Option<&Progress>,
     only: Option<Only<'_>>,
     way: Way,
-) -> Result<Table> {
+) -> Result<Reached> {
     let stage = |s| {
         if let Some(p) = progress {
             p.enter(s);
@@ -128,14 +194,25 @@ pub(crate) fn read_text_by(
     let fast = (way == Way::Typed)
         .then(|| crate::typed::read(path, text, &recs, &shape, options, only.map(|o| o.at)))
         .flatten();
-    if let Some(values) = fast {
-        stage(Stage::Typing);
+    if let Some(parsed) = fast {
         let names = match only {
             Some(o) => o.names.to_vec(),
-            None => names_of(path, text, &recs, &shape, values.len())?,
+            None => names_of(path, text, &recs, &shape, parsed.width())?,
         };
-        let notes = decoded.note.into_iter().collect();
-        return Ok(Table::from_values(path, format, names, values, notes));
+        let notes: Vec<String> = decoded.note.iter().cloned().collect();
+        if !parsed.may_refuse() {
+            return Ok(Reached::Parsed {
+                parsed,
+                names,
+                format,
+                notes,
+            });
+        }
+        stage(Stage::Typing);
+        if let Some(values) = parsed.columns() {
+            let table = Table::from_values(path, format, names, values, notes);
+            return Ok(Reached::Done(table));
+        }
     }
     let guess = shape.guess;
     let frame = parse(path, text, &recs, delimiter, only.map(|o| o.at))?;
@@ -162,7 +239,9 @@ pub(crate) fn read_text_by(
         decimal,
         header,
     };
-    Ok(Table::from_values(path, format, names, values, notes))
+    Ok(Reached::Done(Table::from_values(
+        path, format, names, values, notes,
+    )))
 }
 
 /// The positions and names of the columns in [`LoadOptions::only`], when reading only those

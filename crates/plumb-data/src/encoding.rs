@@ -82,6 +82,8 @@ pub(crate) fn decode<'a>(
     bytes: &'a [u8],
     asked: Option<TextEncoding>,
 ) -> Result<Decoded<'a>> {
+    // Whether the whole of `bytes` was already found to be valid UTF-8 (checked once).
+    let mut checked = false;
     let encoding = match asked {
         Some(e) => e,
         None => match encoding_rs::Encoding::for_bom(bytes) {
@@ -90,7 +92,8 @@ pub(crate) fn decode<'a>(
             Some(_) => TextEncoding::Utf8,
             // Zero bytes are valid UTF-8, so UTF-16 without a mark is looked for first.
             None => utf16_without_mark(bytes).unwrap_or_else(|| {
-                if std::str::from_utf8(bytes).is_ok() {
+                if is_utf8(bytes) {
+                    checked = true;
                     TextEncoding::Utf8
                 } else {
                     TextEncoding::Windows1252
@@ -109,10 +112,10 @@ pub(crate) fn decode<'a>(
     let text = match encoding {
         TextEncoding::Utf8 => {
             let body = bytes.strip_prefix(b"\xEF\xBB\xBF").unwrap_or(bytes);
-            if let Err(e) = std::str::from_utf8(body) {
+            if !checked && !is_utf8(body) {
                 return Err(DataError::NotUtf8 {
                     path: path.to_path_buf(),
-                    line: 1 + count_newlines(&body[..e.valid_up_to()]),
+                    line: first_bad_line(body),
                 });
             }
             Cow::Borrowed(body)
@@ -162,6 +165,12 @@ fn utf16_without_mark(bytes: &[u8]) -> Option<TextEncoding> {
     } else {
         None
     }
+}
+
+/// Whether `bytes` are valid UTF-8 (checked with SIMD; the slower standard check is kept
+/// for finding where they are not).
+fn is_utf8(bytes: &[u8]) -> bool {
+    simdutf8::basic::from_utf8(bytes).is_ok()
 }
 
 fn first_bad_line(bytes: &[u8]) -> usize {

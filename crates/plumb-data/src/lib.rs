@@ -26,6 +26,7 @@ mod sniff;
 mod stream;
 mod table;
 mod typed;
+mod values;
 
 pub use budget::{available_memory, text_need, TEXT_BYTE_FACTOR, TEXT_CELL_BYTES};
 pub use cell::{Cell, DecimalMark, DEFAULT_MISSING_TOKENS};
@@ -39,6 +40,7 @@ pub use select::{DropReason, Dropped, Selection};
 pub use sniff::HeaderMode;
 pub use stream::{head, stream_columns, Piece, StreamOptions, StreamSummary, LISTED_DROPS};
 pub use table::{Column, ColumnSummary, ColumnValues, SourceFormat, Table};
+pub use values::{Numbers, Texts};
 
 use std::path::Path;
 

@@ -1,6 +1,7 @@
 //! Complete-row selection: the rows an analysis can use, and an account of the rest.
 
 use crate::table::{ColumnValues, Table};
+use crate::values::Numbers;
 use crate::{DataError, Result};
 
 /// Why a row was left out of an analysis.
@@ -50,13 +51,13 @@ pub struct Selection {
 /// The first needed column whose cell in row `i` (0-based) makes the row incomplete, and why.
 pub(crate) fn first_fault<'a>(
     names: &[&'a str],
-    columns: &[&[Option<f64>]],
+    columns: &[&Numbers],
     i: usize,
 ) -> Option<(&'a str, DropReason)> {
     names
         .iter()
         .zip(columns)
-        .find_map(|(name, col)| match col[i] {
+        .find_map(|(name, col)| match col.get(i) {
             None => Some((*name, DropReason::Missing)),
             Some(v) if !v.is_finite() => Some((*name, DropReason::NonFinite)),
             Some(_) => None,
@@ -69,19 +70,17 @@ impl Table {
     /// # Errors
     /// Unknown column (with a suggestion), text column (naming the first non-number cell),
     /// or a column with no values at all.
-    pub fn numeric(&self, name: &str) -> Result<&[Option<f64>]> {
+    pub fn numeric(&self, name: &str) -> Result<&Numbers> {
         let column = self.column(name).ok_or_else(|| DataError::UnknownColumn {
             path: self.source().to_path_buf(),
             name: name.to_string(),
             hint: self.column_hint(name),
         })?;
         match &column.values {
-            ColumnValues::Numeric(v) if v.iter().all(Option::is_none) => {
-                Err(DataError::AllMissing {
-                    path: self.source().to_path_buf(),
-                    column: name.to_string(),
-                })
-            }
+            ColumnValues::Numeric(v) if v.all_missing() => Err(DataError::AllMissing {
+                path: self.source().to_path_buf(),
+                column: name.to_string(),
+            }),
             ColumnValues::Numeric(v) => Ok(v),
             ColumnValues::Text {
                 first_text_row,
@@ -103,7 +102,7 @@ impl Table {
     /// # Errors
     /// As [`Table::numeric`], and [`DataError::RowOutOfRange`] for an exclusion beyond the table.
     pub fn complete_rows(&self, names: &[&str], exclude: &[usize]) -> Result<Selection> {
-        let columns: Vec<&[Option<f64>]> = names
+        let columns: Vec<&Numbers> = names
             .iter()
             .map(|n| self.numeric(n))
             .collect::<Result<_>>()?;
@@ -138,7 +137,7 @@ impl Table {
                 None => {
                     selection.rows.push(row);
                     for (out, col) in selection.columns.iter_mut().zip(&columns) {
-                        out.push(col[i].unwrap_or(f64::NAN));
+                        out.push(col.as_nan_missing()[i]);
                     }
                 }
             }

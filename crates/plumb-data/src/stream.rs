@@ -18,6 +18,7 @@ use crate::encoding::TextEncoding;
 use crate::select::{first_fault, Dropped};
 use crate::sniff::{self, HeaderMode};
 use crate::table::{ColumnValues, SourceFormat, Table};
+use crate::values::Numbers;
 use crate::{delimited, DataError, LoadOptions, Result};
 
 /// How many dropped rows a [`StreamSummary`] lists one by one (all are counted).
@@ -315,13 +316,10 @@ fn complete_piece(
     summary: &mut StreamSummary,
 ) -> Result<Piece> {
     let n = table.n_rows();
-    let mut columns: Vec<&[Option<f64>]> = Vec::with_capacity(names.len());
-    let all_missing = vec![None; n];
+    let mut columns: Vec<&Numbers> = Vec::with_capacity(names.len());
     for name in names {
+        // A piece whose cells in a column are all missing still counts its rows as dropped.
         match table.column(name).map(|c| &c.values) {
-            Some(ColumnValues::Numeric(v)) if v.iter().all(Option::is_none) => {
-                columns.push(&all_missing);
-            }
             Some(ColumnValues::Numeric(v)) => columns.push(v),
             _ => {
                 return Err(table
@@ -351,7 +349,7 @@ fn complete_piece(
             }
             None => {
                 for (out, col) in piece.columns.iter_mut().zip(&columns) {
-                    out.push(col[i].unwrap_or(f64::NAN));
+                    out.push(col.as_nan_missing()[i]);
                 }
                 piece.rows.push(row_offset + i + 1);
             }

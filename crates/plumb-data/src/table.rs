@@ -3,8 +3,9 @@
 use std::collections::{HashMap, HashSet};
 use std::path::{Path, PathBuf};
 
-use crate::cell::{classify, read_cell, Cell, DecimalMark};
+use crate::cell::{read_cell, Cell, DecimalMark};
 use crate::encoding::TextEncoding;
+use crate::values::{Numbers, Texts, TextsBuilder};
 
 /// How the file was read, so that the same reading can be repeated and reported.
 #[derive(Debug, Clone, PartialEq)]
@@ -67,11 +68,11 @@ impl std::fmt::Display for SourceFormat {
 #[derive(Debug, Clone, PartialEq)]
 pub enum ColumnValues {
     /// Every non-missing cell is a number (a column with no values at all is numeric and empty).
-    Numeric(Vec<Option<f64>>),
+    Numeric(Numbers),
     /// At least one non-missing cell is not a number.
     Text {
         /// Cell texts (numbers kept as written).
-        values: Vec<Option<String>>,
+        values: Texts,
         /// 1-based data row of the first cell that is not a number.
         first_text_row: usize,
         /// That cell's text.
@@ -112,6 +113,15 @@ pub struct ColumnSummary {
 }
 
 impl ColumnValues {
+    /// Each cell as text: a text cell as written, a number in Rust's shortest form that reads
+    /// back to it; `None` where missing.
+    pub fn labels(&self) -> Vec<Option<String>> {
+        match self {
+            Self::Text { values, .. } => values.iter().map(|v| v.map(str::to_string)).collect(),
+            Self::Numeric(values) => values.iter().map(|v| v.map(|v| v.to_string())).collect(),
+        }
+    }
+
     /// Types a column of cells: numeric unless some non-missing cell is text.
     pub(crate) fn from_cells(cells: Vec<Cell>) -> Self {
         let Some(i) = cells.iter().position(|c| matches!(c, Cell::Text(_))) else {
@@ -130,23 +140,54 @@ impl ColumnValues {
             Cell::Text(s) => shorten(s),
             _ => unreachable!("position found a text cell"),
         };
+        let mut values = TextsBuilder::with_capacity(cells.len());
+        for c in &cells {
+            match c {
+                Cell::Missing => values.push(None),
+                Cell::Number(v) => values.push(Some(&v.to_string())),
+                Cell::Text(s) => values.push(Some(s)),
+            }
+        }
         Self::Text {
-            values: cells
-                .into_iter()
-                .map(|c| match c {
-                    Cell::Missing => None,
-                    Cell::Number(v) => Some(v.to_string()),
-                    Cell::Text(s) => Some(s),
-                })
-                .collect(),
+            values: values.finish(),
             first_text_row: i + 1,
             first_text: first,
             text_count,
         }
     }
 
+    /// A column of cell texts known to hold text: each cell kept as [`ColumnValues::from_cells`]
+    /// would keep it after [`crate::cell::classify`] (a number in Rust's shortest form), without a string
+    /// per cell.
+    fn text_from<'a>(
+        cells: impl Iterator<Item = Option<&'a str>>,
+        decimal: DecimalMark,
+        tokens: &[String],
+    ) -> Self {
+        let mut values = TextsBuilder::with_capacity(cells.size_hint().0);
+        let (mut first, mut text_count) = (None, 0);
+        for (i, raw) in cells.enumerate() {
+            match raw.map_or(Ok(None), |s| read_cell(s, decimal, tokens)) {
+                Ok(None) => values.push(None),
+                Ok(Some(v)) => values.push(Some(&v.to_string())),
+                Err(text) => {
+                    text_count += 1;
+                    first.get_or_insert_with(|| (i + 1, shorten(text)));
+                    values.push(Some(text));
+                }
+            }
+        }
+        let (first_text_row, first_text) = first.unwrap_or_default();
+        Self::Text {
+            values: values.finish(),
+            first_text_row,
+            first_text,
+            text_count,
+        }
+    }
+
     /// Types a column straight from its cell texts (`None` for an empty field), as
-    /// [`ColumnValues::from_cells`] would after [`classify`] — without a string per cell for a
+    /// [`ColumnValues::from_cells`] would after [`crate::cell::classify`] — without a string per cell for a
     /// numeric column. `cells` is called again only when a cell turns out to be text.
     pub(crate) fn from_texts<'a, I>(
         cells: impl Fn() -> I,
@@ -159,17 +200,14 @@ impl ColumnValues {
         let mut numbers = Vec::with_capacity(cells().size_hint().0);
         for raw in cells() {
             match raw.map_or(Ok(None), |s| read_cell(s, decimal, tokens)) {
-                Ok(v) => numbers.push(v),
+                Ok(v) => numbers.push(v.unwrap_or(f64::NAN)),
                 Err(_) => {
                     drop(numbers);
-                    let all = cells()
-                        .map(|raw| raw.map_or(Cell::Missing, |s| classify(s, decimal, tokens)))
-                        .collect();
-                    return Self::from_cells(all);
+                    return Self::text_from(cells(), decimal, tokens);
                 }
             }
         }
-        Self::Numeric(numbers)
+        Self::Numeric(Numbers::from_nan_missing(numbers))
     }
 }
 
@@ -191,15 +229,19 @@ impl Column {
     pub fn summary(&self) -> ColumnSummary {
         match &self.values {
             ColumnValues::Numeric(v) => {
-                let finite = v.iter().flatten().copied().filter(|x| x.is_finite());
-                let (min, max) =
-                    finite.fold((None, None), |(lo, hi): (Option<f64>, Option<f64>), x| {
-                        (
-                            Some(lo.map_or(x, |l| l.min(x))),
-                            Some(hi.map_or(x, |h| h.max(x))),
-                        )
-                    });
-                let missing = v.iter().filter(|x| x.is_none()).count();
+                let (mut lo, mut hi) = (f64::INFINITY, f64::NEG_INFINITY);
+                for &x in v.as_nan_missing() {
+                    if x.is_finite() {
+                        lo = lo.min(x);
+                        hi = hi.max(x);
+                    }
+                }
+                let (min, max) = if lo <= hi {
+                    (Some(lo), Some(hi))
+                } else {
+                    (None, None)
+                };
+                let missing = v.missing();
                 ColumnSummary {
                     name: self.name.clone(),
                     kind: if missing == v.len() {
@@ -215,7 +257,7 @@ impl Column {
             ColumnValues::Text { values, .. } => ColumnSummary {
                 name: self.name.clone(),
                 kind: "text",
-                missing: values.iter().filter(|x| x.is_none()).count(),
+                missing: values.missing(),
                 min: None,
                 max: None,
             },
@@ -304,6 +346,12 @@ impl Table {
     /// All columns, in file order.
     pub fn columns(&self) -> &[Column] {
         &self.columns
+    }
+
+    /// Every column's [`Column::summary`], in file order (computed on all cores).
+    pub fn summaries(&self) -> Vec<ColumnSummary> {
+        use rayon::prelude::*;
+        self.columns.par_iter().map(Column::summary).collect()
     }
 
     /// Number of data rows.

@@ -18,11 +18,52 @@ use crate::cell::{read_cell, DecimalMark, DEFAULT_MISSING_TOKENS};
 use crate::delimited::{records_alone, Layout};
 use crate::sniff::Record;
 use crate::table::ColumnValues;
+use crate::values::Numbers;
 use crate::LoadOptions;
 
-/// The columns of the file (or those at `keep`), typed; `None` when the file needs the
-/// cell-by-cell path: the decimal mark is still open, or some cell is not a plain number in a
-/// column whose sample held only numbers.
+/// What polars parsed, before it becomes our columns: it no longer needs the file's text.
+pub(crate) struct Parsed {
+    frame: DataFrame,
+    mark: DecimalMark,
+    tokens: Vec<String>,
+    /// The missing tokens that are numbers (`-999`).
+    token_values: Vec<f64>,
+}
+
+impl Parsed {
+    /// Whether [`Parsed::columns`] can still refuse (a numeric missing token could hide
+    /// among the floats, and only the cell-by-cell path can tell): the text must be kept
+    /// until then.
+    pub(crate) fn may_refuse(&self) -> bool {
+        !self.token_values.is_empty()
+    }
+
+    /// Number of columns parsed.
+    pub(crate) fn width(&self) -> usize {
+        self.frame.width()
+    }
+
+    /// The columns, typed; each polars column is let go once converted. `None` when a value
+    /// equals a numeric missing token (the file then goes cell by cell).
+    pub(crate) fn columns(self) -> Option<Vec<ColumnValues>> {
+        let (mark, tokens, token_values) = (self.mark, self.tokens, self.token_values);
+        self.frame
+            .take_columns()
+            .into_iter()
+            .map(|c| match c.dtype() {
+                DataType::Float64 => numbers(&c, &token_values),
+                _ => {
+                    let strings = c.str().ok()?.rechunk();
+                    Some(ColumnValues::from_texts(|| strings.iter(), mark, &tokens))
+                }
+            })
+            .collect()
+    }
+}
+
+/// The columns of the file (or those at `keep`), parsed by polars; `None` when the file needs
+/// the cell-by-cell path: the decimal mark is still open, or some cell is not a plain number
+/// in a column whose sample held only numbers.
 pub(crate) fn read(
     path: &Path,
     text: &[u8],
@@ -30,7 +71,7 @@ pub(crate) fn read(
     shape: &Layout,
     options: &LoadOptions,
     keep: Option<&[usize]>,
-) -> Option<Vec<ColumnValues>> {
+) -> Option<Parsed> {
     let mark = shape.guess.mark;
     // With a comma delimiter a decimal comma can only sit in quoted cells: leave those to the
     // cell-by-cell path, as an open decimal mark is.
@@ -41,25 +82,34 @@ pub(crate) fn read(
         .get(usize::from(shape.header)..)
         .filter(|r| !r.is_empty())?;
     let numeric = numeric_in_sample(shape, &options.missing_tokens);
-    let frame = polars_read(path, text, data, shape, &numeric, options, keep)?;
-    let tokens = &options.missing_tokens;
+    // Each field is compared with every null token, which costs; the first try knows only
+    // the tokens the sample holds, and a file with another one further down is read again
+    // knowing them all.
+    let all = null_tokens(options);
+    let seen: Vec<PlSmallStr> = all
+        .iter()
+        .filter(|t| in_sample(shape, t))
+        .cloned()
+        .collect();
+    let read = |nulls: &[PlSmallStr]| polars_read(path, text, data, shape, &numeric, nulls, keep);
+    let frame = match read(&seen) {
+        Some(frame) => frame,
+        None if seen.len() < all.len() => read(&all)?,
+        None => return None,
+    };
+    let tokens = options.missing_tokens.clone();
     // A token that is a number ("-999") is missing only when written exactly so, after
     // trimming; polars sees " -999" as a number. Any such value sends the file the other way.
     let token_values: Vec<f64> = tokens
         .iter()
         .filter_map(|t| crate::cell::parse_number(t.trim(), mark))
         .collect();
-    frame
-        .take_columns()
-        .into_iter()
-        .map(|c| match c.dtype() {
-            DataType::Float64 => numbers(&c, &token_values),
-            _ => {
-                let strings = c.str().ok()?.rechunk();
-                Some(ColumnValues::from_texts(|| strings.iter(), mark, tokens))
-            }
-        })
-        .collect::<Option<Vec<_>>>()
+    Some(Parsed {
+        frame,
+        mark,
+        tokens,
+        token_values,
+    })
 }
 
 /// Whether each column's sampled cells (below the header) are all plain numbers or missing,
@@ -90,15 +140,33 @@ fn numeric_in_sample(shape: &Layout, tokens: &[String]) -> Vec<bool> {
         .collect()
 }
 
-/// Reads the data records with the numeric columns as floats. `None` when polars refuses a
-/// cell (or fails in any other way: the cell-by-cell path then says what is wrong).
+/// Every token that marks a missing cell, as polars is given it.
+fn null_tokens(options: &LoadOptions) -> Vec<PlSmallStr> {
+    DEFAULT_MISSING_TOKENS
+        .iter()
+        .map(|t| PlSmallStr::from(*t))
+        .chain(options.missing_tokens.iter().map(|t| t.trim().into()))
+        .collect()
+}
+
+/// Whether some data cell of the sniffing sample is written exactly as `token`.
+fn in_sample(shape: &Layout, token: &str) -> bool {
+    shape.sample[usize::from(shape.header).min(shape.sample.len())..]
+        .iter()
+        .flatten()
+        .any(|cell| cell == token)
+}
+
+/// Reads the data records with the numeric columns as floats and `nulls` as missing. `None`
+/// when polars refuses a cell (or fails in any other way: the cell-by-cell path then says
+/// what is wrong).
 fn polars_read(
     path: &Path,
     text: &[u8],
     data: &[Record],
     shape: &Layout,
     numeric: &[bool],
-    options: &LoadOptions,
+    nulls: &[PlSmallStr],
     keep: Option<&[usize]>,
 ) -> Option<DataFrame> {
     let schema: Schema = numeric
@@ -113,16 +181,11 @@ fn polars_read(
             (PlSmallStr::from(format!("c{j}")), dtype)
         })
         .collect();
-    let nulls: Vec<PlSmallStr> = DEFAULT_MISSING_TOKENS
-        .iter()
-        .map(|t| PlSmallStr::from(*t))
-        .chain(options.missing_tokens.iter().map(|t| t.trim().into()))
-        .collect();
     let parse_options = CsvParseOptions::default()
         .with_separator(shape.delimiter)
         .with_quote_char(Some(b'"'))
         .with_missing_is_null(true)
-        .with_null_values(Some(NullValues::AllColumns(nulls)));
+        .with_null_values((!nulls.is_empty()).then(|| NullValues::AllColumns(nulls.to_vec())));
     let input = records_alone(text, data);
     crate::guard::contain(path, "CSV", || {
         Ok(CsvReadOptions::default()
@@ -143,9 +206,12 @@ fn polars_read(
 /// when a value equals a numeric missing token.
 fn numbers(column: &polars::prelude::Column, token_values: &[f64]) -> Option<ColumnValues> {
     let floats = column.f64().ok()?;
-    let values: Vec<Option<f64>> = floats.iter().map(|v| v.filter(|x| !x.is_nan())).collect();
-    let token_like = values.iter().flatten().any(|v| token_values.contains(v));
-    (!token_like).then_some(ColumnValues::Numeric(values))
+    let values: Vec<f64> = match floats.cont_slice() {
+        Ok(no_nulls) => no_nulls.to_vec(),
+        Err(_) => floats.iter().map(|v| v.unwrap_or(f64::NAN)).collect(),
+    };
+    let token_like = !token_values.is_empty() && values.iter().any(|v| token_values.contains(v));
+    (!token_like).then(|| ColumnValues::Numeric(Numbers::from_nan_missing(values)))
 }
 
 #[cfg(test)]
@@ -264,6 +330,7 @@ mod tests {
         let options = LoadOptions::default();
         let recs = crate::sniff::records(text.as_bytes()).expect("records");
         let shape = crate::delimited::layout(text.as_bytes(), &recs, &options);
-        assert!(super::read(path, text.as_bytes(), &recs, &shape, &options, None).is_some());
+        let parsed = super::read(path, text.as_bytes(), &recs, &shape, &options, None);
+        assert!(parsed.and_then(super::Parsed::columns).is_some());
     }
 }

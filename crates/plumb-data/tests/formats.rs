@@ -43,7 +43,11 @@ fn xlsx_first_sheet_and_a_named_sheet() {
         }
     );
     assert_eq!(
-        table.numeric("absorbance").expect("numeric"),
+        table
+            .numeric("absorbance")
+            .expect("numeric")
+            .iter()
+            .collect::<Vec<_>>(),
         [Some(0.004), None, Some(0.215)]
     );
     assert!(matches!(
@@ -84,11 +88,19 @@ fn parquet_numbers_and_text() {
         .expect("write parquet");
     let table = load(&path, &LoadOptions::default()).expect("parquet loads");
     assert_eq!(
-        table.numeric("t").expect("numeric"),
+        table
+            .numeric("t")
+            .expect("numeric")
+            .iter()
+            .collect::<Vec<_>>(),
         [Some(1.0), Some(2.0), Some(3.0)]
     );
     assert_eq!(
-        table.numeric("level").expect("numeric"),
+        table
+            .numeric("level")
+            .expect("numeric")
+            .iter()
+            .collect::<Vec<_>>(),
         [Some(0.5), None, Some(1.5)]
     );
     assert!(table.numeric("site").is_err());
@@ -162,7 +174,11 @@ fn workbook_dates_are_days_since_1970() {
     let table = load(&path, &LoadOptions::default()).expect("loads");
     // 2000-03-01 is day 11017 after 1970-01-01 (by hand); noon adds half a day.
     assert_eq!(
-        table.numeric("taken").expect("numeric"),
+        table
+            .numeric("taken")
+            .expect("numeric")
+            .iter()
+            .collect::<Vec<_>>(),
         [Some(11_017.0), Some(11_018.5), Some(11_019.25)]
     );
     assert!(

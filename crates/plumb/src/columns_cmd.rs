@@ -22,8 +22,7 @@ pub fn run(args: &ColumnsArgs) -> anyhow::Result<String> {
         "  {:<24} {:<8} {:>8} {:>14} {:>14}",
         "column", "type", "missing", "lowest", "highest"
     )?;
-    for c in table.columns() {
-        let s = c.summary();
+    for s in table.summaries() {
         let show = |v: Option<f64>| v.map_or_else(|| "—".to_string(), num);
         writeln!(
             out,

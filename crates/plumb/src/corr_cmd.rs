@@ -35,14 +35,14 @@ struct CorrJson<'a> {
 pub fn run(args: &CorrArgs) -> anyhow::Result<String> {
     let table = plumb_data::load(&args.load.data, &args.load.options())?;
     let columns = columns_of(args, &table)?;
-    let values: Vec<&[Option<f64>]> = columns
+    let values: Vec<&[f64]> = columns
         .iter()
-        .map(|c| table.numeric(c))
+        .map(|c| table.numeric(c).map(plumb_data::Numbers::as_nan_missing))
         .collect::<Result<_, _>>()?;
     let order = args
         .order
         .as_deref()
-        .map(|o| table.numeric(o))
+        .map(|o| table.numeric(o).map(plumb_data::Numbers::as_nan_missing))
         .transpose()?;
     let method = match args.method {
         MethodArg::Pearson => Method::Pearson,
@@ -74,9 +74,7 @@ fn columns_of(args: &CorrArgs, table: &plumb_data::Table) -> anyhow::Result<Vec<
         table
             .columns()
             .iter()
-            .filter(
-                |c| matches!(&c.values, ColumnValues::Numeric(v) if v.iter().any(Option::is_some)),
-            )
+            .filter(|c| matches!(&c.values, ColumnValues::Numeric(v) if !v.all_missing()))
             .map(|c| c.name.clone())
             .filter(|n| Some(n) != args.order.as_ref())
             .collect()

@@ -276,7 +276,7 @@ fn choosing_the_decimal_mark_rereads_the_file_and_keeps_the_work() {
         .notes()
         .iter()
         .any(|n| n.contains("no cell settles the decimal mark")));
-    assert_eq!(table.numeric("y").expect("y")[0], Some(1234.0));
+    assert_eq!(table.numeric("y").expect("y").get(0), Some(1234.0));
     wb.apply(Action::OpenPair(FitSpec::line("y", "x")));
     wb.apply(Action::Exclude {
         rows: vec![3],
@@ -290,7 +290,7 @@ fn choosing_the_decimal_mark_rereads_the_file_and_keeps_the_work() {
     });
     settle(&mut wb);
     let dataset = &wb.loaded().expect("loaded").dataset;
-    assert_eq!(dataset.table.numeric("y").expect("y")[0], Some(1.234));
+    assert_eq!(dataset.table.numeric("y").expect("y").get(0), Some(1.234));
     assert!(dataset.table.notes().is_empty());
     assert_eq!(wb.marks().excluded.len(), 1, "the exclusion stays");
     // Every number, estimates included (R² alone would not see y scaled by 1000).

@@ -191,7 +191,7 @@ fn inverse_variance_weights_follow_each_exclusion_live() {
         .find(|&r| {
             r > 2 && {
                 let t = plumb_data::load(&data, &Default::default()).expect("load");
-                t.numeric("copper_ug_l").expect("x")[r - 1] == Some(200.0)
+                t.numeric("copper_ug_l").expect("x").get(r - 1) == Some(200.0)
             }
         })
         .expect("a third 200 reading");

@@ -167,7 +167,7 @@ fn dragging_a_point_changes_the_numbers_as_a_what_if_and_leaves_the_data_alone()
     // The table in memory and the file on disk keep the measured value.
     let table = &wb.loaded().expect("loaded").dataset.table;
     assert_eq!(
-        table.numeric("absorbance").expect("column")[row - 1],
+        table.numeric("absorbance").expect("column").get(row - 1),
         Some(y0)
     );
     assert_eq!(sha256(&data), before_hash);

@@ -2,9 +2,7 @@
 //! standard deviation and a small histogram of a numeric column (computed once, when the file
 //! is read), and whether a text column could name the rows.
 
-use std::collections::HashSet;
-
-use plumb_data::{Column, ColumnValues};
+use plumb_data::{Column, ColumnValues, Numbers};
 
 /// Most bars of a column's small histogram.
 pub const MAX_BINS: usize = 20;
@@ -35,10 +33,10 @@ pub struct Bins {
 
 impl NumericFacts {
     /// The facts of `values` (`None` without a finite value).
-    pub fn of(values: &[Option<f64>]) -> Option<Self> {
+    pub fn of(values: &Numbers) -> Option<Self> {
         let finite: Vec<f64> = values
+            .as_nan_missing()
             .iter()
-            .flatten()
             .copied()
             .filter(|v| v.is_finite())
             .collect();
@@ -107,11 +105,8 @@ pub fn facts_of(columns: &[Column]) -> Vec<Option<NumericFacts>> {
 pub fn suggested_id(columns: &[Column]) -> Option<String> {
     columns.iter().find_map(|c| match &c.values {
         ColumnValues::Text { values, .. } if !values.is_empty() => {
-            let mut seen = HashSet::with_capacity(values.len());
-            values
-                .iter()
-                .all(|v| v.as_deref().is_some_and(|s| seen.insert(s)))
-                .then(|| c.name.clone())
+            // Every row filled, and as many distinct texts as rows.
+            (values.missing() == 0 && values.levels().len() == values.len()).then(|| c.name.clone())
         }
         _ => None,
     })
@@ -145,12 +140,13 @@ mod tests {
         let v = [2.0, 4.0, 4.0, 4.0, 5.0, 5.0, 7.0, 9.0].map(Some);
         let mut with_gap = v.to_vec();
         with_gap.push(None);
-        let f = NumericFacts::of(&with_gap).expect("values");
+        let f = NumericFacts::of(&with_gap.into_iter().collect()).expect("values");
         assert_eq!(f.n, 8);
         assert!((f.mean - 5.0).abs() < 1e-15);
         assert!((f.sd - (32.0_f64 / 7.0).sqrt()).abs() < 1e-14);
-        assert!(NumericFacts::of(&[None, None]).is_none());
-        assert!(NumericFacts::of(&[Some(3.0)]).expect("one").sd.is_nan());
+        assert!(NumericFacts::of(&[None, None].into_iter().collect()).is_none());
+        let one = [Some(3.0)].into_iter().collect();
+        assert!(NumericFacts::of(&one).expect("one").sd.is_nan());
     }
 
     fn text(name: &str, cells: &[Option<&str>]) -> Column {
@@ -172,7 +168,7 @@ mod tests {
         let code = text("code", &[Some("Q1"), Some("Q2"), Some("Q3")]);
         let reading = Column {
             name: "reading".into(),
-            values: ColumnValues::Numeric(vec![Some(1.0), Some(2.0), Some(3.0)]),
+            values: ColumnValues::Numeric([Some(1.0), Some(2.0), Some(3.0)].into_iter().collect()),
         };
         let columns = [reading, site, gap, code];
         assert_eq!(suggested_id(&columns).as_deref(), Some("code"));

@@ -69,7 +69,7 @@ impl Dataset {
 
     /// Describes an already loaded table.
     pub fn from_table(table: Table, options: LoadOptions) -> Self {
-        let summaries: Vec<ColumnSummary> = table.columns().iter().map(|c| c.summary()).collect();
+        let summaries: Vec<ColumnSummary> = table.summaries();
         let numeric = summaries
             .iter()
             .filter(|s| s.kind == "numeric")
@@ -81,7 +81,7 @@ impl Dataset {
             .filter_map(|c| match &c.values {
                 ColumnValues::Text { values, .. } => {
                     let levels: BTreeSet<&str> =
-                        values.iter().flatten().map(String::as_str).collect();
+                        values.levels().iter().map(String::as_str).collect();
                     (levels.len() >= 2 && levels.len() <= MAX_GROUPS).then(|| {
                         (
                             c.name.clone(),
@@ -122,8 +122,8 @@ impl Dataset {
     pub fn cell_text(&self, column: &str, row: usize) -> Option<String> {
         let i = row.checked_sub(1)?;
         match &self.table.column(column)?.values {
-            ColumnValues::Numeric(v) => v.get(i).copied().flatten().map(name_of_number),
-            ColumnValues::Text { values, .. } => values.get(i).cloned().flatten(),
+            ColumnValues::Numeric(v) => v.get(i).map(name_of_number),
+            ColumnValues::Text { values, .. } => values.get(i).map(str::to_string),
         }
     }
 
@@ -157,7 +157,7 @@ impl Dataset {
             ColumnValues::Text { values, .. } => Some(
                 values
                     .iter()
-                    .map(|v| v.as_ref().and_then(|s| levels.iter().position(|l| l == s)))
+                    .map(|v| v.and_then(|s| levels.iter().position(|l| l == s)))
                     .collect(),
             ),
             ColumnValues::Numeric(_) => None,

@@ -264,7 +264,7 @@ enum Along<'a> {
     /// Values per pair entry (another predictor of the model).
     Entry(&'a [f64]),
     /// Values per data row (a column outside the model).
-    DataRow(&'a PairRows, &'a [Option<f64>]),
+    DataRow(&'a PairRows, &'a plumb_data::Numbers),
 }
 
 impl<'a> Along<'a> {
@@ -293,7 +293,7 @@ impl<'a> Along<'a> {
             Self::RowOrder(p) => p.rows[i] as f64,
             Self::Moved(input) => input.pair.point(i, &input.marks).0,
             Self::Entry(v) => v[i],
-            Self::DataRow(p, v) => v.get(p.rows[i] - 1).copied().flatten().unwrap_or(f64::NAN),
+            Self::DataRow(p, v) => v.get(p.rows[i] - 1).unwrap_or(f64::NAN),
         }
     }
 }

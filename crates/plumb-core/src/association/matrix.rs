@@ -112,14 +112,14 @@ impl MatrixSize {
 }
 
 /// Fills the matrix with `method` over pairwise-complete rows (a row counts for a pair when
-/// both of its cells are `Some` and finite) and adjusts the p-values of all defined pairs
+/// both of its cells are finite; NaN marks a missing cell) and adjusts the p-values of all defined pairs
 /// (when more than one pair is tested). With `order`, also fills the trend guards, on rows
 /// where the order is known too.
 pub fn correlation_matrix(
-    columns: &[&[Option<f64>]],
+    columns: &[&[f64]],
     method: Method,
     adjust: Adjustment,
-    order: Option<&[Option<f64>]>,
+    order: Option<&[f64]>,
 ) -> CorrelationMatrix {
     let k = columns.len();
     let guard_cells = || Some(vec![vec![None; k]; k]);
@@ -137,11 +137,7 @@ pub fn correlation_matrix(
     let moments = complete_moments(columns, method);
     let mut tested = Vec::new();
     for i in 0..k {
-        m.n[i][i] = columns[i]
-            .iter()
-            .flatten()
-            .filter(|v| v.is_finite())
-            .count();
+        m.n[i][i] = columns[i].iter().filter(|v| v.is_finite()).count();
         m.r[i][i] = Some(1.0);
         for j in i + 1..k {
             // A column against its own ordering variable is a trend by definition: the
@@ -175,7 +171,7 @@ pub fn correlation_matrix(
 
 /// Complete columns under Pearson or Spearman: the co-moments of every column at once (of the
 /// values, or of each column's ranks, ranked once), from one blocked pass.
-fn complete_moments(columns: &[&[Option<f64>]], method: Method) -> Option<CoMoments> {
+fn complete_moments(columns: &[&[f64]], method: Method) -> Option<CoMoments> {
     match method {
         Method::Pearson => CoMoments::of_complete(columns),
         Method::Spearman => complete_values(columns).map(|mut values| {
@@ -190,7 +186,7 @@ fn complete_moments(columns: &[&[Option<f64>]], method: Method) -> Option<CoMome
 /// The rows used and the coefficient of columns `i` and `j`: from the shared co-moments when
 /// there are any, else from the pair's complete rows.
 fn pair_cell(
-    columns: &[&[Option<f64>]],
+    columns: &[&[f64]],
     method: Method,
     moments: Option<&CoMoments>,
     i: usize,
@@ -227,15 +223,8 @@ fn adjust_all(m: &mut CorrelationMatrix, tested: &[(usize, usize, f64)], adjust:
     }
 }
 
-fn fill_guards(
-    m: &mut CorrelationMatrix,
-    i: usize,
-    j: usize,
-    a: &[Option<f64>],
-    b: &[Option<f64>],
-    t: &[Option<f64>],
-) {
-    let finite = |v: &Option<f64>| v.filter(|x| x.is_finite());
+fn fill_guards(m: &mut CorrelationMatrix, i: usize, j: usize, a: &[f64], b: &[f64], t: &[f64]) {
+    let finite = |v: &f64| v.is_finite().then_some(*v);
     let ((x, y), order): ((Vec<f64>, Vec<f64>), Vec<f64>) = a
         .iter()
         .zip(b)
@@ -255,12 +244,12 @@ fn fill_guards(
 }
 
 /// Whether `column` holds the same cells as the row order `t` (it is the order column).
-fn is_order(column: &[Option<f64>], t: &[Option<f64>]) -> bool {
+fn is_order(column: &[f64], t: &[f64]) -> bool {
     column.len() == t.len()
         && column
             .iter()
             .zip(t)
-            .all(|(a, b)| a.map(f64::to_bits) == b.map(f64::to_bits))
+            .all(|(a, b)| a.to_bits() == b.to_bits() || (a.is_nan() && b.is_nan()))
 }
 
 impl CorrelationMatrix {
@@ -278,21 +267,20 @@ impl CorrelationMatrix {
     }
 }
 
-/// The columns as plain values when every cell of every column is present and finite.
-fn complete_values(columns: &[&[Option<f64>]]) -> Option<Vec<Vec<f64>>> {
+/// The columns as plain values when every cell of every column is finite.
+fn complete_values(columns: &[&[f64]]) -> Option<Vec<Vec<f64>>> {
     columns
         .iter()
-        .map(|c| c.iter().map(|v| v.filter(|x| x.is_finite())).collect())
+        .map(|c| c.iter().all(|v| v.is_finite()).then(|| c.to_vec()))
         .collect()
 }
 
-pub(super) fn complete_pairs(a: &[Option<f64>], b: &[Option<f64>]) -> (Vec<f64>, Vec<f64>) {
+/// The rows where both cells are finite.
+pub(super) fn complete_pairs(a: &[f64], b: &[f64]) -> (Vec<f64>, Vec<f64>) {
     a.iter()
         .zip(b)
-        .filter_map(|(x, y)| match (x, y) {
-            (Some(x), Some(y)) if x.is_finite() && y.is_finite() => Some((*x, *y)),
-            _ => None,
-        })
+        .filter(|(x, y)| x.is_finite() && y.is_finite())
+        .map(|(x, y)| (*x, *y))
         .unzip()
 }
 
@@ -302,29 +290,24 @@ mod tests {
 
     #[test]
     fn complete_columns_take_the_one_pass_path_with_the_same_answers() {
-        let a: Vec<Option<f64>> = (0..500).map(|i| Some(f64::from(i).sin())).collect();
-        let b: Vec<Option<f64>> = (0..500)
-            .map(|i| Some(f64::from(i).cos() + 0.001 * f64::from(i)))
+        let a: Vec<f64> = (0..500).map(|i| f64::from(i).sin()).collect();
+        let b: Vec<f64> = (0..500)
+            .map(|i| f64::from(i).cos() + 0.001 * f64::from(i))
             .collect();
-        let c: Vec<Option<f64>> = (0..500).map(|i| Some(f64::from(i % 7))).collect();
+        let c: Vec<f64> = (0..500).map(|i| f64::from(i % 7)).collect();
         for method in [Method::Pearson, Method::Spearman] {
             same_with_and_without_a_gap(&a, &b, &c, method);
         }
     }
 
-    fn same_with_and_without_a_gap(
-        a: &[Option<f64>],
-        b: &[Option<f64>],
-        c: &[Option<f64>],
-        method: Method,
-    ) {
+    fn same_with_and_without_a_gap(a: &[f64], b: &[f64], c: &[f64], method: Method) {
         let fast = correlation_matrix(&[a, b, c], method, Adjustment::Holm, None);
         // One missing cell far from the others forces the pairwise path on nearly the same rows.
         let mut c_gap = c.to_vec();
-        c_gap.push(None);
+        c_gap.push(f64::NAN);
         let (mut a2, mut b2) = (a.to_vec(), b.to_vec());
-        a2.push(Some(0.5));
-        b2.push(Some(0.5));
+        a2.push(0.5);
+        b2.push(0.5);
         let slow = correlation_matrix(&[&a2, &b2, &c_gap], method, Adjustment::Holm, None);
         for i in 0..3 {
             for j in 0..3 {
@@ -351,18 +334,18 @@ mod tests {
     fn the_order_column_never_drifts_with_anything() {
         // Irregular steps in the order, so its first differences vary and a guard could be
         // computed for it; two series that climb with it share the trend.
-        let t: Vec<Option<f64>> = (0..40)
-            .map(|i| Some(f64::from(i) + 0.4 * f64::from(i % 3)))
+        let t: Vec<f64> = (0..40)
+            .map(|i| f64::from(i) + 0.4 * f64::from(i % 3))
             .collect();
-        let a: Vec<Option<f64>> = t
+        let a: Vec<f64> = t
             .iter()
             .enumerate()
-            .map(|(i, v)| v.map(|v| v + (i as f64 * 1.7).sin()))
+            .map(|(i, v)| v + (i as f64 * 1.7).sin())
             .collect();
-        let b: Vec<Option<f64>> = t
+        let b: Vec<f64> = t
             .iter()
             .enumerate()
-            .map(|(i, v)| v.map(|v| 2.0 * v + (i as f64 * 0.9 + 1.0).cos()))
+            .map(|(i, v)| 2.0 * v + (i as f64 * 0.9 + 1.0).cos())
             .collect();
         let m = correlation_matrix(&[&t, &a, &b], Method::Pearson, Adjustment::Holm, Some(&t));
         assert!(m.drifts_together(1, 2), "the two series share the trend");
@@ -378,9 +361,9 @@ mod tests {
 
     #[test]
     fn matrix_is_symmetric_and_counts_its_tests() {
-        let a = [Some(1.0), Some(2.0), Some(3.0), Some(4.0), None];
-        let b = [Some(2.0), Some(1.0), Some(4.0), Some(3.0), Some(5.0)];
-        let c = [Some(7.0), Some(7.0), Some(7.0), Some(7.0), Some(7.0)];
+        let a = [1.0, 2.0, 3.0, 4.0, f64::NAN];
+        let b = [2.0, 1.0, 4.0, 3.0, 5.0];
+        let c = [7.0; 5];
         let m = correlation_matrix(&[&a, &b, &c], Method::Pearson, Adjustment::Holm, None);
         assert_eq!(m.r[0][1], m.r[1][0]);
         assert_eq!(m.n[0][1], 4);

@@ -119,11 +119,12 @@ impl StructureScan {
     }
 }
 
-/// Checks every pair of `columns` on its complete rows (both cells `Some` and finite) within
+/// Checks every pair of `columns` on its complete rows (both cells finite; NaN marks a missing
+/// cell) within
 /// `budget` distance terms: the coefficients cost `5·n²` a pair and run only when all of them
 /// fit; then candidates are tested, largest gap first, at `(5 + R)·n²` each
 /// (`R =` [`DISTANCE_PERMUTATIONS`]) while the budget lasts.
-pub fn structure_scan(columns: &[&[Option<f64>]], budget: u64) -> StructureScan {
+pub fn structure_scan(columns: &[&[f64]], budget: u64) -> StructureScan {
     let k = columns.len();
     let mut complete = vec![vec![0usize; k]; k];
     for i in 0..k {
@@ -140,7 +141,7 @@ pub fn structure_scan(columns: &[&[Option<f64>]], budget: u64) -> StructureScan 
 /// correlation matrix of the same columns holds them): a wide table then costs no pass over
 /// its rows before the budget is checked.
 pub fn structure_scan_counted(
-    columns: &[&[Option<f64>]],
+    columns: &[&[f64]],
     complete: &[Vec<usize>],
     budget: u64,
 ) -> StructureScan {
@@ -220,10 +221,10 @@ fn within_budget(
     (chosen, unconfirmed)
 }
 
-fn complete_count(a: &[Option<f64>], b: &[Option<f64>]) -> u64 {
+fn complete_count(a: &[f64], b: &[f64]) -> u64 {
     a.iter()
         .zip(b)
-        .filter(|(x, y)| x.is_some_and(f64::is_finite) && y.is_some_and(f64::is_finite))
+        .filter(|(x, y)| x.is_finite() && y.is_finite())
         .count() as u64
 }
 
@@ -233,7 +234,7 @@ mod tests {
     #[test]
     fn counts_given_or_worked_out_give_the_same_scan() {
         let cols = columns();
-        let refs: Vec<&[Option<f64>]> = cols.iter().map(Vec::as_slice).collect();
+        let refs: Vec<&[f64]> = cols.iter().map(Vec::as_slice).collect();
         let m = crate::association::correlation_matrix(
             &refs,
             crate::association::Method::Pearson,
@@ -249,8 +250,8 @@ mod tests {
     #[test]
     fn pairs_too_large_for_distance_correlation_are_counted_not_claimed() {
         let n = super::super::DISTANCE_MAX_N + 1;
-        let a: Vec<Option<f64>> = (0..n).map(|i| Some(i as f64)).collect();
-        let b: Vec<Option<f64>> = (0..n).map(|i| Some(((i * 7) % 13) as f64)).collect();
+        let a: Vec<f64> = (0..n).map(|i| i as f64).collect();
+        let b: Vec<f64> = (0..n).map(|i| ((i * 7) % 13) as f64).collect();
         let StructureScan::Done {
             cells, too_large, ..
         } = structure_scan(&[&a, &b], 1)
@@ -317,19 +318,19 @@ mod tests {
         }
     }
 
-    fn columns() -> Vec<Vec<Option<f64>>> {
+    fn columns() -> Vec<Vec<f64>> {
         let x = grid(41);
         vec![
-            x.iter().map(|&v| Some(v)).collect(),
-            x.iter().map(|&v| Some(v * v)).collect(),
-            x.iter().map(|&v| Some(3.0 * v - 1.0)).collect(),
+            x.clone(),
+            x.iter().map(|&v| v * v).collect(),
+            x.iter().map(|&v| 3.0 * v - 1.0).collect(),
         ]
     }
 
     #[test]
     fn a_scan_is_symmetric_and_flags_only_the_curve() {
         let cols = columns();
-        let refs: Vec<&[Option<f64>]> = cols.iter().map(Vec::as_slice).collect();
+        let refs: Vec<&[f64]> = cols.iter().map(Vec::as_slice).collect();
         let scan = structure_scan(&refs, STRUCTURE_BUDGET);
         let flagged = |i, j| scan.cell(i, j).is_some_and(StructureCheck::flagged);
         assert!(flagged(0, 1) && flagged(1, 0) && flagged(2, 1));
@@ -341,7 +342,7 @@ mod tests {
     #[test]
     fn the_budget_skips_the_scan_or_leaves_candidates_unconfirmed() {
         let cols = columns();
-        let refs: Vec<&[Option<f64>]> = cols.iter().map(Vec::as_slice).collect();
+        let refs: Vec<&[f64]> = cols.iter().map(Vec::as_slice).collect();
         let coefficients = 3 * COEFFICIENT_PASSES * 41 * 41;
         assert_eq!(
             structure_scan(&refs, coefficients - 1),

@@ -107,7 +107,7 @@ pub fn assumption_checks(
             let rows = &analysis.rows.selection.rows;
             let mut idx: Vec<usize> = (0..rows.len()).collect();
             // Rows whose order value is missing go last, in file order.
-            let key = |i: usize| values[rows[i] - 1].unwrap_or(f64::INFINITY);
+            let key = |i: usize| values.get(rows[i] - 1).unwrap_or(f64::INFINITY);
             idx.sort_by(|&a, &b| key(a).total_cmp(&key(b)));
             let ordered: Vec<f64> = idx.iter().map(|&i| scaled[i]).collect();
             Some(order_checks(name, &ordered))

@@ -8,7 +8,7 @@ use plumb_core::regression::{Design, Term, TermKind, Transform};
 
 use super::AnalysisError;
 use crate::select::{DropReason, Dropped, Selection};
-use crate::table::{ColumnValues, Table};
+use crate::table::Table;
 
 /// Most levels a grouping factor may have.
 pub const MAX_LEVELS: usize = 50;
@@ -117,10 +117,7 @@ fn level_labels(table: &Table, column: &str) -> Result<Vec<Option<String>>, Anal
             table.source().display()
         ))
     })?;
-    Ok(match &col.values {
-        ColumnValues::Text { values, .. } => values.clone(),
-        ColumnValues::Numeric(values) => values.iter().map(|v| v.map(|v| v.to_string())).collect(),
-    })
+    Ok(col.values.labels())
 }
 
 /// Drops the rows whose factor cell is missing (recorded as dropped) and reads the levels of

@@ -1,7 +1,7 @@
 //! Unknown samples for a calibration: typed or pasted as text, or read from a second file.
 
 use super::{AnalysisError, Unknown};
-use crate::table::{ColumnValues, Table};
+use crate::table::Table;
 
 /// Parses unknowns typed or pasted as text: one sample per line, an optional name first, then
 /// one or more readings. Fields are split at tabs or semicolons when the line has any (so
@@ -83,10 +83,7 @@ pub fn unknowns_from_table(
                     table.source().display()
                 ))
             })?;
-            match &column.values {
-                ColumnValues::Text { values, .. } => values.clone(),
-                ColumnValues::Numeric(v) => v.iter().map(|v| v.map(|v| v.to_string())).collect(),
-            }
+            column.values.labels()
         }
     };
     let mut out: Vec<Unknown> = Vec::new();
@@ -95,10 +92,10 @@ pub fn unknowns_from_table(
             continue;
         };
         match out.iter_mut().find(|u| u.name == name) {
-            Some(u) => u.readings.push(*v),
+            Some(u) => u.readings.push(v),
             None => out.push(Unknown {
                 name,
-                readings: vec![*v],
+                readings: vec![v],
             }),
         }
     }

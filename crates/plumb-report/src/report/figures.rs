@@ -98,8 +98,8 @@ fn excluded_dots(input: &ReportInput<'_>, outcome: &Analysis, x: &str) -> Vec<Do
         .iter()
         .filter_map(|&r| {
             Some(Dot {
-                x: xs[r - 1]?,
-                y: ys[r - 1]?,
+                x: xs.get(r - 1)?,
+                y: ys.get(r - 1)?,
                 excluded: true,
             })
         })

@@ -133,8 +133,8 @@ fn methods_figure(input: &ReportInput<'_>, a: &AgreementReport) -> Result<Chart>
     if let (Ok(xc), Ok(yc)) = (input.table.numeric(reference), input.table.numeric(test)) {
         dots.extend(a.selection.excluded.iter().filter_map(|&r| {
             Some(Dot {
-                x: xc.get(r - 1).copied()??,
-                y: yc.get(r - 1).copied()??,
+                x: xc.get(r - 1)?,
+                y: yc.get(r - 1)?,
                 excluded: true,
             })
         }));
@@ -205,7 +205,7 @@ fn excluded_differences(input: &ReportInput<'_>, a: &AgreementReport, percent: b
         .excluded
         .iter()
         .filter_map(|&r| {
-            let (xi, yi) = (x.get(r - 1).copied()??, y.get(r - 1).copied()??);
+            let (xi, yi) = (x.get(r - 1)?, y.get(r - 1)?);
             let m = 0.5 * xi + 0.5 * yi;
             let d = if percent {
                 (m != 0.0).then(|| 100.0 * (yi - xi) / m)?

@@ -165,7 +165,7 @@ impl MapModel {
             .iter()
             .filter_map(|c| {
                 let values = data.table.numeric(c).ok()?;
-                row_label(c, values).map(|why| (c.clone(), why))
+                row_label(c, values.as_nan_missing()).map(|why| (c.clone(), why))
             })
             .collect();
         if data.numeric.len() >= found.len() + 2 {
@@ -204,11 +204,21 @@ impl MapModel {
 /// The map for `columns` of `table`: the matrix, the structure scan within
 /// [`STRUCTURE_BUDGET`], and the similarity order.
 pub fn compute(table: &plumb_data::Table, columns: Vec<String>, key: MapKey) -> MapResult {
-    let values: Vec<&[Option<f64>]> = columns
+    let values: Vec<&[f64]> = columns
         .iter()
-        .filter_map(|c| table.numeric(c).ok())
+        .filter_map(|c| {
+            table
+                .numeric(c)
+                .ok()
+                .map(plumb_data::Numbers::as_nan_missing)
+        })
         .collect();
-    let order = key.order.as_deref().and_then(|c| table.numeric(c).ok());
+    let order = key.order.as_deref().and_then(|c| {
+        table
+            .numeric(c)
+            .ok()
+            .map(plumb_data::Numbers::as_nan_missing)
+    });
     let matrix = correlation_matrix(&values, key.method, key.adjust, order);
     let similarity = similarity_order(&matrix.r);
     let structure = structure_scan_counted(&values, &matrix.n, STRUCTURE_BUDGET);

@@ -38,14 +38,11 @@ impl RowLabel {
     }
 }
 
-/// How column `name` with `values` labels rows, if it does. A column with a missing or
-/// non-finite cell, or fewer than 3 rows, is taken as a measurement.
-pub fn row_label(name: &str, values: &[Option<f64>]) -> Option<RowLabel> {
-    let v: Vec<f64> = values
-        .iter()
-        .map(|c| c.filter(|x| x.is_finite()))
-        .collect::<Option<_>>()?;
-    if v.len() < 3 {
+/// How column `name` with `values` (NaN where missing) labels rows, if it does. A column with
+/// a missing or non-finite cell, or fewer than 3 rows, is taken as a measurement.
+pub fn row_label(name: &str, values: &[f64]) -> Option<RowLabel> {
+    let v = values;
+    if v.len() < 3 || !v.iter().all(|x| x.is_finite()) {
         return None;
     }
     let steps: Vec<f64> = v.windows(2).map(|w| w[1] - w[0]).collect();
@@ -62,7 +59,7 @@ pub fn row_label(name: &str, values: &[Option<f64>]) -> Option<RowLabel> {
     if steps.iter().all(|&s| s > 0.0) && ones >= SEQUENCE_ONES * steps.len() as f64 {
         return Some(RowLabel::Sequence);
     }
-    (names_an_identifier(name) && all_distinct(&v)).then_some(RowLabel::Identifier)
+    (names_an_identifier(name) && all_distinct(v)).then_some(RowLabel::Identifier)
 }
 
 /// Whether a word of `name` (split at anything not a letter or digit, and before a capital
@@ -95,8 +92,8 @@ fn all_distinct(v: &[f64]) -> bool {
 mod tests {
     use super::*;
 
-    fn col(v: &[f64]) -> Vec<Option<f64>> {
-        v.iter().map(|&x| Some(x)).collect()
+    fn col(v: &[f64]) -> Vec<f64> {
+        v.to_vec()
     }
 
     #[test]
@@ -140,7 +137,7 @@ mod tests {
         // Calibration standards: increasing whole numbers, but not a numbering.
         assert_eq!(row_label("conc", &col(&[1.0, 2.0, 5.0, 10.0, 20.0])), None);
         assert_eq!(row_label("const", &col(&[4.0, 4.0, 4.0])), None);
-        assert_eq!(row_label("gap", &[Some(1.0), None, Some(3.0)]), None);
+        assert_eq!(row_label("gap", &[1.0, f64::NAN, 3.0]), None);
         assert_eq!(row_label("short", &col(&[1.0, 2.0])), None);
     }
 }
