@@ -82,6 +82,45 @@ pub fn variance_inflation(design: &Design, weights: Option<&[f64]>) -> Result<Ve
         .collect()
 }
 
+/// [`variance_inflation`] read off `fit`, the fit of `design` (with `weights`) to any response,
+/// without the auxiliary fits: `1/[(XᵀWX)⁻¹]ⱼⱼ` is the residual sum of squares of term j on
+/// the other terms, so `VIFⱼ = [(XᵀWX)⁻¹]ⱼⱼ · TSSⱼ` with `TSSⱼ = Σwᵢ(xᵢⱼ − x̄ⱼ)²` (uncentred,
+/// `Σwᵢxᵢⱼ²`, without an intercept), and `[(XᵀWX)⁻¹]ⱼⱼ = SE(β̂ⱼ)²/σ̂²` from the fit's
+/// covariance. A fit with `σ̂ = 0` carries no such scale: the auxiliary fits are run instead.
+///
+/// # Errors
+/// As [`variance_inflation`], whose auxiliary fits are the fallback.
+pub fn variance_inflation_of_fit(
+    design: &Design,
+    weights: Option<&[f64]>,
+    fit: &LinearFit,
+) -> Result<Vec<Option<f64>>> {
+    let s2 = fit.residual_std_error.powi(2);
+    if !(s2 > 0.0 && s2.is_finite()) {
+        return variance_inflation(design, weights);
+    }
+    let terms = design.terms();
+    let predictors = terms
+        .iter()
+        .filter(|t| t.kind != TermKind::Intercept)
+        .count();
+    let total = |x: &[f64]| match (design.has_intercept(), weights) {
+        (true, w) => crate::describe::sum_sq_dev(x, w),
+        (false, None) => crate::accurate::sum(x.iter().map(|v| v * v)),
+        (false, Some(w)) => crate::accurate::sum(x.iter().zip(w).map(|(v, wi)| wi * v * v)),
+    };
+    Ok(terms
+        .iter()
+        .zip(design.columns())
+        .enumerate()
+        .map(|(j, (term, x))| match (term.kind, predictors) {
+            (TermKind::Intercept, _) => None,
+            (_, 1) => Some(1.0),
+            _ => Some(fit.covariance[(j, j)] / s2 * total(x)),
+        })
+        .collect())
+}
+
 /// Whether the model with terms `reduced` is nested in the one with terms `full`: every term
 /// of the smaller is a term of the larger (by name), and the larger has more.
 pub fn is_nested(reduced: &[String], full: &[String]) -> bool {
@@ -182,6 +221,38 @@ mod tests {
             &["intercept".into(), "a".into()]
         ));
         assert!(!is_nested(&["a".into()], &["intercept".into(), "b".into()]));
+    }
+
+    #[test]
+    fn inflation_read_off_the_fit_equals_the_auxiliary_fits() {
+        // Three predictors sharing a factor, with and without weights and an intercept.
+        let n = 300;
+        let f: Vec<f64> = (0..n).map(|i| (f64::from(i) * 0.37).sin()).collect();
+        let a: Vec<f64> = (0..n)
+            .map(|i| f[i as usize] + 0.3 * (f64::from(i) * 1.3).cos())
+            .collect();
+        let b: Vec<f64> = (0..n)
+            .map(|i| 2.0 * f[i as usize] + 0.1 * (f64::from(i) * 2.9).sin() + 5.0)
+            .collect();
+        let c: Vec<f64> = (0..n).map(|i| f64::from(i % 7) - f[i as usize]).collect();
+        let y: Vec<f64> = (0..n)
+            .map(|i| a[i as usize] - b[i as usize] + (f64::from(i) * 0.71).cos())
+            .collect();
+        let w: Vec<f64> = (0..n).map(|i| 1.0 + f64::from(i % 4)).collect();
+        for intercept in [true, false] {
+            let d = Design::linear(&[("a", &a), ("b", &b), ("c", &c)], intercept);
+            for weights in [None, Some(w.as_slice())] {
+                let full = fit(&d, &y, weights, &FitOptions::default()).expect("fits");
+                let quick = variance_inflation_of_fit(&d, weights, &full).expect("defined");
+                let slow = variance_inflation(&d, weights).expect("defined");
+                for (q, s) in quick.iter().zip(&slow) {
+                    match (q, s) {
+                        (Some(q), Some(s)) => assert_relative_eq!(*q, *s, max_relative = 1e-9),
+                        _ => assert_eq!(q, s),
+                    }
+                }
+            }
+        }
     }
 
     #[test]

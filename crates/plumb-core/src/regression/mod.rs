@@ -22,7 +22,8 @@ mod transform;
 pub use bands::{bands, bands_at, BandPoint};
 pub use boxcox::{boxcox, boxcox_log_likelihood, BoxCox, LAMBDA_REACH};
 pub use compare::{
-    added_variable, compare_nested, is_nested, variance_inflation, AddedVariable, NestedComparison,
+    added_variable, compare_nested, is_nested, variance_inflation, variance_inflation_of_fit,
+    AddedVariable, NestedComparison,
 };
 pub use design::{
     is_intercept_name, polynomial_value, Design, Term, TermKind, INTERCEPT, INTERCEPT_ALIAS,

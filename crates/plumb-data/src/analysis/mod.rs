@@ -18,7 +18,7 @@ mod unknowns;
 
 use plumb_core::calibration::WeightRule;
 use plumb_core::regression::{
-    added_variable, influence, influence_with_dfbetas, variance_inflation, AddedVariable,
+    added_variable, influence, influence_with_dfbetas, variance_inflation_of_fit, AddedVariable,
     CaseInfluence, Dfbetas, LinearFit, Transform,
 };
 use plumb_core::CoreError;
@@ -209,7 +209,7 @@ pub fn analyze(
         source,
     };
     let vif = (request.x.len() > 1 || request.factor.is_some())
-        .then(|| variance_inflation(&rows.design, rows.weights()))
+        .then(|| variance_inflation_of_fit(&rows.design, rows.weights(), &fit))
         .transpose()
         .map_err(model_error)?;
     let (cases, dfbetas) = match (wanted.influence, wanted.dfbetas) {
