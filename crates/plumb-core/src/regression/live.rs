@@ -68,8 +68,10 @@ pub struct LiveSummary {
 #[derive(Debug, Clone)]
 pub struct LiveFit {
     design: Design,
-    /// Current values of each row: `[x]` for a polynomial, the design row otherwise.
-    values: Vec<Vec<f64>>,
+    /// The current values of the rows given new ones by [`LiveFit::set_row`] (what-ifs):
+    /// `[x]` for a polynomial, the design row otherwise. Every other row keeps the design's
+    /// values, so nothing per row is copied.
+    moved: std::collections::HashMap<usize, Vec<f64>>,
     y: Vec<f64>,
     /// `√wᵢ` of each row (`None`: ordinary least squares).
     root_w: Option<Vec<f64>>,
@@ -125,14 +127,15 @@ impl LiveFit {
             .map(|w| w.iter().map(|v| v.sqrt()).collect());
         let rw = root_w.clone().unwrap_or_else(|| vec![1.0; y.len()]);
         let mut basis = Basis::new(&design, &rw);
-        let values: Vec<Vec<f64>> = match design.polynomial_source() {
-            Some(x) => x.iter().map(|&v| vec![v]).collect(),
-            None => (0..y.len()).map(|i| design.row(i).collect()).collect(),
-        };
-        let z = values
-            .iter()
+        let z = (0..y.len())
             .zip(&rw)
-            .flat_map(|(v, &r)| basis.z_row(v).into_iter().map(move |z| z * r))
+            .flat_map(|(i, &r)| {
+                let v: Vec<f64> = match design.polynomial_source() {
+                    Some(x) => vec![x[i]],
+                    None => design.row(i).collect(),
+                };
+                basis.z_row(&v).into_iter().map(move |z| z * r)
+            })
             .collect();
         basis.columns = Vec::new(); // the rows `z` hold the same numbers
         let y_shift = if design.has_intercept() {
@@ -147,7 +150,7 @@ impl LiveFit {
             always_refit: first.condition_number > CONDITION_LIMIT,
             inverse_valid: false,
             design,
-            values,
+            moved: std::collections::HashMap::new(),
             y,
             root_w,
             basis_recipe: basis,
@@ -232,10 +235,33 @@ impl LiveFit {
     /// [`CoreError::InvalidOption`] for a non-finite value.
     pub fn move_response(&mut self, i: usize, y: f64) -> Result<&Result<LiveSummary>> {
         let row = match self.design.polynomial_source() {
-            Some(_) => self.polynomial_row(self.values[i][0]),
-            None => self.values[i].clone(),
+            Some(_) => self.polynomial_row(self.value(i, 0)),
+            None => self.values_of(i),
         };
         self.set_row(i, &row, y)
+    }
+
+    /// Value `k` of row `i` as it stands: `x` (k = 0) for a polynomial, term k's value
+    /// otherwise.
+    fn value(&self, i: usize, k: usize) -> f64 {
+        if let Some(v) = self.moved.get(&i) {
+            return v[k];
+        }
+        match self.design.polynomial_source() {
+            Some(x) => x[i],
+            None => self.design.columns()[k][i],
+        }
+    }
+
+    /// Row `i`'s values as they stand: `[x]` for a polynomial, the design row otherwise.
+    fn values_of(&self, i: usize) -> Vec<f64> {
+        if let Some(v) = self.moved.get(&i) {
+            return v.clone();
+        }
+        match self.design.polynomial_source() {
+            Some(x) => vec![x[i]],
+            None => self.design.row(i).collect(),
+        }
     }
 
     /// The design row of a one-predictor model at `x`: each term's power of `x`.
@@ -266,16 +292,17 @@ impl LiveFit {
             self.n_included -= 1;
             self.update(i, -1.0);
         }
-        self.values[i] = match self.design.polynomial_source() {
+        let values = match self.design.polynomial_source() {
             // The polynomial's working row is built from x, its linear term's value.
             Some(_) => vec![row[usize::from(self.design.has_intercept())]],
             None => row.to_vec(),
         };
+        self.moved.insert(i, values);
         self.y[i] = y;
         let r = self.root_weight(i);
         let z: Vec<f64> = self
             .basis_recipe
-            .z_row(&self.values[i])
+            .z_row(&self.values_of(i))
             .into_iter()
             .map(|v| v * r)
             .collect();
@@ -319,7 +346,7 @@ impl LiveFit {
         let p = self.design.n_terms();
         let z: Vec<f64> = self
             .basis_recipe
-            .z_row(&self.values[i])
+            .z_row(&self.values_of(i))
             .into_iter()
             .map(|v| v * r)
             .collect();
@@ -473,7 +500,7 @@ impl LiveFit {
         let y: Vec<f64> = rows.iter().map(|&i| self.y[i]).collect();
         let design = match self.design.polynomial_source() {
             Some(_) => {
-                let x: Vec<f64> = rows.iter().map(|&i| self.values[i][0]).collect();
+                let x: Vec<f64> = rows.iter().map(|&i| self.value(i, 0)).collect();
                 let degree = self
                     .design
                     .terms()
@@ -494,7 +521,7 @@ impl LiveFit {
                 for (k, term) in self.design.terms().iter().enumerate() {
                     d.push(
                         term.clone(),
-                        rows.iter().map(|&i| self.values[i][k]).collect(),
+                        rows.iter().map(|&i| self.value(i, k)).collect(),
                     );
                 }
                 d

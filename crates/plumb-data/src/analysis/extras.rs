@@ -75,7 +75,8 @@ impl PairExtras {
 pub struct DegreeStep {
     /// Degree.
     pub degree: u32,
-    /// Its fit.
+    /// Its fit, without its per-row fitted values and residuals (emptied once the cues have
+    /// used them: at millions of rows they would be three more copies of the data).
     pub fit: LinearFit,
     /// Against the degree below (None for degree 1).
     pub versus_previous: Option<NestedComparison>,
@@ -165,6 +166,12 @@ pub(super) fn pair_extras(
         line: step(1),
         cubic: step(3),
     };
+    let cues = pair_cues_given(x, y, known);
+    let mut degrees = degrees;
+    for s in &mut degrees {
+        s.fit.fitted = Vec::new();
+        s.fit.residuals = Vec::new();
+    }
     Some(PairExtras {
         read_at,
         robust: robust.map(|r| match r {
@@ -172,7 +179,7 @@ pub(super) fn pair_extras(
             Robust::Deming(lambda) => deming(x, y, lambda).map(RobustFit::Deming),
         }),
         loess: loess_span.map(|span| loess(x, y, span, 2)),
-        cues: pair_cues_given(x, y, known),
+        cues,
         z_view,
         curves: curves(rows, fitted),
         degrees,
