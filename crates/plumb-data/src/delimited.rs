@@ -31,24 +31,20 @@ pub(crate) fn load(
     if cap.is_some() {
         crate::budget::check_text_read(path, &bytes, options.memory_limit)?;
     }
-    let (hash, stage) = hashed_stage(path, &bytes, options, progress);
-    // The text is let go before polars' columns become ours: the peak holds the text or
-    // the converted columns beside polars' own, not all three.
-    drop(bytes);
-    let mut table = stage?.finish(path, progress)?;
-    table.set_sha256(hash);
-    Ok(table)
+    from_bytes(path, bytes, options, progress)
 }
 
 /// Delimited text already in memory; `path` names it in messages. The table carries the
-/// bytes' hash.
+/// bytes' hash. Bytes handed over (a `Vec`) are let go before polars' columns become ours:
+/// the peak then holds the text or the converted columns beside polars' own, not all three.
 pub(crate) fn from_bytes(
     path: &Path,
-    bytes: &[u8],
+    bytes: impl AsRef<[u8]>,
     options: &LoadOptions,
     progress: Option<&Progress>,
 ) -> Result<Table> {
-    let (hash, stage) = hashed_stage(path, bytes, options, progress);
+    let (hash, stage) = hashed_stage(path, bytes.as_ref(), options, progress);
+    drop(bytes);
     let mut table = stage?.finish(path, progress)?;
     table.set_sha256(hash);
     Ok(table)

@@ -124,7 +124,7 @@ impl ColumnValues {
 
     /// Types a column of cells: numeric unless some non-missing cell is text.
     pub(crate) fn from_cells(cells: Vec<Cell>) -> Self {
-        let Some(i) = cells.iter().position(|c| matches!(c, Cell::Text(_))) else {
+        if !cells.iter().any(|c| matches!(c, Cell::Text(_))) {
             return Self::Numeric(
                 cells
                     .into_iter()
@@ -134,40 +134,22 @@ impl ColumnValues {
                     })
                     .collect(),
             );
-        };
-        let text_count = cells.iter().filter(|c| matches!(c, Cell::Text(_))).count();
-        let first = match &cells[i] {
-            Cell::Text(s) => shorten(s),
-            _ => unreachable!("position found a text cell"),
-        };
-        let mut values = TextsBuilder::with_capacity(cells.len());
-        for c in &cells {
-            match c {
-                Cell::Missing => values.push(None),
-                Cell::Number(v) => values.push(Some(&v.to_string())),
-                Cell::Text(s) => values.push(Some(s)),
-            }
         }
-        Self::Text {
-            values: values.finish(),
-            first_text_row: i + 1,
-            first_text: first,
-            text_count,
-        }
+        Self::text_column(cells.iter().map(|c| match c {
+            Cell::Missing => Ok(None),
+            Cell::Number(v) => Ok(Some(*v)),
+            Cell::Text(s) => Err(s.as_str()),
+        }))
     }
 
-    /// A column of cell texts known to hold text: each cell kept as [`ColumnValues::from_cells`]
-    /// would keep it after [`crate::cell::classify`] (a number in Rust's shortest form), without a string
-    /// per cell.
-    fn text_from<'a>(
-        cells: impl Iterator<Item = Option<&'a str>>,
-        decimal: DecimalMark,
-        tokens: &[String],
-    ) -> Self {
+    /// A text column from its cells as [`read_cell`] reads them (`Ok(None)` missing,
+    /// `Ok(Some)` a number, kept in Rust's shortest form; `Err` a text), remembering the first
+    /// text and counting them, without a string per cell.
+    fn text_column<'a>(cells: impl Iterator<Item = Result<Option<f64>, &'a str>>) -> Self {
         let mut values = TextsBuilder::with_capacity(cells.size_hint().0);
         let (mut first, mut text_count) = (None, 0);
-        for (i, raw) in cells.enumerate() {
-            match raw.map_or(Ok(None), |s| read_cell(s, decimal, tokens)) {
+        for (i, cell) in cells.enumerate() {
+            match cell {
                 Ok(None) => values.push(None),
                 Ok(Some(v)) => values.push(Some(&v.to_string())),
                 Err(text) => {
@@ -187,8 +169,8 @@ impl ColumnValues {
     }
 
     /// Types a column straight from its cell texts (`None` for an empty field), as
-    /// [`ColumnValues::from_cells`] would after [`crate::cell::classify`] — without a string per cell for a
-    /// numeric column. `cells` is called again only when a cell turns out to be text.
+    /// [`ColumnValues::from_cells`] would after [`crate::cell::classify`] — without a string
+    /// per cell. `cells` is called again only when a cell turns out to be text.
     pub(crate) fn from_texts<'a, I>(
         cells: impl Fn() -> I,
         decimal: DecimalMark,
@@ -203,7 +185,9 @@ impl ColumnValues {
                 Ok(v) => numbers.push(v.unwrap_or(f64::NAN)),
                 Err(_) => {
                     drop(numbers);
-                    return Self::text_from(cells(), decimal, tokens);
+                    return Self::text_column(
+                        cells().map(|raw| raw.map_or(Ok(None), |s| read_cell(s, decimal, tokens))),
+                    );
                 }
             }
         }

@@ -282,12 +282,7 @@ fn a_file_over_the_memory_cap_opens_in_the_one_pass_view_with_the_command_lines_
     let before = sha256(&data);
     let mut h = harness(config.path());
     h.state_mut().set_memory_limit(Some(1_000_000));
-    h.get_by_label("File:").click();
-    h.run_steps(1);
-    h.get_by_label("File:")
-        .type_text(&data.display().to_string());
-    h.run_steps(1);
-    h.get_by_label("Open").click();
+    common::type_path_and_open(&mut h, &data);
     h.run_steps(3);
     assert!(
         matches!(h.state().ask(), Some(plumb_app::Ask::TooLarge { .. })),

@@ -64,6 +64,15 @@ pub struct LiveSummary {
     pub refitted: bool,
 }
 
+/// Row `i`'s values as `design` holds them: `[x]` for a polynomial (its working rows are built
+/// from x), the design row otherwise.
+fn design_values(design: &Design, i: usize) -> Vec<f64> {
+    match design.polynomial_source() {
+        Some(x) => vec![x[i]],
+        None => design.row(i).collect(),
+    }
+}
+
 /// A fit that follows exclusions and moved points.
 #[derive(Debug, Clone)]
 pub struct LiveFit {
@@ -130,10 +139,7 @@ impl LiveFit {
         let z = (0..y.len())
             .zip(&rw)
             .flat_map(|(i, &r)| {
-                let v: Vec<f64> = match design.polynomial_source() {
-                    Some(x) => vec![x[i]],
-                    None => design.row(i).collect(),
-                };
+                let v = design_values(&design, i);
                 basis.z_row(&v).into_iter().map(move |z| z * r)
             })
             .collect();
@@ -255,12 +261,9 @@ impl LiveFit {
 
     /// Row `i`'s values as they stand: `[x]` for a polynomial, the design row otherwise.
     fn values_of(&self, i: usize) -> Vec<f64> {
-        if let Some(v) = self.moved.get(&i) {
-            return v.clone();
-        }
-        match self.design.polynomial_source() {
-            Some(x) => vec![x[i]],
-            None => self.design.row(i).collect(),
+        match self.moved.get(&i) {
+            Some(v) => v.clone(),
+            None => design_values(&self.design, i),
         }
     }
 
@@ -297,15 +300,15 @@ impl LiveFit {
             Some(_) => vec![row[usize::from(self.design.has_intercept())]],
             None => row.to_vec(),
         };
-        self.moved.insert(i, values);
         self.y[i] = y;
         let r = self.root_weight(i);
         let z: Vec<f64> = self
             .basis_recipe
-            .z_row(&self.values_of(i))
+            .z_row(&values)
             .into_iter()
             .map(|v| v * r)
             .collect();
+        self.moved.insert(i, values);
         self.z[i * p..(i + 1) * p].copy_from_slice(&z);
         if was_in {
             self.included[i] = true;

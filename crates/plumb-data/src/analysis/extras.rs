@@ -147,7 +147,7 @@ pub(super) fn pair_extras(
     let (y, x) = (rows.y(), rows.predictors[0].as_slice());
     let z_view = StandardizedView::of(x, y);
     let read_at = at.and_then(|a| read_at(rows, fitted, z_view, a));
-    let degrees = if request.weights.is_none() && rows.levels.is_none() {
+    let mut degrees = if request.weights.is_none() && rows.levels.is_none() {
         degree_ladder(x, y, request)
     } else {
         Vec::new()
@@ -167,7 +167,6 @@ pub(super) fn pair_extras(
         cubic: step(3),
     };
     let cues = pair_cues_given(x, y, known);
-    let mut degrees = degrees;
     for s in &mut degrees {
         s.fit.fitted = Vec::new();
         s.fit.residuals = Vec::new();

@@ -150,9 +150,9 @@ pub fn settle_ui(h: &mut egui_kittest::Harness<'_, Workbench>) {
     }
 }
 
-/// Opens `data` as an analyst would: types its path into the columns screen's field, presses
-/// Open, waits for the load, and requires it to have succeeded.
-pub fn open_by_typing(h: &mut egui_kittest::Harness<'_, Workbench>, data: &Path) {
+/// Types `data`'s path into the columns screen's field and presses Open (one frame drawn
+/// after each step; the load itself is not waited for).
+pub fn type_path_and_open(h: &mut egui_kittest::Harness<'_, Workbench>, data: &Path) {
     use egui_kittest::kittest::Queryable;
     h.get_by_label("File:").click();
     h.run_steps(1);
@@ -160,6 +160,12 @@ pub fn open_by_typing(h: &mut egui_kittest::Harness<'_, Workbench>, data: &Path)
         .type_text(&data.display().to_string());
     h.run_steps(1);
     h.get_by_label("Open").click();
+}
+
+/// Opens `data` as an analyst would ([`type_path_and_open`]), waits for the load, and
+/// requires it to have succeeded.
+pub fn open_by_typing(h: &mut egui_kittest::Harness<'_, Workbench>, data: &Path) {
+    type_path_and_open(h, data);
     settle_ui(h);
     assert!(
         h.state().loaded().is_some(),

@@ -38,10 +38,9 @@ impl RowLabel {
     }
 }
 
-/// How column `name` with `values` (NaN where missing) labels rows, if it does. A column with
-/// a missing or non-finite cell, or fewer than 3 rows, is taken as a measurement.
-pub fn row_label(name: &str, values: &[f64]) -> Option<RowLabel> {
-    let v = values;
+/// How column `name` with values `v` (NaN where missing) labels rows, if it does. A column
+/// with a missing or non-finite cell, or fewer than 3 rows, is taken as a measurement.
+pub fn row_label(name: &str, v: &[f64]) -> Option<RowLabel> {
     if v.len() < 3 || !v.iter().all(|x| x.is_finite()) {
         return None;
     }
