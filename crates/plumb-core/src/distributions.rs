@@ -166,13 +166,58 @@ pub fn f_median(d1: f64, d2: f64) -> f64 {
 /// `1 − alpha`, pointwise: its uniform counterpart `U₍ᵢ₎` follows `Beta(i, n + 1 − i)`, so the
 /// interval is `[Φ⁻¹(B⁻¹(α/2)), Φ⁻¹(B⁻¹(1 − α/2))]`. `None` unless `1 ≤ i ≤ n` and
 /// `0 < alpha < 1`.
+///
+/// Above [`ORDER_BAND_EXACT_UP_TO`] values statrs' incomplete beta loses digits (its inverse
+/// did not return at all at 10⁷), so the band comes from large-sample forms instead: for the
+/// [`ORDER_BAND_GAMMA_RANKS`] ranks nearest either end `U₍ᵢ₎ ≈ Gᵢ/(n + 1)` with
+/// `Gᵢ ~ Gamma(i, 1)`, elsewhere `U₍ᵢ₎` normal with mean `p = i/(n + 1)` and variance
+/// `p(1 − p)/(n + 2)`. The ends mirror each other exactly. Against the beta route at
+/// 2·10⁵ values they agree to within 0.005 in z (tested).
 pub fn normal_order_band(i: usize, n: usize, alpha: f64) -> Option<(f64, f64)> {
     if i == 0 || i > n || !(alpha > 0.0 && alpha < 1.0) {
         return None;
     }
+    if n <= ORDER_BAND_EXACT_UP_TO {
+        return exact_order_band(i, n, alpha);
+    }
+    let j = n + 1 - i;
+    if j < i {
+        // The upper half mirrors the lower.
+        let (lo, hi) = large_sample_order_band(j, n, alpha)?;
+        return Some((-hi, -lo));
+    }
+    large_sample_order_band(i, n, alpha)
+}
+
+/// Sizes up to which [`normal_order_band`] inverts the beta distribution itself.
+pub const ORDER_BAND_EXACT_UP_TO: usize = 200_000;
+/// Ranks from either end for which the large-sample band uses the gamma form.
+pub const ORDER_BAND_GAMMA_RANKS: usize = 1_000;
+
+/// The band through `U₍ᵢ₎ ~ Beta(i, n + 1 − i)`, inverted by statrs.
+fn exact_order_band(i: usize, n: usize, alpha: f64) -> Option<(f64, f64)> {
     let b = statrs::distribution::Beta::new(i as f64, (n + 1 - i) as f64).ok()?;
     let z = |q: f64| -normal_upper_quantile(b.inverse_cdf(q));
     Some((z(alpha / 2.0), z(1.0 - alpha / 2.0)))
+}
+
+/// The band of rank `i ≤ (n + 1)/2` from the large-sample forms of [`normal_order_band`].
+fn large_sample_order_band(i: usize, n: usize, alpha: f64) -> Option<(f64, f64)> {
+    let m = (n + 1) as f64;
+    let (u_lo, u_hi) = if i <= ORDER_BAND_GAMMA_RANKS {
+        let g = statrs::distribution::Gamma::new(i as f64, 1.0).ok()?;
+        (
+            g.inverse_cdf(alpha / 2.0) / m,
+            g.inverse_cdf(1.0 - alpha / 2.0) / m,
+        )
+    } else {
+        let p = i as f64 / m;
+        let sd = (p * (1.0 - p) / (m + 1.0)).sqrt();
+        let k = normal_upper_quantile(alpha / 2.0);
+        (p - k * sd, p + k * sd)
+    };
+    let z = |u: f64| -normal_upper_quantile(u);
+    Some((z(u_lo), z(u_hi)))
 }
 
 /// The band of [`normal_order_band`] along a quantile plot of `n` ranks, `score(i)` the
@@ -287,6 +332,44 @@ mod median_tests {
             assert!((got - want).abs() <= 1e-9 * want, "F({d1}, {d2}): {got}");
         }
         assert!(f_median(0.0, 3.0).is_nan());
+    }
+
+    #[test]
+    fn large_sample_order_bands_agree_with_the_beta_route_where_both_work() {
+        let n = ORDER_BAND_EXACT_UP_TO;
+        for i in [
+            1,
+            2,
+            10,
+            500,
+            1_000,
+            1_001,
+            5_000,
+            50_000,
+            100_000,
+            n - 999,
+            n,
+        ] {
+            let exact = exact_order_band(i, n, 0.05).expect("beta");
+            let j = n + 1 - i;
+            let large = if j < i {
+                large_sample_order_band(j, n, 0.05).map(|(lo, hi)| (-hi, -lo))
+            } else {
+                large_sample_order_band(i, n, 0.05)
+            }
+            .expect("large");
+            assert!(
+                (exact.0 - large.0).abs() < 0.005 && (exact.1 - large.1).abs() < 0.005,
+                "rank {i}: {exact:?} vs {large:?}"
+            );
+        }
+        // Ten million values: the band still comes back, ordered, and symmetric.
+        let n = 10_000_000;
+        let (lo, hi) = normal_order_band(1, n, 0.05).expect("first");
+        assert!(lo < hi && hi < -4.0, "{lo} {hi}");
+        assert_eq!(normal_order_band(n, n, 0.05), Some((-hi, -lo)));
+        let (a, b) = normal_order_band(n / 2, n, 0.05).expect("middle");
+        assert!(a < 0.0 && b > 0.0 && b - a < 0.01, "{a} {b}");
     }
 
     #[test]

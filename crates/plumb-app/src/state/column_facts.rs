@@ -34,12 +34,13 @@ pub struct Bins {
 impl NumericFacts {
     /// The facts of `values` (`None` without a finite value).
     pub fn of(values: &Numbers) -> Option<Self> {
-        let finite: Vec<f64> = values
-            .as_nan_missing()
-            .iter()
-            .copied()
-            .filter(|v| v.is_finite())
-            .collect();
+        let all = values.as_nan_missing();
+        // A complete column is read where it lies; only one with gaps is copied.
+        let finite: std::borrow::Cow<'_, [f64]> = if all.iter().all(|v| v.is_finite()) {
+            all.into()
+        } else {
+            all.iter().copied().filter(|v| v.is_finite()).collect()
+        };
         if finite.is_empty() {
             return None;
         }

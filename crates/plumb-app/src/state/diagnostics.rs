@@ -112,7 +112,9 @@ pub struct Diagnostics {
     pub marks: Marks,
     /// Pair entries included, ascending; `cases[k]` belongs to `included[k]`.
     pub included: Vec<usize>,
-    /// The least-squares fit of the included rows at their current (possibly moved) positions.
+    /// The least-squares fit of the included rows at their current (possibly moved) positions,
+    /// without its per-row fitted values and residuals (each case carries its own, and at
+    /// millions of rows the vectors would be two more copies of the data).
     pub fit: Result<LinearFit, String>,
     /// Case diagnostics of the included rows.
     pub cases: Vec<CaseInfluence>,
@@ -209,7 +211,7 @@ pub fn compute(input: &Input) -> Diagnostics {
         calibration.as_ref().and_then(|c| c.as_ref().ok()),
         agreement.as_ref().and_then(|a| a.as_ref().ok()),
     );
-    let parts = Parts::of(input, analysis);
+    let mut parts = Parts::of(input, analysis);
     let views = views_of(
         input,
         &parts.included,
@@ -217,6 +219,10 @@ pub fn compute(input: &Input) -> Diagnostics {
         parts.fit.as_ref().ok(),
         parts.added,
     );
+    if let Ok(fit) = &mut parts.fit {
+        fit.fitted = Vec::new();
+        fit.residuals = Vec::new();
+    }
     let effects = exclusion_effects(&input.table, &input.spec.on_file_rows(&input.marks))
         .map_err(|e| e.to_string());
     let (x, y): (Vec<f64>, Vec<f64>) = parts.included.iter().map(|&i| input.point(i)).unzip();
@@ -424,7 +430,7 @@ mod tests {
         let fit = d.fit.expect("fit");
         for (k, &i) in d.included.iter().enumerate() {
             let (yhat, _) = against_fit(&pair, &marks, &fit, i).expect("in the domain");
-            assert!((yhat - fit.fitted[k]).abs() < 1e-9 * yhat.abs().max(1.0));
+            assert!((yhat - d.cases[k].fitted).abs() < 1e-9 * yhat.abs().max(1.0));
         }
         // Row 13 sits 25 above a line the others follow within 2: too far out to draw, so it
         // is named under the view instead.
@@ -475,7 +481,7 @@ mod tests {
             .position(|&i| pair.rows[i] == 7)
             .expect("row 7");
         assert!(
-            (fit.fitted[k] + fit.residuals[k] - 40.0).abs() < 1e-9,
+            (d.cases[k].fitted + d.cases[k].residual - 40.0).abs() < 1e-9,
             "y is the moved value"
         );
     }
