@@ -1,6 +1,7 @@
 //! A loaded table: named, typed columns over numbered data rows.
 
 use std::collections::{HashMap, HashSet};
+use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 
 use crate::cell::{read_cell, Cell, DecimalMark};
@@ -148,10 +149,16 @@ impl ColumnValues {
     fn text_column<'a>(cells: impl Iterator<Item = Result<Option<f64>, &'a str>>) -> Self {
         let mut values = TextsBuilder::with_capacity(cells.size_hint().0);
         let (mut first, mut text_count) = (None, 0);
+        let mut shortest = String::new();
         for (i, cell) in cells.enumerate() {
             match cell {
                 Ok(None) => values.push(None),
-                Ok(Some(v)) => values.push(Some(&v.to_string())),
+                Ok(Some(v)) => {
+                    shortest.clear();
+                    // Writing to a String cannot fail.
+                    let _ = write!(shortest, "{v}");
+                    values.push(Some(&shortest));
+                }
                 Err(text) => {
                     text_count += 1;
                     first.get_or_insert_with(|| (i + 1, shorten(text)));

@@ -1,7 +1,9 @@
 //! Compact column storage: a number column as one `f64` per row, a text column as a
 //! dictionary (a 4-byte code per row and each distinct text once).
 
-use std::collections::HashMap;
+use std::hash::BuildHasher;
+
+use hashbrown::{DefaultHashBuilder, HashTable};
 
 /// A numeric column: one `f64` per row, a missing cell held as NaN. A NaN read from a file
 /// is missing too (every reader already counted it so), which is why no separate mask is
@@ -67,12 +69,26 @@ impl FromIterator<Option<f64>> for Numbers {
 /// The code of a missing cell in [`Texts`].
 const MISSING: u32 = u32::MAX;
 
-/// A text column as a dictionary: each distinct text once (in order of first appearance) and
-/// a 4-byte code per row.
-#[derive(Debug, Clone, Default)]
+/// A text column as a dictionary: each distinct text once (in order of first appearance),
+/// back to back in one buffer, and a 4-byte code per row. A level costs its bytes and one
+/// offset, with no allocation of its own.
+#[derive(Debug, Clone)]
 pub struct Texts {
     codes: Vec<u32>,
-    levels: Vec<String>,
+    /// Every distinct text, back to back.
+    text: String,
+    /// Level `k` is `text[ends[k]..ends[k + 1]]`; starts with 0.
+    ends: Vec<usize>,
+}
+
+impl Default for Texts {
+    fn default() -> Self {
+        Self {
+            codes: Vec::new(),
+            text: String::new(),
+            ends: vec![0],
+        }
+    }
 }
 
 impl Texts {
@@ -97,8 +113,13 @@ impl Texts {
     }
 
     /// The distinct texts, in order of first appearance.
-    pub fn levels(&self) -> &[String] {
-        &self.levels
+    pub fn levels(&self) -> impl ExactSizeIterator<Item = &str> + Clone + '_ {
+        self.ends.windows(2).map(|w| &self.text[w[0]..w[1]])
+    }
+
+    /// Number of distinct texts.
+    pub fn level_count(&self) -> usize {
+        self.ends.len() - 1
     }
 
     /// Missing cells.
@@ -107,7 +128,11 @@ impl Texts {
     }
 
     fn level(&self, code: u32) -> Option<&str> {
-        (code != MISSING).then(|| self.levels[code as usize].as_str())
+        (code != MISSING).then(|| self.level_text(code as usize))
+    }
+
+    fn level_text(&self, k: usize) -> &str {
+        &self.text[self.ends[k]..self.ends[k + 1]]
     }
 }
 
@@ -129,11 +154,13 @@ impl<S: AsRef<str>> FromIterator<Option<S>> for Texts {
     }
 }
 
-/// Builds [`Texts`] a cell at a time, storing each distinct text once.
-#[derive(Debug, Default)]
+/// Builds [`Texts`] a cell at a time, storing each distinct text once. The index holds only
+/// codes; a code's text is read from the dictionary being built.
+#[derive(Default)]
 pub(crate) struct TextsBuilder {
     texts: Texts,
-    index: HashMap<String, u32>,
+    index: HashTable<u32>,
+    hasher: DefaultHashBuilder,
 }
 
 impl TextsBuilder {
@@ -141,29 +168,41 @@ impl TextsBuilder {
         Self {
             texts: Texts {
                 codes: Vec::with_capacity(rows),
-                levels: Vec::new(),
+                ..Texts::default()
             },
-            index: HashMap::new(),
+            ..Self::default()
         }
     }
 
     /// Appends a row: a text, or `None` for a missing cell.
     pub(crate) fn push(&mut self, cell: Option<&str>) {
-        let code = match cell {
-            None => MISSING,
-            Some(s) => match self.index.get(s) {
-                Some(&c) => c,
-                None => {
-                    // More distinct texts than u32 codes would need far more memory than
-                    // any machine this runs on has; the last code is shared past that.
-                    let c = u32::try_from(self.texts.levels.len()).unwrap_or(MISSING - 1);
-                    self.index.insert(s.to_string(), c);
-                    self.texts.levels.push(s.to_string());
-                    c
-                }
-            },
-        };
+        let code = cell.map_or(MISSING, |s| self.code_of(s));
         self.texts.codes.push(code);
+    }
+
+    /// The code of `s`, added to the dictionary when new.
+    fn code_of(&mut self, s: &str) -> u32 {
+        let Self {
+            texts,
+            index,
+            hasher,
+        } = self;
+        let hash = hasher.hash_one(s);
+        if let Some(&c) = index.find(hash, |&c| texts.level_text(c as usize) == s) {
+            return c;
+        }
+        // More distinct texts than u32 codes would need far more memory than any machine
+        // this runs on has; the last code is shared past that.
+        let Some(c) = u32::try_from(texts.level_count())
+            .ok()
+            .filter(|&c| c != MISSING)
+        else {
+            return MISSING - 1;
+        };
+        texts.text.push_str(s);
+        texts.ends.push(texts.text.len());
+        index.insert_unique(hash, c, |&k| hasher.hash_one(texts.level_text(k as usize)));
+        c
     }
 
     pub(crate) fn finish(self) -> Texts {
@@ -200,7 +239,8 @@ mod tests {
     fn texts_keep_each_distinct_value_once_and_read_back_in_row_order() {
         let cells = [Some("north"), None, Some("south"), Some("north"), Some("")];
         let t: Texts = cells.into_iter().collect();
-        assert_eq!(t.levels(), ["north", "south", ""]);
+        assert_eq!(t.levels().collect::<Vec<_>>(), ["north", "south", ""]);
+        assert_eq!(t.level_count(), 3);
         assert_eq!(t.iter().collect::<Vec<_>>(), cells);
         assert_eq!((t.get(3), t.get(1), t.get(7)), (Some("north"), None, None));
         assert_eq!(t.missing(), 1);

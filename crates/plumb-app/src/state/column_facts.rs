@@ -107,7 +107,7 @@ pub fn suggested_id(columns: &[Column]) -> Option<String> {
     columns.iter().find_map(|c| match &c.values {
         ColumnValues::Text { values, .. } if !values.is_empty() => {
             // Every row filled, and as many distinct texts as rows.
-            (values.missing() == 0 && values.levels().len() == values.len()).then(|| c.name.clone())
+            (values.missing() == 0 && values.level_count() == values.len()).then(|| c.name.clone())
         }
         _ => None,
     })

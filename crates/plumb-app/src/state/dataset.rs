@@ -80,8 +80,7 @@ impl Dataset {
             .iter()
             .filter_map(|c| match &c.values {
                 ColumnValues::Text { values, .. } => {
-                    let levels: BTreeSet<&str> =
-                        values.levels().iter().map(String::as_str).collect();
+                    let levels: BTreeSet<&str> = values.levels().collect();
                     (levels.len() >= 2 && levels.len() <= MAX_GROUPS).then(|| {
                         (
                             c.name.clone(),
