@@ -2,9 +2,11 @@
 //!
 //! For files with a decimal point, columns whose sampled cells are all plain numbers (or
 //! missing) are read as 64-bit floats, with the missing tokens as nulls; the others are read as text
-//! and typed by [`ColumnValues::from_texts`]. Any cell polars cannot read as a number makes
-//! the whole read give way to the cell-by-cell path, which names that cell's row and column —
-//! so the fast way changes how fast a file is read, never what is read or said.
+//! and typed by [`ColumnValues::from_texts`]. A cell polars cannot read as a number sends its
+//! column back to be read as text and typed the same way (which names the first text cell's
+//! row), and the file is parsed again; past [`MAX_RETYPED`] such columns, or on any other
+//! refusal, the read gives way to the cell-by-cell path — so the fast way changes how fast a
+//! file is read, never what is read or said.
 
 use std::io::Cursor;
 use std::path::Path;
@@ -91,12 +93,9 @@ pub(crate) fn read(
         .filter(|t| in_sample(shape, t))
         .cloned()
         .collect();
-    let read = |nulls: &[PlSmallStr]| polars_read(path, text, data, shape, &numeric, nulls, keep);
-    let frame = match read(&seen) {
-        Some(frame) => frame,
-        None if seen.len() < all.len() => read(&all)?,
-        None => return None,
-    };
+    let frame = read_retyping(numeric, seen, &all, |numeric, nulls| {
+        polars_read(path, text, data, shape, numeric, nulls, keep)
+    })?;
     let tokens = options.missing_tokens.clone();
     // A token that is a number ("-999") is missing only when written exactly so, after
     // trimming; polars sees " -999" as a number. Any such value sends the file the other way.
@@ -110,6 +109,66 @@ pub(crate) fn read(
         tokens,
         token_values,
     })
+}
+
+/// Most columns a read sends back to be read as text before it gives way to the cell-by-cell
+/// path: each costs one more parse of the file.
+pub(crate) const MAX_RETYPED: usize = 8;
+
+/// Why polars refused a read.
+#[derive(Debug, PartialEq)]
+enum Refusal {
+    /// Column `column` (0-based) held `cell`, which is not a number.
+    NotNumber { column: usize, cell: String },
+    /// Anything else.
+    Other,
+}
+
+/// Reads with `read` until polars accepts: a refused cell that is a missing token the first
+/// try did not know brings in `all` the tokens; any other refused cell sends its column to be
+/// read as text. `None` on any other refusal, or past [`MAX_RETYPED`] columns.
+fn read_retyping(
+    mut numeric: Vec<bool>,
+    mut nulls: Vec<PlSmallStr>,
+    all: &[PlSmallStr],
+    read: impl Fn(&[bool], &[PlSmallStr]) -> Result<DataFrame, Refusal>,
+) -> Option<DataFrame> {
+    let mut retyped = 0;
+    loop {
+        match read(&numeric, &nulls) {
+            Ok(frame) => return Some(frame),
+            Err(Refusal::NotNumber { cell, .. })
+                if nulls.len() < all.len() && all.iter().any(|t| t.as_str() == cell) =>
+            {
+                nulls = all.to_vec();
+            }
+            Err(Refusal::NotNumber { column, .. })
+                if retyped < MAX_RETYPED && numeric.get(column) == Some(&true) =>
+            {
+                numeric[column] = false;
+                retyped += 1;
+            }
+            Err(_) => return None,
+        }
+    }
+}
+
+/// What polars' message says it refused: it names the cell and the column (ours are named
+/// `c0`, `c1`, … in [`polars_read`]).
+fn refusal(message: &str) -> Refusal {
+    let after = |marker: &str, end: &str| {
+        let rest = &message[message.find(marker)? + marker.len()..];
+        Some(&rest[..rest.find(end)?])
+    };
+    let column = after("at column 'c", "'").and_then(|j| j.parse().ok());
+    let cell = after("could not parse `", "` as dtype");
+    match (column, cell) {
+        (Some(column), Some(cell)) => Refusal::NotNumber {
+            column,
+            cell: cell.to_string(),
+        },
+        _ => Refusal::Other,
+    }
 }
 
 /// Whether each column's sampled cells (below the header) are all plain numbers or missing,
@@ -157,9 +216,9 @@ fn in_sample(shape: &Layout, token: &str) -> bool {
         .any(|cell| cell == token)
 }
 
-/// Reads the data records with the numeric columns as floats and `nulls` as missing. `None`
-/// when polars refuses a cell (or fails in any other way: the cell-by-cell path then says
-/// what is wrong).
+/// Reads the data records with the numeric columns as floats and `nulls` as missing; what
+/// polars refused when it refuses (the cell-by-cell path says what is wrong in a way of our
+/// own).
 fn polars_read(
     path: &Path,
     text: &[u8],
@@ -168,7 +227,7 @@ fn polars_read(
     numeric: &[bool],
     nulls: &[PlSmallStr],
     keep: Option<&[usize]>,
-) -> Option<DataFrame> {
+) -> Result<DataFrame, Refusal> {
     let schema: Schema = numeric
         .iter()
         .enumerate()
@@ -196,10 +255,9 @@ fn polars_read(
             .with_parse_options(parse_options)
             .into_reader_with_file_handle(Cursor::new(input))
             .finish()
-            .ok())
+            .map_err(|e| refusal(&e.to_string())))
     })
-    .ok()
-    .flatten()
+    .unwrap_or(Err(Refusal::Other))
 }
 
 /// A float column as numbers, NaN counting as missing (as in the cell-by-cell path); `None`
@@ -217,6 +275,8 @@ fn numbers(column: &polars::prelude::Column, token_values: &[f64]) -> Option<Col
 #[cfg(test)]
 mod tests {
     use std::path::Path;
+
+    use polars::prelude::PlSmallStr;
 
     use crate::delimited::{read_text_by, Way};
     use crate::{DecimalMark, LoadOptions};
@@ -321,6 +381,85 @@ mod tests {
             };
             same(&t, &options);
         }
+    }
+
+    #[test]
+    fn polars_refusals_name_the_cell_and_our_column() {
+        let message = "could not parse `oops` as dtype `f64` at column 'c12' (column number 13)\n\nThe current offset in the file is 9 bytes.";
+        assert_eq!(
+            super::refusal(message),
+            super::Refusal::NotNumber {
+                column: 12,
+                cell: "oops".into()
+            }
+        );
+        assert_eq!(super::refusal("out of memory"), super::Refusal::Other);
+        assert_eq!(
+            super::refusal("could not parse `x` as dtype `f64` at column 'site'"),
+            super::Refusal::Other
+        );
+    }
+
+    #[test]
+    fn stray_words_send_only_their_columns_to_be_read_as_text() {
+        let mut text = String::from("a,b,c\n");
+        for i in 0..300 {
+            text.push_str(&format!("{i},{}.5,{}\n", i * 2, i % 7));
+        }
+        text.push_str("1,oops,2\nNA,3,n/a\n4,5,bad\n");
+        same(&text, &LoadOptions::default());
+        let path = Path::new("t.csv");
+        let options = LoadOptions::default();
+        let recs = crate::sniff::records(text.as_bytes()).expect("records");
+        let shape = crate::delimited::layout(text.as_bytes(), &recs, &options);
+        let columns = super::read(path, text.as_bytes(), &recs, &shape, &options, None)
+            .and_then(super::Parsed::columns)
+            .expect("typed");
+        let kinds: Vec<bool> = columns
+            .iter()
+            .map(|c| matches!(c, crate::ColumnValues::Numeric(_)))
+            .collect();
+        assert_eq!(kinds, [true, false, false]);
+    }
+
+    #[test]
+    fn past_the_retyping_limit_the_file_goes_cell_by_cell() {
+        let width = super::MAX_RETYPED + 1;
+        let reads = std::cell::Cell::new(0);
+        let refuse_each_numeric = |numeric: &[bool], _: &[PlSmallStr]| {
+            reads.set(reads.get() + 1);
+            match numeric.iter().position(|&n| n) {
+                Some(column) => Err(super::Refusal::NotNumber {
+                    column,
+                    cell: "x".into(),
+                }),
+                None => Ok(polars::prelude::DataFrame::empty()),
+            }
+        };
+        let all = [PlSmallStr::from("NA")];
+        let gave_up = super::read_retyping(vec![true; width], vec![], &all, refuse_each_numeric);
+        assert!(gave_up.is_none());
+        assert_eq!(reads.get(), width);
+        reads.set(0);
+        let read = super::read_retyping(vec![true; width - 1], vec![], &all, refuse_each_numeric);
+        assert!(read.is_some());
+        assert_eq!(reads.get(), width);
+    }
+
+    #[test]
+    fn a_token_found_past_the_sample_brings_in_every_token_before_any_retyping() {
+        let all = [PlSmallStr::from("NA"), PlSmallStr::from("n/a")];
+        let read = super::read_retyping(vec![true], vec![], &all, |numeric, nulls| {
+            match (numeric[0], nulls.len()) {
+                (true, 0) => Err(super::Refusal::NotNumber {
+                    column: 0,
+                    cell: "n/a".into(),
+                }),
+                (true, 2) => Ok(polars::prelude::DataFrame::empty()),
+                _ => Err(super::Refusal::Other),
+            }
+        });
+        assert!(read.is_some());
     }
 
     #[test]
