@@ -6,14 +6,19 @@ use std::path::Path;
 use crate::{DataError, Result};
 
 /// Memory a delimited-text load needs is [`TEXT_BYTE_FACTOR`] bytes per byte of text plus
-/// [`TEXT_CELL_BYTES`] per cell: the cells dominate when they are short. Measured as peak
-/// resident memory of `plumb columns` on 40 MB files of 1-, 5-, 12- and 30-byte cells: 1.69 GB
-/// (20 M cells), 581 MB, 292 MB and 210 MB; the two ends give 2.7 bytes per byte and 79 per
-/// cell, and the middle two fall below that line. The constants carry a margin.
-pub const TEXT_BYTE_FACTOR: u64 = 3;
+/// [`TEXT_CELL_BYTES`] per cell: the cells dominate when they are short, the bytes when they
+/// are long. The line covers the worst path a file can take, the cell-by-cell one, since
+/// which path a file takes is known only once it is read. Measured by `bench/memory_cap.py`
+/// (peak resident memory of `plumb columns` on 40 MB files of numbers and of text of 1 to
+/// 100 bytes a cell, with stray words, and taking the cell-by-cell path): the cell-by-cell
+/// path peaked at 687 MiB for 20 M one-byte cells, 201–215 MiB for 1.6 M 30-byte texts and
+/// 179–182 MiB for 0.75 M 100-byte texts; the typed path at 318–410 MiB for 20 M cells and
+/// 69–236 MiB for longer ones. With these constants the estimate is 1.3–2.0 × the peak on
+/// the cell-by-cell path and 1.7–3.9 × on the typed path, which most files take.
+pub const TEXT_BYTE_FACTOR: u64 = 6;
 
 /// See [`TEXT_BYTE_FACTOR`].
-pub const TEXT_CELL_BYTES: u64 = 96;
+pub const TEXT_CELL_BYTES: u64 = 34;
 
 /// Memory per byte assumed while reading an input of unknown size (cells of about 8 bytes);
 /// once read, the text is checked with its own cells.
@@ -274,7 +279,7 @@ mod tests {
         let need =
             |t: &str| text_need(t.len() as u64, estimate_cells(t.as_bytes(), t.len() as u64));
         assert!(
-            need(&short) > 10 * need(&long) / 2,
+            need(&short) > 2 * need(&long),
             "{} vs {}",
             need(&short),
             need(&long)
