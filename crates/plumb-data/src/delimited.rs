@@ -50,7 +50,8 @@ pub(crate) fn from_bytes(
     Ok(table)
 }
 
-/// The bytes' SHA-256, taken on another thread beside the parse, and the parse.
+/// The bytes' SHA-256 (unless skipped), taken on another thread beside the parse, and the
+/// parse.
 fn hashed_stage(
     path: &Path,
     bytes: &[u8],
@@ -58,7 +59,7 @@ fn hashed_stage(
     progress: Option<&Progress>,
 ) -> (String, Result<Reached>) {
     std::thread::scope(|scope| {
-        let hash = scope.spawn(|| crate::table::sha256_hex(bytes));
+        let hash = scope.spawn(|| crate::table::sha256_unless_skipped(bytes, options));
         let stage = stage_of(path, bytes, options, progress, None, Way::Typed);
         let hash = hash.join().unwrap_or_else(|p| std::panic::resume_unwind(p));
         (hash, stage)

@@ -67,6 +67,10 @@ pub struct LoadOptions {
     /// decimal mark; otherwise every column is read, so that a message about an unknown
     /// column still lists them all. `None`: every column. Other formats read every column.
     pub only: Option<Vec<String>>,
+    /// Leave the table's SHA-256 empty instead of hashing the bytes read, for a reader that
+    /// never reports it (a command printing numbers): the hash is one more pass over the file,
+    /// taken beside the parse. Sessions and summaries, which record the hash, leave this off.
+    pub skip_hash: bool,
 }
 
 /// Opens `path`, choosing the reader by the file's extension (`.parquet`/`.pq`;

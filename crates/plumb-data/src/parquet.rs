@@ -114,7 +114,7 @@ fn read(path: &Path, bytes: &[u8], options: &LoadOptions) -> Result<Table> {
         };
         cells.push(col);
     }
-    Ok(Table::new(path, SourceFormat::Parquet, names, cells, notes).with_sha256(bytes))
+    Ok(Table::new(path, SourceFormat::Parquet, names, cells, notes).with_sha256(bytes, options))
 }
 
 /// Whether a Parquet column's type is read: numbers, booleans and text.

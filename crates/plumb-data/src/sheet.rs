@@ -19,7 +19,7 @@ pub(crate) fn load(path: &Path, options: &LoadOptions) -> Result<Table> {
 /// A workbook already in memory (any of the formats calamine detects); `label` names it in
 /// messages.
 pub(crate) fn from_bytes(label: &Path, bytes: Vec<u8>, options: &LoadOptions) -> Result<Table> {
-    let hash = crate::table::sha256_hex(&bytes);
+    let hash = crate::table::sha256_unless_skipped(&bytes, options);
     let mut table = crate::guard::contain(label, "spreadsheet", || {
         let workbook = open_workbook_auto_from_rs(std::io::Cursor::new(bytes))
             .map_err(|e| parse_error(label, &e))?;

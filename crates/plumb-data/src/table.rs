@@ -89,6 +89,15 @@ pub(crate) fn sha256_hex(bytes: &[u8]) -> String {
     format!("{:x}", Sha256::digest(bytes))
 }
 
+/// [`sha256_hex`], or empty when the reader asked for no hash (`LoadOptions::skip_hash`).
+pub(crate) fn sha256_unless_skipped(bytes: &[u8], options: &crate::LoadOptions) -> String {
+    if options.skip_hash {
+        String::new()
+    } else {
+        sha256_hex(bytes)
+    }
+}
+
 /// A named column.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Column {
@@ -147,32 +156,11 @@ impl ColumnValues {
     /// `Ok(Some)` a number, kept in Rust's shortest form; `Err` a text), remembering the first
     /// text and counting them, without a string per cell.
     fn text_column<'a>(cells: impl Iterator<Item = Result<Option<f64>, &'a str>>) -> Self {
-        let mut values = TextsBuilder::with_capacity(cells.size_hint().0);
-        let (mut first, mut text_count) = (None, 0);
-        let mut shortest = String::new();
-        for (i, cell) in cells.enumerate() {
-            match cell {
-                Ok(None) => values.push(None),
-                Ok(Some(v)) => {
-                    shortest.clear();
-                    // Writing to a String cannot fail.
-                    let _ = write!(shortest, "{v}");
-                    values.push(Some(&shortest));
-                }
-                Err(text) => {
-                    text_count += 1;
-                    first.get_or_insert_with(|| (i + 1, shorten(text)));
-                    values.push(Some(text));
-                }
-            }
+        let mut column = TextColumn::with_capacity(cells.size_hint().0);
+        for cell in cells {
+            column.push(cell);
         }
-        let (first_text_row, first_text) = first.unwrap_or_default();
-        Self::Text {
-            values: values.finish(),
-            first_text_row,
-            first_text,
-            text_count,
-        }
+        column.finish()
     }
 
     /// Types a column straight from its cell texts (`None` for an empty field), as
@@ -192,13 +180,102 @@ impl ColumnValues {
                 Ok(v) => numbers.push(v.unwrap_or(f64::NAN)),
                 Err(_) => {
                     drop(numbers);
-                    return Self::text_column(
-                        cells().map(|raw| raw.map_or(Ok(None), |s| read_cell(s, decimal, tokens))),
-                    );
+                    let mut column = TextColumn::with_capacity(cells().size_hint().0);
+                    for raw in cells() {
+                        column.push_raw(raw, decimal, tokens);
+                    }
+                    return column.finish();
                 }
             }
         }
         Self::Numeric(Numbers::from_nan_missing(numbers))
+    }
+}
+
+/// Builds a text column a cell at a time: its dictionary, how many cells are text, and the
+/// first of them.
+struct TextColumn {
+    values: TextsBuilder,
+    /// Whether each level came from a text cell (else from a number's shortest form).
+    from_text: Vec<bool>,
+    rows: usize,
+    first: Option<(usize, String)>,
+    text_count: usize,
+    shortest: String,
+}
+
+impl TextColumn {
+    fn with_capacity(rows: usize) -> Self {
+        Self {
+            values: TextsBuilder::with_capacity(rows),
+            from_text: Vec::new(),
+            rows: 0,
+            first: None,
+            text_count: 0,
+            shortest: String::new(),
+        }
+    }
+
+    /// Appends a cell as [`read_cell`] reads it.
+    fn push(&mut self, cell: Result<Option<f64>, &str>) {
+        self.rows += 1;
+        let code = match cell {
+            Ok(None) => self.values.push(None),
+            Ok(Some(v)) => {
+                self.shortest.clear();
+                // Writing to a String cannot fail.
+                let _ = write!(self.shortest, "{v}");
+                self.values.push(Some(&self.shortest))
+            }
+            Err(text) => {
+                self.counted_text(text);
+                self.values.push(Some(text))
+            }
+        };
+        if let Some(code) = code {
+            self.note_level(code, cell.is_err());
+        }
+    }
+
+    /// Appends a cell from its raw text (`None` for an empty field). A cell whose trimmed
+    /// text is already a level that came from a text cell is that text again ([`read_cell`]
+    /// would read it the same way), so it is not read as a number a second time.
+    fn push_raw(&mut self, raw: Option<&str>, decimal: DecimalMark, tokens: &[String]) {
+        let known = raw
+            .map(str::trim)
+            .and_then(|s| Some((s, self.values.code_if_known(s)?)))
+            .filter(|&(_, code)| self.from_text.get(code as usize) == Some(&true));
+        match known {
+            Some((text, code)) => {
+                self.rows += 1;
+                self.counted_text(text);
+                self.values.push_code(code);
+            }
+            None => self.push(raw.map_or(Ok(None), |s| read_cell(s, decimal, tokens))),
+        }
+    }
+
+    fn counted_text(&mut self, text: &str) {
+        self.text_count += 1;
+        let row = self.rows;
+        self.first.get_or_insert_with(|| (row, shorten(text)));
+    }
+
+    /// Records where a level came from when `code` is new.
+    fn note_level(&mut self, code: u32, text: bool) {
+        if code as usize == self.from_text.len() {
+            self.from_text.push(text);
+        }
+    }
+
+    fn finish(self) -> ColumnValues {
+        let (first_text_row, first_text) = self.first.unwrap_or_default();
+        ColumnValues::Text {
+            values: self.values.finish(),
+            first_text_row,
+            first_text,
+            text_count: self.text_count,
+        }
     }
 }
 
@@ -308,14 +385,14 @@ impl Table {
     }
 
     /// SHA-256 of the bytes the table was read from (not of a second read of the file, which
-    /// could differ), lower-case hex.
+    /// could differ), lower-case hex; empty when read with `LoadOptions::skip_hash`.
     pub fn sha256(&self) -> &str {
         &self.sha256
     }
 
-    /// Records the hash of the bytes read.
-    pub(crate) fn with_sha256(mut self, bytes: &[u8]) -> Self {
-        self.sha256 = sha256_hex(bytes);
+    /// Records the hash of the bytes read (unless the reader asked for none).
+    pub(crate) fn with_sha256(mut self, bytes: &[u8], options: &crate::LoadOptions) -> Self {
+        self.sha256 = sha256_unless_skipped(bytes, options);
         self
     }
 
@@ -403,6 +480,51 @@ fn unique_names(names: Vec<String>, notes: &mut Vec<String>) -> Vec<String> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_text_column_typed_from_raw_cells_matches_the_cell_by_cell_reading() {
+        // Repeats of texts, numbers written several ways, tokens and blanks, in an order
+        // where a repeated text comes before and after numbers of the same look.
+        let raw = [
+            Some("north"),
+            Some(" north "),
+            Some("12.50"),
+            Some("12.5"),
+            None,
+            Some("NA"),
+            Some("north"),
+            Some("inf"),
+            Some("-0"),
+            Some("0"),
+            Some("1e3"),
+            Some("1000"),
+            Some("  "),
+            Some("-999"),
+            Some("x"),
+            Some("north"),
+            Some("x "),
+        ];
+        let tokens = vec!["-999".to_string()];
+        let typed = ColumnValues::from_texts(|| raw.into_iter(), DecimalMark::Point, &tokens);
+        let cells = raw
+            .iter()
+            .map(|r| {
+                r.map_or(Cell::Missing, |s| {
+                    crate::cell::classify(s, DecimalMark::Point, &tokens)
+                })
+            })
+            .collect();
+        assert_eq!(typed, ColumnValues::from_cells(cells));
+        let ColumnValues::Text {
+            first_text_row,
+            text_count,
+            ..
+        } = typed
+        else {
+            panic!("a text column")
+        };
+        assert_eq!((first_text_row, text_count), (1, 6));
+    }
 
     #[test]
     fn duplicate_and_blank_names_become_unique_with_a_note() {

@@ -45,17 +45,19 @@ impl Parsed {
         self.frame.width()
     }
 
-    /// The columns, typed; each polars column is let go once converted. `None` when a value
-    /// equals a numeric missing token (the file then goes cell by cell).
+    /// The columns, typed on all cores; each polars column is let go once converted. `None`
+    /// when a value equals a numeric missing token (the file then goes cell by cell).
     pub(crate) fn columns(self) -> Option<Vec<ColumnValues>> {
+        use rayon::prelude::*;
         let (mark, tokens, token_values) = (self.mark, self.tokens, self.token_values);
         self.frame
             .take_columns()
-            .into_iter()
+            .into_par_iter()
+            .with_max_len(1)
             .map(|c| match c.dtype() {
                 DataType::Float64 => numbers(&c, &token_values),
                 _ => {
-                    let strings = c.str().ok()?.rechunk();
+                    let strings = c.str().ok()?;
                     Some(ColumnValues::from_texts(|| strings.iter(), mark, &tokens))
                 }
             })
@@ -264,10 +266,23 @@ fn polars_read(
 /// when a value equals a numeric missing token.
 fn numbers(column: &polars::prelude::Column, token_values: &[f64]) -> Option<ColumnValues> {
     let floats = column.f64().ok()?;
-    let values: Vec<f64> = match floats.cont_slice() {
-        Ok(no_nulls) => no_nulls.to_vec(),
-        Err(_) => floats.iter().map(|v| v.unwrap_or(f64::NAN)).collect(),
-    };
+    // Chunk by chunk (a parse on several threads leaves several): a chunk without nulls is
+    // copied whole, one with nulls value by value.
+    let mut values: Vec<f64> = Vec::with_capacity(floats.len());
+    for chunk in floats.downcast_iter() {
+        let slice = chunk.values().as_slice();
+        match chunk.validity().filter(|v| v.unset_bits() > 0) {
+            None => values.extend_from_slice(slice),
+            Some(valid) => {
+                values.extend(
+                    slice
+                        .iter()
+                        .zip(valid.iter())
+                        .map(|(&v, ok)| if ok { v } else { f64::NAN }),
+                )
+            }
+        }
+    }
     let token_like = !token_values.is_empty() && values.iter().any(|v| token_values.contains(v));
     (!token_like).then(|| ColumnValues::Numeric(Numbers::from_nan_missing(values)))
 }

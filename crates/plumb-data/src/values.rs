@@ -174,10 +174,26 @@ impl TextsBuilder {
         }
     }
 
-    /// Appends a row: a text, or `None` for a missing cell.
-    pub(crate) fn push(&mut self, cell: Option<&str>) {
-        let code = cell.map_or(MISSING, |s| self.code_of(s));
+    /// Appends a row: a text, or `None` for a missing cell; returns the text's code.
+    pub(crate) fn push(&mut self, cell: Option<&str>) -> Option<u32> {
+        let code = cell.map(|s| self.code_of(s));
+        self.texts.codes.push(code.unwrap_or(MISSING));
+        code
+    }
+
+    /// Appends a row holding the text of a code already given out.
+    pub(crate) fn push_code(&mut self, code: u32) {
         self.texts.codes.push(code);
+    }
+
+    /// The code of `s` when it is already in the dictionary.
+    pub(crate) fn code_if_known(&self, s: &str) -> Option<u32> {
+        let texts = &self.texts;
+        self.index
+            .find(self.hasher.hash_one(s), |&c| {
+                texts.level_text(c as usize) == s
+            })
+            .copied()
     }
 
     /// The code of `s`, added to the dictionary when new.

@@ -332,6 +332,14 @@ fn only_the_columns_asked_for_are_read_when_that_changes_nothing_else() {
     // A name the header does not hold: every column, so the message can list them.
     let unknown = load(&path, &asked(&["y", "dose"])).expect("loads");
     assert_eq!(names(&unknown), ["run", "site", "y", "x"]);
+    // Without the hash: the same table, and an empty hash rather than a wrong one.
+    let unhashed = LoadOptions {
+        skip_hash: true,
+        ..LoadOptions::default()
+    };
+    let quick = load(&path, &unhashed).expect("loads");
+    assert_eq!(quick.columns(), all.columns());
+    assert_eq!((quick.sha256(), all.sha256().len()), ("", 64));
 }
 
 #[test]

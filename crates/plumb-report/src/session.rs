@@ -115,6 +115,7 @@ impl LoadSpec {
             sheet: self.sheet.clone(),
             memory_limit: None,
             only: None,
+            skip_hash: false,
         }
     }
 
@@ -755,6 +756,7 @@ mod tests {
             sheet: Some("runs".into()),
             memory_limit: None,
             only: None,
+            skip_hash: false,
         };
         assert_eq!(LoadSpec::from_options(&options).to_options(), options);
         assert_eq!(LoadSpec::default().to_options(), LoadOptions::default());

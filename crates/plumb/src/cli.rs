@@ -274,6 +274,16 @@ impl LoadArgs {
             sheet: self.sheet.clone(),
             memory_limit: None,
             only: None,
+            skip_hash: false,
+        }
+    }
+
+    /// The loader's options for a command that prints numbers only: the file is not hashed
+    /// (only sessions and summaries record the hash).
+    pub fn options_for_numbers(&self) -> LoadOptions {
+        LoadOptions {
+            skip_hash: true,
+            ..self.options()
         }
     }
 }
@@ -435,12 +445,13 @@ impl ModelArgs {
 }
 
 impl LoadArgs {
-    /// The loader's options, reading only `columns` from a text file (all of them when that
-    /// could change what is read or said; see `LoadOptions::only`).
+    /// The loader's options for a command that prints numbers only, reading only `columns`
+    /// from a text file (all of them when that could change what is read or said; see
+    /// `LoadOptions::only`).
     pub fn options_for(&self, columns: Vec<String>) -> LoadOptions {
         LoadOptions {
             only: Some(columns),
-            ..self.options()
+            ..self.options_for_numbers()
         }
     }
 }

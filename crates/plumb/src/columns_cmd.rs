@@ -7,7 +7,7 @@ use plumb_report::text::{count, num, plural};
 use crate::cli::ColumnsArgs;
 
 pub fn run(args: &ColumnsArgs) -> anyhow::Result<String> {
-    let table = plumb_data::load(&args.load.data, &args.load.options())?;
+    let table = plumb_data::load(&args.load.data, &args.load.options_for_numbers())?;
     let mut out = String::new();
     writeln!(
         out,

@@ -33,7 +33,7 @@ struct CorrJson<'a> {
 }
 
 pub fn run(args: &CorrArgs) -> anyhow::Result<String> {
-    let table = plumb_data::load(&args.load.data, &args.load.options())?;
+    let table = plumb_data::load(&args.load.data, &args.load.options_for_numbers())?;
     let columns = columns_of(args, &table)?;
     let values: Vec<&[f64]> = columns
         .iter()
