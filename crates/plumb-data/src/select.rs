@@ -1,5 +1,7 @@
 //! Complete-row selection: the rows an analysis can use, and an account of the rest.
 
+use rayon::prelude::*;
+
 use crate::table::{ColumnValues, Table};
 use crate::values::Numbers;
 use crate::{DataError, Result};
@@ -116,33 +118,44 @@ impl Table {
                 n_rows: self.n_rows(),
             });
         }
-        let mut selection = Selection {
-            rows: Vec::new(),
-            columns: vec![Vec::new(); names.len()],
-            dropped: Vec::new(),
-            excluded,
-        };
+        // Which rows are kept is settled first (the exclusions walked beside the rows, each
+        // kept row's cells checked); then each column is gathered at its exact length, the
+        // columns on all cores.
+        let mut rows = Vec::with_capacity(self.n_rows());
+        let mut dropped = Vec::new();
+        let mut next_excluded = excluded.iter().copied().peekable();
         for i in 0..self.n_rows() {
             let row = i + 1;
-            if selection.excluded.binary_search(&row).is_ok() {
+            if next_excluded.next_if_eq(&row).is_some() {
                 continue;
             }
-            let fault = first_fault(names, &columns, i);
-            match fault {
-                Some((name, reason)) => selection.dropped.push(Dropped {
+            match first_fault(names, &columns, i) {
+                Some((name, reason)) => dropped.push(Dropped {
                     row,
                     column: name.to_string(),
                     reason,
                 }),
-                None => {
-                    selection.rows.push(row);
-                    for (out, col) in selection.columns.iter_mut().zip(&columns) {
-                        out.push(col.as_nan_missing()[i]);
-                    }
-                }
+                None => rows.push(row),
             }
         }
-        Ok(selection)
+        let every_row = rows.len() == self.n_rows();
+        let gathered = columns
+            .par_iter()
+            .map(|col| {
+                let values = col.as_nan_missing();
+                if every_row {
+                    values.to_vec()
+                } else {
+                    rows.iter().map(|&r| values[r - 1]).collect()
+                }
+            })
+            .collect();
+        Ok(Selection {
+            rows,
+            columns: gathered,
+            dropped,
+            excluded,
+        })
     }
 
     fn column_hint(&self, name: &str) -> String {

@@ -292,3 +292,52 @@ fn the_ladder_suggests_the_square_for_a_bend_and_nothing_for_a_line() {
     let (straight, p_square) = suggested("straight");
     assert_eq!(straight, 1, "a line: p for the square is {p_square}");
 }
+
+#[test]
+fn the_ladders_line_is_the_same_whether_taken_from_the_model_or_fitted_afresh() {
+    let dir = tempfile::tempdir().expect("dir");
+    let path = dir.path().join("line.csv");
+    let mut text = String::from("x,y\n");
+    for i in 1..=60 {
+        let x = f64::from(i) * 0.5;
+        let wobble = f64::from((i * 7919) % 17) / 17.0 - 0.5;
+        text.push_str(&format!("{x},{}\n", 1.0 + 0.8 * x + wobble * x / 10.0));
+    }
+    std::fs::write(&path, text).expect("write");
+    let t = load(&path, &LoadOptions::default()).expect("load");
+    let numbers =
+        |name: &str| -> Vec<f64> { t.numeric(name).expect("numeric").iter().flatten().collect() };
+    let (x, y) = (numbers("x"), numbers("y"));
+    let fresh = fit(
+        &Design::linear(&[("x", &x)], true),
+        &y,
+        None,
+        &FitOptions::default(),
+    )
+    .expect("fits");
+    let wanted = Wanted {
+        extras: Some(Default::default()),
+        ..Wanted::default()
+    };
+    // Unweighted: the model's own fit is the ladder's line. Weighted by a rule: the model is
+    // weighted, the ladder's line is not, so it must not be the model's.
+    for rule in [None, Some(plumb_core::calibration::WeightRule::InverseX2)] {
+        let request = FitRequest {
+            y: "y".into(),
+            x: vec!["x".into()],
+            weight_rule: rule,
+            ..FitRequest::default()
+        };
+        let a = analyze(&t, &request, wanted).expect("fits");
+        let line = &a.extras.expect("extras").degrees[0].fit;
+        assert_eq!(line.coefficients, fresh.coefficients, "{rule:?}");
+        assert_eq!(
+            line.r_squared.to_bits(),
+            fresh.r_squared.to_bits(),
+            "{rule:?}"
+        );
+        if rule.is_some() {
+            assert_ne!(a.fit.coefficients, fresh.coefficients, "weighted model");
+        }
+    }
+}

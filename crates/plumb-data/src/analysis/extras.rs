@@ -148,7 +148,8 @@ pub(super) fn pair_extras(
     let z_view = StandardizedView::of(x, y);
     let read_at = at.and_then(|a| read_at(rows, fitted, z_view, a));
     let mut degrees = if request.weights.is_none() && rows.levels.is_none() {
-        degree_ladder(x, y, request)
+        let model = rows.weights().is_none().then_some((&rows.design, fitted));
+        degree_ladder(x, y, request, model)
     } else {
         Vec::new()
     };
@@ -204,7 +205,15 @@ fn read_at(
     })
 }
 
-fn degree_ladder(x: &[f64], y: &[f64], request: &FitRequest) -> Vec<DegreeStep> {
+/// Polynomials of degree 1, 2 and 3 in `x`. A rung whose design is the model's own (`model`:
+/// the design fitted and its fit, when unweighted; the options are the same) takes that fit
+/// instead of fitting it again.
+fn degree_ladder(
+    x: &[f64],
+    y: &[f64],
+    request: &FitRequest,
+    model: Option<(&Design, &LinearFit)>,
+) -> Vec<DegreeStep> {
     let options = FitOptions {
         level: request.level,
         ..FitOptions::default()
@@ -217,7 +226,11 @@ fn degree_ladder(x: &[f64], y: &[f64], request: &FitRequest) -> Vec<DegreeStep> 
         } else {
             Design::polynomial(&name, x, degree, request.intercept)
         };
-        let Some(f) = design.ok().and_then(|d| fit(&d, y, None, &options).ok()) else {
+        let fitted = design.ok().and_then(|d| match model {
+            Some((own, its_fit)) if *own == d => Some(its_fit.clone()),
+            _ => fit(&d, y, None, &options).ok(),
+        });
+        let Some(f) = fitted else {
             break;
         };
         let versus_previous = steps.last().map(|prev| compare_nested(&prev.fit, &f));

@@ -2,6 +2,8 @@
 //! what-if values put in place, the transforms applied, the grouping factor's levels read, and
 //! the design matrix built from them.
 
+use rayon::prelude::*;
+
 use plumb_core::calibration::{rule_weights, CalibrationError};
 use plumb_core::regression::{boxcox, fit, BoxCox, Design, FitOptions, LinearFit, Transform};
 use plumb_core::CoreError;
@@ -192,12 +194,15 @@ pub fn model_rows(table: &Table, request: &FitRequest) -> Result<ModelRows, Anal
         .map(|f| terms::levels(table, f, &mut selection))
         .transpose()?;
     let x_transforms: Vec<Transform> = request.x.iter().map(|x| request.x_transform(x)).collect();
+    // On all cores; the first refusal in the request's order is the one reported.
     let predictors = request
         .x
-        .iter()
+        .par_iter()
         .zip(&x_transforms)
         .zip(&selection.columns[1..])
         .map(|((name, &t), values)| terms::transformed(&file, name, t, values, &selection.rows))
+        .collect::<Vec<_>>()
+        .into_iter()
         .collect::<Result<Vec<_>, _>>()?;
     let mut rows = ModelRows {
         design: Design::new(0, false),

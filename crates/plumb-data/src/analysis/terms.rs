@@ -266,15 +266,19 @@ pub(super) fn transformed(
     values: &[f64],
     rows: &[usize],
 ) -> Result<Vec<f64>, AnalysisError> {
-    let out: Vec<Option<f64>> = values.iter().map(|&v| t.apply(v)).collect();
-    let bad: Vec<usize> = out
+    let mut bad: Vec<usize> = Vec::new();
+    let out: Vec<f64> = values
         .iter()
         .zip(rows)
-        .filter(|(v, _)| v.is_none())
-        .map(|(_, &r)| r)
+        .map(|(&v, &r)| {
+            t.apply(v).unwrap_or_else(|| {
+                bad.push(r);
+                f64::NAN
+            })
+        })
         .collect();
     if bad.is_empty() {
-        return Ok(out.into_iter().flatten().collect());
+        return Ok(out);
     }
     let first: Vec<String> = bad.iter().take(8).map(ToString::to_string).collect();
     Err(AnalysisError::Request(format!(
