@@ -175,7 +175,7 @@ pub fn influence_with_dfbetas(
     ))
 }
 
-/// The case diagnostics, and the DFBETAS (row-major) when `with_dfbetas`.
+/// The case diagnostics, and the DFBETAS (row-major) when `with_dfbetas`; rows on all cores.
 fn cases(
     design: &Design,
     weights: Option<&[f64]>,
@@ -183,6 +183,7 @@ fn cases(
     options: &FitOptions,
     with_dfbetas: bool,
 ) -> Result<(Vec<CaseInfluence>, Vec<f64>)> {
+    use rayon::prelude::*;
     let n = design.n_rows();
     let p = design.n_terms();
     let f = factor(design, weights, options.rank_tolerance)?;
@@ -190,37 +191,33 @@ fn cases(
     let df = (n - p) as f64;
     let s2 = fit.anova.ss_residual / df;
     let s = s2.sqrt();
-    let cov_diag: Vec<f64> = (0..p).map(|j| f.m.row(j).norm_squared()).collect();
     let (lev_cut, cook_cut) = (
         LEVERAGE_FLAG_FACTOR * p as f64 / n as f64,
         cooks_flag_cut(n),
     );
-    let mut dfbetas = Vec::with_capacity(if with_dfbetas { n * p } else { 0 });
+    // Row i of Q₁ read in place, and what leaving row i out does to the spread.
+    let case = |i: usize| {
+        let h = (0..p).fold(0.0, |acc, j| acc + q[(i, j)] * q[(i, j)]);
+        let r = f.root_w[i] * fit.residuals[i];
+        let one_minus_h = 1.0 - h;
+        // Leaving a row out needs a residual degree of freedom to spare, and a row of
+        // leverage 1 cannot be left out at all: those measures are then undefined (NaN).
+        let s_i = if df > 1.0 && one_minus_h > 1e-12 {
+            (((df * s2) - r * r / one_minus_h) / (df - 1.0))
+                .max(0.0)
+                .sqrt()
+        } else {
+            f64::NAN
+        };
+        (h, r, one_minus_h, s_i)
+    };
     let cases = (0..n)
+        .into_par_iter()
         .map(|i| {
-            let qi = q.row(i).transpose();
-            let h = qi.norm_squared();
-            let e = fit.residuals[i];
-            let r = f.root_w[i] * e;
-            let one_minus_h = 1.0 - h;
+            let (h, r, one_minus_h, s_i) = case(i);
             let internal = r / (s * one_minus_h.sqrt());
-            // Leaving a row out needs a residual degree of freedom to spare, and a row of
-            // leverage 1 cannot be left out at all: those measures are then undefined (NaN).
-            let s_i = if df > 1.0 && one_minus_h > 1e-12 {
-                (((df * s2) - r * r / one_minus_h) / (df - 1.0))
-                    .max(0.0)
-                    .sqrt()
-            } else {
-                f64::NAN
-            };
             let external = r / (s_i * one_minus_h.sqrt());
             let cooks = internal * internal * h / (p as f64 * one_minus_h);
-            if with_dfbetas {
-                // C xᵢ √wᵢ = M·q̃ᵢ with q̃ᵢ the row of Q₁ (Q₁ = W^{1/2}Z P R⁻¹); so
-                // Δβ = M qᵢ rᵢ/(1 − h).
-                let shift = &f.m * &qi * (r / one_minus_h);
-                dfbetas.extend((0..p).map(|j| shift[j] / (s_i * cov_diag[j].sqrt())));
-            }
             let mut flags = Flags::default();
             if h > lev_cut {
                 flags.insert(InfluenceFlag::HighLeverage);
@@ -233,7 +230,7 @@ fn cases(
             }
             CaseInfluence {
                 fitted: fit.fitted[i],
-                residual: e,
+                residual: fit.residuals[i],
                 leverage: h,
                 studentized_internal: internal,
                 studentized_external: external,
@@ -243,6 +240,20 @@ fn cases(
             }
         })
         .collect();
+    let mut dfbetas = vec![0.0; if with_dfbetas { n * p } else { 0 }];
+    if with_dfbetas {
+        let cov_sd: Vec<f64> = (0..p).map(|j| f.m.row(j).norm_squared().sqrt()).collect();
+        dfbetas.par_chunks_mut(p).enumerate().for_each(|(i, out)| {
+            // C xᵢ √wᵢ = M·q̃ᵢ with q̃ᵢ the row of Q₁ (Q₁ = W^{1/2}Z P R⁻¹); so
+            // Δβ = M qᵢ rᵢ/(1 − h).
+            let (_, r, one_minus_h, s_i) = case(i);
+            let scale = r / one_minus_h;
+            for (j, o) in out.iter_mut().enumerate() {
+                let shift = (0..p).fold(0.0, |acc, l| acc + f.m[(j, l)] * q[(i, l)]) * scale;
+                *o = shift / (s_i * cov_sd[j]);
+            }
+        });
+    }
     Ok((cases, dfbetas))
 }
 

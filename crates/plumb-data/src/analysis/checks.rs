@@ -89,16 +89,19 @@ pub fn assumption_checks(
         .enumerate()
         .map(|(i, e)| e * w.map_or(1.0, |w| w[i].sqrt()))
         .collect();
-    let spread = breusch_pagan(&scaled, &[&fit.fitted]).map_err(|e| e.to_string());
     let test = if scaled.len() <= SHAPIRO_WILK_MAX_N {
         NormalityTest::ShapiroWilk
     } else {
         NormalityTest::AndersonDarling
     };
-    let normal = match test {
-        NormalityTest::ShapiroWilk => shapiro_wilk(&scaled),
-        NormalityTest::AndersonDarling => anderson_darling(&scaled),
-    };
+    // The two checks are independent: side by side on two cores.
+    let (spread, normal) = rayon::join(
+        || breusch_pagan(&scaled, &[&fit.fitted]).map_err(|e| e.to_string()),
+        || match test {
+            NormalityTest::ShapiroWilk => shapiro_wilk(&scaled),
+            NormalityTest::AndersonDarling => anderson_darling(&scaled),
+        },
+    );
     let order = match order {
         RowOrder::None => None,
         RowOrder::File => Some(order_checks("file row order", &scaled)),
