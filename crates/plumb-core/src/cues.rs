@@ -3,7 +3,7 @@
 
 use crate::alternative::loess;
 use crate::association::{distance_correlation, pearson};
-use crate::regression::{fit, influence, Design, FitOptions, LinearFit};
+use crate::regression::{fit, influence, CaseInfluence, Design, FitOptions, LinearFit};
 
 /// A curve counts as clearly better than the line when its R² exceeds the line's by this much
 /// and reaches [`CURVE_R2_STRONG`]. Plumbline's own rule of thumb, no source.
@@ -57,13 +57,16 @@ pub fn pair_cues(x: &[f64], y: &[f64]) -> Option<PairCues> {
 
 /// Fits of the same `x` and `y` the caller already has, so that [`pair_cues_given`] need not
 /// repeat them: each must be by least squares with an intercept, unweighted, with
-/// [`FitOptions::default`] (the answer is then the same as [`pair_cues`]'s, to the bit).
+/// [`FitOptions::default`], and the cases must be the line's [`influence`] at those options
+/// (the answer is then the same as [`pair_cues`]'s, to the bit).
 #[derive(Debug, Clone, Copy, Default)]
 pub struct KnownFits<'a> {
     /// The straight line.
     pub line: Option<&'a LinearFit>,
     /// The cubic polynomial (degree 3).
     pub cubic: Option<&'a LinearFit>,
+    /// The line's case diagnostics ([`influence`] of `line`), one per row.
+    pub line_cases: Option<&'a [CaseInfluence]>,
 }
 
 /// [`pair_cues`], reusing the fits in `known`.
@@ -106,7 +109,14 @@ pub fn pair_cues_given(x: &[f64], y: &[f64], known: KnownFits<'_>) -> Option<Pai
     let dependent =
         distance.is_some_and(|(_, p)| p <= DCOR_P) || grid.is_some_and(|(_, _, p)| p <= DCOR_P);
     let hidden = dependent && pearson_fit.p_value > PEARSON_QUIET_P;
-    let cases = influence(&line_design, None, line, &options).ok()?;
+    let fresh_cases;
+    let cases = match known.line_cases {
+        Some(c) if c.len() == n => c,
+        _ => {
+            fresh_cases = influence(&line_design, None, line, &options).ok()?;
+            &fresh_cases
+        }
+    };
     let most_influential = cases
         .iter()
         .enumerate()
@@ -198,17 +208,28 @@ mod tests {
         let line = fit(&Design::linear(&[("t", &x)], true), &y, None, &options).expect("line");
         let cubic_design = Design::polynomial("t", &x, 3, true).expect("cubic design");
         let cubic = fit(&cubic_design, &y, None, &options).expect("cubic");
+        let line_design = Design::linear(&[("t", &x)], true);
+        let cases = influence(&line_design, None, &line, &options).expect("cases");
         let known = KnownFits {
             line: Some(&line),
             cubic: Some(&cubic),
+            line_cases: Some(&cases),
         };
         assert_eq!(pair_cues_given(&x, &y, known), pair_cues(&x, &y));
         let wrong = fit(&Design::linear(&[("t", &x)], false), &y, None, &options).expect("fit");
         let misled = KnownFits {
             line: Some(&wrong),
-            cubic: None,
+            ..KnownFits::default()
         };
         // The test can fail: a fit of another kind changes the answer.
+        assert_ne!(pair_cues_given(&x, &y, misled), pair_cues(&x, &y));
+        // So can cases of another fit: the most influential row is read from them.
+        let mut shuffled = cases.clone();
+        shuffled.rotate_left(1);
+        let misled = KnownFits {
+            line_cases: Some(&shuffled),
+            ..KnownFits::default()
+        };
         assert_ne!(pair_cues_given(&x, &y, misled), pair_cues(&x, &y));
     }
 

@@ -1,5 +1,7 @@
 //! The points of one view with their pair entries, indexed for hover when there are many.
 
+use rayon::prelude::*;
+
 use crate::density::{Bounds, PointIndex};
 
 /// Above this many points a view draws a density image instead of markers.
@@ -31,7 +33,8 @@ impl Cloud {
         let ascending = entries.windows(2).all(|w| w[0] < w[1]);
         let by_entry = (!ascending).then(|| {
             let mut order: Vec<usize> = (0..entries.len()).collect();
-            order.sort_unstable_by_key(|&k| entries[k]);
+            // Entries are distinct, so the unstable sort's order is the only one.
+            order.par_sort_unstable_by_key(|&k| entries[k]);
             order
         });
         Self {

@@ -2,6 +2,8 @@
 //! axis the analyst chose, leverage, quantiles, the added-variable views, and where the
 //! excluded rows fall against the current fit.
 
+use rayon::prelude::*;
+
 use plumb_core::regression::{
     normal_scores, pull_of, strong_pull_from, AddedVariable, CaseInfluence, LinearFit,
     Pull as PullClass,
@@ -165,11 +167,27 @@ pub fn views_of(
     };
     let axis = input.residual_axis.resolved(&input.spec);
     let along = Along::new(input);
-    let residual = finite_cloud(
-        included
-            .iter()
-            .zip(cases)
-            .map(|(&i, c)| (i, (along.at(i, c.fitted), c.residual))),
+    // The four views of every case are independent: built side by side.
+    let ((residual, leverage), (pull, quantile)) = rayon::join(
+        || {
+            rayon::join(
+                || {
+                    finite_cloud(
+                        included
+                            .iter()
+                            .zip(cases)
+                            .map(|(&i, c)| (i, (along.at(i, c.fitted), c.residual))),
+                    )
+                },
+                || cloud(|c| (c.leverage, c.studentized_external)),
+            )
+        },
+        || {
+            rayon::join(
+                || Pull::of(cases, included, f.map_or(0, |f| f.coefficients.len())),
+                || quantile_cloud(cases, included),
+            )
+        },
     );
     let rings: Vec<Placed> = f.map_or_else(Vec::new, |f| {
         input
@@ -188,10 +206,10 @@ pub fn views_of(
     let mut views = Views {
         residual,
         residual_axis: axis,
-        leverage: cloud(|c| (c.leverage, c.studentized_external)),
-        pull: Pull::of(cases, included, f.map_or(0, |f| f.coefficients.len())),
+        leverage,
+        pull,
         quantile_band: Vec::new(),
-        quantile: quantile_cloud(cases, included),
+        quantile,
         excluded_residuals,
         beyond: beyond.into_iter().map(|(i, (_, e))| (i, e)).collect(),
         added: added
@@ -303,10 +321,12 @@ fn quantile_cloud(cases: &[CaseInfluence], included: &[usize]) -> Cloud {
     let mut order: Vec<usize> = (0..cases.len())
         .filter(|&k| cases[k].studentized_external.is_finite())
         .collect();
-    order.sort_by(|&a, &b| {
+    // On all cores; ties keep row order, as a stable sort would.
+    order.par_sort_unstable_by(|&a, &b| {
         cases[a]
             .studentized_external
             .total_cmp(&cases[b].studentized_external)
+            .then(a.cmp(&b))
     });
     let points = normal_scores(order.len())
         .into_iter()

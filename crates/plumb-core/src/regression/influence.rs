@@ -261,7 +261,9 @@ fn cases(
 /// `Φ⁻¹((i − 3/8)/(n + 1/4))`, `i = 1..n` (Blom, *Statistical Estimates and Transformed
 /// Beta-Variables*, 1958).
 pub fn normal_scores(n: usize) -> Vec<f64> {
+    use rayon::prelude::*;
     (1..=n)
+        .into_par_iter()
         .map(|i| {
             let prob = (i as f64 - 0.375) / (n as f64 + 0.25);
             -distributions::normal_upper_quantile(prob)

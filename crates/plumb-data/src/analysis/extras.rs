@@ -6,8 +6,8 @@ use plumb_core::alternative::{
 };
 use plumb_core::cues::{pair_cues_given, KnownFits, PairCues};
 use plumb_core::regression::{
-    bands_at, compare_nested, fit, BandPoint, Design, FitOptions, LinearFit, NestedComparison,
-    StandardizedView,
+    bands_at, compare_nested, fit, BandPoint, CaseInfluence, Design, FitOptions, LinearFit,
+    NestedComparison, StandardizedView,
 };
 
 use super::{FitRequest, ModelRows};
@@ -133,6 +133,7 @@ pub struct ReadAt {
 pub(super) fn pair_extras(
     rows: &ModelRows,
     fitted: &LinearFit,
+    cases: &[CaseInfluence],
     request: &FitRequest,
     extras: ExtrasRequest,
 ) -> Option<PairExtras> {
@@ -147,9 +148,17 @@ pub(super) fn pair_extras(
     let (y, x) = (rows.y(), rows.predictors[0].as_slice());
     let z_view = StandardizedView::of(x, y);
     let read_at = at.and_then(|a| read_at(rows, fitted, z_view, a));
+    let name = request.x_term_names().remove(0);
+    let line_design = Design::linear(&[(name.as_str(), x)], request.intercept);
+    // The model is this line, unweighted: its fit and cases serve the ladder and the cues.
+    let model_is_line = rows.weights().is_none() && rows.design == line_design;
     let mut degrees = if request.weights.is_none() && rows.levels.is_none() {
-        let model = rows.weights().is_none().then_some((&rows.design, fitted));
-        degree_ladder(x, y, request, model)
+        degree_ladder(
+            (&name, x),
+            y,
+            request,
+            (line_design, model_is_line.then_some(fitted)),
+        )
     } else {
         Vec::new()
     };
@@ -166,6 +175,7 @@ pub(super) fn pair_extras(
     let known = KnownFits {
         line: step(1),
         cubic: step(3),
+        line_cases: (same_way && model_is_line && !cases.is_empty()).then_some(cases),
     };
     let cues = pair_cues_given(x, y, known);
     for s in &mut degrees {
@@ -205,31 +215,31 @@ fn read_at(
     })
 }
 
-/// Polynomials of degree 1, 2 and 3 in `x`. A rung whose design is the model's own (`model`:
-/// the design fitted and its fit, when unweighted; the options are the same) takes that fit
-/// instead of fitting it again.
+/// Polynomials of degree 1, 2 and 3 in `x` (named `name`); the line is `line`'s design, and
+/// its fit is `line`'s own when given (the model's, fitted the same way) instead of a refit.
 fn degree_ladder(
-    x: &[f64],
+    (name, x): (&str, &[f64]),
     y: &[f64],
     request: &FitRequest,
-    model: Option<(&Design, &LinearFit)>,
+    line: (Design, Option<&LinearFit>),
 ) -> Vec<DegreeStep> {
     let options = FitOptions {
         level: request.level,
         ..FitOptions::default()
     };
-    let name = request.x_term_names().remove(0);
+    let (line_design, line_fit) = line;
+    let mut line_design = Some(line_design);
     let mut steps: Vec<DegreeStep> = Vec::new();
     for degree in 1..=3 {
-        let design = if degree == 1 {
-            Ok(Design::linear(&[(name.as_str(), x)], request.intercept))
-        } else {
-            Design::polynomial(&name, x, degree, request.intercept)
+        let fitted = match (degree, line_fit) {
+            (1, Some(known)) => Some(known.clone()),
+            (1, None) => line_design
+                .take()
+                .and_then(|d| fit(&d, y, None, &options).ok()),
+            _ => Design::polynomial(name, x, degree, request.intercept)
+                .ok()
+                .and_then(|d| fit(&d, y, None, &options).ok()),
         };
-        let fitted = design.ok().and_then(|d| match model {
-            Some((own, its_fit)) if *own == d => Some(its_fit.clone()),
-            _ => fit(&d, y, None, &options).ok(),
-        });
         let Some(f) = fitted else {
             break;
         };

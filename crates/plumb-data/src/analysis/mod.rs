@@ -226,7 +226,7 @@ pub fn analyze(
     };
     let extras = wanted
         .extras
-        .and_then(|e| extras::pair_extras(&rows, &fit, request, e));
+        .and_then(|e| extras::pair_extras(&rows, &fit, &cases, request, e));
     let groups = groups::group_tests(table, &rows, &fit, request)?;
     let added = if wanted.added_variables {
         predictor_terms(&rows)
