@@ -11,10 +11,10 @@ use crate::{DataError, Result};
 /// which path a file takes is known only once it is read. Measured by `bench/memory_cap.py`
 /// (peak resident memory of `plumb columns` on 40 MB files of numbers and of text of 1 to
 /// 100 bytes a cell, with stray words, and taking the cell-by-cell path): the cell-by-cell
-/// path peaked at 687 MiB for 20 M one-byte cells, 201–215 MiB for 1.6 M 30-byte texts and
-/// 179–182 MiB for 0.75 M 100-byte texts; the typed path at 318–410 MiB for 20 M cells and
-/// 69–236 MiB for longer ones. With these constants the estimate is 1.3–2.0 × the peak on
-/// the cell-by-cell path and 1.7–3.9 × on the typed path, which most files take.
+/// path peaked at 636–690 MiB for 18–20 M one-byte cells, 201–223 MiB for 1.6 M 30-byte texts
+/// and 179–196 MiB for 0.75 M 100-byte texts; the typed path at 318–410 MiB for 20 M cells
+/// and 69–237 MiB for longer ones (two runs). With these constants the estimate is 1.2–2.0 ×
+/// the peak on the cell-by-cell path and 1.6–3.9 × on the typed path, which most files take.
 pub const TEXT_BYTE_FACTOR: u64 = 6;
 
 /// See [`TEXT_BYTE_FACTOR`].
