@@ -39,6 +39,14 @@ pub fn breusch_pagan(residuals: &[f64], regressors: &[&[f64]]) -> Result<Breusch
         finite(z)?;
     }
     let u: Vec<f64> = residuals.iter().map(|e| e * e).collect();
+    // With one regressor the auxiliary R² is the squared correlation of u with it, which one
+    // pass over the co-moments gives without a fit (the fit stays for the cases r cannot
+    // settle: a regressor that does not vary, or u that does not).
+    if let [z] = regressors {
+        if let Ok(r) = crate::association::pearson(&u, z, 0.95) {
+            return Ok(result(n as f64 * r.r * r.r, k));
+        }
+    }
     let names: Vec<String> = (1..=k).map(|j| format!("z{j}")).collect();
     let columns: Vec<(&str, &[f64])> = names
         .iter()
@@ -47,12 +55,15 @@ pub fn breusch_pagan(residuals: &[f64], regressors: &[&[f64]]) -> Result<Breusch
         .collect();
     let design = Design::linear(&columns, true);
     let aux = fit(&design, &u, None, &FitOptions::default()).map_err(|_| CheckError::NoSpread)?;
-    let statistic = n as f64 * aux.r_squared;
-    Ok(BreuschPagan {
+    Ok(result(n as f64 * aux.r_squared, k))
+}
+
+fn result(statistic: f64, df: usize) -> BreuschPagan {
+    BreuschPagan {
         statistic,
-        df: k,
-        p_value: distributions::chi_square_upper_tail(statistic, k as f64),
-    })
+        df,
+        p_value: distributions::chi_square_upper_tail(statistic, df as f64),
+    }
 }
 
 #[cfg(test)]
@@ -86,6 +97,29 @@ mod tests {
         let r = breusch_pagan(&e, &[&z]).expect("defined");
         assert!((r.statistic / 4.010591194790268 - 1.0).abs() < 1e-12);
         assert!((r.p_value / 0.04521529352895727 - 1.0).abs() < 1e-10);
+    }
+
+    #[test]
+    fn one_regressor_by_correlation_equals_the_auxiliary_fit() {
+        let e: Vec<f64> = (0..500)
+            .map(|i| ((i * 7919 % 257) as f64 / 25.0 - 5.0) * (1.0 + i as f64 / 400.0))
+            .collect();
+        let z: Vec<f64> = (0..500).map(|i| 3.0 + (i as f64).sqrt()).collect();
+        let u: Vec<f64> = e.iter().map(|v| v * v).collect();
+        let aux = fit(
+            &Design::linear(&[("z", &z)], true),
+            &u,
+            None,
+            &FitOptions::default(),
+        )
+        .expect("aux");
+        let r = breusch_pagan(&e, &[&z]).expect("defined");
+        let lm = 500.0 * aux.r_squared;
+        assert!(
+            (r.statistic / lm - 1.0).abs() < 1e-12,
+            "{} vs {lm}",
+            r.statistic
+        );
     }
 
     #[test]
