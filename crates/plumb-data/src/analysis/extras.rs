@@ -157,7 +157,7 @@ pub(super) fn pair_extras(
             (&name, x),
             y,
             request,
-            (line_design, model_is_line.then_some(fitted)),
+            (&line_design, model_is_line.then_some(fitted)),
         )
     } else {
         Vec::new()
@@ -221,21 +221,17 @@ fn degree_ladder(
     (name, x): (&str, &[f64]),
     y: &[f64],
     request: &FitRequest,
-    line: (Design, Option<&LinearFit>),
+    (line_design, line_fit): (&Design, Option<&LinearFit>),
 ) -> Vec<DegreeStep> {
     let options = FitOptions {
         level: request.level,
         ..FitOptions::default()
     };
-    let (line_design, line_fit) = line;
-    let mut line_design = Some(line_design);
     let mut steps: Vec<DegreeStep> = Vec::new();
     for degree in 1..=3 {
         let fitted = match (degree, line_fit) {
             (1, Some(known)) => Some(known.clone()),
-            (1, None) => line_design
-                .take()
-                .and_then(|d| fit(&d, y, None, &options).ok()),
+            (1, None) => fit(line_design, y, None, &options).ok(),
             _ => Design::polynomial(name, x, degree, request.intercept)
                 .ok()
                 .and_then(|d| fit(&d, y, None, &options).ok()),
