@@ -42,6 +42,25 @@ fn settle(ctx: &egui::Context, wb: &mut Workbench) {
     }
 }
 
+/// Resident memory now and at its peak so far, from `/proc/self/status` (Linux; empty
+/// elsewhere), so that each phase's share of the peak can be read off.
+fn memory() -> String {
+    let status = std::fs::read_to_string("/proc/self/status").unwrap_or_default();
+    let field = |name: &str| {
+        status
+            .lines()
+            .find_map(|l| l.strip_prefix(name))
+            .and_then(|v| v.trim().strip_suffix("kB"))
+            .and_then(|v| v.trim().parse::<f64>().ok())
+            .map_or_else(|| "?".to_string(), |kb| format!("{:.0} MiB", kb / 1024.0))
+    };
+    if status.is_empty() {
+        String::new()
+    } else {
+        format!(" [resident {}, peak {}]", field("VmRSS:"), field("VmHWM:"))
+    }
+}
+
 fn report(label: &str, mut times: Vec<Duration>) {
     times.sort();
     let ms = |d: Duration| d.as_secs_f64() * 1e3;
@@ -75,7 +94,11 @@ fn main() {
         std::process::exit(1);
     };
     let rows = loaded.dataset.table.n_rows();
-    println!("loaded {rows} rows in {:.2} s", t0.elapsed().as_secs_f64());
+    println!(
+        "loaded {rows} rows in {:.2} s{}",
+        t0.elapsed().as_secs_f64(),
+        memory()
+    );
     let t1 = Instant::now();
     wb.apply(Action::OpenPair(FitSpec::line(y, x)));
     wb.apply(Action::Show(Screen::Bench));
@@ -85,14 +108,16 @@ fn main() {
     }
     assert!(wb.bench().pair().is_some(), "pair opens: {:?}", wb.status());
     println!(
-        "pair opened on a worker (rows, live fit and hover index) in {:.3} s",
-        t1.elapsed().as_secs_f64()
+        "pair opened on a worker (rows, live fit and hover index) in {:.3} s{}",
+        t1.elapsed().as_secs_f64(),
+        memory()
     );
     let t2 = Instant::now();
     settle(&ctx, &mut wb);
     println!(
-        "diagnostics ready after {:.2} s",
-        t2.elapsed().as_secs_f64()
+        "diagnostics ready after {:.2} s{}",
+        t2.elapsed().as_secs_f64(),
+        memory()
     );
 
     let t = wb.scatter_transform().expect("scatter drawn");
@@ -133,8 +158,9 @@ fn main() {
     let t4 = Instant::now();
     settle(&ctx, &mut wb);
     println!(
-        "diagnostics after the exclusion ready in {:.2} s",
-        t4.elapsed().as_secs_f64()
+        "diagnostics after the exclusion ready in {:.2} s{}",
+        t4.elapsed().as_secs_f64(),
+        memory()
     );
     model_change(&ctx, &mut wb);
 }
@@ -162,9 +188,10 @@ fn model_change(ctx: &egui::Context, wb: &mut Workbench) {
         frames.push(frame(ctx, wb, Vec::new()));
     }
     println!(
-        "model changed to {} terms: refitted on a worker in {:.2} s",
+        "model changed to {} terms: refitted on a worker in {:.2} s{}",
         wb.bench().pair().map_or(0, |p| p.terms.len()),
-        t.elapsed().as_secs_f64()
+        t.elapsed().as_secs_f64(),
+        memory()
     );
     if !frames.is_empty() {
         report("frames drawn during that refit", frames);
