@@ -245,8 +245,8 @@ impl Pair {
         let terms: Vec<String> = rows.design.terms().iter().map(|t| t.name.clone()).collect();
         let weights = rows.weights().map(<[f64]>::to_vec);
         let live = LiveFit::weighted(
-            rows.design.clone(),
-            rows.y().to_vec(),
+            Arc::clone(&rows.design),
+            Arc::clone(&rows.y),
             weights,
             rows.options.clone(),
         )
@@ -255,7 +255,7 @@ impl Pair {
         let (y, x) = (selection.columns[0].clone(), selection.columns[1].clone());
         let points = Cloud::new(
             x.iter().copied().zip(y.iter().copied()).collect(),
-            (0..selection.rows.len()).collect(),
+            (0..selection.rows.len()).collect::<Arc<[usize]>>(),
         );
         Ok(Self {
             base: PairRows {

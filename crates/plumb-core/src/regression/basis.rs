@@ -135,18 +135,26 @@ impl Basis {
     /// The working row `z` for one observation: `values` is `[x]` for a polynomial, or the
     /// design row (one value per term) otherwise.
     pub fn z_row(&self, values: &[f64]) -> Vec<f64> {
-        self.recipe
-            .iter()
-            .enumerate()
-            .map(|(k, &(shift, step, scale, power))| {
-                let v = if self.polynomial {
-                    values[0]
-                } else {
-                    values[k]
-                };
-                ((v - shift) / step).powi(power) / scale
+        (0..self.recipe.len())
+            .map(|k| {
+                self.z_value(
+                    k,
+                    if self.polynomial {
+                        values[0]
+                    } else {
+                        values[k]
+                    },
+                )
             })
             .collect()
+    }
+
+    /// Working column `k` at `v` (the polynomial's predictor, or term k's own value):
+    /// `((v − shift)/step)^power / scale`.
+    #[inline]
+    pub fn z_value(&self, k: usize, v: f64) -> f64 {
+        let (shift, step, scale, power) = self.recipe[k];
+        ((v - shift) / step).powi(power) / scale
     }
 }
 

@@ -17,6 +17,10 @@
 //! `Σy² − αᵀb` would cancel away the digits, or fewer than [`FEW_ROWS_PER_TERM`] rows per term
 //! remain.
 
+use std::borrow::Cow;
+use std::ops::Range;
+use std::sync::Arc;
+
 use nalgebra::{DMatrix, DVector};
 use rayon::prelude::*;
 
@@ -73,23 +77,32 @@ fn design_values(design: &Design, i: usize) -> Vec<f64> {
     }
 }
 
+/// A row given new values by [`LiveFit::set_row`] (a what-if).
+#[derive(Debug, Clone)]
+struct Moved {
+    /// `[x]` for a polynomial, the design row otherwise.
+    values: Vec<f64>,
+    /// The response.
+    y: f64,
+}
+
 /// A fit that follows exclusions and moved points.
+///
+/// The design and the response are shared with whoever built them (an `Arc` each), and the
+/// working rows are computed from them when needed: per row the engine keeps only whether
+/// the row is in (and `√wᵢ` when weighted).
 #[derive(Debug, Clone)]
 pub struct LiveFit {
-    design: Design,
-    /// The current values of the rows given new ones by [`LiveFit::set_row`] (what-ifs):
-    /// `[x]` for a polynomial, the design row otherwise. Every other row keeps the design's
-    /// values, so nothing per row is copied.
-    moved: std::collections::HashMap<usize, Vec<f64>>,
-    y: Vec<f64>,
+    design: Arc<Design>,
+    /// The rows given new values by [`LiveFit::set_row`] (what-ifs). Every other row keeps
+    /// the design's values and its response, so nothing per row is copied.
+    moved: std::collections::HashMap<usize, Moved>,
+    y: Arc<[f64]>,
     /// `√wᵢ` of each row (`None`: ordinary least squares).
     root_w: Option<Vec<f64>>,
     included: Vec<bool>,
     n_included: usize,
     basis_recipe: Basis,
-    /// Working-basis rows times `√wᵢ`, one after another (`p` values per row): contiguous, so
-    /// that a rebuild from the rows streams through memory.
-    z: Vec<f64>,
     y_shift: f64,
     a: DMatrix<f64>,
     a_inv: DMatrix<f64>,
@@ -115,7 +128,11 @@ impl LiveFit {
     ///
     /// # Errors
     /// Whatever the initial fit raises.
-    pub fn new(design: Design, y: Vec<f64>, options: FitOptions) -> Result<Self> {
+    pub fn new(
+        design: impl Into<Arc<Design>>,
+        y: impl Into<Arc<[f64]>>,
+        options: FitOptions,
+    ) -> Result<Self> {
         Self::weighted(design, y, None, options)
     }
 
@@ -125,25 +142,28 @@ impl LiveFit {
     /// # Errors
     /// Whatever the initial fit raises (a weight that is not positive, among others).
     pub fn weighted(
-        design: Design,
-        y: Vec<f64>,
+        design: impl Into<Arc<Design>>,
+        y: impl Into<Arc<[f64]>>,
         weights: Option<Vec<f64>>,
         options: FitOptions,
     ) -> Result<Self> {
+        let (design, y) = (design.into(), y.into());
         let first = fit(&design, &y, weights.as_deref(), &options)?;
         let root_w: Option<Vec<f64>> = weights
             .as_ref()
             .map(|w| w.iter().map(|v| v.sqrt()).collect());
-        let rw = root_w.clone().unwrap_or_else(|| vec![1.0; y.len()]);
-        let mut basis = Basis::new(&design, &rw);
-        let z = (0..y.len())
-            .zip(&rw)
-            .flat_map(|(i, &r)| {
-                let v = design_values(&design, i);
-                basis.z_row(&v).into_iter().map(move |z| z * r)
-            })
-            .collect();
-        basis.columns = Vec::new(); // the rows `z` hold the same numbers
+        let mut basis = {
+            let ones;
+            let rw = match &root_w {
+                Some(r) => r.as_slice(),
+                None => {
+                    ones = vec![1.0; y.len()];
+                    ones.as_slice()
+                }
+            };
+            Basis::new(&design, rw)
+        };
+        basis.columns = Vec::new(); // the working rows are computed from the design as needed
         let y_shift = if design.has_intercept() {
             crate::describe::mean(&y, weights.as_deref())
         } else {
@@ -160,7 +180,6 @@ impl LiveFit {
             y,
             root_w,
             basis_recipe: basis,
-            z,
             y_shift,
             a: DMatrix::zeros(p, p),
             a_inv: DMatrix::zeros(p, p),
@@ -174,6 +193,21 @@ impl LiveFit {
         };
         live.rebuild();
         Ok(live)
+    }
+
+    /// Row `i`'s response as it stands (its what-if value when moved).
+    fn response(&self, i: usize) -> f64 {
+        self.moved.get(&i).map_or(self.y[i], |m| m.y)
+    }
+
+    /// Row `i`'s working row times `√wᵢ`, as it stands.
+    fn working_row(&self, i: usize) -> Vec<f64> {
+        let r = self.root_weight(i);
+        self.basis_recipe
+            .z_row(&self.values_of(i))
+            .into_iter()
+            .map(|v| v * r)
+            .collect()
     }
 
     /// `√wᵢ` of row `i` (1 without weights).
@@ -250,8 +284,8 @@ impl LiveFit {
     /// Value `k` of row `i` as it stands: `x` (k = 0) for a polynomial, term k's value
     /// otherwise.
     fn value(&self, i: usize, k: usize) -> f64 {
-        if let Some(v) = self.moved.get(&i) {
-            return v[k];
+        if let Some(m) = self.moved.get(&i) {
+            return m.values[k];
         }
         match self.design.polynomial_source() {
             Some(x) => x[i],
@@ -262,7 +296,7 @@ impl LiveFit {
     /// Row `i`'s values as they stand: `[x]` for a polynomial, the design row otherwise.
     fn values_of(&self, i: usize) -> Vec<f64> {
         match self.moved.get(&i) {
-            Some(v) => v.clone(),
+            Some(m) => m.values.clone(),
             None => design_values(&self.design, i),
         }
     }
@@ -300,16 +334,7 @@ impl LiveFit {
             Some(_) => vec![row[usize::from(self.design.has_intercept())]],
             None => row.to_vec(),
         };
-        self.y[i] = y;
-        let r = self.root_weight(i);
-        let z: Vec<f64> = self
-            .basis_recipe
-            .z_row(&values)
-            .into_iter()
-            .map(|v| v * r)
-            .collect();
-        self.moved.insert(i, values);
-        self.z[i * p..(i + 1) * p].copy_from_slice(&z);
+        self.moved.insert(i, Moved { values, y });
         if was_in {
             self.included[i] = true;
             self.n_included += 1;
@@ -346,14 +371,6 @@ impl LiveFit {
         if let Some(root_w) = &mut self.root_w {
             root_w[i] = r;
         }
-        let p = self.design.n_terms();
-        let z: Vec<f64> = self
-            .basis_recipe
-            .z_row(&self.values_of(i))
-            .into_iter()
-            .map(|v| v * r)
-            .collect();
-        self.z[i * p..(i + 1) * p].copy_from_slice(&z);
         if was_in {
             self.included[i] = true;
             self.n_included += 1;
@@ -388,8 +405,7 @@ impl LiveFit {
             self.refit_if_tight();
             return;
         }
-        let p = self.design.n_terms();
-        let z = DVector::from_column_slice(&self.z[i * p..(i + 1) * p]);
+        let z = DVector::from_vec(self.working_row(i));
         let u = &self.a_inv * &z;
         let denom = 1.0 + sign * z.dot(&u);
         if denom.abs() < PIVOT_FLOOR || !denom.is_finite() {
@@ -399,7 +415,7 @@ impl LiveFit {
         self.a_inv -= &u * u.transpose() * (sign / denom);
         self.a += &z * z.transpose() * sign;
         let r = self.root_weight(i);
-        let yi = r * (self.y[i] - self.y_shift);
+        let yi = r * (self.response(i) - self.y_shift);
         self.b += &z * (sign * yi);
         self.sum_y += sign * r * yi;
         self.sum_yy += sign * yi * yi;
@@ -437,18 +453,18 @@ impl LiveFit {
                 ones.as_slice()
             }
         };
-        let parts: Vec<GramSums> = self
-            .z
-            .par_chunks(REBUILD_CHUNK * p)
-            .zip(self.y.par_chunks(REBUILD_CHUNK))
-            .zip(rw.par_chunks(REBUILD_CHUNK))
-            .zip(self.included.par_chunks(REBUILD_CHUNK))
-            .map(|(((z, y), r), inc)| {
+        let n = self.y.len();
+        let parts: Vec<GramSums> = (0..n)
+            .into_par_iter()
+            .step_by(REBUILD_CHUNK)
+            .map(|start| {
+                let range = start..(start + REBUILD_CHUNK).min(n);
+                let (z, y) = self.chunk_rows(range.clone(), rw);
                 let rows = Rows {
-                    z,
-                    y,
-                    root_w: r,
-                    included: inc,
+                    z: &z,
+                    y: &y,
+                    root_w: &rw[range.clone()],
+                    included: &self.included[range],
                     shift,
                 };
                 match p {
@@ -498,9 +514,39 @@ impl LiveFit {
         self.a = a;
     }
 
+    /// The working rows times `√wᵢ` of the rows in `range` (`p` values each, one row after
+    /// another) and their responses, what-ifs in place; `rw` holds every row's `√wᵢ`.
+    fn chunk_rows(&self, range: Range<usize>, rw: &[f64]) -> (Vec<f64>, Cow<'_, [f64]>) {
+        let p = self.design.n_terms();
+        let recipe = &self.basis_recipe;
+        let mut z = Vec::with_capacity(range.len() * p);
+        match self.design.polynomial_source() {
+            Some(x) => {
+                for i in range.clone() {
+                    z.extend((0..p).map(|k| recipe.z_value(k, x[i]) * rw[i]));
+                }
+            }
+            None => {
+                let columns = self.design.columns();
+                for i in range.clone() {
+                    z.extend((0..p).map(|k| recipe.z_value(k, columns[k][i]) * rw[i]));
+                }
+            }
+        }
+        let mut y = Cow::Borrowed(&self.y[range.clone()]);
+        for (&i, m) in &self.moved {
+            if range.contains(&i) {
+                let at = i - range.start;
+                z[at * p..(at + 1) * p].copy_from_slice(&self.working_row(i));
+                y.to_mut()[at] = m.y;
+            }
+        }
+        (z, y)
+    }
+
     fn full_fit(&self) -> Result<LiveSummary> {
         let rows: Vec<usize> = (0..self.y.len()).filter(|&i| self.included[i]).collect();
-        let y: Vec<f64> = rows.iter().map(|&i| self.y[i]).collect();
+        let y: Vec<f64> = rows.iter().map(|&i| self.response(i)).collect();
         let design = match self.design.polynomial_source() {
             Some(_) => {
                 let x: Vec<f64> = rows.iter().map(|&i| self.value(i, 0)).collect();
@@ -974,6 +1020,53 @@ mod tests {
             live.set_row(9, &[1.0, 2.5], 0.0).is_err(),
             "one value per term"
         );
+    }
+
+    #[test]
+    fn moved_points_outlast_the_rebuilds_and_leave_the_shared_rows_alone() {
+        // The engine keeps no copy of the rows: a what-if lives beside the shared design and
+        // response, and must still count after the sums are rebuilt from the rows.
+        let x: Vec<f64> = (0..60).map(|i| f64::from(i) * 0.25).collect();
+        let y: Vec<f64> = x.iter().map(|v| 1.0 + 2.0 * v + (v * 2.3).sin()).collect();
+        let design = Arc::new(Design::linear(&[("x", &x)], true));
+        let shared: Arc<[f64]> = y.clone().into();
+        let mut live = LiveFit::new(
+            Arc::clone(&design),
+            Arc::clone(&shared),
+            FitOptions::default(),
+        )
+        .expect("fits");
+        live.move_point(7, 40.0, -9.0).expect("one predictor");
+        live.move_response(11, 25.0).expect("finite");
+        let dropped: Vec<usize> = (20..20 + 2 * REFRESH_EVERY).collect();
+        for &i in &dropped {
+            live.exclude(i);
+        }
+        // The same data written out by hand, fitted afresh.
+        let keep: Vec<usize> = (0..60).filter(|i| !dropped.contains(i)).collect();
+        let (mut xs, mut ys): (Vec<f64>, Vec<f64>) = keep.iter().map(|&i| (x[i], y[i])).unzip();
+        let at = |row: usize| keep.iter().position(|&i| i == row).expect("kept");
+        (xs[at(7)], ys[at(7)]) = (40.0, -9.0);
+        ys[at(11)] = 25.0;
+        let fresh = fit(
+            &Design::linear(&[("x", &xs)], true),
+            &ys,
+            None,
+            &FitOptions::default(),
+        )
+        .expect("fits");
+        let s = live.summary().as_ref().expect("defined");
+        assert!(!s.refitted, "the rebuilt sums, not a refit");
+        for (a, c) in s.estimates.iter().zip(&fresh.coefficients) {
+            assert!(close(*a, c.estimate), "{a} vs {}", c.estimate);
+        }
+        assert!(close(s.r_squared, fresh.r_squared));
+        assert_eq!(
+            (shared[7], shared[11]),
+            (y[7], y[11]),
+            "the response is shared, not written"
+        );
+        assert_eq!(design.columns()[1][7], x[7], "so is the design");
     }
 
     #[test]

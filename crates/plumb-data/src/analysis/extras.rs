@@ -151,7 +151,7 @@ pub(super) fn pair_extras(
     let name = request.x_term_names().remove(0);
     let line_design = Design::linear(&[(name.as_str(), x)], request.intercept);
     // The model is this line, unweighted: its fit and cases serve the ladder and the cues.
-    let model_is_line = rows.weights().is_none() && rows.design == line_design;
+    let model_is_line = rows.weights().is_none() && *rows.design == line_design;
     let mut degrees = if request.weights.is_none() && rows.levels.is_none() {
         degree_ladder(
             (&name, x),

@@ -2,6 +2,8 @@
 //! what-if values put in place, the transforms applied, the grouping factor's levels read, and
 //! the design matrix built from them.
 
+use std::sync::Arc;
+
 use rayon::prelude::*;
 
 use plumb_core::calibration::{rule_weights, CalibrationError};
@@ -30,12 +32,13 @@ pub struct ModelRows {
     /// The rows used, in the data's own units (what-if values in place): column 0 is the
     /// response, then the predictors in request order, then the weights when there are any.
     pub selection: Selection,
-    /// The design matrix on those rows (predictors transformed, factor terms added).
-    pub design: Design,
+    /// The design matrix on those rows (predictors transformed, factor terms added), shared
+    /// with the live engine that follows it.
+    pub design: Arc<Design>,
     /// Fit options (the confidence level).
     pub options: FitOptions,
-    /// The response on the scale the model is fitted on.
-    pub y: Vec<f64>,
+    /// The response on the scale the model is fitted on (shared like the design).
+    pub y: Arc<[f64]>,
     /// That scale: the response's transform (Box–Cox at λ̂ when estimated).
     pub response_transform: Transform,
     /// The Box–Cox estimate, when λ was estimated.
@@ -205,12 +208,12 @@ pub fn model_rows(table: &Table, request: &FitRequest) -> Result<ModelRows, Anal
         .into_iter()
         .collect::<Result<Vec<_>, _>>()?;
     let mut rows = ModelRows {
-        design: Design::new(0, false),
+        design: Arc::new(Design::new(0, false)),
         options: FitOptions {
             level: request.level,
             ..FitOptions::default()
         },
-        y: Vec::new(),
+        y: Arc::from(Vec::new()),
         response_transform: Transform::Identity,
         boxcox: None,
         x_transforms,
@@ -230,9 +233,10 @@ pub fn model_rows(table: &Table, request: &FitRequest) -> Result<ModelRows, Anal
         Some(f) if f.separate_slopes => FactorTerms::Separate,
         Some(_) => FactorTerms::Parallel,
     };
-    rows.design = rows
-        .design_with(&term_names, request.intercept, which)
-        .map_err(model_error)?;
+    rows.design = Arc::new(
+        rows.design_with(&term_names, request.intercept, which)
+            .map_err(model_error)?,
+    );
     put_response(&mut rows, &file, request).map_err(|e| match e {
         Prepared::Request(e) => e,
         Prepared::Core(source) => model_error(source),
@@ -261,7 +265,8 @@ fn put_response(rows: &mut ModelRows, file: &str, request: &FitRequest) -> Resul
         }
     };
     rows.y = terms::transformed(file, &request.y, t, raw, &rows.selection.rows)
-        .map_err(Prepared::Request)?;
+        .map_err(Prepared::Request)?
+        .into();
     rows.response_transform = t;
     Ok(())
 }
