@@ -268,11 +268,7 @@ fn two_methods_on_the_bench_compare_as_plumb_agree_does() {
     }
     let (points, rings) = d.lab_views.differences.as_ref().expect("the view's points");
     assert_eq!(points.points.len(), 63);
-    assert_eq!(
-        rings.entries,
-        vec![22],
-        "row 23 is entry 22, drawn as a ring"
-    );
+    assert_eq!(*rings.entries, [22], "row 23 is entry 22, drawn as a ring");
 }
 
 #[test]

@@ -243,7 +243,7 @@ fn residuals_can_be_drawn_against_the_row_order_or_any_numeric_column() {
     let rows_of = wb.bench().pair().expect("pair").rows.clone();
     let cloud = &d.views.residual;
     assert_eq!(cloud.points.len(), live(&wb).n);
-    for (&(x, e), &entry) in cloud.points.iter().zip(&cloud.entries) {
+    for (&(x, e), &entry) in cloud.points.iter().zip(cloud.entries.iter()) {
         let row = rows_of[entry];
         assert_eq!(x, hours[row - 1], "row {row}");
         let k = d

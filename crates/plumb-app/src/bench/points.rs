@@ -370,13 +370,13 @@ mod tests {
         let (_dir, pair) = pair(12);
         let m = marks();
         let marked = Marked::of(&pair, &m);
-        assert_eq!(marked.excluded.entries, vec![2], "data row 3 is entry 2");
+        assert_eq!(*marked.excluded.entries, [2], "data row 3 is entry 2");
         assert_eq!(
             marked.excluded.points,
             vec![(50.0, 50.0)],
             "at its moved place"
         );
-        assert_eq!(marked.moved.entries, vec![4], "row 5 moved and still in");
+        assert_eq!(*marked.moved.entries, [4], "row 5 moved and still in");
         let layer = test_layer(&pair, &marked);
         let drawn = layer.markers();
         assert_eq!(drawn.len(), 11, "12 rows, one excluded");

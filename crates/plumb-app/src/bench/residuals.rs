@@ -161,8 +161,8 @@ mod tests {
             ..Views::default()
         };
         let (points, rings) = residual_points(&v);
-        assert_eq!(points.entries, vec![0, 2]);
-        assert_eq!(rings.entries, vec![1]);
+        assert_eq!(*points.entries, [0, 2]);
+        assert_eq!(*rings.entries, [1]);
         let b = points.bounds.expect("bounds");
         assert_eq!((b.x_min, b.x_max, b.y_min, b.y_max), (1.0, 2.0, -0.5, 0.5));
     }

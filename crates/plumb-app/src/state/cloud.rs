@@ -1,5 +1,7 @@
 //! The points of one view with their pair entries, indexed for hover when there are many.
 
+use std::sync::Arc;
+
 use rayon::prelude::*;
 
 use crate::density::{Bounds, PointIndex};
@@ -14,8 +16,8 @@ const INDEX_FROM: usize = 2_000;
 pub struct Cloud {
     /// Positions in the view's units.
     pub points: Vec<(f64, f64)>,
-    /// Pair entry of each point.
-    pub entries: Vec<usize>,
+    /// Pair entry of each point (shared between the views that draw the same rows).
+    pub entries: Arc<[usize]>,
     /// The smallest rectangle holding every finite point.
     pub bounds: Option<Bounds>,
     index: Option<PointIndex>,
@@ -26,7 +28,8 @@ pub struct Cloud {
 
 impl Cloud {
     /// A cloud; builds the index when it is large.
-    pub fn new(points: Vec<(f64, f64)>, entries: Vec<usize>) -> Self {
+    pub fn new(points: Vec<(f64, f64)>, entries: impl Into<Arc<[usize]>>) -> Self {
+        let entries = entries.into();
         let index = (points.len() > INDEX_FROM)
             .then(|| PointIndex::new(&points))
             .flatten();

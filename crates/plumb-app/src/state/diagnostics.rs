@@ -111,7 +111,7 @@ pub struct Diagnostics {
     /// The marks these results are for.
     pub marks: Marks,
     /// Pair entries included, ascending; `cases[k]` belongs to `included[k]`.
-    pub included: Vec<usize>,
+    pub included: Arc<[usize]>,
     /// The least-squares fit of the included rows at their current (possibly moved) positions,
     /// without its per-row fitted values and residuals (each case carries its own, and at
     /// millions of rows the vectors would be two more copies of the data).
@@ -225,7 +225,6 @@ pub fn compute(input: &Input) -> Diagnostics {
     }
     let effects = exclusion_effects(&input.table, &input.spec.on_file_rows(&input.marks))
         .map_err(|e| e.to_string());
-    let (x, y): (Vec<f64>, Vec<f64>) = parts.included.iter().map(|&i| input.point(i)).unzip();
     Diagnostics {
         top: rankings(&parts.cases),
         checks,
@@ -234,10 +233,12 @@ pub fn compute(input: &Input) -> Diagnostics {
         lab_views,
         spec: input.spec.clone(),
         marks: input.marks.clone(),
-        deming: input
-            .overlays
-            .deming
-            .then(|| deming(&x, &y, 1.0).map_err(|e| e.to_string())),
+        deming: input.overlays.deming.then(|| {
+            // The pair as it stands, copied only when the overlay is asked for.
+            let (x, y): (Vec<f64>, Vec<f64>) =
+                parts.included.iter().map(|&i| input.point(i)).unzip();
+            deming(&x, &y, 1.0).map_err(|e| e.to_string())
+        }),
         group_lines: group_lines(input, &parts.included),
         groups: parts.groups,
         boxcox: parts.boxcox,
@@ -257,7 +258,7 @@ struct Parts {
     fit: Result<LinearFit, String>,
     cases: Vec<CaseInfluence>,
     extras: Option<PairExtras>,
-    included: Vec<usize>,
+    included: Arc<[usize]>,
     groups: Option<GroupTests>,
     added: Vec<AddedVariable>,
     boxcox: Option<BoxCox>,
@@ -287,7 +288,7 @@ impl Parts {
                 fit: Err(e.to_string()),
                 cases: Vec::new(),
                 extras: None,
-                included: Vec::new(),
+                included: Arc::from(Vec::new()),
                 groups: None,
                 added: Vec::new(),
                 boxcox: None,

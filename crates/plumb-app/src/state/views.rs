@@ -2,6 +2,8 @@
 //! axis the analyst chose, leverage, quantiles, the added-variable views, and where the
 //! excluded rows fall against the current fit.
 
+use std::sync::Arc;
+
 use rayon::prelude::*;
 
 use plumb_core::regression::{
@@ -154,7 +156,7 @@ pub fn against_fit(pair: &PairRows, marks: &Marks, f: &LinearFit, i: usize) -> O
 /// The views of the included entries `included` (with their `cases`) under the fit `f`.
 pub fn views_of(
     input: &Input,
-    included: &[usize],
+    included: &Arc<[usize]>,
     cases: &[CaseInfluence],
     f: Option<&LinearFit>,
     added: Vec<AddedVariable>,
@@ -163,7 +165,7 @@ pub fn views_of(
         return Views::default();
     }
     let cloud = |pick: fn(&CaseInfluence) -> (f64, f64)| {
-        Cloud::new(cases.iter().map(pick).collect(), included.to_vec())
+        Cloud::new(cases.iter().map(pick).collect(), Arc::clone(included))
     };
     let axis = input.residual_axis.resolved(&input.spec);
     let along = Along::new(input);
@@ -172,12 +174,17 @@ pub fn views_of(
         || {
             rayon::join(
                 || {
-                    finite_cloud(
-                        included
-                            .iter()
-                            .zip(cases)
-                            .map(|(&i, c)| (i, (along.at(i, c.fitted), c.residual))),
-                    )
+                    let points: Vec<(f64, f64)> = included
+                        .iter()
+                        .zip(cases)
+                        .map(|(&i, c)| (along.at(i, c.fitted), c.residual))
+                        .collect();
+                    if points.iter().all(|(x, y)| x.is_finite() && y.is_finite()) {
+                        // Every row drawn: the entries are the included rows themselves.
+                        Cloud::new(points, Arc::clone(included))
+                    } else {
+                        finite_cloud(included.iter().copied().zip(points))
+                    }
                 },
                 || cloud(|c| (c.leverage, c.studentized_external)),
             )
@@ -215,7 +222,7 @@ pub fn views_of(
         added: added
             .into_iter()
             .map(|av| AddedView {
-                cloud: Cloud::new(av.x.into_iter().zip(av.y).collect(), included.to_vec()),
+                cloud: Cloud::new(av.x.into_iter().zip(av.y).collect(), Arc::clone(included)),
                 term: av.term,
                 slope: av.slope,
             })
@@ -333,7 +340,10 @@ fn quantile_cloud(cases: &[CaseInfluence], included: &[usize]) -> Cloud {
         .zip(&order)
         .map(|(expected, &k)| (expected, cases[k].studentized_external))
         .collect();
-    Cloud::new(points, order.iter().map(|&k| included[k]).collect())
+    Cloud::new(
+        points,
+        order.iter().map(|&k| included[k]).collect::<Arc<[usize]>>(),
+    )
 }
 
 #[cfg(test)]
