@@ -37,8 +37,9 @@ pub(crate) struct Basis {
 }
 
 impl Basis {
-    /// Builds the working basis for `design`, with column norms taken under `root_w = √w`.
-    pub fn new(design: &Design, root_w: &[f64]) -> Self {
+    /// Builds the working basis for `design`, with column norms taken under `root_w = √w`
+    /// (`None`: unweighted).
+    pub fn new(design: &Design, root_w: Option<&[f64]>) -> Self {
         if design.polynomial_source().is_some() {
             Self::polynomial(design, root_w)
         } else {
@@ -47,7 +48,7 @@ impl Basis {
     }
 
     /// `Zₖ = tᵏ/sₖ` with `t = (x − c)/h` (see the module notes).
-    fn polynomial(design: &Design, root_w: &[f64]) -> Self {
+    fn polynomial(design: &Design, root_w: Option<&[f64]>) -> Self {
         let x = design.polynomial_source().expect("a polynomial design");
         let powers: Vec<i32> = design
             .terms()
@@ -87,7 +88,7 @@ impl Basis {
     /// `Xⱼ − cⱼ` is then exact (Sterbenz's lemma), so the basis spans exactly the design's
     /// space — and `T`'s entries `−cⱼ/sⱼ` are exact; other columns are only scaled. Then
     /// `βⱼ = αⱼ/sⱼ` and `β₀ = α₀/s₀ − Σⱼ cⱼαⱼ/sⱼ`.
-    fn general(design: &Design, root_w: &[f64]) -> Self {
+    fn general(design: &Design, root_w: Option<&[f64]>) -> Self {
         let centre = design.has_intercept();
         let shifts: Vec<f64> = design
             .terms()
@@ -159,7 +160,7 @@ impl Basis {
 }
 
 /// Power-of-two scales near each column's weighted norm.
-fn scales_of(raw: &[Vec<f64>], root_w: &[f64]) -> Vec<f64> {
+fn scales_of(raw: &[Vec<f64>], root_w: Option<&[f64]>) -> Vec<f64> {
     raw.iter()
         .map(|c| accurate::power_of_two_near(weighted_norm(c, root_w)))
         .collect()
@@ -236,8 +237,11 @@ fn binomial(n: i32, k: i32) -> f64 {
 }
 
 /// `‖W^{1/2}c‖₂`, free of overflow and underflow.
-fn weighted_norm(column: &[f64], root_w: &[f64]) -> f64 {
-    accurate::scaled_norm(column.iter().zip(root_w).map(|(v, w)| v * w))
+fn weighted_norm(column: &[f64], root_w: Option<&[f64]>) -> f64 {
+    match root_w {
+        Some(w) => accurate::scaled_norm(column.iter().zip(w).map(|(v, w)| v * w)),
+        None => accurate::scaled_norm(column.iter().copied()),
+    }
 }
 
 fn power_of_two_at_least(x: f64) -> f64 {
@@ -257,7 +261,7 @@ mod tests {
         // For any α, X·(T·α) must equal Z·α row by row.
         let x = [0.5, 1.5, 2.0, 3.25, 7.0];
         let design = Design::polynomial("x", &x, 3, true).expect("degree 3");
-        let basis = Basis::new(&design, &[1.0; 5]);
+        let basis = Basis::new(&design, None);
         let alpha = nalgebra::DVector::from_vec(vec![0.3, -1.2, 0.7, 2.5]);
         let beta = &basis.to_terms * &alpha;
         for i in 0..x.len() {

@@ -64,9 +64,9 @@ pub struct Design {
     n_rows: usize,
     terms: Vec<Term>,
     columns: Vec<Vec<f64>>,
-    /// For a polynomial in one predictor, that predictor's values (the solver then works in
-    /// a shifted and scaled variable; see `solve`).
-    polynomial_source: Option<Vec<f64>>,
+    /// For a polynomial in one predictor, the column holding that predictor's values (its
+    /// linear term; the solver then works in a shifted and scaled variable, see `solve`).
+    polynomial_source: Option<usize>,
 }
 
 impl Design {
@@ -123,14 +123,19 @@ impl Design {
             )));
         }
         let mut design = Self::new(x.len(), intercept);
-        design.polynomial_source = Some(x.to_vec());
+        // The predictor itself is the linear term's column (`x.powi(1)` is `x`): no copy.
+        design.polynomial_source = Some(design.columns.len());
         for k in 1..=degree {
             let (term_name, kind) = if k == 1 {
                 (name.to_string(), TermKind::Linear)
             } else {
                 (format!("{name}^{k}"), TermKind::Power(k))
             };
-            let column = x.iter().map(|&v| v.powi(k as i32)).collect();
+            let column = if k == 1 {
+                x.to_vec()
+            } else {
+                x.iter().map(|&v| v.powi(k as i32)).collect()
+            };
             design.push(
                 Term {
                     name: term_name,
@@ -199,7 +204,7 @@ impl Design {
 
     /// The predictor's values when this is a polynomial in one predictor.
     pub fn polynomial_source(&self) -> Option<&[f64]> {
-        self.polynomial_source.as_deref()
+        self.polynomial_source.map(|k| self.columns[k].as_slice())
     }
 
     /// Row `i` of `X`.

@@ -152,17 +152,7 @@ impl LiveFit {
         let root_w: Option<Vec<f64>> = weights
             .as_ref()
             .map(|w| w.iter().map(|v| v.sqrt()).collect());
-        let mut basis = {
-            let ones;
-            let rw = match &root_w {
-                Some(r) => r.as_slice(),
-                None => {
-                    ones = vec![1.0; y.len()];
-                    ones.as_slice()
-                }
-            };
-            Basis::new(&design, rw)
-        };
+        let mut basis = Basis::new(&design, root_w.as_deref());
         basis.columns = Vec::new(); // the working rows are computed from the design as needed
         let y_shift = if design.has_intercept() {
             crate::describe::mean(&y, weights.as_deref())
@@ -445,14 +435,7 @@ impl LiveFit {
         // Chunks of rows on rayon's threads, added in row order (the same answer whatever
         // the number of threads).
         let shift = self.y_shift;
-        let ones;
-        let rw = match &self.root_w {
-            Some(r) => r.as_slice(),
-            None => {
-                ones = vec![1.0; self.y.len()];
-                ones.as_slice()
-            }
-        };
+        let rw = self.root_w.as_deref();
         let n = self.y.len();
         let parts: Vec<GramSums> = (0..n)
             .into_par_iter()
@@ -463,7 +446,7 @@ impl LiveFit {
                 let rows = Rows {
                     z: &z,
                     y: &y,
-                    root_w: &rw[range.clone()],
+                    root_w: rw.map(|r| &r[range.clone()]),
                     included: &self.included[range],
                     shift,
                 };
@@ -515,21 +498,22 @@ impl LiveFit {
     }
 
     /// The working rows times `√wᵢ` of the rows in `range` (`p` values each, one row after
-    /// another) and their responses, what-ifs in place; `rw` holds every row's `√wᵢ`.
-    fn chunk_rows(&self, range: Range<usize>, rw: &[f64]) -> (Vec<f64>, Cow<'_, [f64]>) {
+    /// another) and their responses, what-ifs in place; `rw` holds every row's `√wᵢ` (`None`: all 1).
+    fn chunk_rows(&self, range: Range<usize>, rw: Option<&[f64]>) -> (Vec<f64>, Cow<'_, [f64]>) {
         let p = self.design.n_terms();
         let recipe = &self.basis_recipe;
+        let r = |i: usize| rw.map_or(1.0, |w| w[i]);
         let mut z = Vec::with_capacity(range.len() * p);
         match self.design.polynomial_source() {
             Some(x) => {
                 for i in range.clone() {
-                    z.extend((0..p).map(|k| recipe.z_value(k, x[i]) * rw[i]));
+                    z.extend((0..p).map(|k| recipe.z_value(k, x[i]) * r(i)));
                 }
             }
             None => {
                 let columns = self.design.columns();
                 for i in range.clone() {
-                    z.extend((0..p).map(|k| recipe.z_value(k, columns[k][i]) * rw[i]));
+                    z.extend((0..p).map(|k| recipe.z_value(k, columns[k][i]) * r(i)));
                 }
             }
         }
@@ -664,7 +648,8 @@ struct Rows<'a> {
     /// Weighted working rows, `p` values each.
     z: &'a [f64],
     y: &'a [f64],
-    root_w: &'a [f64],
+    /// `√wᵢ` (`None`: all 1).
+    root_w: Option<&'a [f64]>,
     included: &'a [bool],
     shift: f64,
 }
@@ -675,10 +660,13 @@ impl Rows<'_> {
         self.z
             .chunks_exact(p)
             .zip(self.y)
-            .zip(self.root_w)
             .zip(self.included)
-            .filter(|(_, &inc)| inc)
-            .map(|(((row, &yv), &r), _)| (row, r * (yv - self.shift), r))
+            .enumerate()
+            .filter(|(_, (_, &inc))| inc)
+            .map(|(k, ((row, &yv), _))| {
+                let r = self.root_w.map_or(1.0, |w| w[k]);
+                (row, r * (yv - self.shift), r)
+            })
     }
 }
 

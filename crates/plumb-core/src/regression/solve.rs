@@ -55,7 +55,7 @@ pub(crate) fn factor(
     let n = design.n_rows();
     let p = design.n_terms();
     let root_w = root_weights(weights, n);
-    let basis = Basis::new(design, &root_w);
+    let basis = Basis::new(design, weights.map(|_| root_w.as_slice()));
     let z = DMatrix::from_fn(n, p, |i, j| root_w[i] * basis.columns[j][i]);
     let qr = z.col_piv_qr();
     let r = qr.r();
@@ -117,7 +117,7 @@ pub(crate) fn least_squares(
     let singular = tri.r.singular_values();
     Ok(Solution {
         beta,
-        residuals: residuals.rounded(),
+        residuals: residuals.into_rounded(),
         unscaled_covariance,
         unit_std_errors: (0..p)
             .map(|j| accurate::scaled_norm(m.row(j).iter().copied()))
@@ -279,8 +279,8 @@ struct Triangle {
 fn gram_triangle(design: &Design, weights: Option<&[f64]>) -> Option<Triangle> {
     let n = design.n_rows();
     let p = design.n_terms();
-    let root_w = root_weights(weights, n);
-    let basis = Basis::new(design, &root_w);
+    let root_w: Option<Vec<f64>> = weights.map(|w| w.iter().map(|v| v.sqrt()).collect());
+    let basis = Basis::new(design, root_w.as_deref());
     // ZᵀWZ block by block (no n × p copy of the basis).
     let mut gram = DMatrix::zeros(p, p);
     let mut block = Vec::with_capacity(GRAM_BLOCK * p);
@@ -288,12 +288,11 @@ fn gram_triangle(design: &Design, weights: Option<&[f64]>) -> Option<Triangle> {
         let end = (start + GRAM_BLOCK).min(n);
         block.clear();
         for column in &basis.columns {
-            block.extend(
-                column[start..end]
-                    .iter()
-                    .zip(&root_w[start..end])
-                    .map(|(v, w)| v * w),
-            );
+            let column = &column[start..end];
+            match &root_w {
+                Some(r) => block.extend(column.iter().zip(&r[start..end]).map(|(v, w)| v * w)),
+                None => block.extend_from_slice(column),
+            }
         }
         gram += crate::moments::gram(&block, end - start, p);
     }
@@ -384,8 +383,13 @@ impl Residuals {
         hi + (lo + tail)
     }
 
-    fn rounded(&self) -> Vec<f64> {
-        self.hi.iter().zip(&self.lo).map(|(h, l)| h + l).collect()
+    /// `hiᵢ + loᵢ`, rounded in place of `hi` (no third vector).
+    fn into_rounded(self) -> Vec<f64> {
+        let mut hi = self.hi;
+        for (h, l) in hi.iter_mut().zip(&self.lo) {
+            *h += l;
+        }
+        hi
     }
 }
 

@@ -75,8 +75,9 @@ impl PairExtras {
 pub struct DegreeStep {
     /// Degree.
     pub degree: u32,
-    /// Its fit, without its per-row fitted values and residuals (emptied once the cues have
-    /// used them: at millions of rows they would be three more copies of the data).
+    /// Its fit, without its per-row fitted values and residuals (let go as soon as each fit
+    /// is made, a fresh line's once the cues have read them: at millions of rows they would
+    /// be six more copies of the data).
     pub fit: LinearFit,
     /// Against the degree below (None for degree 1).
     pub versus_previous: Option<NestedComparison>,
@@ -173,7 +174,12 @@ pub(super) fn pair_extras(
             .map(|s| &s.fit)
     };
     let known = KnownFits {
-        line: step(1),
+        // The model's own fit when it is the line (the ladder keeps only its numbers).
+        line: if model_is_line {
+            same_way.then_some(fitted)
+        } else {
+            step(1)
+        },
         cubic: step(3),
         line_cases: (same_way && model_is_line && !cases.is_empty()).then_some(cases),
     };
@@ -230,15 +236,21 @@ fn degree_ladder(
     let mut steps: Vec<DegreeStep> = Vec::new();
     for degree in 1..=3 {
         let fitted = match (degree, line_fit) {
-            (1, Some(known)) => Some(known.clone()),
+            (1, Some(known)) => Some(without_rows(known)),
             (1, None) => fit(line_design, y, None, &options).ok(),
             _ => Design::polynomial(name, x, degree, request.intercept)
                 .ok()
                 .and_then(|d| fit(&d, y, None, &options).ok()),
         };
-        let Some(f) = fitted else {
+        let Some(mut f) = fitted else {
             break;
         };
+        // The cues read a fresh line's per-row values (for its influence); a higher degree's
+        // are let go at once.
+        if degree > 1 {
+            f.fitted = Vec::new();
+            f.residuals = Vec::new();
+        }
         let versus_previous = steps.last().map(|prev| compare_nested(&prev.fit, &f));
         steps.push(DegreeStep {
             degree,
@@ -247,6 +259,18 @@ fn degree_ladder(
         });
     }
     steps
+}
+
+/// A copy of `f` without its per-row fitted values and residuals.
+fn without_rows(f: &LinearFit) -> LinearFit {
+    LinearFit {
+        coefficients: f.coefficients.clone(),
+        covariance: f.covariance.clone(),
+        anova: f.anova.clone(),
+        fitted: Vec::new(),
+        residuals: Vec::new(),
+        ..*f
+    }
 }
 
 /// The curve and bands over the data's x range (one per level), back in the data's units.
