@@ -1,5 +1,7 @@
 //! Complete-row selection: the rows an analysis can use, and an account of the rest.
 
+use std::sync::Arc;
+
 use rayon::prelude::*;
 
 use crate::table::{ColumnValues, Table};
@@ -42,7 +44,9 @@ pub struct Selection {
     /// 1-based data rows used, ascending.
     pub rows: Vec<usize>,
     /// Values of each requested column on those rows, in request order.
-    pub columns: Vec<Vec<f64>>,
+    /// (Shared: the model's response, predictors and design point at these when no
+    /// transform changes them.)
+    pub columns: Vec<Arc<[f64]>>,
     /// Rows left out for missing or non-finite values.
     pub dropped: Vec<Dropped>,
     /// Rows left out because the caller excluded them (ascending, deduplicated), whether or
@@ -144,9 +148,9 @@ impl Table {
             .map(|col| {
                 let values = col.as_nan_missing();
                 if every_row {
-                    values.to_vec()
+                    Arc::from(values)
                 } else {
-                    rows.iter().map(|&r| values[r - 1]).collect()
+                    rows.iter().map(|&r| values[r - 1]).collect::<Arc<[f64]>>()
                 }
             })
             .collect();

@@ -516,7 +516,7 @@ mod tests {
         let table = crate::load(f.path(), &LoadOptions::default()).expect("loads");
         let whole = table.complete_rows(&["x", "y"], &[]).expect("complete");
         assert_eq!(rows, whole.rows);
-        assert_eq!(xs, whole.columns[0]);
+        assert_eq!(xs, *whole.columns[0]);
         assert_eq!(summary.rows, 20_000);
         assert_eq!(summary.dropped_count, whole.dropped.len());
         assert_eq!(

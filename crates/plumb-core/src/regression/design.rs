@@ -1,5 +1,7 @@
 //! Model terms and the design matrix they make.
 
+use std::sync::Arc;
+
 use crate::{CoreError, Result};
 
 /// The intercept term's name.
@@ -63,7 +65,8 @@ pub struct Term {
 pub struct Design {
     n_rows: usize,
     terms: Vec<Term>,
-    columns: Vec<Vec<f64>>,
+    /// Shared where they are the caller's own values (see [`Design::linear_shared`]).
+    columns: Vec<Arc<[f64]>>,
     /// For a polynomial in one predictor, the column holding that predictor's values (its
     /// linear term; the solver then works in a shifted and scaled variable, see `solve`).
     polynomial_source: Option<usize>,
@@ -84,7 +87,7 @@ impl Design {
                     name: INTERCEPT.into(),
                     kind: TermKind::Intercept,
                 },
-                vec![1.0; n_rows],
+                std::iter::repeat_n(1.0, n_rows).collect::<Arc<[f64]>>(),
             );
         }
         design
@@ -96,17 +99,29 @@ impl Design {
     /// If a predictor's length differs from the others (a caller bug).
     pub fn linear(predictors: &[(&str, &[f64])], intercept: bool) -> Self {
         use rayon::prelude::*;
+        // The copies on all cores (at millions of rows, mostly fresh pages).
+        let copies: Vec<(&str, Arc<[f64]>)> = predictors
+            .par_iter()
+            .map(|&(name, x)| (name, Arc::from(x)))
+            .collect();
+        Self::linear_shared(&copies, intercept)
+    }
+
+    /// [`Design::linear`] on columns the caller already holds in `Arc`s: the design shares
+    /// them instead of copying.
+    ///
+    /// # Panics
+    /// If a predictor's length differs from the others (a caller bug).
+    pub fn linear_shared(predictors: &[(&str, Arc<[f64]>)], intercept: bool) -> Self {
         let n_rows = predictors.first().map_or(0, |(_, x)| x.len());
         let mut design = Self::new(n_rows, intercept);
-        // The copies on all cores (at millions of rows, mostly fresh pages).
-        let copies: Vec<Vec<f64>> = predictors.par_iter().map(|(_, x)| x.to_vec()).collect();
-        for ((name, _), x) in predictors.iter().zip(copies) {
+        for (name, x) in predictors {
             design.push(
                 Term {
                     name: (*name).to_string(),
                     kind: TermKind::Linear,
                 },
-                x,
+                Arc::clone(x),
             );
         }
         design
@@ -131,8 +146,8 @@ impl Design {
             } else {
                 (format!("{name}^{k}"), TermKind::Power(k))
             };
-            let column = if k == 1 {
-                x.to_vec()
+            let column: Arc<[f64]> = if k == 1 {
+                Arc::from(x)
             } else {
                 x.iter().map(|&v| v.powi(k as i32)).collect()
             };
@@ -153,7 +168,8 @@ impl Design {
     /// If the column's length is not the design's row count (a caller bug).
     /// Term names stay unambiguous: a column called `intercept` renames the intercept term to
     /// `(intercept)`, and any other repeated name gets a `′` until it is unique.
-    pub fn push(&mut self, mut term: Term, column: Vec<f64>) {
+    pub fn push(&mut self, mut term: Term, column: impl Into<Arc<[f64]>>) {
+        let column = column.into();
         assert_eq!(
             column.len(),
             self.n_rows,
@@ -191,7 +207,7 @@ impl Design {
     }
 
     /// The columns, in term order.
-    pub fn columns(&self) -> &[Vec<f64>] {
+    pub fn columns(&self) -> &[Arc<[f64]>] {
         &self.columns
     }
 
@@ -204,7 +220,7 @@ impl Design {
 
     /// The predictor's values when this is a polynomial in one predictor.
     pub fn polynomial_source(&self) -> Option<&[f64]> {
-        self.polynomial_source.map(|k| self.columns[k].as_slice())
+        self.polynomial_source.map(|k| &*self.columns[k])
     }
 
     /// Row `i` of `X`.
@@ -239,7 +255,7 @@ mod tests {
         let names: Vec<&str> = d.terms().iter().map(|t| t.name.as_str()).collect();
         assert_eq!(names, ["(intercept)", "intercept", "b", "b′"]);
         assert_eq!(d.terms()[0].kind, TermKind::Intercept);
-        assert_eq!(d.columns()[3], vec![1.0, 8.0, 27.0]);
+        assert_eq!(*d.columns()[3], [1.0, 8.0, 27.0]);
     }
 
     #[test]

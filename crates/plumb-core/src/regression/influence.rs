@@ -322,7 +322,7 @@ mod tests {
         let x = &d.columns()[1];
         let mean = x.iter().sum::<f64>() / 6.0;
         let sxx: f64 = x.iter().map(|v| (v - mean).powi(2)).sum();
-        for (c, xi) in cases.iter().zip(x) {
+        for (c, xi) in cases.iter().zip(x.iter()) {
             assert_relative_eq!(
                 c.leverage,
                 1.0 / 6.0 + (xi - mean).powi(2) / sxx,

@@ -554,7 +554,9 @@ impl LiveFit {
                 for (k, term) in self.design.terms().iter().enumerate() {
                     d.push(
                         term.clone(),
-                        rows.iter().map(|&i| self.value(i, k)).collect(),
+                        rows.iter()
+                            .map(|&i| self.value(i, k))
+                            .collect::<Arc<[f64]>>(),
                     );
                 }
                 d

@@ -113,7 +113,7 @@ pub fn calibrate(
         other_limits: limits_for(other),
         lack_of_fit: lof,
         weightings: side_by_side(request, x, y, weights),
-        x: x.clone(),
+        x: x.to_vec(),
     })
 }
 

@@ -146,11 +146,14 @@ pub(super) fn pair_extras(
         loess_span,
         at,
     } = extras;
-    let (y, x) = (rows.y(), rows.predictors[0].as_slice());
+    let (y, x) = (rows.y(), &rows.predictors[0][..]);
     let z_view = StandardizedView::of(x, y);
     let read_at = at.and_then(|a| read_at(rows, fitted, z_view, a));
     let name = request.x_term_names().remove(0);
-    let line_design = Design::linear(&[(name.as_str(), x)], request.intercept);
+    let line_design = Design::linear_shared(
+        &[(name.as_str(), std::sync::Arc::clone(&rows.predictors[0]))],
+        request.intercept,
+    );
     // The model is this line, unweighted: its fit and cases serve the ladder and the cues.
     let model_is_line = rows.weights().is_none() && *rows.design == line_design;
     let mut degrees = if request.weights.is_none() && rows.levels.is_none() {

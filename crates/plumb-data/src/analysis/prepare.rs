@@ -45,8 +45,9 @@ pub struct ModelRows {
     pub boxcox: Option<BoxCox>,
     /// Each predictor's transform, in request order.
     pub x_transforms: Vec<Transform>,
-    /// Each predictor on the model's scale, in request order.
-    pub predictors: Vec<Vec<f64>>,
+    /// Each predictor on the model's scale, in request order (the selection's own column
+    /// when untransformed).
+    pub predictors: Vec<Arc<[f64]>>,
     /// The grouping factor's levels on the rows used.
     pub levels: Option<Levels>,
     /// The polynomial degree of the single predictor.
@@ -105,12 +106,12 @@ impl ModelRows {
         let mut design = if self.degree > 1 {
             Design::polynomial(&names[0], &self.predictors[0], self.degree, intercept)?
         } else {
-            let cols: Vec<(&str, &[f64])> = names
+            let cols: Vec<(&str, Arc<[f64]>)> = names
                 .iter()
                 .zip(&self.predictors)
-                .map(|(n, c)| (n.as_str(), c.as_slice()))
+                .map(|(n, c)| (n.as_str(), Arc::clone(c)))
                 .collect();
-            Design::linear(&cols, intercept)
+            Design::linear_shared(&cols, intercept)
         };
         if let (Some(levels), true) = (&self.levels, which != FactorTerms::None) {
             let mut levels = levels.clone();
@@ -124,14 +125,12 @@ impl ModelRows {
                         .iter()
                         .zip(design.columns())
                         .filter(|(t, _)| t.kind != plumb_core::regression::TermKind::Intercept)
-                        .map(|(t, c)| (t.name.as_str(), c.as_slice()))
+                        .map(|(t, c)| (t.name.as_str(), &c[..]))
                         .collect::<Vec<_>>(),
                     intercept,
                 );
             }
-            let first = names
-                .first()
-                .map(|n| (n.as_str(), self.predictors[0].as_slice()));
+            let first = names.first().map(|n| (n.as_str(), &self.predictors[0][..]));
             terms::push_factor_terms(&mut design, &levels, first);
         }
         Ok(design)
@@ -279,7 +278,7 @@ fn weights_of(
     request: &FitRequest,
 ) -> Result<Option<Vec<f64>>, AnalysisError> {
     if request.weights.is_some() {
-        return Ok(selection.columns.last().cloned());
+        return Ok(selection.columns.last().map(|c| c.to_vec()));
     }
     let Some(rule) = request.weight_rule else {
         return Ok(None);
@@ -383,7 +382,8 @@ fn put_what_ifs(
             )));
         }
         if let Ok(k) = selection.rows.binary_search(&w.row) {
-            selection.columns[column][k] = w.value;
+            // The selection was just gathered: its column is not shared yet, so no copy.
+            Arc::make_mut(&mut selection.columns[column])[k] = w.value;
         }
     }
     Ok(())

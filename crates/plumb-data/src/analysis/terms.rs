@@ -3,6 +3,7 @@
 //! response and of each predictor; and how a model's design row is built at one x.
 
 use std::collections::BTreeSet;
+use std::sync::Arc;
 
 use plumb_core::regression::{Design, Term, TermKind, Transform};
 
@@ -232,7 +233,7 @@ pub(super) fn push_factor_terms(
             .of_row
             .iter()
             .map(|&l| f64::from(u8::from(l == k)))
-            .collect();
+            .collect::<Arc<[f64]>>();
         let term = Term {
             name: level_term(&levels.column, name),
             kind: TermKind::Linear,
@@ -248,7 +249,7 @@ pub(super) fn push_factor_terms(
             .iter()
             .zip(x)
             .map(|(&l, &v)| if l == k { v } else { 0.0 })
-            .collect();
+            .collect::<Arc<[f64]>>();
         let term = Term {
             name: format!("{x_name}×{}", level_term(&levels.column, name)),
             kind: TermKind::Linear,
@@ -263,11 +264,15 @@ pub(super) fn transformed(
     file: &str,
     column: &str,
     t: Transform,
-    values: &[f64],
+    values: &Arc<[f64]>,
     rows: &[usize],
-) -> Result<Vec<f64>, AnalysisError> {
+) -> Result<Arc<[f64]>, AnalysisError> {
+    if t == Transform::Identity {
+        // The values themselves, shared.
+        return Ok(Arc::clone(values));
+    }
     let mut bad: Vec<usize> = Vec::new();
-    let out: Vec<f64> = values
+    let out: Arc<[f64]> = values
         .iter()
         .zip(rows)
         .map(|(&v, &r)| {
@@ -318,8 +323,8 @@ mod tests {
                 "dose×site=c"
             ]
         );
-        assert_eq!(d.columns()[2], vec![0.0, 1.0, 0.0, 1.0]);
-        assert_eq!(d.columns()[5], vec![0.0, 0.0, 3.0, 0.0]);
+        assert_eq!(*d.columns()[2], [0.0, 1.0, 0.0, 1.0]);
+        assert_eq!(*d.columns()[5], [0.0, 0.0, 3.0, 0.0]);
     }
 
     #[test]
@@ -345,7 +350,7 @@ mod tests {
             "f.csv",
             "conc",
             Transform::Ln,
-            &[1.0, 0.0, -2.0, 3.0],
+            &Arc::from([1.0, 0.0, -2.0, 3.0].as_slice()),
             &[4, 5, 9, 10],
         )
         .expect_err("not positive");
@@ -355,7 +360,13 @@ mod tests {
             text.contains("rows 5, 9") && text.contains("ln(conc)"),
             "{text}"
         );
-        let ok = transformed("f.csv", "c", Transform::Sqrt, &[4.0, 9.0], &[1, 2]).expect("fine");
-        assert_eq!(ok, vec![2.0, 3.0]);
+        let values: Arc<[f64]> = Arc::from([4.0, 9.0].as_slice());
+        let ok = transformed("f.csv", "c", Transform::Sqrt, &values, &[1, 2]).expect("fine");
+        assert_eq!(*ok, [2.0, 3.0]);
+        let same = transformed("f.csv", "c", Transform::Identity, &values, &[1, 2]).expect("ok");
+        assert!(
+            Arc::ptr_eq(&same, &values),
+            "untransformed values are shared, not copied"
+        );
     }
 }

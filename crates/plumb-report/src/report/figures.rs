@@ -69,7 +69,7 @@ fn residual_axis(input: &ReportInput<'_>, outcome: &Analysis) -> (String, Vec<f6
     let x = &input.request.x;
     match outcome.rows.selection.columns.get(1) {
         Some(values) if x.len() == 1 && values.len() == outcome.fit.residuals.len() => {
-            (x[0].clone(), values.clone())
+            (x[0].clone(), values.to_vec())
         }
         _ => ("fitted value".into(), outcome.fit.fitted.clone()),
     }
@@ -145,7 +145,7 @@ fn pair_figure(
 ) -> Result<Chart> {
     let request = &input.request;
     let sel = &outcome.rows.selection;
-    let mut all = dots(sel.columns[1].iter().zip(&sel.columns[0]));
+    let mut all = dots(sel.columns[1].iter().zip(sel.columns[0].iter()));
     all.extend(excluded_dots(input, outcome, &request.x[0]));
     let curve = crate::charts::band_rows(e.bands());
     let data = PairChart {
