@@ -261,8 +261,8 @@ impl Pair {
             base: PairRows {
                 spec,
                 rows: selection.rows.clone().into(),
-                x: x.into(),
-                y: y.into(),
+                x,
+                y,
                 incomplete: selection.dropped.len(),
                 terms: terms.into(),
                 points: Arc::new(points),

@@ -264,8 +264,7 @@ fn put_response(rows: &mut ModelRows, file: &str, request: &FitRequest) -> Resul
         }
     };
     rows.y = terms::transformed(file, &request.y, t, raw, &rows.selection.rows)
-        .map_err(Prepared::Request)?
-        .into();
+        .map_err(Prepared::Request)?;
     rows.response_transform = t;
     Ok(())
 }
