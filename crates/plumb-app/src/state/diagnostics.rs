@@ -340,6 +340,8 @@ fn top_by(cases: &[CaseInfluence], key: impl Fn(&CaseInfluence) -> f64) -> Vec<u
     if idx.len() > TOP_ROWS {
         idx.select_nth_unstable_by(TOP_ROWS, by);
         idx.truncate(TOP_ROWS);
+        // Kept with the diagnostics: without this the list would hold its n-row capacity.
+        idx.shrink_to_fit();
     }
     idx.sort_by(by);
     idx
@@ -380,6 +382,22 @@ fn group_lines(input: &Input, included: &[usize]) -> Vec<GroupLine> {
 mod tests {
     use super::*;
     use crate::state::marks::Note;
+
+    #[test]
+    fn a_ranking_keeps_its_top_rows_and_not_the_capacity_of_all() {
+        let cases: Vec<CaseInfluence> = (0..500)
+            .map(|k| CaseInfluence {
+                cooks_distance: f64::from((k * 37) % 500),
+                ..CaseInfluence::default()
+            })
+            .collect();
+        let top = top_by(&cases, |c| c.cooks_distance);
+        assert_eq!(top.len(), TOP_ROWS);
+        assert!(top.capacity() <= TOP_ROWS, "capacity {}", top.capacity());
+        let d: Vec<f64> = top.iter().map(|&k| cases[k].cooks_distance).collect();
+        let best: Vec<f64> = (0..TOP_ROWS).map(|i| (499 - i) as f64).collect();
+        assert_eq!(d, best, "largest first");
+    }
 
     #[test]
     fn diagnostics_follow_the_marks_and_effects_use_the_file_values() {
