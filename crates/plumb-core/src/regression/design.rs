@@ -132,6 +132,20 @@ impl Design {
     /// # Errors
     /// [`CoreError::InvalidOption`] for a degree outside that range.
     pub fn polynomial(name: &str, x: &[f64], degree: u32, intercept: bool) -> Result<Self> {
+        Self::polynomial_shared(name, Arc::from(x), degree, intercept)
+    }
+
+    /// [`Design::polynomial`] on a predictor the caller holds in an `Arc`: its linear term
+    /// shares it.
+    ///
+    /// # Errors
+    /// As [`Design::polynomial`].
+    pub fn polynomial_shared(
+        name: &str,
+        x: Arc<[f64]>,
+        degree: u32,
+        intercept: bool,
+    ) -> Result<Self> {
         if !(1..=MAX_DEGREE).contains(&degree) {
             return Err(CoreError::InvalidOption(format!(
                 "polynomial degree {degree} is outside 1..={MAX_DEGREE}"
@@ -147,7 +161,7 @@ impl Design {
                 (format!("{name}^{k}"), TermKind::Power(k))
             };
             let column: Arc<[f64]> = if k == 1 {
-                Arc::from(x)
+                Arc::clone(&x)
             } else {
                 x.iter().map(|&v| v.powi(k as i32)).collect()
             };

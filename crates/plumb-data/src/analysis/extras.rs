@@ -10,6 +10,8 @@ use plumb_core::regression::{
     NestedComparison, StandardizedView,
 };
 
+use std::sync::Arc;
+
 use super::{FitRequest, ModelRows};
 
 /// An overlay line for the same pair.
@@ -128,15 +130,49 @@ pub struct ReadAt {
     pub expected_z_y: f64,
 }
 
-/// Overlays and cues for a one-predictor request (`None` with several predictors). Cues, the
-/// z-units view, the overlays and the ladder work on the model's scale; the curves are drawn
-/// back in the data's units.
+/// The polynomial ladder of a one-predictor request, and whether the model is its line.
+#[derive(Debug, Default)]
+pub(super) struct Ladder {
+    degrees: Vec<DegreeStep>,
+    model_is_line: bool,
+}
+
+/// Fits the ladder (empty with several predictors, weights or a grouping factor). The analysis
+/// runs it before the case diagnostics, so that its designs are never alive beside them.
+pub(super) fn ladder(rows: &ModelRows, fitted: &LinearFit, request: &FitRequest) -> Ladder {
+    if request.x.len() != 1 {
+        return Ladder::default();
+    }
+    let name = request.x_term_names().remove(0);
+    let x = &rows.predictors[0];
+    let line_design = Design::linear_shared(&[(name.as_str(), Arc::clone(x))], request.intercept);
+    // The model is this line, unweighted: its fit and cases serve the ladder and the cues.
+    let model_is_line = rows.weights().is_none() && *rows.design == line_design;
+    let degrees = if request.weights.is_none() && rows.levels.is_none() {
+        degree_ladder(
+            (&name, x),
+            rows.y(),
+            request,
+            (&line_design, model_is_line.then_some(fitted)),
+        )
+    } else {
+        Vec::new()
+    };
+    Ladder {
+        degrees,
+        model_is_line,
+    }
+}
+
+/// Overlays and cues for a one-predictor request (`None` with several predictors), beside its
+/// `ladder`. Cues, the z-units view, the overlays and the ladder work on the model's scale; the
+/// curves are drawn back in the data's units.
 pub(super) fn pair_extras(
     rows: &ModelRows,
     fitted: &LinearFit,
     cases: &[CaseInfluence],
     request: &FitRequest,
-    extras: ExtrasRequest,
+    (extras, ladder): (ExtrasRequest, Ladder),
 ) -> Option<PairExtras> {
     if request.x.len() != 1 {
         return None;
@@ -146,26 +182,13 @@ pub(super) fn pair_extras(
         loess_span,
         at,
     } = extras;
+    let Ladder {
+        mut degrees,
+        model_is_line,
+    } = ladder;
     let (y, x) = (rows.y(), &rows.predictors[0][..]);
     let z_view = StandardizedView::of(x, y);
     let read_at = at.and_then(|a| read_at(rows, fitted, z_view, a));
-    let name = request.x_term_names().remove(0);
-    let line_design = Design::linear_shared(
-        &[(name.as_str(), std::sync::Arc::clone(&rows.predictors[0]))],
-        request.intercept,
-    );
-    // The model is this line, unweighted: its fit and cases serve the ladder and the cues.
-    let model_is_line = rows.weights().is_none() && *rows.design == line_design;
-    let mut degrees = if request.weights.is_none() && rows.levels.is_none() {
-        degree_ladder(
-            (&name, x),
-            y,
-            request,
-            (&line_design, model_is_line.then_some(fitted)),
-        )
-    } else {
-        Vec::new()
-    };
     // The ladder's line and cubic are the cues' own fits when they are fitted the same way
     // (with an intercept, at the default options): each is fitted once.
     let same_way =
@@ -227,7 +250,7 @@ fn read_at(
 /// Polynomials of degree 1, 2 and 3 in `x` (named `name`); the line is `line`'s design, and
 /// its fit is `line`'s own when given (the model's, fitted the same way) instead of a refit.
 fn degree_ladder(
-    (name, x): (&str, &[f64]),
+    (name, x): (&str, &Arc<[f64]>),
     y: &[f64],
     request: &FitRequest,
     (line_design, line_fit): (&Design, Option<&LinearFit>),
@@ -241,7 +264,7 @@ fn degree_ladder(
         let fitted = match (degree, line_fit) {
             (1, Some(known)) => Some(without_rows(known)),
             (1, None) => fit(line_design, y, None, &options).ok(),
-            _ => Design::polynomial(name, x, degree, request.intercept)
+            _ => Design::polynomial_shared(name, Arc::clone(x), degree, request.intercept)
                 .ok()
                 .and_then(|d| fit(&d, y, None, &options).ok()),
         };

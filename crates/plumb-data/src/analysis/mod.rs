@@ -212,6 +212,11 @@ pub fn analyze(
         .then(|| variance_inflation_of_fit(&rows.design, rows.weights(), &fit))
         .transpose()
         .map_err(model_error)?;
+    // The ladder's designs come and go before the case diagnostics are made.
+    let ladder = wanted
+        .extras
+        .map(|_| extras::ladder(&rows, &fit, request))
+        .unwrap_or_default();
     let (cases, dfbetas) = match (wanted.influence, wanted.dfbetas) {
         (false, _) => (Vec::new(), None),
         (true, false) => (
@@ -226,7 +231,7 @@ pub fn analyze(
     };
     let extras = wanted
         .extras
-        .and_then(|e| extras::pair_extras(&rows, &fit, &cases, request, e));
+        .and_then(|e| extras::pair_extras(&rows, &fit, &cases, request, (e, ladder)));
     let groups = groups::group_tests(table, &rows, &fit, request)?;
     let added = if wanted.added_variables {
         predictor_terms(&rows)
