@@ -251,7 +251,7 @@ fn residuals_can_be_drawn_against_the_row_order_or_any_numeric_column() {
             .iter()
             .position(|&i| i == entry)
             .expect("included");
-        assert_eq!(e, d.cases[k].residual);
+        assert_eq!(e, d.cases.get(k).expect("a case").residual);
     }
     assert_eq!(
         d.views.excluded_residuals.entries.len(),

@@ -452,7 +452,9 @@ fn influence_table_ui(ui: &mut egui::Ui, scene: &Scene<'_>, own: &mut BenchUi) -
         }
         ui.end_row();
         for &k in order.iter().take(INFLUENCE_ROWS) {
-            let c = &d.cases[k];
+            let Some(c) = d.cases.get(k) else {
+                continue;
+            };
             let entry = d.included[k];
             let row = scene.pair.rows[entry];
             if ui

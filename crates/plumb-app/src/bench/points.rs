@@ -301,9 +301,17 @@ pub fn tooltip_text(scene: &Scene<'_>, mode: PointerMode, e: usize) -> String {
             .ok()
             .and_then(|k| d.cases.get(k))
         {
+            // The fitted value from the fit's coefficients, on the model's scale as the
+            // residual is.
+            let fitted = d
+                .fit
+                .as_ref()
+                .ok()
+                .and_then(|f| crate::state::views::against_fit(pair, marks, f, e))
+                .map_or(f64::NAN, |(yhat, _)| yhat);
             text.push_str(&format!(
                 "\nfitted {}  residual {}\nleverage {}  Cook's D {}\nstudentized {}",
-                num(c.fitted),
+                num(fitted),
                 num(c.residual),
                 num(c.leverage),
                 num(c.cooks_distance),

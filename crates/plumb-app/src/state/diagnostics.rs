@@ -16,6 +16,7 @@ use plumb_data::analysis::{
 use plumb_data::Table;
 use plumb_report::{exclusion_effects, Effect};
 
+use super::case_figures::CaseFigures;
 use super::lab_views::{lab_views, LabViews};
 use super::marks::Marks;
 use super::pair::{FitSpec, Pair, PairRows};
@@ -110,14 +111,15 @@ pub struct Diagnostics {
     pub spec: FitSpec,
     /// The marks these results are for.
     pub marks: Marks,
-    /// Pair entries included, ascending; `cases[k]` belongs to `included[k]`.
+    /// Pair entries included, ascending; `cases.get(k)` belongs to `included[k]`.
     pub included: Arc<[usize]>,
     /// The least-squares fit of the included rows at their current (possibly moved) positions,
-    /// without its per-row fitted values and residuals (each case carries its own, and at
-    /// millions of rows the vectors would be two more copies of the data).
+    /// without its per-row fitted values and residuals (the case figures carry the residuals,
+    /// a fitted value is read from the coefficients, and at millions of rows the vectors would
+    /// be two more copies of the data).
     pub fit: Result<LinearFit, String>,
-    /// Case diagnostics of the included rows.
-    pub cases: Vec<CaseInfluence>,
+    /// What is shown of the included rows' case diagnostics.
+    pub cases: CaseFigures,
     /// Bands, overlays, cues and the z-units view.
     pub extras: Option<PairExtras>,
     /// Deming line, when asked for.
@@ -247,7 +249,7 @@ pub fn compute(input: &Input) -> Diagnostics {
         views,
         included: parts.included,
         fit: parts.fit,
-        cases: parts.cases,
+        cases: CaseFigures::of(&parts.cases),
         extras: parts.extras,
         effects,
     }
@@ -449,17 +451,19 @@ mod tests {
         let fit = d.fit.expect("fit");
         for (k, &i) in d.included.iter().enumerate() {
             let (yhat, _) = against_fit(&pair, &marks, &fit, i).expect("in the domain");
-            assert!((yhat - d.cases[k].fitted).abs() < 1e-9 * yhat.abs().max(1.0));
+            let e = d.cases.get(k).expect("a case").residual;
+            assert!((yhat + e - pair.point(i, &marks).1).abs() < 1e-9 * yhat.abs().max(1.0));
         }
         // Row 13 sits 25 above a line the others follow within 2: too far out to draw, so it
         // is named under the view instead.
         assert!(d.views.excluded_residuals.entries.is_empty());
         assert_eq!(d.views.beyond.iter().map(|b| b.0).collect::<Vec<_>>(), [12]);
         let cook_max = d.cases.iter().map(|c| c.cooks_distance).fold(0.0, f64::max);
-        assert_eq!(d.cases[d.top[0][0]].cooks_distance, cook_max);
+        let case = |k: usize| d.cases.get(k).expect("a case");
+        assert_eq!(case(d.top[0][0]).cooks_distance, cook_max);
         assert!(d.top[1]
             .windows(2)
-            .all(|w| d.cases[w[0]].leverage >= d.cases[w[1]].leverage));
+            .all(|w| case(w[0]).leverage >= case(w[1]).leverage));
         assert_eq!(d.top[2].len(), 29);
         let live = Pair::new(&data.table, FitSpec::line("y", "x"))
             .expect("pair")
@@ -499,8 +503,9 @@ mod tests {
             .iter()
             .position(|&i| pair.rows[i] == 7)
             .expect("row 7");
+        let (yhat, _) = against_fit(&pair, &marks, &fit, d.included[k]).expect("in the domain");
         assert!(
-            (d.cases[k].fitted + d.cases[k].residual - 40.0).abs() < 1e-9,
+            (yhat + d.cases.get(k).expect("a case").residual - 40.0).abs() < 1e-9,
             "y is the moved value"
         );
     }

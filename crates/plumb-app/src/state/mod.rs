@@ -6,6 +6,7 @@
 //! (besides [`State::poll`], which picks up the results of background jobs).
 
 mod bench;
+pub mod case_figures;
 pub mod cloud;
 pub mod column_facts;
 pub mod dataset;
