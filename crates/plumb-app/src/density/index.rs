@@ -25,9 +25,10 @@ impl PointIndex {
             (x.is_finite() && y.is_finite())
                 .then(|| v.min(INDEX_CELLS - 1) * INDEX_CELLS + u.min(INDEX_CELLS - 1))
         };
+        // Each point's cell is computed twice (to count, then to place) rather than kept: at
+        // ten million points a vector of cells would be 160 MB for a moment, per view.
         let mut starts = vec![0u32; INDEX_CELLS * INDEX_CELLS + 1];
-        let cells: Vec<Option<usize>> = points.iter().map(cell_of).collect();
-        for c in cells.iter().flatten() {
+        for c in points.iter().filter_map(cell_of) {
             starts[c + 1] += 1;
         }
         for k in 1..starts.len() {
@@ -35,10 +36,10 @@ impl PointIndex {
         }
         let mut fill = starts.clone();
         let mut entries = vec![0u32; starts[starts.len() - 1] as usize];
-        for (i, c) in cells.iter().enumerate() {
-            if let Some(c) = c {
-                entries[fill[*c] as usize] = i as u32;
-                fill[*c] += 1;
+        for (i, c) in points.iter().enumerate() {
+            if let Some(c) = cell_of(c) {
+                entries[fill[c] as usize] = i as u32;
+                fill[c] += 1;
             }
         }
         Some(Self {

@@ -214,6 +214,11 @@ pub fn compute(input: &Input) -> Diagnostics {
         agreement.as_ref().and_then(|a| a.as_ref().ok()),
     );
     let mut parts = Parts::of(input, analysis);
+    // The views read each case's own fitted value and residual, and the fit's coefficients.
+    if let Ok(fit) = &mut parts.fit {
+        fit.fitted = Vec::new();
+        fit.residuals = Vec::new();
+    }
     let views = views_of(
         input,
         &parts.included,
@@ -221,10 +226,6 @@ pub fn compute(input: &Input) -> Diagnostics {
         parts.fit.as_ref().ok(),
         parts.added,
     );
-    if let Ok(fit) = &mut parts.fit {
-        fit.fitted = Vec::new();
-        fit.residuals = Vec::new();
-    }
     let effects = exclusion_effects(&input.table, &input.spec.on_file_rows(&input.marks))
         .map_err(|e| e.to_string());
     Diagnostics {
