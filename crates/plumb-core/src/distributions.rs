@@ -7,7 +7,7 @@
 use statrs::distribution::{ContinuousCDF, Normal, StudentsT};
 
 use statrs::function::beta::beta_reg;
-use statrs::function::gamma::{gamma_lr, gamma_ur, ln_gamma};
+use statrs::function::gamma::{gamma_ur, ln_gamma};
 
 /// Two-sided p-value of a t statistic with `df` degrees of freedom:
 /// `p = P(|T| ≥ |t|) = I_{df/(df+t²)}(df/2, 1/2)`.
@@ -244,25 +244,17 @@ pub fn normal_order_bands(
         .collect()
 }
 
-/// Upper tail of the standard normal: `Q(z) = P(Z ≥ z) = ½·Γ(½, z²/2)/Γ(½)` for `z ≥ 0`
-/// (the regularized upper incomplete gamma, accurate to a few ulps in statrs, where its
-/// `erfc` is good to about 1e-11 only) and `Q(z) = ½ + ½·P(½, z²/2)` for `z < 0`.
+/// Upper tail of the standard normal: `Q(z) = P(Z ≥ z) = ½·erfc(z/√2)`, with the
+/// complementary error function of `libm` (the FreeBSD/musl implementation, under one ulp; for
+/// negative arguments it returns `2 − erfc(−x)`, so `Q(−3)` keeps its digits too). The one
+/// rounding of `z/√2` costs about `z²·ε` relative (7e-15 at z = 8). It replaced the regularized
+/// incomplete gamma `½·Γ(½, z²/2)/Γ(½)`, as accurate but about ten times slower, which the
+/// normality checks called twice per row.
 pub fn normal_upper_tail(z: f64) -> f64 {
     if z.is_nan() {
         return f64::NAN;
     }
-    if z == 0.0 {
-        return 0.5;
-    }
-    if z.is_infinite() {
-        return if z > 0.0 { 0.0 } else { 1.0 };
-    }
-    let half_z2 = 0.5 * z * z;
-    if z >= 0.0 {
-        0.5 * gamma_ur(0.5, half_z2)
-    } else {
-        0.5 + 0.5 * gamma_lr(0.5, half_z2)
-    }
+    0.5 * libm::erfc(z * std::f64::consts::FRAC_1_SQRT_2)
 }
 
 /// `ln Q(z)`, finite however far out z lies: `ln` of [`normal_upper_tail`] up to z = 30, beyond
@@ -495,6 +487,32 @@ mod tests {
 #[cfg(test)]
 mod ln_tail_tests {
     use super::*;
+
+    #[test]
+    fn the_tail_from_erfc_agrees_with_the_incomplete_gamma_across_the_range() {
+        // Q(z) = ½·Γ(½, z²/2)/Γ(½) for z ≥ 0 and ½ + ½·P(½, z²/2) below (statrs' regularized
+        // incomplete gamma, the formula used before, itself good to a few ulps): the two agree
+        // to a few ulps, growing as z²·ε with the rounding of z/√2.
+        for k in (-320..=740).filter(|&k| k != 0) {
+            let z = f64::from(k) * 0.05;
+            let h = 0.5 * z * z;
+            let by_gamma = if z >= 0.0 {
+                0.5 * gamma_ur(0.5, h)
+            } else {
+                0.5 + 0.5 * statrs::function::gamma::gamma_lr(0.5, h)
+            };
+            let q = normal_upper_tail(z);
+            let tol = 2e-15 * (1.0 + z * z);
+            assert!(
+                (q / by_gamma - 1.0).abs() <= tol,
+                "z = {z}: {q} vs {by_gamma}"
+            );
+        }
+        assert_eq!(normal_upper_tail(0.0), 0.5);
+        assert_eq!(normal_upper_tail(f64::INFINITY), 0.0);
+        assert_eq!(normal_upper_tail(f64::NEG_INFINITY), 1.0);
+        assert!(normal_upper_tail(f64::NAN).is_nan());
+    }
 
     #[test]
     fn the_log_tail_joins_the_tail_and_stays_finite_far_out() {
