@@ -49,6 +49,27 @@ impl Cloud {
         }
     }
 
+    /// A cloud whose entries do not ascend, with `by_entry` (its positions ordered by entry)
+    /// already known to the caller; builds the index when it is large.
+    pub fn ordered(
+        points: Vec<(f64, f64)>,
+        entries: impl Into<Arc<[usize]>>,
+        by_entry: Vec<usize>,
+    ) -> Self {
+        let entries = entries.into();
+        debug_assert!(by_entry.windows(2).all(|w| entries[w[0]] < entries[w[1]]));
+        let index = (points.len() > INDEX_FROM)
+            .then(|| PointIndex::new(&points))
+            .flatten();
+        Self {
+            bounds: Bounds::around(points.iter().copied()),
+            points,
+            entries,
+            index,
+            by_entry: Some(by_entry),
+        }
+    }
+
     /// Whether the view should draw a density image.
     pub fn is_dense(&self) -> bool {
         self.points.len() > DENSITY_FROM

@@ -325,24 +325,34 @@ impl<'a> Along<'a> {
 
 /// Sorted externally studentized residuals against normal scores `Φ⁻¹((k − 3/8)/(n + 1/4))`.
 fn quantile_cloud(cases: &[CaseInfluence], included: &[usize]) -> Cloud {
-    let mut order: Vec<usize> = (0..cases.len())
-        .filter(|&k| cases[k].studentized_external.is_finite())
+    // (residual, position) pairs sorted side by side on all cores, ties in row order: the keys
+    // are read in place rather than through the positions.
+    let mut keyed: Vec<(f64, usize)> = cases
+        .iter()
+        .enumerate()
+        .filter(|(_, c)| c.studentized_external.is_finite())
+        .map(|(k, c)| (c.studentized_external, k))
         .collect();
-    // On all cores; ties keep row order, as a stable sort would.
-    order.par_sort_unstable_by(|&a, &b| {
-        cases[a]
-            .studentized_external
-            .total_cmp(&cases[b].studentized_external)
-            .then(a.cmp(&b))
-    });
-    let points = normal_scores(order.len())
+    keyed.par_sort_unstable_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+    let points = normal_scores(keyed.len())
         .into_iter()
-        .zip(&order)
-        .map(|(expected, &k)| (expected, cases[k].studentized_external))
+        .zip(&keyed)
+        .map(|(expected, &(t, _))| (expected, t))
         .collect();
-    Cloud::new(
+    // The view's positions in entry order without a second sort: the entries ascend with the
+    // case index, so inverting the rank order lists them.
+    let mut rank_of = vec![usize::MAX; cases.len()];
+    for (position, &(_, k)) in keyed.iter().enumerate() {
+        rank_of[k] = position;
+    }
+    let by_entry = rank_of.into_iter().filter(|&r| r != usize::MAX).collect();
+    Cloud::ordered(
         points,
-        order.iter().map(|&k| included[k]).collect::<Arc<[usize]>>(),
+        keyed
+            .iter()
+            .map(|&(_, k)| included[k])
+            .collect::<Arc<[usize]>>(),
+        by_entry,
     )
 }
 
@@ -365,6 +375,29 @@ mod tests {
             cooks_distance: d,
             flags: Flags::of(flags),
             ..CaseInfluence::default()
+        }
+    }
+
+    #[test]
+    fn the_quantile_view_finds_each_point_by_its_entry_as_a_sorted_lookup_would() {
+        // Residuals out of order, a tie and an undefined one; the entries ascend.
+        let t = [0.4, -1.2, f64::NAN, 2.5, -1.2, 0.0, 1.1];
+        let cases: Vec<CaseInfluence> = t
+            .iter()
+            .map(|&v| CaseInfluence {
+                studentized_external: v,
+                ..CaseInfluence::default()
+            })
+            .collect();
+        let included: Vec<usize> = (0..t.len()).map(|i| 3 * i + 1).collect();
+        let cloud = quantile_cloud(&cases, &included);
+        let sorted: Vec<f64> = cloud.points.iter().map(|p| p.1).collect();
+        assert_eq!(sorted, [-1.2, -1.2, 0.0, 0.4, 1.1, 2.5]);
+        assert_eq!(cloud.entries[..2], [4, 13], "ties in row order");
+        let reference = Cloud::new(cloud.points.clone(), cloud.entries.to_vec());
+        for (k, &e) in included.iter().enumerate() {
+            assert_eq!(cloud.position_of(e), reference.position_of(e), "entry {e}");
+            assert_eq!(cloud.position_of(e).is_some(), !t[k].is_nan());
         }
     }
 
