@@ -85,6 +85,25 @@ pub fn dot_split_lanes(a: &[f64], b: &[f64]) -> (f64, f64) {
     two_sum(hi, lo)
 }
 
+/// `a^k` for `k ≥ 0` by repeated squaring, written out so that it inlines into a column
+/// loop: the same multiplications in the same order as `f64::powi` (compiler-builtins'
+/// `__powidf2`: `r = 1; while … { if k odd: r *= a; k /= 2; a *= a }`), so the same bits —
+/// tested against `powi`. `powi` itself is an out-of-line call per value.
+#[inline(always)]
+pub fn int_pow(mut a: f64, mut k: u32) -> f64 {
+    let mut r = 1.0;
+    loop {
+        if k & 1 == 1 {
+            r *= a;
+        }
+        k >>= 1;
+        if k == 0 {
+            return r;
+        }
+        a *= a;
+    }
+}
+
 /// Largest `|vᵢ|` (0 for an empty slice; NaN-free input assumed).
 pub fn max_abs(v: &[f64]) -> f64 {
     v.iter().fold(0.0_f64, |m, x| m.max(x.abs()))
@@ -153,6 +172,20 @@ pub fn power_of_two_near(x: f64) -> f64 {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn int_pow_gives_the_bits_of_powi() {
+        let mut v = 0.173_f64;
+        for _ in 0..2000 {
+            v = (v * 7.31 + 0.917).fract() * 41.0 - 20.5;
+            for k in 0..=10u32 {
+                let (a, b) = (int_pow(v, k), v.powi(k as i32));
+                assert!(a.to_bits() == b.to_bits(), "{v}^{k}: {a} vs {b}");
+            }
+        }
+        assert_eq!(int_pow(-0.0, 3).to_bits(), (-0.0f64).powi(3).to_bits());
+        assert_eq!(int_pow(f64::INFINITY, 0), 1.0);
+    }
 
     #[test]
     fn sum_keeps_the_small_terms_that_plain_summation_loses() {

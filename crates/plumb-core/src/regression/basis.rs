@@ -59,7 +59,12 @@ impl Basis {
         let (c, h) = shift_and_step(x, design.has_intercept(), degree);
         let raw: Vec<Vec<f64>> = powers
             .iter()
-            .map(|&k| x.iter().map(|&v| ((v - c) / h).powi(k)).collect())
+            .map(|&k| {
+                let k = k.unsigned_abs();
+                x.iter()
+                    .map(|&v| accurate::int_pow((v - c) / h, k))
+                    .collect()
+            })
             .collect();
         let scales = scales_of(&raw, root_w);
         let p = design.n_terms();
@@ -155,7 +160,7 @@ impl Basis {
     #[inline]
     pub fn z_value(&self, k: usize, v: f64) -> f64 {
         let (shift, step, scale, power) = self.recipe[k];
-        ((v - shift) / step).powi(power) / scale
+        accurate::int_pow((v - shift) / step, power.unsigned_abs()) / scale
     }
 }
 

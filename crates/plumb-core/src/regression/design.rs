@@ -2,7 +2,7 @@
 
 use std::sync::Arc;
 
-use crate::{CoreError, Result};
+use crate::{accurate, CoreError, Result};
 
 /// The intercept term's name.
 pub const INTERCEPT: &str = "intercept";
@@ -163,7 +163,7 @@ impl Design {
             let column: Arc<[f64]> = if k == 1 {
                 Arc::clone(&x)
             } else {
-                x.iter().map(|&v| v.powi(k as i32)).collect()
+                x.iter().map(|&v| accurate::int_pow(v, k)).collect()
             };
             design.push(
                 Term {
