@@ -30,9 +30,6 @@ impl Cloud {
     /// A cloud; builds the index when it is large.
     pub fn new(points: Vec<(f64, f64)>, entries: impl Into<Arc<[usize]>>) -> Self {
         let entries = entries.into();
-        let index = (points.len() > INDEX_FROM)
-            .then(|| PointIndex::new(&points))
-            .flatten();
         let ascending = entries.windows(2).all(|w| w[0] < w[1]);
         let by_entry = (!ascending).then(|| {
             let mut order: Vec<usize> = (0..entries.len()).collect();
@@ -40,13 +37,7 @@ impl Cloud {
             order.par_sort_unstable_by_key(|&k| entries[k]);
             order
         });
-        Self {
-            bounds: Bounds::around(points.iter().copied()),
-            points,
-            entries,
-            index,
-            by_entry,
-        }
+        Self::with_order(points, entries, by_entry)
     }
 
     /// A cloud whose entries do not ascend, with `by_entry` (its positions ordered by entry)
@@ -58,6 +49,15 @@ impl Cloud {
     ) -> Self {
         let entries = entries.into();
         debug_assert!(by_entry.windows(2).all(|w| entries[w[0]] < entries[w[1]]));
+        Self::with_order(points, entries, Some(by_entry))
+    }
+
+    /// The cloud with its bounds and, when it is large, its hover index.
+    fn with_order(
+        points: Vec<(f64, f64)>,
+        entries: Arc<[usize]>,
+        by_entry: Option<Vec<usize>>,
+    ) -> Self {
         let index = (points.len() > INDEX_FROM)
             .then(|| PointIndex::new(&points))
             .flatten();
@@ -66,7 +66,7 @@ impl Cloud {
             points,
             entries,
             index,
-            by_entry: Some(by_entry),
+            by_entry,
         }
     }
 

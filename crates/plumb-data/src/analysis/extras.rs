@@ -172,7 +172,8 @@ pub(super) fn pair_extras(
     fitted: &LinearFit,
     cases: &[CaseInfluence],
     request: &FitRequest,
-    (extras, ladder): (ExtrasRequest, Ladder),
+    extras: ExtrasRequest,
+    ladder: Ladder,
 ) -> Option<PairExtras> {
     if request.x.len() != 1 {
         return None;

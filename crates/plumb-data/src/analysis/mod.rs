@@ -231,7 +231,7 @@ pub fn analyze(
     };
     let extras = wanted
         .extras
-        .and_then(|e| extras::pair_extras(&rows, &fit, &cases, request, (e, ladder)));
+        .and_then(|e| extras::pair_extras(&rows, &fit, &cases, request, e, ladder));
     let groups = groups::group_tests(table, &rows, &fit, request)?;
     let added = if wanted.added_variables {
         predictor_terms(&rows)
